@@ -1,0 +1,85 @@
+# headroom: plain Makefile. `make` builds build/headroom; `make check` runs
+# every test; `make asan` the same under ASan+UBSan; `make bench` the
+# benchmark; `make demo` the tool on the shipped examples.
+
+CC      ?= cc
+BUILD   ?= build
+PREFIX  ?= /usr/local
+CSTD    := -std=c17
+WARN    := -Wall -Wextra -Wpedantic -Werror -Wshadow -Wconversion \
+           -Wstrict-prototypes -Wmissing-prototypes
+OPT     ?= -O2 -g
+SAN     ?=
+CPPFLAGS := -Iinclude -Igrammar -I$(BUILD) -D_POSIX_C_SOURCE=200809L
+CFLAGS  := $(CSTD) $(OPT) $(SAN)
+LDLIBS  := -lm -lpthread
+# Generated scanner/parser code gets the exemptions flex output needs.
+GENWARN := -Wall -Wno-unused-function -Wno-sign-compare -Wno-unused-parameter
+
+LIB_SRC := $(filter-out src/main.c,$(wildcard src/*.c))
+LIB_OBJ := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIB_SRC)) \
+           $(BUILD)/obj/spice.tab.o $(BUILD)/obj/spice.lex.o
+TESTS   := $(patsubst tests/%.c,$(BUILD)/%,$(wildcard tests/test_*.c))
+DEPS_STAMP := $(BUILD)/.deps-ok
+
+.PHONY: all deps check asan bench demo clean install test-run fuzz-build
+all: $(BUILD)/headroom
+
+deps: $(DEPS_STAMP)
+$(DEPS_STAMP): scripts/deps.sh
+	@mkdir -p $(BUILD)
+	bash scripts/deps.sh
+	@touch $@
+
+$(BUILD)/spice.tab.c $(BUILD)/spice.tab.h: grammar/spice.y | $(DEPS_STAMP)
+	@mkdir -p $(BUILD)
+	bison -Wall -Werror --defines=$(BUILD)/spice.tab.h -o $(BUILD)/spice.tab.c $<
+
+$(BUILD)/spice.lex.c $(BUILD)/spice.lex.h: grammar/spice.l $(BUILD)/spice.tab.h
+	flex --header-file=$(BUILD)/spice.lex.h -o $(BUILD)/spice.lex.c $<
+
+$(BUILD)/obj/spice.%.o: $(BUILD)/spice.%.c $(BUILD)/spice.tab.h
+	@mkdir -p $(BUILD)/obj
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(GENWARN) -c $< -o $@
+
+$(BUILD)/obj/%.o: src/%.c $(BUILD)/spice.lex.h $(wildcard include/*.h grammar/*.h)
+	@mkdir -p $(BUILD)/obj
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -c $< -o $@
+
+$(BUILD)/libheadroom.a: $(LIB_OBJ)
+	ar rcs $@ $^
+
+$(BUILD)/headroom: $(BUILD)/obj/main.o $(BUILD)/libheadroom.a
+	$(CC) $(CFLAGS) -o $@ $^ $(LDLIBS)
+
+$(BUILD)/test_%: tests/test_%.c tests/testutil.h $(BUILD)/libheadroom.a
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -Wno-missing-prototypes -o $@ $< \
+		$(BUILD)/libheadroom.a -lcmocka $(LDLIBS)
+
+# Runs every unit test, then the command-line and corpus checks.
+test-run: $(BUILD)/headroom $(TESTS)
+	@set -e; for t in $(TESTS); do echo "== $$t"; \
+		HEADROOM=$(BUILD)/headroom $$t; done
+	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
+
+check: deps
+	@$(MAKE) --no-print-directory test-run
+
+asan: deps
+	@$(MAKE) --no-print-directory BUILD=build/asan OPT="-O1 -g" \
+		SAN="-fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer" \
+		test-run
+
+bench: deps $(BUILD)/headroom
+	bash scripts/bench.sh $(BUILD)/headroom
+
+demo: deps $(BUILD)/headroom
+	$(BUILD)/headroom parts examples/*.cir
+
+install: $(BUILD)/headroom
+	install -d $(DESTDIR)$(PREFIX)/bin
+	install -m 755 $(BUILD)/headroom $(DESTDIR)$(PREFIX)/bin/headroom
+
+clean:
+	rm -rf build

@@ -1,0 +1,48 @@
+/* lexctx.h: state shared by the scanner (spice.l), the parser (spice.y) and
+ * the driver (src/parse.c). Reached from the scanner through yyextra; there
+ * are no file-scope variables. */
+#ifndef HEADROOM_LEXCTX_H
+#define HEADROOM_LEXCTX_H
+
+#include <stdint.h>
+
+#include "arena.h"
+#include "deck.h"
+#include "diag.h"
+#include "parse.h"
+
+struct lex_ctx {
+	uint32_t file;
+	uint32_t line, col;       /* position of the next byte */
+	uint32_t max_line_len;
+	int title_pending;        /* next line is the title */
+	int cont_state;           /* start condition a continuation resumes */
+	int expr_closer;          /* '}' or '\'' for the open value expression */
+	int brace_depth;
+	int card_bad;             /* a lexical error spoiled the current card */
+	uint32_t control_line;    /* where an open .control block began */
+	uint32_t control_col;
+	int pending_eol;          /* an EOL token is owed before the next one */
+	int ended;                /* .end seen: the rest is ignored */
+	struct arena *scratch;
+	struct arena_mark mark;   /* scratch is reset here at each card head */
+	struct diag_sink *diags;
+	const struct hr_alloc *hook; /* flex's buffers come from here */
+	/* parser side */
+	parse_card_fn fn;
+	void *ud;
+	int stop;
+	int oom;
+};
+
+/* Token texts handed to the parser: arena copies in scratch. */
+struct lex_text {
+	const char *s;
+	uint32_t n;
+	int kind; /* enum deck_card_kind, for card heads */
+};
+
+/* Puts a fresh scanner in its first mode (title line or card start). */
+void lex_start(void *scanner, int has_title);
+
+#endif

@@ -1,0 +1,42 @@
+/* num.h: SPICE numbers with scale suffixes, and case folding of names.
+ * Plain functions with no state, so the scanner actions stay tiny and the
+ * rules can be tested row by row. */
+#ifndef HEADROOM_NUM_H
+#define HEADROOM_NUM_H
+
+#include <stddef.h>
+
+enum num_status {
+	NUM_OK,
+	NUM_NOT_A_NUMBER,  /* does not start like a number */
+	NUM_DIGIT_AFTER_SUFFIX, /* "4k7": digits after the scale or unit letters */
+	NUM_BAD_EXPONENT,  /* "1e+" */
+	NUM_OUT_OF_RANGE,  /* overflows a double */
+	NUM_BAD_CHAR       /* a character that has no place in a number */
+};
+
+/* Parses s[0..n) as a SPICE number: optional sign, mantissa, optional
+ * exponent, optional scale suffix (T G MEG K MIL M U N P F, any case; M is
+ * milli), then optional unit letters which are ignored ("10uF", "5V").
+ * On NUM_OK stores the value in *out. On failure *bad (if not NULL) gets the
+ * offset of the first offending character. */
+enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad);
+
+/* True if s[0..n) starts the way a number does (digit, '.', or a sign
+ * followed by one of those). */
+int num_looks_numeric(const char *s, size_t n);
+
+/* A short human explanation of a status, lower-case. */
+const char *num_status_text(enum num_status st);
+
+/* ASCII lower-case fold, in place over n bytes. */
+void num_fold(char *s, size_t n);
+
+/* Case-insensitive equality of s[0..n) and a NUL-terminated lower-case word. */
+int num_ieq(const char *s, size_t n, const char *word);
+
+/* Formats v with an engineering suffix and unit into buf ("4.7k", "100n"),
+ * at most 4 significant digits. */
+void num_format_eng(double v, const char *unit, char *buf, size_t n);
+
+#endif

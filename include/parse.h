@@ -1,0 +1,38 @@
+/* parse.h: the driver that owns one scanner+parser run over one stream and
+ * hands every card, in order, to a consumer. It knows nothing of .include or
+ * subcircuits: elaboration decides what a card means. */
+#ifndef HEADROOM_PARSE_H
+#define HEADROOM_PARSE_H
+
+#include <stdint.h>
+#include <stdio.h>
+
+#include "arena.h"
+#include "deck.h"
+#include "diag.h"
+
+/* Called once per well-formed card. The card and everything it points to
+ * live in scratch memory that is reused when the next card starts. Return 0
+ * to go on, non-zero to stop the parse (e.g. out of memory). */
+typedef int (*parse_card_fn)(void *ud, const struct deck_card *card);
+
+struct parse_opts {
+	uint32_t file;          /* diag file id of this stream */
+	int has_title;          /* first line is the title (top-level file) */
+	uint32_t max_line_len;  /* longest physical line accepted, bytes */
+};
+
+enum parse_status {
+	PARSE_OK,       /* read to the end (or to .end); diagnostics may exist */
+	PARSE_STOPPED,  /* the consumer asked to stop */
+	PARSE_OOM       /* out of memory */
+};
+
+/* Parses stream in (borrowed, read to EOF or .end). Syntax errors become
+ * diagnostics in diags and the parse goes on at the next card. scratch is
+ * used for cards and is reset to the mark it had on entry before returning. */
+enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
+			       struct arena *scratch, struct diag_sink *diags,
+			       parse_card_fn fn, void *ud);
+
+#endif

@@ -1,0 +1,204 @@
+/* num.c: numbers with SPICE scale suffixes. The suffix table is the one of
+ * the SPICE3 user's guide and the ngspice manual (section "Syntax of
+ * expressions"/"scale factors"): T G Meg K mil m u n p f. */
+#include "num.h"
+
+#include <ctype.h>
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+static int is_digit(char c)
+{
+	return c >= '0' && c <= '9';
+}
+
+static int is_alpha(char c)
+{
+	return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z');
+}
+
+static char lower(char c)
+{
+	return (c >= 'A' && c <= 'Z') ? (char)(c - 'A' + 'a') : c;
+}
+
+int num_looks_numeric(const char *s, size_t n)
+{
+	size_t i = 0;
+	if (i < n && (s[i] == '+' || s[i] == '-'))
+		i++;
+	if (i < n && is_digit(s[i]))
+		return 1;
+	return i + 1 < n && s[i] == '.' && is_digit(s[i + 1]);
+}
+
+/* Scale factor of the letters at s[0..n) (already known alphabetic);
+ * the letters past the suffix are unit letters and ignored. */
+static double scale_of(const char *s, size_t n)
+{
+	char a = n > 0 ? lower(s[0]) : '\0';
+	char b = n > 1 ? lower(s[1]) : '\0';
+	char c = n > 2 ? lower(s[2]) : '\0';
+	switch (a) {
+	case 't':
+		return 1e12;
+	case 'g':
+		return 1e9;
+	case 'k':
+		return 1e3;
+	case 'u':
+		return 1e-6;
+	case 'n':
+		return 1e-9;
+	case 'p':
+		return 1e-12;
+	case 'f':
+		return 1e-15;
+	case 'm':
+		if (b == 'e' && c == 'g')
+			return 1e6;
+		if (b == 'i' && c == 'l')
+			return 25.4e-6;
+		return 1e-3;
+	default:
+		return 1.0;
+	}
+}
+
+/* Scans the mantissa and exponent; returns the index after them or 0 when
+ * nothing numeric was found. *st is set for a malformed exponent. */
+static size_t scan_mantissa(const char *s, size_t n, enum num_status *st)
+{
+	size_t i = 0, digits = 0;
+	if (i < n && (s[i] == '+' || s[i] == '-'))
+		i++;
+	while (i < n && is_digit(s[i]))
+		i++, digits++;
+	if (i < n && s[i] == '.') {
+		i++;
+		while (i < n && is_digit(s[i]))
+			i++, digits++;
+	}
+	if (digits == 0)
+		return 0;
+	if (i < n && (s[i] == 'e' || s[i] == 'E')) {
+		size_t j = i + 1;
+		if (j < n && (s[j] == '+' || s[j] == '-'))
+			j++;
+		if (j < n && is_digit(s[j])) {
+			while (j < n && is_digit(s[j]))
+				j++;
+			return j;
+		}
+		/* "1e" followed by a sign but no digit is malformed; "1e" then
+		 * letters or the end is a unit letter e, ignored as SPICE does. */
+		if (j > i + 1) {
+			*st = NUM_BAD_EXPONENT;
+			return j;
+		}
+	}
+	return i;
+}
+
+enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad)
+{
+	enum num_status st = NUM_OK;
+	size_t i = scan_mantissa(s, n, &st);
+	if (i == 0) {
+		if (bad)
+			*bad = 0;
+		return NUM_NOT_A_NUMBER;
+	}
+	if (st != NUM_OK) {
+		if (bad)
+			*bad = i;
+		return st;
+	}
+	char tmp[128];
+	if (i >= sizeof tmp) {
+		if (bad)
+			*bad = 0;
+		return NUM_OUT_OF_RANGE;
+	}
+	memcpy(tmp, s, i);
+	tmp[i] = '\0';
+	size_t letters = i;
+	while (letters < n && (is_alpha(s[letters]) || s[letters] == '_'))
+		letters++;
+	if (letters < n) {
+		if (bad)
+			*bad = letters;
+		return is_digit(s[letters]) && letters > i ? NUM_DIGIT_AFTER_SUFFIX
+							    : NUM_BAD_CHAR;
+	}
+	errno = 0;
+	double v = strtod(tmp, NULL) * scale_of(s + i, letters - i);
+	if (!isfinite(v) || errno == ERANGE) {
+		if (bad)
+			*bad = 0;
+		if (isfinite(v) && fabs(v) < 1.0)
+			v = 0.0; /* underflow to zero is harmless */
+		else
+			return NUM_OUT_OF_RANGE;
+	}
+	*out = v;
+	return NUM_OK;
+}
+
+const char *num_status_text(enum num_status st)
+{
+	switch (st) {
+	case NUM_OK:
+		return "a number";
+	case NUM_NOT_A_NUMBER:
+		return "not a number";
+	case NUM_DIGIT_AFTER_SUFFIX:
+		return "digits after the scale letter are ambiguous (write 4.7k, not 4k7)";
+	case NUM_BAD_EXPONENT:
+		return "the exponent has no digits";
+	case NUM_OUT_OF_RANGE:
+		return "the number is out of range";
+	default:
+		return "unexpected character in a number";
+	}
+}
+
+void num_fold(char *s, size_t n)
+{
+	for (size_t i = 0; i < n; i++)
+		s[i] = lower(s[i]);
+}
+
+int num_ieq(const char *s, size_t n, const char *word)
+{
+	size_t i = 0;
+	for (; i < n && word[i]; i++)
+		if (lower(s[i]) != word[i])
+			return 0;
+	return i == n && word[i] == '\0';
+}
+
+void num_format_eng(double v, const char *unit, char *buf, size_t n)
+{
+	static const struct {
+		double scale;
+		const char *name;
+	} tab[] = {{1e12, "T"}, {1e9, "G"}, {1e6, "Meg"}, {1e3, "k"},
+		   {1.0, ""},   {1e-3, "m"}, {1e-6, "u"},  {1e-9, "n"},
+		   {1e-12, "p"}, {1e-15, "f"}};
+	double a = fabs(v);
+	if (a == 0.0 || !isfinite(v)) {
+		snprintf(buf, n, "%g%s", v, unit);
+		return;
+	}
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++) {
+		if (a >= tab[i].scale * 0.9999999 || i + 1 == sizeof tab / sizeof tab[0]) {
+			snprintf(buf, n, "%.4g%s%s", v / tab[i].scale, tab[i].name,
+				 unit);
+			return;
+		}
+	}
+}
