@@ -10,7 +10,7 @@ WARN    := -Wall -Wextra -Wpedantic -Werror -Wshadow -Wconversion \
            -Wstrict-prototypes -Wmissing-prototypes
 OPT     ?= -O2 -g
 SAN     ?=
-CPPFLAGS := -Iinclude -Igrammar -I$(BUILD) -D_POSIX_C_SOURCE=200809L
+CPPFLAGS := -Iinclude -Igrammar -I$(BUILD) -D_XOPEN_SOURCE=700
 CFLAGS  := $(CSTD) $(OPT) $(SAN)
 LDLIBS  := -lm -lpthread
 # Generated scanner/parser code gets the exemptions flex output needs.

@@ -35,6 +35,9 @@ void num_fold(char *s, size_t n);
 /* Case-insensitive equality of s[0..n) and a NUL-terminated lower-case word. */
 int num_ieq(const char *s, size_t n, const char *word);
 
+/* Case-insensitive equality of a[0..an) and b[0..bn). */
+int num_iequal(const char *a, size_t an, const char *b, size_t bn);
+
 /* Formats v with an engineering suffix and unit into buf ("4.7k", "100n"),
  * at most 4 significant digits. */
 void num_format_eng(double v, const char *unit, char *buf, size_t n);

@@ -181,6 +181,16 @@ int num_ieq(const char *s, size_t n, const char *word)
 	return i == n && word[i] == '\0';
 }
 
+int num_iequal(const char *a, size_t an, const char *b, size_t bn)
+{
+	if (an != bn)
+		return 0;
+	for (size_t i = 0; i < an; i++)
+		if (lower(a[i]) != lower(b[i]))
+			return 0;
+	return 1;
+}
+
 void num_format_eng(double v, const char *unit, char *buf, size_t n)
 {
 	static const struct {

@@ -1,0 +1,50 @@
+/* device.h: turns one element card (any letter but X) into a circuit part:
+ * which fields are nodes, which the value, which the model, how a source's
+ * waveform is written. Scoping (parameters, node renaming inside instances,
+ * model visibility) is supplied by the caller through struct dev_scope. */
+#ifndef HEADROOM_DEVICE_H
+#define HEADROOM_DEVICE_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "deck.h"
+#include "diag.h"
+#include "expr.h"
+#include "nl.h"
+
+struct dev_scope {
+	void *ud;
+	/* Evaluates expression e in this scope. */
+	enum expr_status (*eval)(void *ud, const struct expr *e, double *out,
+				 struct expr_error *err);
+	/* Circuit node for local node name[0..n); NL_NONE on out-of-memory. */
+	uint32_t (*node)(void *ud, const char *name, size_t n);
+	/* Model visible here by name, or NULL. */
+	const struct nl_model *(*model)(void *ud, const char *name, size_t n);
+	const char *prefix;     /* instance path with trailing '.', or "" */
+	int defer_undefined;    /* return DEV_DEFER instead of reporting an
+				   undefined parameter (first pass at top level) */
+	double mult;            /* instance m= product applied to every part */
+};
+
+enum dev_status { DEV_OK, DEV_ERROR, DEV_DEFER, DEV_OOM };
+
+/* Builds the part for card (an element card whose letter is not X) and adds
+ * it to c. Problems become diagnostics in d (DEV_ERROR); the card is then
+ * skipped. */
+enum dev_status dev_build(const struct dev_scope *s,
+			  const struct deck_card *card, struct nl_circuit *c,
+			  struct diag_sink *d);
+
+/* Evaluates a value field: a number with suffix, or an expression. Reports
+ * problems to d unless the status is DEV_DEFER. */
+enum dev_status dev_value(const struct dev_scope *s,
+			  const struct deck_field *f, struct diag_sink *d,
+			  uint32_t file, double *out);
+
+/* True for letters whose node count depends on models that may be defined
+ * later in the file: such cards wait until the whole file is read. */
+int dev_needs_models(char letter);
+
+#endif

@@ -1,0 +1,117 @@
+/* nl.h: the flattened circuit: interned nodes with integer ids, parts with
+ * resolved values and source locations, models, and node-to-part adjacency.
+ * All of it lives in one arena and is freed at once by nl_destroy. Building
+ * it from cards is elaboration's job; this module only stores and indexes. */
+#ifndef HEADROOM_NL_H
+#define HEADROOM_NL_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "arena.h"
+#include "diag.h"
+
+#define NL_NONE UINT32_MAX
+#define NL_GROUND 0u /* node id of ground: "0", "gnd" */
+
+enum nl_kind {
+	NL_R, NL_C, NL_L, NL_K, NL_D, NL_V, NL_I,
+	NL_E, NL_F, NL_G, NL_H, NL_X_UNUSED, NL_OPAQUE
+};
+
+enum nl_wave { NL_WAVE_NONE, NL_WAVE_SIN, NL_WAVE_PULSE, NL_WAVE_PWL,
+	       NL_WAVE_EXP, NL_WAVE_SFFM };
+
+/* An independent source's description, as written (SI units). */
+struct nl_source {
+	double dc;           /* DC value (0 if none given) */
+	int has_dc;
+	double ac_mag, ac_phase;
+	enum nl_wave wave;
+	uint32_t nargs;      /* wave arguments as given (PWL: t,v pairs) */
+	double *args;
+	double pwl_repeat;   /* PWL r= time, or -1 for none */
+	double pwl_delay;    /* PWL td= */
+};
+
+struct nl_model {
+	const char *name;    /* as written */
+	const char *type;    /* lower-case: "d", "npn", "nmos", ... */
+	uint32_t nparams;
+	const char **keys;   /* lower-case */
+	double *values;      /* NaN where a value was not a number */
+	struct diag_loc loc;
+};
+
+/* Extra data most parts do not need. */
+struct nl_extra {
+	double mult;               /* m= (1 when absent) */
+	double ic;                 /* ic= for C and L, NaN when absent */
+	const struct nl_source *src; /* V, I */
+	const char *ctrl[2];       /* F, H: controlling source; K: two inductors */
+	uint32_t ctrl_part[2];     /* resolved part index of ctrl, or NL_NONE */
+	int behavioural;           /* E/G/F/H given by value=, poly(), table */
+	int off;                   /* D: "off" */
+};
+
+struct nl_part {
+	const char *path;            /* hierarchical name: "X1.X2.C3" */
+	const uint32_t *pins;        /* node ids, npins of them */
+	double value;                /* ohm, farad, henry, coupling, area, gain */
+	const struct nl_model *model;/* D and model-based opaque parts, or NULL */
+	struct nl_extra *ext;        /* NULL when every extra is default */
+	struct diag_loc loc;         /* the card that made the part */
+	uint8_t kind;                /* enum nl_kind */
+	uint8_t letter;              /* element letter, lower-case */
+	uint16_t npins;
+};
+
+struct nl_node {
+	const char *name;            /* as first written, hierarchical */
+	uint32_t adj_start, adj_len; /* into nl_adjacency after nl_finish */
+};
+
+struct nl_circuit;
+
+/* Creates an empty circuit with ground as node 0. NULL on out-of-memory. */
+struct nl_circuit *nl_create(const struct hr_alloc *a);
+/* Frees the circuit and everything it holds. NULL is a no-op. */
+void nl_destroy(struct nl_circuit *c);
+
+/* The circuit's arena: strings, models and sources live here. */
+struct arena *nl_arena(struct nl_circuit *c);
+
+/* Returns the id of node name[0..n) (case-insensitive), creating it. "0"
+ * and "gnd" are ground. NL_NONE on out-of-memory. */
+uint32_t nl_node_intern(struct nl_circuit *c, const char *name, size_t n);
+/* Id of an existing node, or NL_NONE. */
+uint32_t nl_node_find(const struct nl_circuit *c, const char *name, size_t n);
+
+/* Appends a part (copied; pins copied). Returns its index or NL_NONE on
+ * out-of-memory. */
+uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p);
+
+size_t nl_part_count(const struct nl_circuit *c);
+size_t nl_node_count(const struct nl_circuit *c);
+const struct nl_part *nl_part_at(const struct nl_circuit *c, size_t i);
+struct nl_part *nl_part_mut(struct nl_circuit *c, size_t i);
+const struct nl_node *nl_node_at(const struct nl_circuit *c, size_t i);
+
+/* Builds the adjacency index (node -> parts touching it). Call once, after
+ * the last part. Returns 0 on out-of-memory. */
+int nl_finish(struct nl_circuit *c);
+
+/* Parts touching node id: *n entries of part indices (a part appears once
+ * per pin on the node). Valid after nl_finish. */
+const uint32_t *nl_adjacency(const struct nl_circuit *c, uint32_t node,
+			     uint32_t *n);
+
+/* Bytes held by the circuit (arena and tables), for the benchmark. */
+size_t nl_footprint(const struct nl_circuit *c);
+
+/* Name of an element kind for listings: "resistor", "capacitor", ... */
+const char *nl_kind_name(enum nl_kind k);
+/* Unit of a part's main value: "ohm", "F", "H", "" ... */
+const char *nl_value_unit(const struct nl_part *p);
+
+#endif

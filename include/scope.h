@@ -1,0 +1,103 @@
+/* scope.h: what elaboration keeps while it reads (struct elab), subcircuit
+ * definitions, and the scopes that instances are expanded in: parameter
+ * lookup, node renaming ("X1.n5"), model visibility, instance flattening.
+ * Shared by elab.c (reading files) and scope.c (expanding). */
+#ifndef HEADROOM_SCOPE_H
+#define HEADROOM_SCOPE_H
+
+#include <stddef.h>
+
+#include "deck.h"
+#include "device.h"
+#include "elab.h"
+#include "smap.h"
+
+struct file_read;
+
+struct subdef {
+	const char *name;
+	struct diag_loc loc;
+	const char **ports;
+	uint32_t nports;
+	struct smap *portmap;        /* port name -> index + 1 */
+	const struct deck_field *defaults; /* params: key=value, as written */
+	uint32_t ndefaults;
+	struct deck_card **body;     /* elements, .param, *@, in order */
+	size_t nbody, capbody;
+	struct smap *subckts;        /* nested definitions */
+	struct smap *models;         /* local models */
+	struct subdef *parent;       /* enclosing definition, NULL at top */
+	int active;                  /* being expanded: recursion guard */
+};
+
+struct scope {
+	struct elab *el;
+	const struct scope *caller;  /* instantiating scope; NULL at top */
+	const struct subdef *def;    /* NULL at top */
+	struct smap *params;
+	const char *prefix;          /* "X1.X2." or "" */
+	const uint32_t *actual;      /* port node ids */
+	double mult;                 /* product of instance m= */
+	unsigned depth;
+};
+
+struct elab {
+	struct elab_opts o;
+	struct hr_alloc hook;
+	struct nl_circuit *c;
+	struct arena *ar;            /* the circuit's arena */
+	struct arena *scratch;       /* the parser's per-card memory */
+	struct diag_sink *d;
+	struct subdef top;           /* global subcircuits and models */
+	struct subdef *open;         /* innermost definition being read */
+	unsigned skip_depth;         /* inside a malformed .subckt */
+	struct scope global;
+	struct smap *funcs;          /* .func */
+	struct smap *globals;        /* .global node names */
+	struct smap **maps;          /* every map made, freed at release */
+	size_t nmaps, capmaps;
+	struct deck_card **deferred; /* top-level cards expanded at the end */
+	size_t ndeferred, capdeferred;
+	struct elab_annot **annots;
+	size_t nannots, capannots;
+	struct nl_model **pending;   /* models used before their .model */
+	size_t npending, cappending;
+	struct file_read *fr;
+	unsigned include_depth;
+	const char *title;
+	size_t ncards;
+	struct diag_loc root;        /* top-level card being expanded */
+	int oom, stop;
+};
+
+/* Sets up the global scope and tables. Returns 0 on out-of-memory. */
+int scope_init(struct elab *el);
+/* Frees every table made by this module (not the arena). */
+void scope_release(struct elab *el);
+
+/* A definition from a .subckt card (copied). NULL on error (reported). */
+struct subdef *scope_def_create(struct elab *el, const struct deck_card *c);
+/* Fills model m (type and parameters) from a .model card. */
+void scope_fill_model(struct elab *el, struct nl_model *m,
+		      const struct deck_card *c);
+
+/* Builds an element card (X included) in scope sc. With first_pass, an
+ * undefined parameter gives DEV_DEFER and an unknown model a placeholder. */
+enum dev_status scope_build(struct elab *el, struct scope *sc,
+			    const struct deck_card *c, int first_pass);
+/* Evaluates a .param card into sc. */
+void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c);
+/* Records a .func card. */
+void scope_func(struct elab *el, const struct deck_card *c);
+/* Reports models that were used but never defined. */
+void scope_check_models(struct elab *el);
+/* Resolves the inductors of K cards and controlling sources of F and H. */
+void scope_link_controls(struct elab *el);
+
+/* Appends an annotation record. */
+void scope_add_annot(struct elab *el, struct elab_annot *a);
+
+/* A new map registered for release; NULL (and el->oom) on out-of-memory. */
+struct smap *scope_map(struct elab *el);
+
+#endif

@@ -1,0 +1,480 @@
+/* device.c: element cards to parts, one builder per family of letters.
+ * Field positions follow the ngspice manual's element chapters; anything a
+ * builder does not understand is an error at that field, never a guess. */
+#include "device.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "num.h"
+#include "wave.h"
+
+#define DEV_MAX_PINS 64
+
+struct build {
+	const struct dev_scope *s;
+	const struct deck_card *card;
+	struct nl_circuit *c;
+	struct diag_sink *d;
+	struct nl_part part;
+	struct nl_extra ext;
+	int has_ext;
+	uint32_t pins[DEV_MAX_PINS];
+};
+
+static struct diag_loc field_loc(const struct build *b,
+				 const struct deck_field *f)
+{
+	struct diag_loc l = {b->card->loc.file, f->line, f->col};
+	return l;
+}
+
+static enum dev_status err_at(struct build *b, const struct deck_field *f,
+			      const char *fmt, const char *arg)
+{
+	struct diag_loc l = f ? field_loc(b, f) : b->card->loc;
+	diag_add(b->d, DIAG_ERROR, "element", l, fmt, arg);
+	return DEV_ERROR;
+}
+
+static int is_positional(const struct deck_field *f)
+{
+	return f->kind == FIELD_ATOM || f->kind == FIELD_EXPR;
+}
+
+static int is_numeric(const struct deck_field *f)
+{
+	return f->kind == FIELD_EXPR ||
+	       (f->kind == FIELD_ATOM && num_looks_numeric(f->text, f->len));
+}
+
+enum dev_status dev_value(const struct dev_scope *s,
+			  const struct deck_field *f, struct diag_sink *d,
+			  uint32_t file, double *out)
+{
+	struct diag_loc l = {file, f->line, f->col};
+	if (f->kind == FIELD_EXPR) {
+		struct expr_error e = {0};
+		enum expr_status st = s->eval(s->ud, f->expr, out, &e);
+		if (st == EXPR_OK)
+			return DEV_OK;
+		if (st == EXPR_UNDEFINED && s->defer_undefined)
+			return DEV_DEFER;
+		char msg[200];
+		expr_error_text(&e, msg, sizeof msg);
+		l.line = e.line ? e.line : l.line;
+		l.col = e.line ? e.col : l.col;
+		diag_add(d, DIAG_ERROR, "expression", l, "%s", msg);
+		return DEV_ERROR;
+	}
+	if (f->kind != FIELD_ATOM) {
+		diag_add(d, DIAG_ERROR, "value", l, "expected a value here");
+		return DEV_ERROR;
+	}
+	size_t bad = 0;
+	enum num_status st = num_parse(f->text, f->len, out, &bad);
+	if (st == NUM_OK)
+		return DEV_OK;
+	if (st == NUM_NOT_A_NUMBER) {
+		diag_add(d, DIAG_ERROR, "value", l,
+			 "expected a number or {expression}, found '%s'", f->text);
+		return DEV_ERROR;
+	}
+	l.col += (uint32_t)bad;
+	diag_add(d, DIAG_ERROR, "value", l, "bad number '%s': %s", f->text,
+		 num_status_text(st));
+	return DEV_ERROR;
+}
+
+static enum dev_status value_of(struct build *b, const struct deck_field *f,
+				double *out)
+{
+	return dev_value(b->s, f, b->d, b->card->loc.file, out);
+}
+
+static enum dev_status take_node(struct build *b, const struct deck_field *f)
+{
+	if (b->part.npins >= DEV_MAX_PINS)
+		return err_at(b, f, "more than 64 nodes on one element%s", "");
+	if (f->kind != FIELD_ATOM)
+		return err_at(b, f, "expected a node name here%s", "");
+	uint32_t id = b->s->node(b->s->ud, f->text, f->len);
+	if (id == NL_NONE)
+		return DEV_OOM;
+	b->pins[b->part.npins++] = id;
+	return DEV_OK;
+}
+
+/* Takes the first n fields as nodes. */
+static enum dev_status take_nodes(struct build *b, uint32_t n)
+{
+	const struct deck_card *c = b->card;
+	if (c->nfields < n) {
+		char what[64];
+		snprintf(what, sizeof what, "%u nodes", n);
+		const struct deck_field *last =
+			c->nfields ? &c->fields[c->nfields - 1] : NULL;
+		return err_at(b, last, "element needs %s, too few given", what);
+	}
+	for (uint32_t i = 0; i < n; i++) {
+		enum dev_status st = take_node(b, &c->fields[i]);
+		if (st != DEV_OK)
+			return st;
+	}
+	return DEV_OK;
+}
+
+static const struct nl_model *need_model(struct build *b,
+					 const struct deck_field *f,
+					 enum dev_status *st)
+{
+	const struct nl_model *m = NULL;
+	if (f->kind == FIELD_ATOM)
+		m = b->s->model(b->s->ud, f->text, f->len);
+	if (!m)
+		*st = err_at(b, f, "undefined model '%s'",
+			     f->kind == FIELD_ATOM ? f->text : "?");
+	return m;
+}
+
+static void set_mult(struct build *b, double m)
+{
+	b->ext.mult = m;
+	b->has_ext = 1;
+}
+
+/* key=value pairs shared by most elements: m= and ic=. Returns 1 if
+ * consumed. */
+static int common_assign(struct build *b, const struct deck_field *f,
+			 enum dev_status *st)
+{
+	double v;
+	if (num_ieq(f->text, f->len, "m")) {
+		if ((*st = value_of(b, f->value, &v)) == DEV_OK)
+			set_mult(b, v);
+		return 1;
+	}
+	if (num_ieq(f->text, f->len, "ic")) {
+		if ((*st = value_of(b, f->value, &v)) == DEV_OK) {
+			b->ext.ic = v;
+			b->has_ext = 1;
+		}
+		return 1;
+	}
+	return 0;
+}
+
+static int is_value_key(const struct deck_field *f, char letter)
+{
+	static const char *const keys[][3] = {
+		{"r", "resistance", "value"},
+		{"c", "capacitance", "value"},
+		{"l", "inductance", "value"}};
+	int k = letter == 'r' ? 0 : letter == 'c' ? 1 : 2;
+	for (int i = 0; i < 3; i++)
+		if (num_ieq(f->text, f->len, keys[k][i]))
+			return 1;
+	return 0;
+}
+
+/* R, C, L: two nodes, then a value (positional or r=/c=/l=) and/or a model. */
+static enum dev_status build_rcl(struct build *b, char letter)
+{
+	enum dev_status st = take_nodes(b, 2);
+	int have = 0;
+	for (uint32_t i = 2; st == DEV_OK && i < b->card->nfields; i++) {
+		const struct deck_field *f = &b->card->fields[i];
+		if (is_positional(f) && !have && is_numeric(f)) {
+			st = value_of(b, f, &b->part.value);
+			have = 1;
+		} else if (f->kind == FIELD_ATOM && !b->part.model && !have) {
+			b->part.model = need_model(b, f, &st);
+		} else if (f->kind == FIELD_ASSIGN && is_value_key(f, letter)) {
+			st = value_of(b, f->value, &b->part.value);
+			have = 1;
+		} else if (f->kind == FIELD_ASSIGN) {
+			common_assign(b, f, &st); /* other keys: temperature etc. */
+		} else if (f->kind != FIELD_ATOM) {
+			st = err_at(b, f, "unexpected field in a %s card", nl_kind_name(b->part.kind));
+		}
+	}
+	if (st == DEV_OK && !have && !b->part.model)
+		return err_at(b, NULL, "%s has no value", nl_kind_name(b->part.kind));
+	return st;
+}
+
+static enum dev_status build_diode(struct build *b)
+{
+	enum dev_status st = take_nodes(b, 2);
+	if (st != DEV_OK)
+		return st;
+	if (b->card->nfields < 3)
+		return err_at(b, &b->card->fields[1], "diode needs a model name after its two nodes%s", "");
+	b->part.model = need_model(b, &b->card->fields[2], &st);
+	b->part.value = 1.0; /* area */
+	int have_area = 0;
+	for (uint32_t i = 3; st == DEV_OK && i < b->card->nfields; i++) {
+		const struct deck_field *f = &b->card->fields[i];
+		if (deck_atom_is(f, "off")) {
+			b->ext.off = 1;
+			b->has_ext = 1;
+		} else if (is_positional(f) && is_numeric(f) && !have_area) {
+			st = value_of(b, f, &b->part.value);
+			have_area = 1;
+		} else if (f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "area")) {
+			st = value_of(b, f->value, &b->part.value);
+		} else if (f->kind == FIELD_ASSIGN) {
+			common_assign(b, f, &st);
+		} else {
+			st = err_at(b, f, "unexpected field in a diode card%s", "");
+		}
+	}
+	return st;
+}
+
+static enum dev_status build_source(struct build *b);
+
+/* E, G: linear with two control nodes and a gain, or behavioural. */
+static enum dev_status build_ctrl_v(struct build *b)
+{
+	enum dev_status st = take_nodes(b, 2);
+	const struct deck_card *c = b->card;
+	if (st != DEV_OK)
+		return st;
+	if (c->nfields >= 5 && c->fields[2].kind == FIELD_ATOM &&
+	    c->fields[3].kind == FIELD_ATOM && is_numeric(&c->fields[4]) &&
+	    !deck_atom_is(&c->fields[2], "poly")) {
+		if ((st = take_node(b, &c->fields[2])) != DEV_OK ||
+		    (st = take_node(b, &c->fields[3])) != DEV_OK)
+			return st;
+		return value_of(b, &c->fields[4], &b->part.value);
+	}
+	if (c->nfields < 3)
+		return err_at(b, NULL, "controlled source needs control nodes and a gain, or value=%s", "");
+	b->ext.behavioural = 1;
+	b->has_ext = 1;
+	return DEV_OK;
+}
+
+/* F, H: controlled by the current of a named voltage source. */
+static enum dev_status build_ctrl_i(struct build *b)
+{
+	enum dev_status st = take_nodes(b, 2);
+	const struct deck_card *c = b->card;
+	if (st != DEV_OK)
+		return st;
+	b->has_ext = 1;
+	if (c->nfields >= 4 && c->fields[2].kind == FIELD_ATOM &&
+	    is_numeric(&c->fields[3]) && !deck_atom_is(&c->fields[2], "poly")) {
+		b->ext.ctrl[0] = arena_strdup(nl_arena(b->c), c->fields[2].text);
+		if (!b->ext.ctrl[0])
+			return DEV_OOM;
+		return value_of(b, &c->fields[3], &b->part.value);
+	}
+	if (c->nfields < 3)
+		return err_at(b, NULL, "current-controlled source needs a controlling source and a gain%s", "");
+	b->ext.behavioural = 1;
+	return DEV_OK;
+}
+
+static enum dev_status build_coupling(struct build *b)
+{
+	const struct deck_card *c = b->card;
+	if (c->nfields < 3 || c->fields[0].kind != FIELD_ATOM ||
+	    c->fields[1].kind != FIELD_ATOM)
+		return err_at(b, NULL, "coupling needs two inductor names and a coefficient%s", "");
+	b->has_ext = 1;
+	b->ext.ctrl[0] = arena_strdup(nl_arena(b->c), c->fields[0].text);
+	b->ext.ctrl[1] = arena_strdup(nl_arena(b->c), c->fields[1].text);
+	if (!b->ext.ctrl[0] || !b->ext.ctrl[1])
+		return DEV_OOM;
+	enum dev_status st = value_of(b, &c->fields[2], &b->part.value);
+	if (st == DEV_OK && (b->part.value <= 0 || b->part.value > 1))
+		return err_at(b, &c->fields[2], "coupling coefficient must lie in (0, 1]%s", "");
+	return st;
+}
+
+/* Opaque parts whose node list ends where a model name starts. */
+struct opaque_rule {
+	char letter;
+	uint8_t min_nodes, max_nodes;
+	uint8_t model; /* 1: a model follows the nodes */
+};
+
+static const struct opaque_rule opaque_rules[] = {
+	{'q', 3, 5, 1}, {'m', 4, 7, 1}, {'j', 3, 3, 1}, {'z', 3, 3, 1},
+	{'s', 4, 4, 1}, {'o', 4, 4, 1}, {'u', 3, 3, 1}, {'n', 2, 20, 1},
+	{'p', 2, 40, 1}, {'t', 4, 4, 0}, {'b', 2, 2, 0}, {'w', 2, 2, 0},
+};
+
+static const struct opaque_rule *opaque_rule(char letter)
+{
+	for (size_t i = 0; i < sizeof opaque_rules / sizeof opaque_rules[0]; i++)
+		if (opaque_rules[i].letter == letter)
+			return &opaque_rules[i];
+	return NULL;
+}
+
+int dev_needs_models(char letter)
+{
+	const struct opaque_rule *r = opaque_rule(letter);
+	return r && r->model && r->min_nodes != r->max_nodes;
+}
+
+static enum dev_status build_modelled(struct build *b,
+				      const struct opaque_rule *r)
+{
+	const struct deck_card *c = b->card;
+	uint32_t k = r->min_nodes;
+	for (uint32_t i = r->min_nodes; i <= r->max_nodes && i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		if (f->kind == FIELD_ATOM && b->s->model(b->s->ud, f->text, f->len)) {
+			k = i;
+			break;
+		}
+	}
+	enum dev_status st = take_nodes(b, k);
+	if (st != DEV_OK)
+		return st;
+	if (k >= c->nfields)
+		return err_at(b, &c->fields[k - 1], "element needs a model name after its nodes%s", "");
+	b->part.model = need_model(b, &c->fields[k], &st);
+	return st;
+}
+
+/* XSPICE 'a' devices: every word but the last is a node ([ ] ~ stripped). */
+static enum dev_status build_xspice(struct build *b)
+{
+	const struct deck_card *c = b->card;
+	uint32_t last = 0;
+	for (uint32_t i = 0; i < c->nfields; i++)
+		if (c->fields[i].kind == FIELD_ATOM)
+			last = i;
+	for (uint32_t i = 0; i < last; i++) {
+		const struct deck_field *f = &c->fields[i];
+		if (f->kind != FIELD_ATOM)
+			continue;
+		const char *s = f->text;
+		size_t n = f->len;
+		while (n && (*s == '[' || *s == '~'))
+			s++, n--;
+		while (n && (s[n - 1] == ']'))
+			n--;
+		if (n == 0 || *s == '%')
+			continue;
+		if (b->part.npins >= DEV_MAX_PINS)
+			return err_at(b, f, "more than 64 nodes on one element%s", "");
+		uint32_t id = b->s->node(b->s->ud, s, n);
+		if (id == NL_NONE)
+			return DEV_OOM;
+		b->pins[b->part.npins++] = id;
+	}
+	return DEV_OK;
+}
+
+static enum dev_status build_opaque(struct build *b, char letter)
+{
+	b->part.kind = NL_OPAQUE;
+	const struct opaque_rule *r = opaque_rule(letter);
+	if (letter == 'a')
+		return build_xspice(b);
+	if (!r) {
+		diag_add(b->d, DIAG_WARNING, "unknown-element", b->card->loc,
+			 "unknown element letter '%c': kept as an opaque part whose words are all nodes",
+			 letter);
+		for (uint32_t i = 0; i < b->card->nfields; i++)
+			if (b->card->fields[i].kind == FIELD_ATOM &&
+			    !num_looks_numeric(b->card->fields[i].text, b->card->fields[i].len)) {
+				enum dev_status st = take_node(b, &b->card->fields[i]);
+				if (st != DEV_OK)
+					return st;
+			}
+		return DEV_OK;
+	}
+	if (r->model)
+		return build_modelled(b, r);
+	return take_nodes(b, r->min_nodes);
+}
+
+static enum dev_status dispatch(struct build *b, char letter)
+{
+	switch (letter) {
+	case 'r': b->part.kind = NL_R; return build_rcl(b, letter);
+	case 'c': b->part.kind = NL_C; return build_rcl(b, letter);
+	case 'l': b->part.kind = NL_L; return build_rcl(b, letter);
+	case 'd': b->part.kind = NL_D; return build_diode(b);
+	case 'v': b->part.kind = NL_V; return build_source(b);
+	case 'i': b->part.kind = NL_I; return build_source(b);
+	case 'e': b->part.kind = NL_E; return build_ctrl_v(b);
+	case 'g': b->part.kind = NL_G; return build_ctrl_v(b);
+	case 'f': b->part.kind = NL_F; return build_ctrl_i(b);
+	case 'h': b->part.kind = NL_H; return build_ctrl_i(b);
+	case 'k': b->part.kind = NL_K; return build_coupling(b);
+	default: return build_opaque(b, letter);
+	}
+}
+
+static enum dev_status finish(struct build *b)
+{
+	struct arena *ar = nl_arena(b->c);
+	const char *name = b->card->head;
+	size_t plen = strlen(b->s->prefix), nlen = b->card->headlen;
+	char *path = arena_alloc(ar, plen + nlen + 1);
+	if (!path)
+		return DEV_OOM;
+	memcpy(path, b->s->prefix, plen);
+	memcpy(path + plen, name, nlen + 1);
+	b->part.path = path;
+	b->part.pins = b->pins;
+	if (b->s->mult != 1.0)
+		set_mult(b, b->ext.mult * b->s->mult);
+	if (b->has_ext) {
+		struct nl_extra *e = arena_alloc(ar, sizeof *e);
+		if (!e)
+			return DEV_OOM;
+		*e = b->ext;
+		b->part.ext = e;
+	}
+	return nl_add_part(b->c, &b->part) == NL_NONE ? DEV_OOM : DEV_OK;
+}
+
+enum dev_status dev_build(const struct dev_scope *s,
+			  const struct deck_card *card, struct nl_circuit *c,
+			  struct diag_sink *d)
+{
+	struct build b;
+	memset(&b, 0, sizeof b);
+	b.s = s;
+	b.card = card;
+	b.c = c;
+	b.d = d;
+	b.part.loc = card->loc;
+	b.ext.mult = 1.0;
+	b.ext.ic = NAN;
+	b.ext.ctrl_part[0] = b.ext.ctrl_part[1] = NL_NONE;
+	char letter = card->head[0];
+	if (letter >= 'A' && letter <= 'Z')
+		letter = (char)(letter - 'A' + 'a');
+	b.part.letter = (uint8_t)letter;
+	enum dev_status st = dispatch(&b, letter);
+	if (st != DEV_OK)
+		return st;
+	return finish(&b);
+}
+
+/* V, I: two nodes, then the waveform description (wave.c). */
+static enum dev_status build_source(struct build *b)
+{
+	enum dev_status st = take_nodes(b, 2);
+	if (st != DEV_OK)
+		return st;
+	struct nl_source *src = NULL;
+	st = wave_parse(b->s, b->card, 2, nl_arena(b->c), b->d, &src);
+	if (st != DEV_OK)
+		return st;
+	b->ext.src = src;
+	b->has_ext = 1;
+	b->part.value = src->dc;
+	return DEV_OK;
+}

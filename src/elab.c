@@ -1,0 +1,489 @@
+/* elab.c: reads files card by card and builds the flat circuit. Top-level
+ * elements are built as they stream past, so a flat deck is never held in
+ * memory; subcircuit bodies, instances and model-dependent elements are kept
+ * and expanded once the whole top file is read (definitions may come after
+ * their use). Scoping of parameters and nodes inside instances: scope.c. */
+#include "elab.h"
+
+#include <errno.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#include "device.h"
+#include "num.h"
+#include "parse.h"
+#include "scope.h"
+
+/* Reading state of one file (a stack follows .include). */
+struct file_read {
+	const char *path;          /* as reported: includer's folder + given */
+	uint32_t file;
+	const char *want;          /* .lib section wanted, or NULL */
+	int section;               /* 0 outside, 1 in the wanted one, 2 skipping */
+	int found;
+	struct diag_loc section_loc;
+	struct file_read *outer;
+};
+
+static void oom(struct elab *el)
+{
+	el->oom = 1;
+}
+
+static struct diag_loc loc0(uint32_t file)
+{
+	struct diag_loc l = {file, 0, 0};
+	return l;
+}
+
+static int push_ptr(struct elab *el, void ***arr, size_t *n, size_t *cap,
+		    void *p)
+{
+	if (*n == *cap) {
+		size_t ncap = *cap ? *cap * 2 : 16;
+		void **a = arena_alloc(el->ar, ncap * sizeof *a);
+		if (!a) {
+			oom(el);
+			return 0;
+		}
+		if (*n)
+			memcpy(a, *arr, *n * sizeof *a);
+		*arr = a;
+		*cap = ncap;
+	}
+	(*arr)[(*n)++] = p;
+	return 1;
+}
+
+void scope_add_annot(struct elab *el, struct elab_annot *a)
+{
+	push_ptr(el, (void ***)&el->annots, &el->nannots, &el->capannots, a);
+}
+
+static void add_annot(struct elab *el, const char *text, const char *prefix,
+		      struct diag_loc loc)
+{
+	struct elab_annot *a = arena_alloc(el->ar, sizeof *a);
+	if (!a || !(a->text = arena_strdup(el->ar, text))) {
+		oom(el);
+		return;
+	}
+	a->prefix = prefix;
+	a->loc = loc;
+	scope_add_annot(el, a);
+}
+
+/* ---- definitions: .subckt / .ends / .model ---- */
+
+static void begin_subckt(struct elab *el, const struct deck_card *c)
+{
+	if (c->nfields == 0 || c->fields[0].kind != FIELD_ATOM) {
+		diag_add(el->d, DIAG_ERROR, "subckt", c->loc,
+			 ".subckt needs a name and its port nodes");
+		el->skip_depth++;
+		return;
+	}
+	struct subdef *def = scope_def_create(el, c);
+	if (!def)
+		return;
+	struct smap *owner = el->open ? el->open->subckts : el->top.subckts;
+	if (smap_get(owner, def->name, strlen(def->name)))
+		diag_add(el->d, DIAG_WARNING, "subckt", c->loc,
+			 "subcircuit '%s' is defined again; the later one is used",
+			 def->name);
+	if (!smap_put(owner, def->name, strlen(def->name), def)) {
+		oom(el);
+		return;
+	}
+	def->parent = el->open;
+	el->open = def;
+}
+
+static void end_subckt(struct elab *el, const struct deck_card *c)
+{
+	if (el->skip_depth) {
+		el->skip_depth--;
+		return;
+	}
+	if (!el->open) {
+		diag_add(el->d, DIAG_ERROR, "subckt", c->loc,
+			 ".ends with no open .subckt");
+		return;
+	}
+	if (c->nfields > 0 && c->fields[0].kind == FIELD_ATOM &&
+	    !num_iequal(c->fields[0].text, c->fields[0].len, el->open->name,
+			strlen(el->open->name)))
+		diag_add(el->d, DIAG_WARNING, "subckt", c->loc,
+			 ".ends names '%s' but closes '%s'", c->fields[0].text,
+			 el->open->name);
+	el->open = el->open->parent;
+}
+
+/* .model NAME TYPE [(] key=value ... [)] */
+static void define_model(struct elab *el, const struct deck_card *c)
+{
+	if (c->nfields < 2 || c->fields[0].kind != FIELD_ATOM ||
+	    (c->fields[1].kind != FIELD_ATOM && c->fields[1].kind != FIELD_CALL)) {
+		diag_add(el->d, DIAG_ERROR, "model", c->loc,
+			 ".model needs a name and a type");
+		return;
+	}
+	struct smap *tab = el->open ? el->open->models : el->top.models;
+	struct nl_model *m = smap_get(tab, c->fields[0].text, c->fields[0].len);
+	if (m && m->type)
+		diag_add(el->d, DIAG_WARNING, "model", c->loc,
+			 "model '%s' is defined again; the later one is used",
+			 c->fields[0].text);
+	if (!m) {
+		m = arena_zalloc(el->ar, sizeof *m);
+		char *name = m ? arena_strdup(el->ar, c->fields[0].text) : NULL;
+		if (!name || !smap_put(tab, name, strlen(name), m)) {
+			oom(el);
+			return;
+		}
+		m->name = name;
+	}
+	scope_fill_model(el, m, c);
+}
+
+/* ---- files ---- */
+
+static int on_card(void *ud, const struct deck_card *c);
+
+static FILE *open_input(struct elab *el, const char *path)
+{
+	if (el->o.open)
+		return el->o.open(el->o.open_ud, path);
+	struct stat st;
+	if (stat(path, &st) == 0 && S_ISDIR(st.st_mode)) {
+		errno = EISDIR;
+		return NULL;
+	}
+	return fopen(path, "rb");
+}
+
+/* Path of an included file: relative paths are taken from the folder of
+ * the including file. */
+static char *include_path(struct elab *el, const char *given)
+{
+	if (given[0] == '/' || !el->fr)
+		return arena_strdup(el->ar, given);
+	const char *slash = strrchr(el->fr->path, '/');
+	size_t dl = slash ? (size_t)(slash - el->fr->path) + 1 : 0;
+	size_t gl = strlen(given);
+	char *p = arena_alloc(el->ar, dl + gl + 1);
+	if (!p)
+		return NULL;
+	memcpy(p, el->fr->path, dl);
+	memcpy(p + dl, given, gl + 1);
+	return p;
+}
+
+static int in_chain(const struct elab *el, const char *canon)
+{
+	for (const struct file_read *f = el->fr; f; f = f->outer) {
+		char *c = realpath(f->path, NULL);
+		int same = c && strcmp(c, canon) == 0;
+		free(c);
+		if (same)
+			return 1;
+	}
+	return 0;
+}
+
+static void read_stream(struct elab *el, FILE *in, struct file_read *fr,
+			int title)
+{
+	fr->outer = el->fr;
+	el->fr = fr;
+	struct parse_opts po = {fr->file, title, 0};
+	enum parse_status st = parse_stream(in, &po, el->scratch, el->d,
+					    on_card, el);
+	if (st == PARSE_OOM)
+		oom(el);
+	if (fr->want && !fr->found && !el->oom)
+		diag_add(el->d, DIAG_ERROR, "lib", fr->section_loc,
+			 "section '%s' not found in '%s'", fr->want, fr->path);
+	if (fr->section)
+		diag_add(el->d, DIAG_ERROR, "lib", loc0(fr->file),
+			 ".lib section has no .endl before the end of the file");
+	el->fr = fr->outer;
+}
+
+static void include_file(struct elab *el, const struct deck_card *c,
+			 const char *given, const char *section)
+{
+	char *path = include_path(el, given);
+	if (!path) {
+		oom(el);
+		return;
+	}
+	if (el->include_depth >= el->o.max_include_depth) {
+		diag_add(el->d, DIAG_ERROR, "include", c->loc,
+			 "includes nest deeper than %u files", el->o.max_include_depth);
+		return;
+	}
+	char *canon = el->o.open ? NULL : realpath(path, NULL);
+	int cycle = canon && in_chain(el, canon);
+	free(canon);
+	if (cycle) {
+		diag_add(el->d, DIAG_ERROR, "include", c->loc,
+			 "include cycle: '%s' is already being read", given);
+		return;
+	}
+	FILE *in = open_input(el, path);
+	if (!in) {
+		diag_add(el->d, DIAG_ERROR, "include", c->loc,
+			 "cannot read '%s': %s", given, strerror(errno));
+		return;
+	}
+	struct file_read fr = {path, diag_add_file(el->d, path), section, 0, 0,
+			       c->loc, NULL};
+	el->include_depth++;
+	read_stream(el, in, &fr, 0);
+	el->include_depth--;
+	fclose(in);
+}
+
+static void on_include(struct elab *el, const struct deck_card *c)
+{
+	if (c->nfields != 1) {
+		diag_add(el->d, DIAG_ERROR, "include", c->loc,
+			 ".include takes exactly one file name");
+		return;
+	}
+	include_file(el, c, c->fields[0].text, NULL);
+}
+
+/* .lib FILE SECTION includes a section; .lib SECTION opens one. Returns 1
+ * when the card was consumed by section bookkeeping. */
+static int on_lib(struct elab *el, const struct deck_card *c)
+{
+	struct file_read *fr = el->fr;
+	if (c->kind == CARD_ENDL) {
+		if (!fr->section)
+			diag_add(el->d, DIAG_ERROR, "lib", c->loc,
+				 ".endl with no open .lib section");
+		fr->section = 0;
+		return 1;
+	}
+	if (c->kind != CARD_LIB)
+		return 0;
+	if (c->nfields == 2) {
+		if (fr->section != 2)
+			include_file(el, c, c->fields[0].text, c->fields[1].text);
+		return 1;
+	}
+	if (c->nfields != 1) {
+		diag_add(el->d, DIAG_ERROR, "lib", c->loc,
+			 ".lib takes a file and a section, or one section name");
+		return 1;
+	}
+	if (fr->section) {
+		diag_add(el->d, DIAG_ERROR, "lib", c->loc,
+			 ".lib section opened inside another one");
+		return 1;
+	}
+	int wanted = fr->want && num_ieq(c->fields[0].text, c->fields[0].len,
+					 fr->want);
+	/* Outside a requested read, a section is a definition kept for
+	 * later .lib references, not content: it is skipped. */
+	fr->section = wanted ? 1 : 2;
+	fr->found |= wanted;
+	return 1;
+}
+
+/* ---- cards ---- */
+
+static void defer(struct elab *el, const struct deck_card *c)
+{
+	struct deck_card *k = deck_card_clone(el->ar, c);
+	if (!k) {
+		oom(el);
+		return;
+	}
+	push_ptr(el, (void ***)&el->deferred, &el->ndeferred, &el->capdeferred, k);
+}
+
+static void top_element(struct elab *el, const struct deck_card *c)
+{
+	char letter = (char)(c->head[0] | 32);
+	if (letter == 'x' || dev_needs_models(letter)) {
+		defer(el, c);
+		return;
+	}
+	enum dev_status st = scope_build(el, &el->global, c, 1);
+	if (st == DEV_DEFER)
+		defer(el, c);
+}
+
+static void on_global(struct elab *el, const struct deck_card *c)
+{
+	for (uint32_t i = 0; i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		char *name = f->kind == FIELD_ATOM ? arena_strdup(el->ar, f->text) : NULL;
+		if (f->kind != FIELD_ATOM)
+			continue;
+		if (!name || !smap_put(el->globals, name, f->len, name))
+			oom(el);
+	}
+}
+
+/* Cards inside a .subckt body are kept for expansion. */
+static void body_card(struct elab *el, const struct deck_card *c)
+{
+	struct subdef *def = el->open;
+	switch (c->kind) {
+	case CARD_MODEL:
+		define_model(el, c);
+		return;
+	case CARD_INCLUDE:
+		on_include(el, c);
+		return;
+	case CARD_GLOBAL:
+		on_global(el, c);
+		return;
+	case CARD_END:
+		diag_add(el->d, DIAG_ERROR, "subckt", c->loc,
+			 ".end inside .subckt '%s'", def->name);
+		return;
+	case CARD_ELEMENT:
+	case CARD_PARAM:
+	case CARD_ANNOT:
+	case CARD_FUNC:
+		break;
+	default:
+		return;
+	}
+	struct deck_card *k = deck_card_clone(el->ar, c);
+	if (!k || !push_ptr(el, (void ***)&def->body, &def->nbody,
+			    &def->capbody, k))
+		oom(el);
+}
+
+static void top_card(struct elab *el, const struct deck_card *c)
+{
+	switch (c->kind) {
+	case CARD_ELEMENT: top_element(el, c); break;
+	case CARD_PARAM: scope_params(el, &el->global, c); break;
+	case CARD_FUNC: scope_func(el, c); break;
+	case CARD_MODEL: define_model(el, c); break;
+	case CARD_GLOBAL: on_global(el, c); break;
+	case CARD_INCLUDE: on_include(el, c); break;
+	case CARD_ANNOT: add_annot(el, c->head, "", c->loc); break;
+	case CARD_TITLE:
+		if (!el->title && !(el->title = arena_strdup(el->ar, c->head)))
+			oom(el);
+		break;
+	case CARD_COND:
+		diag_add(el->d, DIAG_ERROR, "unsupported", c->loc,
+			 "conditional blocks (.if/.else/.endif) are not supported");
+		break;
+	default:
+		break;
+	}
+}
+
+static int on_card(void *ud, const struct deck_card *c)
+{
+	struct elab *el = ud;
+	el->ncards++;
+	if (on_lib(el, c))
+		return el->oom || el->stop;
+	if (el->fr->section == 2 || (el->fr->want && el->fr->section != 1))
+		return 0;
+	if (c->kind == CARD_SUBCKT)
+		begin_subckt(el, c);
+	else if (c->kind == CARD_ENDS)
+		end_subckt(el, c);
+	else if (el->skip_depth)
+		;
+	else if (el->open)
+		body_card(el, c);
+	else
+		top_card(el, c);
+	return el->oom || el->stop || diag_full(el->d);
+}
+
+/* ---- the whole file ---- */
+
+static void finish_top(struct elab *el)
+{
+	for (struct subdef *d = el->open; d; d = d->parent)
+		diag_add(el->d, DIAG_ERROR, "subckt", d->loc,
+			 ".subckt '%s' has no .ends", d->name);
+	el->open = NULL;
+	for (size_t i = 0; i < el->ndeferred && !el->oom && !el->stop; i++)
+		scope_build(el, &el->global, el->deferred[i], 0);
+	scope_check_models(el);
+	scope_link_controls(el);
+	if (!el->oom && !nl_finish(el->c))
+		oom(el);
+}
+
+static int elab_init(struct elab *el, const struct elab_opts *opts,
+		     const struct hr_alloc *hook, struct diag_sink *d)
+{
+	memset(el, 0, sizeof *el);
+	if (opts)
+		el->o = *opts;
+	if (!el->o.max_parts)
+		el->o.max_parts = 10000000;
+	if (!el->o.max_include_depth)
+		el->o.max_include_depth = 32;
+	if (!el->o.max_inst_depth)
+		el->o.max_inst_depth = 256;
+	el->hook = *hook;
+	el->d = d;
+	el->c = nl_create(hook);
+	el->scratch = arena_create(hook);
+	if (!el->c || !el->scratch)
+		return 0;
+	el->ar = nl_arena(el->c);
+	return scope_init(el);
+}
+
+static void elab_release(struct elab *el)
+{
+	scope_release(el);
+	arena_destroy(el->scratch);
+}
+
+enum elab_status elab_file(const char *path, const struct elab_opts *opts,
+			   const struct hr_alloc *hook, struct diag_sink *d,
+			   struct elab_result *out)
+{
+	struct elab el;
+	memset(out, 0, sizeof *out);
+	uint32_t file = diag_add_file(d, path);
+	diag_set_unit(d, file);
+	if (!elab_init(&el, opts, hook, d) || file == UINT32_MAX) {
+		elab_release(&el);
+		nl_destroy(el.c);
+		return ELAB_OOM;
+	}
+	size_t errors0 = diag_errors(d, file);
+	FILE *in = open_input(&el, path);
+	if (!in) {
+		diag_add(d, DIAG_ERROR, "io", loc0(file), "cannot read: %s",
+			 strerror(errno));
+	} else {
+		struct file_read fr = {path, file, NULL, 0, 0, loc0(file), NULL};
+		read_stream(&el, in, &fr, 1);
+		fclose(in);
+		if (!el.oom)
+			finish_top(&el);
+	}
+	elab_release(&el);
+	if (el.oom) {
+		nl_destroy(el.c);
+		return ELAB_OOM;
+	}
+	out->circuit = el.c;
+	out->title = el.title ? el.title : "";
+	out->annots = (const struct elab_annot *const *)el.annots;
+	out->nannots = el.nannots;
+	out->ncards = el.ncards;
+	return diag_errors(d, file) > errors0 ? ELAB_ERRORS : ELAB_OK;
+}

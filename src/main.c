@@ -1,0 +1,182 @@
+/* main.c: the command line. Parses options, runs the library per file,
+ * and is the only place that picks output streams and exit codes:
+ * 0 clean, 1 findings at or above --fail-on, 2 usage or netlist errors. */
+#include <errno.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "arena.h"
+#include "diag.h"
+#include "elab.h"
+#include "report_parts.h"
+
+#define HEADROOM_VERSION "0.1.0"
+#define EXIT_USAGE 2
+
+struct cli {
+	const char *cmd;
+	enum report_parts_format fmt;
+	struct elab_opts eo;
+	unsigned max_errors;
+	const char **files;
+	int nfiles;
+};
+
+static void usage(FILE *out)
+{
+	fputs("usage: headroom COMMAND [options] FILE...\n"
+	      "\n"
+	      "Reads SPICE netlists and checks that every capacitor and diode in\n"
+	      "diode-capacitor networks is rated for its worst-case stress.\n"
+	      "\n"
+	      "commands:\n"
+	      "  parts FILE...        list the flattened parts of each netlist\n"
+	      "\n"
+	      "options:\n"
+	      "  --format FMT         parts: text (default), csv, json, count\n"
+	      "  --max-parts N        stop expanding a netlist past N parts\n"
+	      "                       (default 10000000)\n"
+	      "  --max-errors N       errors reported per file before giving up\n"
+	      "                       (default 50)\n"
+	      "  --help               this text\n"
+	      "  --version            the version\n"
+	      "\n"
+	      "exit status: 0 success, 2 usage error or a netlist with errors\n",
+	      out);
+}
+
+static int parse_count(const char *s, size_t *out)
+{
+	char *end;
+	errno = 0;
+	unsigned long long v = strtoull(s, &end, 10);
+	if (errno || *end || end == s || v == 0)
+		return 0;
+	*out = (size_t)v;
+	return 1;
+}
+
+static int set_format(struct cli *c, const char *f)
+{
+	static const struct {
+		const char *name;
+		enum report_parts_format fmt;
+	} tab[] = {{"text", RP_TEXT}, {"csv", RP_CSV}, {"json", RP_JSON},
+		   {"count", RP_COUNT}};
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		if (strcmp(f, tab[i].name) == 0) {
+			c->fmt = tab[i].fmt;
+			return 1;
+		}
+	fprintf(stderr, "headroom: unknown format '%s' (text, csv, json, count)\n", f);
+	return 0;
+}
+
+/* Options with a value; returns 0 on a usage error. */
+static int option(struct cli *c, const char *opt, const char *val)
+{
+	size_t n;
+	if (!val) {
+		fprintf(stderr, "headroom: %s needs a value\n", opt);
+		return 0;
+	}
+	if (strcmp(opt, "--format") == 0)
+		return set_format(c, val);
+	if (!parse_count(val, &n)) {
+		fprintf(stderr, "headroom: %s takes a positive whole number, not '%s'\n",
+			opt, val);
+		return 0;
+	}
+	if (strcmp(opt, "--max-parts") == 0)
+		c->eo.max_parts = n;
+	else
+		c->max_errors = (unsigned)n;
+	return 1;
+}
+
+static int parse_args(struct cli *c, int argc, char **argv)
+{
+	c->files = calloc((size_t)argc, sizeof *c->files);
+	if (!c->files)
+		return 0;
+	for (int i = 1; i < argc; i++) {
+		const char *a = argv[i];
+		if (strcmp(a, "--format") == 0 || strcmp(a, "--max-parts") == 0 ||
+		    strcmp(a, "--max-errors") == 0) {
+			if (!option(c, a, i + 1 < argc ? argv[i + 1] : NULL))
+				return 0;
+			i++;
+		} else if (a[0] == '-' && a[1] != '\0') {
+			fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", a);
+			return 0;
+		} else if (!c->cmd) {
+			c->cmd = a;
+		} else {
+			c->files[c->nfiles++] = a;
+		}
+	}
+	return 1;
+}
+
+/* headroom parts: elaborate each file, print its parts, report errors. */
+static int run_parts(const struct cli *c)
+{
+	struct hr_alloc hook = hr_alloc_default();
+	int status = 0;
+	for (int i = 0; i < c->nfiles; i++) {
+		struct arena *ar = arena_create(&hook);
+		struct diag_sink *d = ar ? diag_create(ar, c->max_errors) : NULL;
+		struct elab_result r;
+		if (!d) {
+			fprintf(stderr, "headroom: out of memory\n");
+			arena_destroy(ar);
+			return EXIT_USAGE;
+		}
+		enum elab_status st = elab_file(c->files[i], &c->eo, &hook, d, &r);
+		if (st == ELAB_OOM)
+			fprintf(stderr, "%s: error: out of memory\n", c->files[i]);
+		else
+			report_parts(stdout, c->fmt, c->files[i], &r, d, 0,
+				     i == 0, i + 1 == c->nfiles);
+		diag_render(d, UINT32_MAX, stderr);
+		if (st != ELAB_OK)
+			status = EXIT_USAGE;
+		nl_destroy(r.circuit);
+		diag_destroy(d);
+		arena_destroy(ar);
+	}
+	return status;
+}
+
+int main(int argc, char **argv)
+{
+	struct cli c;
+	memset(&c, 0, sizeof c);
+	c.max_errors = 50;
+	for (int i = 1; i < argc; i++) {
+		if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
+			usage(stdout);
+			return 0;
+		}
+		if (strcmp(argv[i], "--version") == 0) {
+			printf("headroom %s\n", HEADROOM_VERSION);
+			return 0;
+		}
+	}
+	int ok = parse_args(&c, argc, argv);
+	int rc = EXIT_USAGE;
+	if (!ok) {
+		/* message already printed */
+	} else if (!c.cmd) {
+		usage(stderr);
+	} else if (strcmp(c.cmd, "parts") == 0 && c.nfiles > 0) {
+		rc = run_parts(&c);
+	} else if (strcmp(c.cmd, "parts") == 0) {
+		fprintf(stderr, "headroom: parts needs at least one netlist file\n");
+	} else {
+		fprintf(stderr, "headroom: unknown command '%s' (see --help)\n", c.cmd);
+	}
+	free(c.files);
+	return rc;
+}

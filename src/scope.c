@@ -1,0 +1,619 @@
+/* scope.c: subcircuit definitions and their expansion. Parameters are
+ * looked up along the chain of instantiating scopes and then the global
+ * .param table; nodes inside an instance are renamed "X1.n5" unless they are
+ * ports, ground or .global; models are looked up from the definition the
+ * card sits in outwards (lexically). */
+#include "scope.h"
+
+#include <math.h>
+#include <string.h>
+
+#include "num.h"
+
+/* What device callbacks need: the scope, and whether this is the first
+ * (streaming) pass at top level. */
+struct cb {
+	struct elab *el;
+	const struct scope *sc;
+	int first_pass;
+	struct diag_loc at;
+};
+
+struct smap *scope_map(struct elab *el)
+{
+	struct smap *m = smap_create(&el->hook);
+	if (!m) {
+		el->oom = 1;
+		return NULL;
+	}
+	if (el->nmaps == el->capmaps) {
+		size_t ncap = el->capmaps ? el->capmaps * 2 : 32;
+		struct smap **a = hr_realloc(&el->hook, el->maps, ncap * sizeof *a);
+		if (!a) {
+			smap_destroy(m);
+			el->oom = 1;
+			return NULL;
+		}
+		el->maps = a;
+		el->capmaps = ncap;
+	}
+	el->maps[el->nmaps++] = m;
+	return m;
+}
+
+int scope_init(struct elab *el)
+{
+	el->top.name = "";
+	el->top.subckts = scope_map(el);
+	el->top.models = scope_map(el);
+	el->funcs = scope_map(el);
+	el->globals = scope_map(el);
+	el->global.el = el;
+	el->global.params = scope_map(el);
+	el->global.prefix = "";
+	el->global.mult = 1.0;
+	return !el->oom;
+}
+
+void scope_release(struct elab *el)
+{
+	for (size_t i = 0; i < el->nmaps; i++)
+		smap_destroy(el->maps[i]);
+	hr_free(&el->hook, el->maps);
+	el->maps = NULL;
+	el->nmaps = el->capmaps = 0;
+}
+
+/* ---- lookups ---- */
+
+static int lookup_var(void *ud, const char *name, double *v)
+{
+	const struct cb *cb = ud;
+	size_t n = strlen(name);
+	for (const struct scope *s = cb->sc; s; s = s->caller) {
+		const double *p = smap_get(s->params, name, n);
+		if (p) {
+			*v = *p;
+			return 1;
+		}
+	}
+	const double *g = smap_get(cb->el->global.params, name, n);
+	if (g)
+		*v = *g;
+	return g != NULL;
+}
+
+static const struct expr_func *lookup_func(void *ud, const char *name)
+{
+	const struct cb *cb = ud;
+	return smap_get(cb->el->funcs, name, strlen(name));
+}
+
+static enum expr_status cb_eval(void *ud, const struct expr *e, double *out,
+				struct expr_error *err)
+{
+	struct expr_env env = {lookup_var, lookup_func, ud};
+	return expr_eval(e, &env, out, err);
+}
+
+static uint32_t cb_node(void *ud, const char *name, size_t n)
+{
+	const struct cb *cb = ud;
+	const struct scope *sc = cb->sc;
+	struct nl_circuit *c = cb->el->c;
+	if (!sc->def || nl_node_find(c, name, n) == NL_GROUND ||
+	    smap_get(cb->el->globals, name, n))
+		return nl_node_intern(c, name, n);
+	uintptr_t port = (uintptr_t)smap_get(sc->def->portmap, name, n);
+	if (port)
+		return sc->actual[port - 1];
+	size_t pl = strlen(sc->prefix);
+	char buf[512];
+	char *full = pl + n < sizeof buf ? buf : arena_alloc(cb->el->scratch, pl + n + 1);
+	if (!full)
+		return NL_NONE;
+	memcpy(full, sc->prefix, pl);
+	memcpy(full + pl, name, n);
+	full[pl + n] = '\0';
+	return nl_node_intern(c, full, pl + n);
+}
+
+static const struct nl_model *placeholder(struct cb *cb, const char *name,
+					  size_t n)
+{
+	struct elab *el = cb->el;
+	struct nl_model *m = arena_zalloc(el->ar, sizeof *m);
+	char *key = m ? arena_strndup(el->ar, name, n) : NULL;
+	if (!key || !smap_put(el->top.models, key, n, m)) {
+		el->oom = 1;
+		return NULL;
+	}
+	m->name = key;
+	m->loc = cb->at;
+	struct nl_model **a = el->pending;
+	if (el->npending == el->cappending) {
+		size_t ncap = el->cappending ? el->cappending * 2 : 16;
+		a = arena_alloc(el->ar, ncap * sizeof *a);
+		if (!a) {
+			el->oom = 1;
+			return NULL;
+		}
+		if (el->npending)
+			memcpy(a, el->pending, el->npending * sizeof *a);
+		el->pending = a;
+		el->cappending = ncap;
+	}
+	el->pending[el->npending++] = m;
+	return m;
+}
+
+static const struct nl_model *cb_model(void *ud, const char *name, size_t n)
+{
+	struct cb *cb = ud;
+	for (const struct subdef *d = cb->sc->def; d; d = d->parent) {
+		const struct nl_model *m = smap_get(d->models, name, n);
+		if (m)
+			return m;
+	}
+	const struct nl_model *m = smap_get(cb->el->top.models, name, n);
+	if (m && (m->type || cb->first_pass))
+		return m;
+	if (!m && cb->first_pass)
+		return placeholder(cb, name, n);
+	return NULL;
+}
+
+/* ---- definitions ---- */
+
+static int is_params_kw(const struct deck_field *f)
+{
+	return deck_atom_is(f, "params:") || deck_atom_is(f, "params");
+}
+
+struct subdef *scope_def_create(struct elab *el, const struct deck_card *c)
+{
+	const struct deck_card *k = deck_card_clone(el->ar, c);
+	struct subdef *d = k ? arena_zalloc(el->ar, sizeof *d) : NULL;
+	if (!d) {
+		el->oom = 1;
+		return NULL;
+	}
+	d->name = k->fields[0].text;
+	d->loc = k->loc;
+	d->subckts = scope_map(el);
+	d->models = scope_map(el);
+	d->portmap = scope_map(el);
+	d->ports = arena_alloc(el->ar, k->nfields * sizeof *d->ports);
+	if (!d->subckts || !d->models || !d->portmap || !d->ports) {
+		el->oom = 1;
+		return NULL;
+	}
+	uint32_t i = 1;
+	for (; i < k->nfields && k->fields[i].kind == FIELD_ATOM &&
+	       !is_params_kw(&k->fields[i]); i++) {
+		const struct deck_field *f = &k->fields[i];
+		if (smap_get(d->portmap, f->text, f->len))
+			diag_add(el->d, DIAG_ERROR, "subckt",
+				 (struct diag_loc){c->loc.file, f->line, f->col},
+				 "port '%s' is listed twice", f->text);
+		d->ports[d->nports++] = f->text;
+		if (!smap_put(d->portmap, f->text, f->len,
+			      (void *)(uintptr_t)d->nports))
+			el->oom = 1;
+	}
+	if (i < k->nfields && is_params_kw(&k->fields[i]))
+		i++;
+	d->defaults = k->fields + i;
+	d->ndefaults = k->nfields - i;
+	for (uint32_t j = 0; j < d->ndefaults; j++)
+		if (d->defaults[j].kind != FIELD_ASSIGN)
+			diag_add(el->d, DIAG_ERROR, "subckt",
+				 (struct diag_loc){c->loc.file, d->defaults[j].line,
+						   d->defaults[j].col},
+				 "expected name=value after the ports of .subckt '%s'",
+				 d->name);
+	return d;
+}
+
+/* A model parameter value: a number, an expression over global parameters,
+ * or NaN for words (version strings and the like). */
+static double model_value(struct elab *el, const struct deck_field *v)
+{
+	double x = NAN;
+	if (v && v->kind == FIELD_ATOM)
+		num_parse(v->text, v->len, &x, NULL);
+	if (v && v->kind == FIELD_EXPR) {
+		struct cb cb = {el, &el->global, 0, {0, 0, 0}};
+		struct expr_error e;
+		if (cb_eval(&cb, v->expr, &x, &e) != EXPR_OK)
+			x = NAN;
+	}
+	return x;
+}
+
+static void model_params(struct elab *el, struct nl_model *m,
+			 const struct deck_field *f, uint32_t n)
+{
+	for (uint32_t i = 0; i < n; i++) {
+		if (f[i].kind == FIELD_CALL && f[i].len == 0) {
+			model_params(el, m, f[i].args, f[i].nargs);
+			continue;
+		}
+		if (f[i].kind != FIELD_ASSIGN)
+			continue;
+		char *key = arena_strndup(el->ar, f[i].text, f[i].len);
+		if (!key) {
+			el->oom = 1;
+			return;
+		}
+		num_fold(key, f[i].len);
+		m->keys[m->nparams] = key;
+		m->values[m->nparams++] = model_value(el, f[i].value);
+	}
+}
+
+static uint32_t count_assigns(const struct deck_field *f, uint32_t n)
+{
+	uint32_t k = 0;
+	for (uint32_t i = 0; i < n; i++)
+		k += f[i].kind == FIELD_ASSIGN ? 1
+		     : f[i].kind == FIELD_CALL ? count_assigns(f[i].args, f[i].nargs)
+					       : 0;
+	return k;
+}
+
+void scope_fill_model(struct elab *el, struct nl_model *m,
+		      const struct deck_card *c)
+{
+	const struct deck_field *t = &c->fields[1];
+	char *type = arena_strndup(el->ar, t->text, t->len);
+	uint32_t n = count_assigns(c->fields + 1, c->nfields - 1);
+	m->keys = arena_alloc(el->ar, (n ? n : 1) * sizeof *m->keys);
+	m->values = arena_alloc(el->ar, (n ? n : 1) * sizeof *m->values);
+	if (!type || !m->keys || !m->values) {
+		el->oom = 1;
+		return;
+	}
+	num_fold(type, t->len);
+	m->type = type;
+	m->loc = c->loc;
+	m->nparams = 0;
+	if (t->kind == FIELD_CALL)
+		model_params(el, m, t->args, t->nargs);
+	model_params(el, m, c->fields + 2, c->nfields - 2);
+}
+
+void scope_check_models(struct elab *el)
+{
+	for (size_t i = 0; i < el->npending; i++)
+		if (!el->pending[i]->type)
+			diag_add(el->d, DIAG_ERROR, "model", el->pending[i]->loc,
+				 "undefined model '%s'", el->pending[i]->name);
+}
+
+/* ---- parameters and functions ---- */
+
+static void set_param(struct elab *el, struct scope *sc, const char *key,
+		      size_t n, double v)
+{
+	double *p = smap_get(sc->params, key, n);
+	if (!p) {
+		p = arena_alloc(el->ar, sizeof *p);
+		char *k = p ? arena_strndup(el->ar, key, n) : NULL;
+		if (!k || !smap_put(sc->params, k, n, p)) {
+			el->oom = 1;
+			return;
+		}
+	}
+	*p = v;
+}
+
+void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c)
+{
+	for (uint32_t i = 0; i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		double v;
+		struct cb cb = {el, sc, 0, c->loc};
+		struct expr_error e = {0};
+		if (cb_eval(&cb, f->value->expr, &v, &e) != EXPR_OK) {
+			char msg[200];
+			expr_error_text(&e, msg, sizeof msg);
+			struct diag_loc l = {c->loc.file, e.line, e.col};
+			diag_add(el->d, DIAG_ERROR, "expression", l, "%s", msg);
+			continue;
+		}
+		set_param(el, sc, f->text, f->len, v);
+	}
+}
+
+void scope_func(struct elab *el, const struct deck_card *c)
+{
+	const struct deck_field *head = &c->fields[0];
+	struct expr_func *fn = arena_zalloc(el->ar, sizeof *fn);
+	if (fn) {
+		fn->name = arena_strndup(el->ar, head->text, head->len);
+		fn->params = arena_alloc(el->ar, (head->nargs + 1) * sizeof *fn->params);
+		fn->body = expr_clone(el->ar, c->fields[1].expr);
+	}
+	if (!fn || !fn->name || !fn->params || !fn->body) {
+		el->oom = 1;
+		return;
+	}
+	for (uint32_t i = 0; i < head->nargs; i++)
+		if (!(fn->params[fn->nparams++] = arena_strdup(el->ar, head->args[i].text)))
+			el->oom = 1;
+	if (!smap_put(el->funcs, fn->name, head->len, fn))
+		el->oom = 1;
+}
+
+/* ---- expansion ---- */
+
+static struct dev_scope dev_scope_of(struct cb *cb)
+{
+	struct dev_scope ds = {cb,	      cb_eval,	      cb_node,
+			       cb_model,      cb->sc->prefix, cb->first_pass,
+			       cb->sc->mult};
+	return ds;
+}
+
+static const struct subdef *find_subckt(const struct elab *el,
+					const struct subdef *from,
+					const char *name, size_t n)
+{
+	for (const struct subdef *d = from; d; d = d->parent) {
+		const struct subdef *s = smap_get(d->subckts, name, n);
+		if (s)
+			return s;
+	}
+	return smap_get(el->top.subckts, name, n);
+}
+
+static struct diag_loc at_field(const struct deck_card *c,
+				const struct deck_field *f)
+{
+	struct diag_loc l = {c->loc.file, f->line, f->col};
+	return l;
+}
+
+/* Position of the subcircuit name: the last word before params: or the
+ * first name=value. */
+static uint32_t name_index(const struct deck_card *c)
+{
+	uint32_t k = 0;
+	while (k < c->nfields && c->fields[k].kind == FIELD_ATOM &&
+	       !is_params_kw(&c->fields[k]))
+		k++;
+	return k;
+}
+
+/* Instance parameters, evaluated in the caller's scope; m= multiplies. */
+static int instance_params(struct elab *el, struct scope *ns,
+			   const struct scope *caller,
+			   const struct deck_card *c, uint32_t from)
+{
+	struct cb cb = {el, caller, 0, c->loc};
+	struct dev_scope ds = dev_scope_of(&cb);
+	for (uint32_t i = from; i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		double v;
+		if (is_params_kw(f))
+			continue;
+		if (f->kind != FIELD_ASSIGN) {
+			diag_add(el->d, DIAG_ERROR, "instance", at_field(c, f),
+				 "expected name=value after the subcircuit name");
+			return 0;
+		}
+		if (dev_value(&ds, f->value, el->d, c->loc.file, &v) != DEV_OK)
+			return 0;
+		int declared = 0;
+		for (uint32_t j = 0; j < ns->def->ndefaults; j++)
+			declared |= num_iequal(ns->def->defaults[j].text,
+					       ns->def->defaults[j].len, f->text, f->len);
+		if (!declared && num_ieq(f->text, f->len, "m"))
+			ns->mult *= v;
+		else
+			set_param(el, ns, f->text, f->len, v);
+	}
+	return 1;
+}
+
+/* Defaults of the definition that the instance did not override. */
+static int default_params(struct elab *el, struct scope *ns,
+			  const struct deck_card *c)
+{
+	struct cb cb = {el, ns, 0, c->loc};
+	struct dev_scope ds = dev_scope_of(&cb);
+	for (uint32_t j = 0; j < ns->def->ndefaults; j++) {
+		const struct deck_field *f = &ns->def->defaults[j];
+		double v;
+		if (f->kind != FIELD_ASSIGN || smap_get(ns->params, f->text, f->len))
+			continue;
+		if (dev_value(&ds, f->value, el->d, ns->def->loc.file, &v) != DEV_OK)
+			return 0;
+		set_param(el, ns, f->text, f->len, v);
+	}
+	return 1;
+}
+
+static void expand_body(struct elab *el, struct scope *ns)
+{
+	for (size_t i = 0; i < ns->def->nbody && !el->oom && !el->stop; i++) {
+		const struct deck_card *b = ns->def->body[i];
+		if (b->kind == CARD_ELEMENT)
+			scope_build(el, ns, b, 0);
+		else if (b->kind == CARD_PARAM)
+			scope_params(el, ns, b);
+		else if (b->kind == CARD_FUNC)
+			scope_func(el, b);
+		else if (b->kind == CARD_ANNOT) {
+			struct elab_annot *a = arena_alloc(el->ar, sizeof *a);
+			if (!a) {
+				el->oom = 1;
+				return;
+			}
+			a->text = b->head;
+			a->prefix = ns->prefix;
+			a->loc = b->loc;
+			scope_add_annot(el, a);
+		}
+	}
+}
+
+static const struct subdef *check_instance(struct elab *el,
+					   const struct scope *sc,
+					   const struct deck_card *c,
+					   uint32_t k)
+{
+	if (k == 0) {
+		diag_add(el->d, DIAG_ERROR, "instance", c->loc,
+			 "instance needs its nodes and a subcircuit name");
+		return NULL;
+	}
+	const struct deck_field *nf = &c->fields[k - 1];
+	const struct subdef *def = find_subckt(el, sc->def, nf->text, nf->len);
+	if (!def) {
+		diag_add(el->d, DIAG_ERROR, "instance", at_field(c, nf),
+			 "undefined subcircuit '%s'", nf->text);
+		return NULL;
+	}
+	if (def->nports != k - 1) {
+		diag_add(el->d, DIAG_ERROR, "instance", at_field(c, nf),
+			 "subcircuit '%s' has %u ports but the instance connects %u nodes",
+			 def->name, def->nports, k - 1);
+		return NULL;
+	}
+	if (def->active) {
+		diag_add(el->d, DIAG_ERROR, "instance", c->loc,
+			 "subcircuit '%s' instantiates itself", def->name);
+		return NULL;
+	}
+	if (sc->depth + 1 > el->o.max_inst_depth) {
+		diag_add(el->d, DIAG_ERROR, "instance", c->loc,
+			 "subcircuits nest deeper than %u levels", el->o.max_inst_depth);
+		return NULL;
+	}
+	return def;
+}
+
+static char *instance_prefix(struct elab *el, const struct scope *sc,
+			     const struct deck_card *c)
+{
+	size_t pl = strlen(sc->prefix);
+	char *p = arena_alloc(el->ar, pl + c->headlen + 2);
+	if (!p)
+		return NULL;
+	memcpy(p, sc->prefix, pl);
+	memcpy(p + pl, c->head, c->headlen);
+	p[pl + c->headlen] = '.';
+	p[pl + c->headlen + 1] = '\0';
+	return p;
+}
+
+static enum dev_status expand(struct elab *el, struct scope *sc,
+			      const struct deck_card *c)
+{
+	uint32_t k = name_index(c);
+	struct subdef *def = (struct subdef *)check_instance(el, sc, c, k);
+	if (!def)
+		return DEV_ERROR;
+	uint32_t *actual = arena_alloc(el->ar, (k ? k : 1) * sizeof *actual);
+	struct scope ns = {el, sc, def, smap_create(&el->hook),
+			   instance_prefix(el, sc, c), actual, sc->mult,
+			   sc->depth + 1};
+	if (!actual || !ns.params || !ns.prefix) {
+		smap_destroy(ns.params);
+		el->oom = 1;
+		return DEV_OOM;
+	}
+	struct cb cb = {el, sc, 0, c->loc};
+	for (uint32_t i = 0; i + 1 < k; i++)
+		if ((actual[i] = cb_node(&cb, c->fields[i].text, c->fields[i].len)) == NL_NONE)
+			el->oom = 1;
+	if (!el->oom && instance_params(el, &ns, sc, c, k) &&
+	    default_params(el, &ns, c)) {
+		def->active = 1;
+		expand_body(el, &ns);
+		def->active = 0;
+	}
+	smap_destroy(ns.params);
+	return el->oom ? DEV_OOM : DEV_OK;
+}
+
+enum dev_status scope_build(struct elab *el, struct scope *sc,
+			    const struct deck_card *c, int first_pass)
+{
+	if (sc->depth == 0)
+		el->root = c->loc;
+	if (nl_part_count(el->c) >= el->o.max_parts) {
+		diag_add(el->d, DIAG_ERROR, "expansion", el->root,
+			 "the circuit grows past %zu parts (the limit; see --max-parts)",
+			 el->o.max_parts);
+		el->stop = 1;
+		return DEV_ERROR;
+	}
+	if ((c->head[0] | 32) == 'x')
+		return expand(el, sc, c);
+	struct cb cb = {el, sc, first_pass, c->loc};
+	struct dev_scope ds = dev_scope_of(&cb);
+	enum dev_status st = dev_build(&ds, c, el->c, el->d);
+	if (st == DEV_OOM)
+		el->oom = 1;
+	return st;
+}
+
+/* ---- K, F, H: names of other parts ---- */
+
+static uint32_t find_part(struct elab *el, struct smap *paths,
+			  const char *path, const char *name)
+{
+	const char *dot = strrchr(path, '.');
+	size_t pl = dot ? (size_t)(dot - path) + 1 : 0, nl = strlen(name);
+	char buf[1024];
+	if (pl + nl >= sizeof buf)
+		return NL_NONE;
+	memcpy(buf, path, pl);
+	memcpy(buf + pl, name, nl + 1);
+	(void)el;
+	uintptr_t v = (uintptr_t)smap_get(paths, buf, pl + nl);
+	return v ? (uint32_t)(v - 1) : NL_NONE;
+}
+
+static void link_part(struct elab *el, struct smap *paths, struct nl_part *p)
+{
+	int n = p->kind == NL_K ? 2 : 1;
+	for (int i = 0; i < n; i++) {
+		uint32_t q = find_part(el, paths, p->path, p->ext->ctrl[i]);
+		enum nl_kind want = p->kind == NL_K ? NL_L : NL_V;
+		if (q == NL_NONE || nl_part_at(el->c, q)->kind != want) {
+			diag_add(el->d, DIAG_ERROR, "element", p->loc,
+				 "'%s' names '%s', which is not %s in the same circuit",
+				 p->path, p->ext->ctrl[i],
+				 want == NL_L ? "an inductor" : "a voltage source");
+			continue;
+		}
+		p->ext->ctrl_part[i] = q;
+	}
+}
+
+void scope_link_controls(struct elab *el)
+{
+	size_t n = nl_part_count(el->c), need = 0;
+	for (size_t i = 0; i < n; i++) {
+		const struct nl_part *p = nl_part_at(el->c, i);
+		need += p->ext && p->ext->ctrl[0];
+	}
+	if (!need || el->oom)
+		return;
+	struct smap *paths = scope_map(el);
+	for (size_t i = 0; paths && i < n; i++) {
+		const struct nl_part *p = nl_part_at(el->c, i);
+		if ((p->kind == NL_L || p->kind == NL_V) &&
+		    !smap_put(paths, p->path, strlen(p->path), (void *)(uintptr_t)(i + 1)))
+			el->oom = 1;
+	}
+	for (size_t i = 0; paths && !el->oom && i < n; i++) {
+		struct nl_part *p = nl_part_mut(el->c, i);
+		if (p->ext && p->ext->ctrl[0] && !p->ext->behavioural)
+			link_part(el, paths, p);
+	}
+}

@@ -1,0 +1,206 @@
+/* wave.c: source waveform descriptions, per the ngspice manual's chapter on
+ * independent sources: SIN(VO VA FREQ TD THETA PHASE), PULSE(V1 V2 TD TR TF
+ * PW PER), PWL(t1 v1 ...) [r=] [td=], EXP(V1 V2 TD1 TAU1 TD2 TAU2),
+ * SFFM(VO VA FC MDI FS). */
+#include "wave.h"
+
+#include <string.h>
+
+#include "num.h"
+
+#define WAVE_MAX_ARGS 200000u
+
+struct wave_rd {
+	const struct dev_scope *s;
+	const struct deck_card *card;
+	struct arena *ar;
+	struct diag_sink *d;
+	struct nl_source *src;
+	uint32_t i;
+};
+
+static const char *const wave_names[] = {"dc", "sin", "pulse", "pwl", "exp",
+					 "sffm"};
+
+const char *wave_name(enum nl_wave w)
+{
+	return wave_names[w];
+}
+
+static enum nl_wave wave_kind(const char *s, size_t n)
+{
+	for (int w = NL_WAVE_SIN; w <= NL_WAVE_SFFM; w++)
+		if (num_ieq(s, n, wave_names[w]))
+			return (enum nl_wave)w;
+	return NL_WAVE_NONE;
+}
+
+static int numeric(const struct deck_field *f)
+{
+	return f->kind == FIELD_EXPR ||
+	       (f->kind == FIELD_ATOM && num_looks_numeric(f->text, f->len));
+}
+
+static enum dev_status val(struct wave_rd *r, const struct deck_field *f,
+			   double *out)
+{
+	return dev_value(r->s, f, r->d, r->card->loc.file, out);
+}
+
+static enum dev_status err(struct wave_rd *r, const struct deck_field *f,
+			   const char *msg)
+{
+	struct diag_loc l = {r->card->loc.file, f->line, f->col};
+	diag_add(r->d, DIAG_ERROR, "source", l, "%s", msg);
+	return DEV_ERROR;
+}
+
+/* Stores the arguments of a waveform given as fields f[0..n). */
+static enum dev_status set_wave(struct wave_rd *r, enum nl_wave w,
+				const struct deck_field *f, uint32_t n,
+				const struct deck_field *at)
+{
+	if (r->src->wave != NL_WAVE_NONE)
+		return err(r, at, "a source takes one transient waveform, this is a second one");
+	if (n > WAVE_MAX_ARGS)
+		return err(r, at, "waveform has more than 200000 values");
+	r->src->wave = w;
+	r->src->nargs = 0;
+	r->src->args = arena_alloc(r->ar, (n ? n : 1) * sizeof *r->src->args);
+	if (!r->src->args)
+		return DEV_OOM;
+	for (uint32_t k = 0; k < n; k++) {
+		if (f[k].kind == FIELD_ASSIGN)
+			continue; /* handled by the caller (r=, td=) */
+		enum dev_status st = val(r, &f[k], &r->src->args[r->src->nargs]);
+		if (st != DEV_OK)
+			return st;
+		r->src->nargs++;
+	}
+	if (w == NL_WAVE_PWL && r->src->nargs % 2 != 0)
+		return err(r, at, "pwl needs time-value pairs: an odd number of values was given");
+	return DEV_OK;
+}
+
+static enum dev_status pwl_option(struct wave_rd *r, const struct deck_field *f)
+{
+	if (num_ieq(f->text, f->len, "r"))
+		return val(r, f->value, &r->src->pwl_repeat);
+	if (num_ieq(f->text, f->len, "td"))
+		return val(r, f->value, &r->src->pwl_delay);
+	return DEV_ERROR;
+}
+
+static enum dev_status on_call(struct wave_rd *r, const struct deck_field *f)
+{
+	enum nl_wave w = wave_kind(f->text, f->len);
+	if (w != NL_WAVE_NONE) {
+		enum dev_status st = set_wave(r, w, f->args, f->nargs, f);
+		for (uint32_t k = 0; st == DEV_OK && k < f->nargs; k++)
+			if (f->args[k].kind == FIELD_ASSIGN &&
+			    pwl_option(r, &f->args[k]) != DEV_OK)
+				st = err(r, &f->args[k], "unexpected key in a waveform");
+		return st;
+	}
+	struct diag_loc l = {r->card->loc.file, f->line, f->col};
+	diag_add(r->d, DIAG_WARNING, "source", l,
+		 "waveform '%s' is not understood: only its DC value is used", f->text);
+	return DEV_OK;
+}
+
+/* A waveform written without parentheses: its numbers follow the name. */
+static enum dev_status on_bare_wave(struct wave_rd *r, enum nl_wave w)
+{
+	const struct deck_card *c = r->card;
+	uint32_t first = r->i + 1, k = first;
+	while (k < c->nfields && numeric(&c->fields[k]))
+		k++;
+	enum dev_status st = set_wave(r, w, &c->fields[first], k - first,
+				      &c->fields[r->i]);
+	r->i = k;
+	return st;
+}
+
+/* Numbers following a keyword (dc, ac): up to max of them. */
+static enum dev_status take_numbers(struct wave_rd *r, double *out,
+				    uint32_t max, uint32_t need)
+{
+	const struct deck_card *c = r->card;
+	const struct deck_field *kw = &c->fields[r->i];
+	uint32_t got = 0;
+	r->i++;
+	while (got < max && r->i < c->nfields && numeric(&c->fields[r->i])) {
+		enum dev_status st = val(r, &c->fields[r->i], &out[got]);
+		if (st != DEV_OK)
+			return st;
+		got++;
+		r->i++;
+	}
+	return got < need ? err(r, kw, "a number must follow this keyword")
+			  : DEV_OK;
+}
+
+static enum dev_status on_assign(struct wave_rd *r, const struct deck_field *f)
+{
+	if (num_ieq(f->text, f->len, "dc")) {
+		r->src->has_dc = 1;
+		return val(r, f->value, &r->src->dc);
+	}
+	if (num_ieq(f->text, f->len, "ac"))
+		return val(r, f->value, &r->src->ac_mag);
+	if (pwl_option(r, f) == DEV_OK || num_ieq(f->text, f->len, "m"))
+		return DEV_OK;
+	return err(r, f, "unexpected key in a source card");
+}
+
+static enum dev_status step(struct wave_rd *r)
+{
+	const struct deck_field *f = &r->card->fields[r->i];
+	enum nl_wave w;
+	double two[2] = {0, 0};
+	if (deck_atom_is(f, "dc")) {
+		r->src->has_dc = 1;
+		return take_numbers(r, &r->src->dc, 1, 1);
+	}
+	if (deck_atom_is(f, "ac")) {
+		enum dev_status st = take_numbers(r, two, 2, 0);
+		r->src->ac_mag = r->i > 0 ? two[0] : 0;
+		r->src->ac_phase = two[1];
+		if (st == DEV_OK && two[0] == 0 && r->src->ac_mag == 0)
+			r->src->ac_mag = 1.0; /* "ac" alone means magnitude 1 */
+		return st;
+	}
+	if (deck_atom_is(f, "distof1") || deck_atom_is(f, "distof2"))
+		return take_numbers(r, two, 2, 0);
+	if (f->kind == FIELD_ATOM && (w = wave_kind(f->text, f->len)) != NL_WAVE_NONE)
+		return on_bare_wave(r, w);
+	r->i++;
+	if (f->kind == FIELD_CALL)
+		return on_call(r, f);
+	if (f->kind == FIELD_ASSIGN)
+		return on_assign(r, f);
+	if (numeric(f) && !r->src->has_dc) {
+		r->src->has_dc = 1;
+		return val(r, f, &r->src->dc);
+	}
+	return err(r, f, "unexpected word in a source card");
+}
+
+enum dev_status wave_parse(const struct dev_scope *s,
+			   const struct deck_card *card, uint32_t start,
+			   struct arena *ar, struct diag_sink *d,
+			   struct nl_source **out)
+{
+	struct wave_rd r = {s, card, ar, d, NULL, start};
+	r.src = arena_zalloc(ar, sizeof *r.src);
+	if (!r.src)
+		return DEV_OOM;
+	r.src->pwl_repeat = -1.0;
+	while (r.i < card->nfields) {
+		enum dev_status st = step(&r);
+		if (st != DEV_OK)
+			return st;
+	}
+	*out = r.src;
+	return DEV_OK;
+}
