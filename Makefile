@@ -40,11 +40,13 @@ $(BUILD)/spice.lex.c $(BUILD)/spice.lex.h: grammar/spice.l $(BUILD)/spice.tab.h
 
 $(BUILD)/obj/spice.%.o: $(BUILD)/spice.%.c $(BUILD)/spice.tab.h
 	@mkdir -p $(BUILD)/obj
-	$(CC) $(CPPFLAGS) $(CFLAGS) $(GENWARN) -c $< -o $@
+	@echo "  CC      $<"
+	@$(CC) $(CPPFLAGS) $(CFLAGS) $(GENWARN) -c $< -o $@
 
 $(BUILD)/obj/%.o: src/%.c $(BUILD)/spice.lex.h $(wildcard include/*.h grammar/*.h)
 	@mkdir -p $(BUILD)/obj
-	$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -c $< -o $@
+	@echo "  CC      $<"
+	@$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -c $< -o $@
 
 $(BUILD)/libheadroom.a: $(LIB_OBJ)
 	ar rcs $@ $^

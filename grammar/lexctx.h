@@ -24,6 +24,9 @@ struct lex_ctx {
 	uint32_t control_col;
 	int pending_eol;          /* an EOL token is owed before the next one */
 	int ended;                /* .end seen: the rest is ignored */
+	int start_token;          /* returned once before anything else */
+	int paren_depth;          /* of '(' in a card, to drop a stray ')' */
+	struct expr *expr_result; /* parse_expr_text's result */
 	struct arena *scratch;
 	struct arena_mark mark;   /* scratch is reset here at each card head */
 	struct diag_sink *diags;
@@ -44,5 +47,7 @@ struct lex_text {
 
 /* Puts a fresh scanner in its first mode (title line or card start). */
 void lex_start(void *scanner, int has_title);
+/* Puts a fresh scanner in expression mode, for parse_expr_text. */
+void lex_start_expr(void *scanner);
 
 #endif

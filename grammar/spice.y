@@ -192,11 +192,15 @@ static struct expr *call_expr(struct lex_ctx *ctx, struct lex_text name,
 %token ANDAND "&&"
 %token OROR "||"
 %token BADCHAR "invalid character"
+%token START_EXPR "expression start"
+%token <text> PROBE "probe"
 
 %type <list> fields args assigns idlist exprlist
 %type <field> field value arg exprfield assign
 %type <expr> expr primary
 
+%precedence ATOM
+%precedence '('
 %right '?' ':'
 %left OROR
 %left ANDAND
@@ -211,6 +215,7 @@ static struct expr *call_expr(struct lex_ctx *ctx, struct lex_text name,
 
 deck
 	: title cards
+	| START_EXPR expr EOL { ctx->expr_result = $2; if (!$2) ctx->oom = 1; }
 	;
 
 title
@@ -247,7 +252,9 @@ fields
 	;
 
 field
-	: ATOM { $$ = field_new(ctx, FIELD_ATOM, $1, &@1); }
+	: ATOM %prec ATOM { $$ = field_new(ctx, FIELD_ATOM, $1, &@1); }
+	| '(' args ')'
+	  { struct lex_text none = {"", 0, 0}; $$ = call_field(ctx, none, &@1, $2); }
 	| ATOM '=' value { $$ = assign_field(ctx, $1, &@1, $3); }
 	| ATOM '(' args ')' { $$ = call_field(ctx, $1, &@1, $3); }
 	| ATOM '(' args ')' '=' value
@@ -260,10 +267,11 @@ field
 		}
 	  }
 	| exprfield { $$ = $1; }
+	| exprfield '=' value { $$ = $1; /* table pairs of behavioural sources: kept as the expression */ }
 	;
 
 value
-	: ATOM { $$ = field_new(ctx, FIELD_ATOM, $1, &@1); }
+	: ATOM %prec ATOM { $$ = field_new(ctx, FIELD_ATOM, $1, &@1); }
 	| exprfield { $$ = $1; }
 	| ATOM '(' args ')' { $$ = call_field(ctx, $1, &@1, $3); }
 	| '(' args ')'
@@ -281,7 +289,9 @@ args
 	;
 
 arg
-	: ATOM { $$ = field_new(ctx, FIELD_ATOM, $1, &@1); }
+	: ATOM %prec ATOM { $$ = field_new(ctx, FIELD_ATOM, $1, &@1); }
+	| '(' args ')'
+	  { struct lex_text none = {"", 0, 0}; $$ = call_field(ctx, none, &@1, $2); }
 	| ATOM '=' value { $$ = assign_field(ctx, $1, &@1, $3); }
 	| ATOM '(' args ')' { $$ = call_field(ctx, $1, &@1, $3); }
 	| exprfield { $$ = $1; }
@@ -334,6 +344,7 @@ expr
 primary
 	: NUM { $$ = expr_num(ctx->scratch, $1, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
 	| IDENT { $$ = expr_var(ctx->scratch, $1.s, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| PROBE { $$ = expr_var(ctx->scratch, $1.s, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
 	| IDENT '(' exprlist ')' { $$ = call_expr(ctx, $1, &@1, $3); }
 	| '(' expr ')' { $$ = $2; }
 	| LBRACE expr RBRACE { $$ = $2; }

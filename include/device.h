@@ -22,13 +22,18 @@ struct dev_scope {
 	uint32_t (*node)(void *ud, const char *name, size_t n);
 	/* Model visible here by name, or NULL. */
 	const struct nl_model *(*model)(void *ud, const char *name, size_t n);
+	/* Parses an atom written without braces as an expression ("20e3/t");
+	 * NULL on a syntax error (reported) or out-of-memory (*oom set). */
+	struct expr *(*atom_expr)(void *ud, const struct deck_field *f, int *oom);
 	const char *prefix;     /* instance path with trailing '.', or "" */
 	int defer_undefined;    /* return DEV_DEFER instead of reporting an
 				   undefined parameter (first pass at top level) */
 	double mult;            /* instance m= product applied to every part */
 };
 
-enum dev_status { DEV_OK, DEV_ERROR, DEV_DEFER, DEV_OOM };
+/* DEV_STATE: a value depends on the circuit's state (v(), i(), time); it
+ * is not an error for parts that may be behavioural. */
+enum dev_status { DEV_OK, DEV_ERROR, DEV_DEFER, DEV_OOM, DEV_STATE };
 
 /* Builds the part for card (an element card whose letter is not X) and adds
  * it to c. Problems become diagnostics in d (DEV_ERROR); the card is then
@@ -38,7 +43,7 @@ enum dev_status dev_build(const struct dev_scope *s,
 			  struct diag_sink *d);
 
 /* Evaluates a value field: a number with suffix, or an expression. Reports
- * problems to d unless the status is DEV_DEFER. */
+ * problems to d unless the status is DEV_DEFER or DEV_STATE. */
 enum dev_status dev_value(const struct dev_scope *s,
 			  const struct deck_field *f, struct diag_sink *d,
 			  uint32_t file, double *out);

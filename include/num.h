@@ -8,8 +8,9 @@
 
 enum num_status {
 	NUM_OK,
+	NUM_RKM,           /* success, read as a letter code: "4k7" = 4.7k */
 	NUM_NOT_A_NUMBER,  /* does not start like a number */
-	NUM_DIGIT_AFTER_SUFFIX, /* "4k7": digits after the scale or unit letters */
+	NUM_DIGIT_AFTER_SUFFIX, /* "4.7k7": digits after letters, not a code */
 	NUM_BAD_EXPONENT,  /* "1e+" */
 	NUM_OUT_OF_RANGE,  /* overflows a double */
 	NUM_BAD_CHAR       /* a character that has no place in a number */
@@ -18,13 +19,19 @@ enum num_status {
 /* Parses s[0..n) as a SPICE number: optional sign, mantissa, optional
  * exponent, optional scale suffix (T G MEG K MIL M U N P F, any case; M is
  * milli), then optional unit letters which are ignored ("10uF", "5V").
- * On NUM_OK stores the value in *out. On failure *bad (if not NULL) gets the
- * offset of the first offending character. */
+ * Also reads the letter-and-digit code of IEC 60062 ("4k7" = 4.7k,
+ * "2R5" = 2.5, "1u2" = 1.2u), returning NUM_RKM, because plain SPICE would
+ * silently read "4k7" as 4k. On success stores the value in *out. On
+ * failure *bad (if not NULL) gets the offset of the first offending
+ * character. */
 enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad);
 
 /* True if s[0..n) starts the way a number does (digit, '.', or a sign
  * followed by one of those). */
 int num_looks_numeric(const char *s, size_t n);
+
+/* True for NUM_OK and NUM_RKM. */
+int num_ok(enum num_status st);
 
 /* A short human explanation of a status, lower-case. */
 const char *num_status_text(enum num_status st);

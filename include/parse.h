@@ -35,4 +35,13 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 			       struct arena *scratch, struct diag_sink *diags,
 			       parse_card_fn fn, void *ud);
 
+/* Parses text[0..n) (one line, no newline) as an expression, as it would
+ * be read inside {}: used for values written without braces, like a
+ * subcircuit default "beta=20e3/stime". Locations start at `at`. Syntax
+ * errors go to diags. The tree is allocated in ar and left there (ar is not
+ * reset). Returns NULL on a syntax error or out-of-memory (*oom set). */
+struct expr *parse_expr_text(const char *text, size_t n, struct diag_loc at,
+			     struct arena *ar, struct diag_sink *diags,
+			     int *oom);
+
 #endif

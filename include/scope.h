@@ -41,6 +41,17 @@ struct scope {
 	unsigned depth;
 };
 
+#define ELAB_MAX_COND 64
+
+/* One open .if block. */
+struct cond_frame {
+	int outer;      /* the enclosing block is being read */
+	int taking;     /* the current branch is being read */
+	int taken;      /* some branch was already taken */
+	int seen_else;
+	struct diag_loc loc;
+};
+
 struct elab {
 	struct elab_opts o;
 	struct hr_alloc hook;
@@ -67,6 +78,8 @@ struct elab {
 	const char *title;
 	size_t ncards;
 	struct diag_loc root;        /* top-level card being expanded */
+	struct cond_frame cond[ELAB_MAX_COND];
+	size_t ncond;
 	int oom, stop;
 };
 
@@ -93,6 +106,11 @@ void scope_func(struct elab *el, const struct deck_card *c);
 void scope_check_models(struct elab *el);
 /* Resolves the inductors of K cards and controlling sources of F and H. */
 void scope_link_controls(struct elab *el);
+
+/* Evaluates e with global parameters; reports a failure at `at` and
+ * returns 0. */
+int scope_eval_global(struct elab *el, const struct expr *e,
+		      struct diag_loc at, double *v);
 
 /* Appends an annotation record. */
 void scope_add_annot(struct elab *el, struct elab_annot *a);

@@ -49,25 +49,59 @@ static int is_numeric(const struct deck_field *f)
 	       (f->kind == FIELD_ATOM && num_looks_numeric(f->text, f->len));
 }
 
+/* Names that stand for the circuit's state rather than a constant. */
+static int is_state_name(const char *name)
+{
+	return strchr(name, '(') || num_ieq(name, strlen(name), "time") ||
+	       num_ieq(name, strlen(name), "temper") ||
+	       num_ieq(name, strlen(name), "hertz");
+}
+
+static enum dev_status eval_expr(const struct dev_scope *s,
+				 const struct expr *e, struct diag_sink *d,
+				 struct diag_loc l, double *out)
+{
+	struct expr_error err = {0};
+	enum expr_status st = s->eval(s->ud, e, out, &err);
+	if (st == EXPR_OK)
+		return DEV_OK;
+	if (st == EXPR_UNDEFINED && is_state_name(err.name))
+		return DEV_STATE;
+	if (st == EXPR_UNDEFINED && s->defer_undefined)
+		return DEV_DEFER;
+	char msg[200];
+	expr_error_text(&err, msg, sizeof msg);
+	if (err.line) {
+		l.line = err.line;
+		l.col = err.col;
+	}
+	diag_add(d, DIAG_ERROR, "expression", l, "%s", msg);
+	return DEV_ERROR;
+}
+
+/* An atom that is not a number: read it as an expression written without
+ * braces, as SPICE readers do for parameter values. */
+static enum dev_status atom_as_expr(const struct dev_scope *s,
+				    const struct deck_field *f,
+				    struct diag_sink *d, struct diag_loc l,
+				    double *out)
+{
+	int oom = 0;
+	const struct expr *e = s->atom_expr ? s->atom_expr(s->ud, f, &oom) : NULL;
+	if (oom)
+		return DEV_OOM;
+	if (!e)
+		return DEV_ERROR;
+	return eval_expr(s, e, d, l, out);
+}
+
 enum dev_status dev_value(const struct dev_scope *s,
 			  const struct deck_field *f, struct diag_sink *d,
 			  uint32_t file, double *out)
 {
 	struct diag_loc l = {file, f->line, f->col};
-	if (f->kind == FIELD_EXPR) {
-		struct expr_error e = {0};
-		enum expr_status st = s->eval(s->ud, f->expr, out, &e);
-		if (st == EXPR_OK)
-			return DEV_OK;
-		if (st == EXPR_UNDEFINED && s->defer_undefined)
-			return DEV_DEFER;
-		char msg[200];
-		expr_error_text(&e, msg, sizeof msg);
-		l.line = e.line ? e.line : l.line;
-		l.col = e.line ? e.col : l.col;
-		diag_add(d, DIAG_ERROR, "expression", l, "%s", msg);
-		return DEV_ERROR;
-	}
+	if (f->kind == FIELD_EXPR)
+		return eval_expr(s, f->expr, d, l, out);
 	if (f->kind != FIELD_ATOM) {
 		diag_add(d, DIAG_ERROR, "value", l, "expected a value here");
 		return DEV_ERROR;
@@ -76,11 +110,14 @@ enum dev_status dev_value(const struct dev_scope *s,
 	enum num_status st = num_parse(f->text, f->len, out, &bad);
 	if (st == NUM_OK)
 		return DEV_OK;
-	if (st == NUM_NOT_A_NUMBER) {
-		diag_add(d, DIAG_ERROR, "value", l,
-			 "expected a number or {expression}, found '%s'", f->text);
-		return DEV_ERROR;
+	if (st == NUM_RKM) {
+		diag_add(d, DIAG_WARNING, "letter-code", l,
+			 "'%s' is read as the letter code for %g; plain SPICE readers take only the digits before the letter",
+			 f->text, *out);
+		return DEV_OK;
 	}
+	if (st == NUM_NOT_A_NUMBER || st == NUM_BAD_CHAR)
+		return atom_as_expr(s, f, d, l, out);
 	l.col += (uint32_t)bad;
 	diag_add(d, DIAG_ERROR, "value", l, "bad number '%s': %s", f->text,
 		 num_status_text(st));
@@ -91,6 +128,19 @@ static enum dev_status value_of(struct build *b, const struct deck_field *f,
 				double *out)
 {
 	return dev_value(b->s, f, b->d, b->card->loc.file, out);
+}
+
+/* As value_of, where a value may not depend on the circuit's state. */
+static enum dev_status const_value(struct build *b, const struct deck_field *f,
+				   double *out)
+{
+	enum dev_status st = value_of(b, f, out);
+	if (st != DEV_STATE)
+		return st;
+	struct diag_loc l = {b->card->loc.file, f->line, f->col};
+	diag_add(b->d, DIAG_ERROR, "value", l,
+		 "this value depends on circuit voltages, currents or time; a constant is needed here");
+	return DEV_ERROR;
 }
 
 static enum dev_status take_node(struct build *b, const struct deck_field *f)
@@ -151,12 +201,12 @@ static int common_assign(struct build *b, const struct deck_field *f,
 {
 	double v;
 	if (num_ieq(f->text, f->len, "m")) {
-		if ((*st = value_of(b, f->value, &v)) == DEV_OK)
+		if ((*st = const_value(b, f->value, &v)) == DEV_OK)
 			set_mult(b, v);
 		return 1;
 	}
 	if (num_ieq(f->text, f->len, "ic")) {
-		if ((*st = value_of(b, f->value, &v)) == DEV_OK) {
+		if ((*st = const_value(b, f->value, &v)) == DEV_OK) {
 			b->ext.ic = v;
 			b->has_ext = 1;
 		}
@@ -178,6 +228,21 @@ static int is_value_key(const struct deck_field *f, char letter)
 	return 0;
 }
 
+static enum dev_status behavioural(struct build *b)
+{
+	b->ext.behavioural = 1;
+	b->has_ext = 1;
+	b->part.value = NAN;
+	return DEV_OK;
+}
+
+/* A value that depends on the circuit's state makes the part behavioural. */
+static enum dev_status rcl_value(struct build *b, const struct deck_field *f)
+{
+	enum dev_status st = value_of(b, f, &b->part.value);
+	return st == DEV_STATE ? behavioural(b) : st;
+}
+
 /* R, C, L: two nodes, then a value (positional or r=/c=/l=) and/or a model. */
 static enum dev_status build_rcl(struct build *b, char letter)
 {
@@ -186,12 +251,13 @@ static enum dev_status build_rcl(struct build *b, char letter)
 	for (uint32_t i = 2; st == DEV_OK && i < b->card->nfields; i++) {
 		const struct deck_field *f = &b->card->fields[i];
 		if (is_positional(f) && !have && is_numeric(f)) {
-			st = value_of(b, f, &b->part.value);
+			st = rcl_value(b, f);
 			have = 1;
 		} else if (f->kind == FIELD_ATOM && !b->part.model && !have) {
 			b->part.model = need_model(b, f, &st);
 		} else if (f->kind == FIELD_ASSIGN && is_value_key(f, letter)) {
-			st = value_of(b, f->value, &b->part.value);
+			st = f->value->kind == FIELD_CALL ? behavioural(b)
+							  : rcl_value(b, f->value);
 			have = 1;
 		} else if (f->kind == FIELD_ASSIGN) {
 			common_assign(b, f, &st); /* other keys: temperature etc. */
@@ -211,19 +277,27 @@ static enum dev_status build_diode(struct build *b)
 		return st;
 	if (b->card->nfields < 3)
 		return err_at(b, &b->card->fields[1], "diode needs a model name after its two nodes%s", "");
-	b->part.model = need_model(b, &b->card->fields[2], &st);
+	uint32_t m = 2;
+	for (uint32_t i = 3; i < b->card->nfields; i++)
+		if (deck_atom_is(&b->card->fields[i], "thermal")) {
+			/* a self-heating diode has a third, thermal node */
+			if ((st = take_node(b, &b->card->fields[2])) != DEV_OK)
+				return st;
+			m = 3;
+		}
+	b->part.model = need_model(b, &b->card->fields[m], &st);
 	b->part.value = 1.0; /* area */
 	int have_area = 0;
-	for (uint32_t i = 3; st == DEV_OK && i < b->card->nfields; i++) {
+	for (uint32_t i = m + 1; st == DEV_OK && i < b->card->nfields; i++) {
 		const struct deck_field *f = &b->card->fields[i];
-		if (deck_atom_is(f, "off")) {
+		if (deck_atom_is(f, "off") || deck_atom_is(f, "thermal")) {
 			b->ext.off = 1;
 			b->has_ext = 1;
 		} else if (is_positional(f) && is_numeric(f) && !have_area) {
-			st = value_of(b, f, &b->part.value);
+			st = const_value(b, f, &b->part.value);
 			have_area = 1;
 		} else if (f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "area")) {
-			st = value_of(b, f->value, &b->part.value);
+			st = const_value(b, f->value, &b->part.value);
 		} else if (f->kind == FIELD_ASSIGN) {
 			common_assign(b, f, &st);
 		} else {
@@ -248,7 +322,8 @@ static enum dev_status build_ctrl_v(struct build *b)
 		if ((st = take_node(b, &c->fields[2])) != DEV_OK ||
 		    (st = take_node(b, &c->fields[3])) != DEV_OK)
 			return st;
-		return value_of(b, &c->fields[4], &b->part.value);
+		st = value_of(b, &c->fields[4], &b->part.value);
+		return st == DEV_STATE ? behavioural(b) : st;
 	}
 	if (c->nfields < 3)
 		return err_at(b, NULL, "controlled source needs control nodes and a gain, or value=%s", "");
@@ -270,7 +345,8 @@ static enum dev_status build_ctrl_i(struct build *b)
 		b->ext.ctrl[0] = arena_strdup(nl_arena(b->c), c->fields[2].text);
 		if (!b->ext.ctrl[0])
 			return DEV_OOM;
-		return value_of(b, &c->fields[3], &b->part.value);
+		st = value_of(b, &c->fields[3], &b->part.value);
+		return st == DEV_STATE ? behavioural(b) : st;
 	}
 	if (c->nfields < 3)
 		return err_at(b, NULL, "current-controlled source needs a controlling source and a gain%s", "");
@@ -289,9 +365,12 @@ static enum dev_status build_coupling(struct build *b)
 	b->ext.ctrl[1] = arena_strdup(nl_arena(b->c), c->fields[1].text);
 	if (!b->ext.ctrl[0] || !b->ext.ctrl[1])
 		return DEV_OOM;
-	enum dev_status st = value_of(b, &c->fields[2], &b->part.value);
-	if (st == DEV_OK && (b->part.value <= 0 || b->part.value > 1))
-		return err_at(b, &c->fields[2], "coupling coefficient must lie in (0, 1]%s", "");
+	enum dev_status st = const_value(b, &c->fields[2], &b->part.value);
+	if (st == DEV_OK && fabs(b->part.value) > 1)
+		diag_add(b->d, DIAG_WARNING, "element",
+			 (struct diag_loc){c->loc.file, c->fields[2].line, c->fields[2].col},
+			 "coupling coefficient %g is above 1 in magnitude: not a physical transformer",
+			 b->part.value);
 	return st;
 }
 
@@ -299,13 +378,17 @@ static enum dev_status build_coupling(struct build *b)
 struct opaque_rule {
 	char letter;
 	uint8_t min_nodes, max_nodes;
-	uint8_t model; /* 1: a model follows the nodes */
+	uint8_t usual;  /* node count assumed when no model name is found */
+	uint8_t model;  /* 1: a model follows the nodes */
 };
 
+/* Node counts from the ngspice manual's device chapters (a power MOSFET
+ * of the vdmos kind has three). */
 static const struct opaque_rule opaque_rules[] = {
-	{'q', 3, 5, 1}, {'m', 4, 7, 1}, {'j', 3, 3, 1}, {'z', 3, 3, 1},
-	{'s', 4, 4, 1}, {'o', 4, 4, 1}, {'u', 3, 3, 1}, {'n', 2, 20, 1},
-	{'p', 2, 40, 1}, {'t', 4, 4, 0}, {'b', 2, 2, 0}, {'w', 2, 2, 0},
+	{'q', 3, 5, 3, 1}, {'m', 3, 7, 4, 1}, {'j', 3, 3, 3, 1},
+	{'z', 3, 3, 3, 1}, {'s', 4, 4, 4, 1}, {'o', 4, 4, 4, 1},
+	{'u', 3, 3, 3, 1}, {'n', 2, 20, 2, 1}, {'p', 2, 40, 2, 1},
+	{'t', 4, 4, 4, 0}, {'b', 2, 2, 2, 0}, {'w', 2, 2, 2, 0},
 };
 
 static const struct opaque_rule *opaque_rule(char letter)
@@ -326,7 +409,7 @@ static enum dev_status build_modelled(struct build *b,
 				      const struct opaque_rule *r)
 {
 	const struct deck_card *c = b->card;
-	uint32_t k = r->min_nodes;
+	uint32_t k = r->usual;
 	for (uint32_t i = r->min_nodes; i <= r->max_nodes && i < c->nfields; i++) {
 		const struct deck_field *f = &c->fields[i];
 		if (f->kind == FIELD_ATOM && b->s->model(b->s->ud, f->text, f->len)) {

@@ -6,6 +6,7 @@
 #include "elab.h"
 
 #include <errno.h>
+#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
@@ -180,9 +181,15 @@ static char *include_path(struct elab *el, const char *given)
 	return p;
 }
 
-static int in_chain(const struct elab *el, const char *canon)
+/* A file may include another section of itself; the same file and
+ * section twice in the chain is a cycle. */
+static int in_chain(const struct elab *el, const char *canon,
+		    const char *section)
 {
 	for (const struct file_read *f = el->fr; f; f = f->outer) {
+		if ((f->want == NULL) != (section == NULL) ||
+		    (section && strcmp(f->want, section) != 0))
+			continue;
 		char *c = realpath(f->path, NULL);
 		int same = c && strcmp(c, canon) == 0;
 		free(c);
@@ -225,7 +232,7 @@ static void include_file(struct elab *el, const struct deck_card *c,
 		return;
 	}
 	char *canon = el->o.open ? NULL : realpath(path, NULL);
-	int cycle = canon && in_chain(el, canon);
+	int cycle = canon && in_chain(el, canon, section);
 	free(canon);
 	if (cycle) {
 		diag_add(el->d, DIAG_ERROR, "include", c->loc,
@@ -285,13 +292,90 @@ static int on_lib(struct elab *el, const struct deck_card *c)
 			 ".lib section opened inside another one");
 		return 1;
 	}
-	int wanted = fr->want && num_ieq(c->fields[0].text, c->fields[0].len,
-					 fr->want);
+	int wanted = fr->want && num_iequal(c->fields[0].text, c->fields[0].len,
+					    fr->want, strlen(fr->want));
 	/* Outside a requested read, a section is a definition kept for
 	 * later .lib references, not content: it is skipped. */
 	fr->section = wanted ? 1 : 2;
 	fr->found |= wanted;
 	return 1;
+}
+
+/* ---- .if / .elseif / .else / .endif ---- */
+
+/* Evaluates the condition of a .if or .elseif card: its words joined are
+ * one expression over global parameters. */
+static int condition(struct elab *el, const struct deck_card *c)
+{
+	char buf[1024];
+	size_t k = 0;
+	for (uint32_t i = 0; i < c->nfields && k < sizeof buf - 8; i++) {
+		if (i)
+			buf[k++] = ' ';
+		for (const char *p = c->fields[i].text; *p && k < sizeof buf - 8; p++) {
+			/* a lone '=' compares, as in HSPICE conditions */
+			int lone = *p == '=' && p[1] != '=' &&
+				   (p == c->fields[i].text || !strchr("=<>!", p[-1]));
+			buf[k++] = *p;
+			if (lone)
+				buf[k++] = '=';
+		}
+	}
+	buf[k] = '\0';
+	if (c->nfields == 0) {
+		diag_add(el->d, DIAG_ERROR, "condition", c->loc, "%s needs a condition", c->head);
+		return 0;
+	}
+	struct diag_loc at = {c->loc.file, c->fields[0].line, c->fields[0].col};
+	int bad = 0;
+	const struct expr *e = parse_expr_text(buf, k, at, el->scratch, el->d, &bad);
+	double v = 0;
+	if (bad)
+		oom(el);
+	if (e && !scope_eval_global(el, e, at, &v))
+		v = 0;
+	return v != 0;
+}
+
+static int taking(const struct elab *el)
+{
+	return el->ncond == 0 || el->cond[el->ncond - 1].taking;
+}
+
+/* Conditional blocks are decided as they are read, with global parameters. */
+static void on_cond(struct elab *el, const struct deck_card *c)
+{
+	const char *w = c->head + 1;
+	size_t n = c->headlen - 1;
+	struct cond_frame *top = el->ncond ? &el->cond[el->ncond - 1] : NULL;
+	if (num_ieq(w, n, "if")) {
+		if (el->ncond == ELAB_MAX_COND) {
+			diag_add(el->d, DIAG_ERROR, "condition", c->loc,
+				 ".if blocks nest deeper than %d", ELAB_MAX_COND);
+			return;
+		}
+		int outer = taking(el);
+		int v = outer && condition(el, c);
+		el->cond[el->ncond++] = (struct cond_frame){outer, v, v, 0, c->loc};
+		return;
+	}
+	if (!top) {
+		diag_add(el->d, DIAG_ERROR, "condition", c->loc, "%s with no open .if", c->head);
+		return;
+	}
+	if (num_ieq(w, n, "endif")) {
+		el->ncond--;
+		return;
+	}
+	if (top->seen_else) {
+		diag_add(el->d, DIAG_ERROR, "condition", c->loc, "%s after .else", c->head);
+		return;
+	}
+	int is_else = num_ieq(w, n, "else");
+	top->seen_else = is_else;
+	top->taking = top->outer && !top->taken &&
+		      (is_else || condition(el, c));
+	top->taken |= top->taking;
 }
 
 /* ---- cards ---- */
@@ -376,10 +460,6 @@ static void top_card(struct elab *el, const struct deck_card *c)
 		if (!el->title && !(el->title = arena_strdup(el->ar, c->head)))
 			oom(el);
 		break;
-	case CARD_COND:
-		diag_add(el->d, DIAG_ERROR, "unsupported", c->loc,
-			 "conditional blocks (.if/.else/.endif) are not supported");
-		break;
 	default:
 		break;
 	}
@@ -393,7 +473,11 @@ static int on_card(void *ud, const struct deck_card *c)
 		return el->oom || el->stop;
 	if (el->fr->section == 2 || (el->fr->want && el->fr->section != 1))
 		return 0;
-	if (c->kind == CARD_SUBCKT)
+	if (c->kind == CARD_COND)
+		on_cond(el, c);
+	else if (!taking(el))
+		;
+	else if (c->kind == CARD_SUBCKT)
 		begin_subckt(el, c);
 	else if (c->kind == CARD_ENDS)
 		end_subckt(el, c);
@@ -410,6 +494,10 @@ static int on_card(void *ud, const struct deck_card *c)
 
 static void finish_top(struct elab *el)
 {
+	for (size_t i = el->ncond; i > 0; i--)
+		diag_add(el->d, DIAG_ERROR, "condition", el->cond[i - 1].loc,
+			 ".if has no .endif");
+	el->ncond = 0;
 	for (struct subdef *d = el->open; d; d = d->parent)
 		diag_add(el->d, DIAG_ERROR, "subckt", d->loc,
 			 ".subckt '%s' has no .ends", d->name);

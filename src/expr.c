@@ -129,6 +129,8 @@ static double f_min(double a, double b) { return a < b ? a : b; }
 static double f_max(double a, double b) { return a > b ? a : b; }
 static double f_sgn(double a) { return (a > 0) - (a < 0); }
 static double f_int(double a) { return trunc(a); }
+static double f_nint(double a) { return nearbyint(a); }
+static double f_sqr(double a) { return a * a; }
 
 static const struct builtin builtins[] = {
 	{"sqrt", 1, sqrt, NULL},   {"exp", 1, exp, NULL},
@@ -140,8 +142,13 @@ static const struct builtin builtins[] = {
 	{"sinh", 1, sinh, NULL},   {"cosh", 1, cosh, NULL},
 	{"tanh", 1, tanh, NULL},   {"floor", 1, floor, NULL},
 	{"ceil", 1, ceil, NULL},   {"int", 1, f_int, NULL},
-	{"sgn", 1, f_sgn, NULL},   {"min", 2, NULL, f_min},
-	{"max", 2, NULL, f_max},   {"pow", 2, NULL, pow},
+	{"sgn", 1, f_sgn, NULL},   {"nint", 1, f_nint, NULL},
+	{"sqr", 1, f_sqr, NULL},
+	{"round", 1, f_nint, NULL}, {"arctan", 1, atan, NULL},
+	{"asinh", 1, asinh, NULL}, {"acosh", 1, acosh, NULL},
+	{"atanh", 1, atanh, NULL}, {"sign", 1, f_sgn, NULL},
+	{"min", 0, NULL, f_min},   {"max", 0, NULL, f_max},
+	{"pow", 2, NULL, pow},
 	{"pwr", 2, NULL, pow},     {"atan2", 2, NULL, atan2},
 };
 
@@ -238,7 +245,23 @@ static enum expr_status ev_call(struct eval *st, const struct expr *e,
 				     : NULL;
 	if (fn)
 		return ev_user(st, e, fn, v, out);
+	if (e->nargs == 3 && (strcasecmp(e->name, "if") == 0 ||
+			      strcasecmp(e->name, "ternary_fcn") == 0)) {
+		*out = v[0] != 0 ? v[1] : v[2];
+		return EXPR_OK;
+	}
+	if (e->nargs == 3 && strcasecmp(e->name, "limit") == 0) {
+		*out = v[0] < v[1] ? v[1] : v[0] > v[2] ? v[2] : v[0];
+		return EXPR_OK;
+	}
 	const struct builtin *b = find_builtin(e->name);
+	if (b && b->nargs == 0 && e->nargs >= 1) {
+		/* min and max take any number of arguments */
+		*out = v[0];
+		for (uint32_t i = 1; i < e->nargs; i++)
+			*out = b->f2(*out, v[i]);
+		return EXPR_OK;
+	}
 	if (!b || b->nargs != e->nargs)
 		return fail(st, EXPR_BAD_CALL, e);
 	*out = b->nargs == 1 ? b->f1(v[0]) : b->f2(v[0], v[1]);

@@ -103,6 +103,44 @@ static size_t scan_mantissa(const char *s, size_t n, enum num_status *st)
 	return i;
 }
 
+/* Letter code: whole digits, letters (scale, or R for units), digits
+ * standing for the fraction, then optional unit letters. */
+static enum num_status parse_rkm(const char *s, size_t n, size_t i,
+				 size_t letters, double *out, size_t *bad)
+{
+	size_t j = letters;
+	for (size_t k = 0; k < i; k++)
+		if (!is_digit(s[k]) && !(k == 0 && (s[k] == '-' || s[k] == '+'))) {
+			if (bad)
+				*bad = letters;
+			return NUM_DIGIT_AFTER_SUFFIX;
+		}
+	while (j < n && is_digit(s[j]))
+		j++;
+	size_t tail = j;
+	while (tail < n && is_alpha(s[tail]))
+		tail++;
+	if (tail < n || j - letters + i + 2 > 120) {
+		if (bad)
+			*bad = tail < n ? tail : letters;
+		return NUM_BAD_CHAR;
+	}
+	char tmp[128];
+	memcpy(tmp, s, i);
+	tmp[i] = '.';
+	memcpy(tmp + i + 1, s + letters, j - letters);
+	tmp[i + 1 + (j - letters)] = '\0';
+	char unit = lower(s[i]);
+	double scale = unit == 'r' ? 1.0 : scale_of(s + i, letters - i);
+	*out = strtod(tmp, NULL) * scale;
+	return NUM_RKM;
+}
+
+int num_ok(enum num_status st)
+{
+	return st == NUM_OK || st == NUM_RKM;
+}
+
 enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad)
 {
 	enum num_status st = NUM_OK;
@@ -128,11 +166,12 @@ enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad)
 	size_t letters = i;
 	while (letters < n && (is_alpha(s[letters]) || s[letters] == '_'))
 		letters++;
+	if (letters < n && is_digit(s[letters]) && letters > i)
+		return parse_rkm(s, n, i, letters, out, bad);
 	if (letters < n) {
 		if (bad)
 			*bad = letters;
-		return is_digit(s[letters]) && letters > i ? NUM_DIGIT_AFTER_SUFFIX
-							    : NUM_BAD_CHAR;
+		return NUM_BAD_CHAR;
 	}
 	errno = 0;
 	double v = strtod(tmp, NULL) * scale_of(s + i, letters - i);
@@ -155,8 +194,10 @@ const char *num_status_text(enum num_status st)
 		return "a number";
 	case NUM_NOT_A_NUMBER:
 		return "not a number";
+	case NUM_RKM:
+		return "a letter code";
 	case NUM_DIGIT_AFTER_SUFFIX:
-		return "digits after the scale letter are ambiguous (write 4.7k, not 4k7)";
+		return "digits after the letters of a number with a decimal point or exponent";
 	case NUM_BAD_EXPONENT:
 		return "the exponent has no digits";
 	case NUM_OUT_OF_RANGE:

@@ -38,3 +38,37 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 		return PARSE_OOM;
 	return ctx.stop ? PARSE_STOPPED : PARSE_OK;
 }
+
+struct expr *parse_expr_text(const char *text, size_t n, struct diag_loc at,
+			     struct arena *ar, struct diag_sink *diags,
+			     int *oom)
+{
+	struct lex_ctx ctx = {0};
+	ctx.file = at.file;
+	ctx.line = at.line;
+	ctx.col = at.col;
+	ctx.max_line_len = PARSE_DEFAULT_MAX_LINE;
+	ctx.scratch = ar;
+	ctx.mark = arena_mark(ar);
+	ctx.diags = diags;
+	ctx.hook = arena_hook(ar);
+	*oom = 0;
+	yyscan_t scanner;
+	if (yylex_init_extra(&ctx, &scanner) != 0) {
+		*oom = 1;
+		return NULL;
+	}
+	YY_BUFFER_STATE buf = yy_scan_bytes(text, (int)n, scanner);
+	if (!buf) {
+		yylex_destroy(scanner);
+		*oom = 1;
+		return NULL;
+	}
+	lex_start_expr(scanner);
+	int rc = yyparse(scanner, &ctx);
+	yy_delete_buffer(buf, scanner);
+	yylex_destroy(scanner);
+	if (ctx.oom || rc == 2)
+		*oom = 1;
+	return rc == 0 && !ctx.card_bad ? ctx.expr_result : NULL;
+}

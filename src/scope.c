@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "num.h"
+#include "parse.h"
 
 /* What device callbacks need: the scope, and whether this is the first
  * (streaming) pass at top level. */
@@ -161,6 +162,23 @@ static const struct nl_model *cb_model(void *ud, const char *name, size_t n)
 	if (!m && cb->first_pass)
 		return placeholder(cb, name, n);
 	return NULL;
+}
+
+int scope_eval_global(struct elab *el, const struct expr *e,
+		      struct diag_loc at, double *v)
+{
+	struct cb cb = {el, &el->global, 0, at};
+	struct expr_error err = {0};
+	if (cb_eval(&cb, e, v, &err) == EXPR_OK)
+		return 1;
+	char msg[200];
+	expr_error_text(&err, msg, sizeof msg);
+	if (err.line) {
+		at.line = err.line;
+		at.col = err.col;
+	}
+	diag_add(el->d, DIAG_ERROR, "expression", at, "%s", msg);
+	return 0;
 }
 
 /* ---- definitions ---- */
@@ -348,11 +366,26 @@ void scope_func(struct elab *el, const struct deck_card *c)
 
 /* ---- expansion ---- */
 
+static struct expr *cb_atom_expr(void *ud, const struct deck_field *f,
+				 int *oom)
+{
+	const struct cb *cb = ud;
+	struct diag_loc at = {cb->at.file, f->line, f->col};
+	return parse_expr_text(f->text, f->len, at, cb->el->scratch, cb->el->d,
+			       oom);
+}
+
 static struct dev_scope dev_scope_of(struct cb *cb)
 {
-	struct dev_scope ds = {cb,	      cb_eval,	      cb_node,
-			       cb_model,      cb->sc->prefix, cb->first_pass,
-			       cb->sc->mult};
+	struct dev_scope ds;
+	ds.ud = cb;
+	ds.eval = cb_eval;
+	ds.node = cb_node;
+	ds.model = cb_model;
+	ds.atom_expr = cb_atom_expr;
+	ds.prefix = cb->sc->prefix;
+	ds.defer_undefined = cb->first_pass;
+	ds.mult = cb->sc->mult;
 	return ds;
 }
 

@@ -41,18 +41,59 @@ static int numeric(const struct deck_field *f)
 	       (f->kind == FIELD_ATOM && num_looks_numeric(f->text, f->len));
 }
 
-static enum dev_status val(struct wave_rd *r, const struct deck_field *f,
-			   double *out)
-{
-	return dev_value(r->s, f, r->d, r->card->loc.file, out);
-}
-
 static enum dev_status err(struct wave_rd *r, const struct deck_field *f,
 			   const char *msg)
 {
 	struct diag_loc l = {r->card->loc.file, f->line, f->col};
 	diag_add(r->d, DIAG_ERROR, "source", l, "%s", msg);
 	return DEV_ERROR;
+}
+
+static enum dev_status val(struct wave_rd *r, const struct deck_field *f,
+			   double *out)
+{
+	enum dev_status st = dev_value(r->s, f, r->d, r->card->loc.file, out);
+	if (st == DEV_STATE)
+		return err(r, f, "a source value may not depend on circuit voltages, currents or time");
+	return st;
+}
+
+/* Words that start a new part of a source description. */
+static int is_keyword(const struct deck_field *f)
+{
+	static const char *const kw[] = {"dc", "ac", "distof1", "distof2",
+					 "portnum", "z0", "pwr", "freq", NULL};
+	if (f->kind != FIELD_ATOM)
+		return 0;
+	for (int i = 0; kw[i]; i++)
+		if (num_ieq(f->text, f->len, kw[i]))
+			return 1;
+	return wave_kind(f->text, f->len) != NL_WAVE_NONE;
+}
+
+static uint32_t count_args(const struct deck_field *f, uint32_t n)
+{
+	uint32_t k = 0;
+	for (uint32_t i = 0; i < n; i++)
+		k += f[i].kind == FIELD_CALL ? count_args(f[i].args, f[i].nargs)
+					     : f[i].kind != FIELD_ASSIGN;
+	return k;
+}
+
+/* Values of f[0..n); parenthesised pairs "(t v)" are flattened. */
+static enum dev_status take_args(struct wave_rd *r, const struct deck_field *f,
+				 uint32_t n)
+{
+	for (uint32_t k = 0; k < n; k++) {
+		enum dev_status st = DEV_OK;
+		if (f[k].kind == FIELD_CALL && f[k].len == 0)
+			st = take_args(r, f[k].args, f[k].nargs);
+		else if (f[k].kind != FIELD_ASSIGN) /* r=, td=: the caller's */
+			st = val(r, &f[k], &r->src->args[r->src->nargs++]);
+		if (st != DEV_OK)
+			return st;
+	}
+	return DEV_OK;
 }
 
 /* Stores the arguments of a waveform given as fields f[0..n). */
@@ -62,21 +103,17 @@ static enum dev_status set_wave(struct wave_rd *r, enum nl_wave w,
 {
 	if (r->src->wave != NL_WAVE_NONE)
 		return err(r, at, "a source takes one transient waveform, this is a second one");
-	if (n > WAVE_MAX_ARGS)
+	if (count_args(f, n) > WAVE_MAX_ARGS)
 		return err(r, at, "waveform has more than 200000 values");
 	r->src->wave = w;
 	r->src->nargs = 0;
-	r->src->args = arena_alloc(r->ar, (n ? n : 1) * sizeof *r->src->args);
+	uint32_t total = count_args(f, n);
+	r->src->args = arena_alloc(r->ar, (total ? total : 1) * sizeof *r->src->args);
 	if (!r->src->args)
 		return DEV_OOM;
-	for (uint32_t k = 0; k < n; k++) {
-		if (f[k].kind == FIELD_ASSIGN)
-			continue; /* handled by the caller (r=, td=) */
-		enum dev_status st = val(r, &f[k], &r->src->args[r->src->nargs]);
-		if (st != DEV_OK)
-			return st;
-		r->src->nargs++;
-	}
+	enum dev_status st = take_args(r, f, n);
+	if (st != DEV_OK)
+		return st;
 	if (w == NL_WAVE_PWL && r->src->nargs % 2 != 0)
 		return err(r, at, "pwl needs time-value pairs: an odd number of values was given");
 	return DEV_OK;
@@ -89,6 +126,29 @@ static enum dev_status pwl_option(struct wave_rd *r, const struct deck_field *f)
 	if (num_ieq(f->text, f->len, "td"))
 		return val(r, f->value, &r->src->pwl_delay);
 	return DEV_ERROR;
+}
+
+/* Waveforms read for nothing but a warning. */
+static int is_other_wave(const struct deck_field *f)
+{
+	static const char *const w[] = {"am", "trnoise", "trrandom", "pat",
+					"noise", NULL};
+	for (int i = 0; w[i]; i++)
+		if (deck_atom_is(f, w[i]))
+			return 1;
+	return 0;
+}
+
+static enum dev_status skip_other_wave(struct wave_rd *r,
+				       const struct deck_field *f)
+{
+	struct diag_loc l = {r->card->loc.file, f->line, f->col};
+	diag_add(r->d, DIAG_WARNING, "source", l,
+		 "waveform '%s' is not understood: only its DC value is used", f->text);
+	r->i++;
+	while (r->i < r->card->nfields && numeric(&r->card->fields[r->i]))
+		r->i++;
+	return DEV_OK;
 }
 
 static enum dev_status on_call(struct wave_rd *r, const struct deck_field *f)
@@ -159,21 +219,32 @@ static enum dev_status step(struct wave_rd *r)
 	enum nl_wave w;
 	double two[2] = {0, 0};
 	if (deck_atom_is(f, "dc")) {
+		/* "dc" takes the value after it; alone it means 0 */
 		r->src->has_dc = 1;
-		return take_numbers(r, &r->src->dc, 1, 1);
+		r->i++;
+		const struct deck_field *v = r->i < r->card->nfields ? &r->card->fields[r->i] : NULL;
+		if (!v || is_keyword(v) || (v->kind != FIELD_ATOM && v->kind != FIELD_EXPR))
+			return DEV_OK;
+		r->i++;
+		return val(r, v, &r->src->dc);
 	}
+	if (deck_atom_is(f, "portnum") || deck_atom_is(f, "z0") ||
+	    deck_atom_is(f, "pwr") || deck_atom_is(f, "freq"))
+		return take_numbers(r, two, 1, 1); /* RF port data, not a waveform */
 	if (deck_atom_is(f, "ac")) {
+		uint32_t before = r->i;
+		two[0] = 1.0; /* "ac" alone means magnitude 1 */
 		enum dev_status st = take_numbers(r, two, 2, 0);
-		r->src->ac_mag = r->i > 0 ? two[0] : 0;
-		r->src->ac_phase = two[1];
-		if (st == DEV_OK && two[0] == 0 && r->src->ac_mag == 0)
-			r->src->ac_mag = 1.0; /* "ac" alone means magnitude 1 */
+		r->src->ac_mag = two[0];
+		r->src->ac_phase = r->i - before > 2 ? two[1] : 0.0;
 		return st;
 	}
 	if (deck_atom_is(f, "distof1") || deck_atom_is(f, "distof2"))
 		return take_numbers(r, two, 2, 0);
 	if (f->kind == FIELD_ATOM && (w = wave_kind(f->text, f->len)) != NL_WAVE_NONE)
 		return on_bare_wave(r, w);
+	if (is_other_wave(f))
+		return skip_other_wave(r, f);
 	r->i++;
 	if (f->kind == FIELD_CALL)
 		return on_call(r, f);
