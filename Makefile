@@ -38,7 +38,7 @@ $(BUILD)/spice.tab.c $(BUILD)/spice.tab.h: grammar/spice.y | $(DEPS_STAMP)
 $(BUILD)/spice.lex.c $(BUILD)/spice.lex.h: grammar/spice.l $(BUILD)/spice.tab.h
 	flex --header-file=$(BUILD)/spice.lex.h -o $(BUILD)/spice.lex.c $<
 
-$(BUILD)/obj/spice.%.o: $(BUILD)/spice.%.c $(BUILD)/spice.tab.h
+$(BUILD)/obj/spice.%.o: $(BUILD)/spice.%.c $(BUILD)/spice.tab.h $(wildcard include/*.h grammar/*.h)
 	@mkdir -p $(BUILD)/obj
 	@echo "  CC      $<"
 	@$(CC) $(CPPFLAGS) $(CFLAGS) $(GENWARN) -c $< -o $@

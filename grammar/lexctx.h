@@ -4,6 +4,7 @@
 #ifndef HEADROOM_LEXCTX_H
 #define HEADROOM_LEXCTX_H
 
+#include <setjmp.h>
 #include <stdint.h>
 
 #include "arena.h"
@@ -23,6 +24,7 @@ struct lex_ctx {
 	uint32_t control_line;    /* where an open .control block began */
 	uint32_t control_col;
 	int pending_eol;          /* an EOL token is owed before the next one */
+	uint32_t eol_line, eol_col; /* where the card's last line ended */
 	int ended;                /* .end seen: the rest is ignored */
 	int start_token;          /* returned once before anything else */
 	int paren_depth;          /* of '(' in a card, to drop a stray ')' */
@@ -31,12 +33,23 @@ struct lex_ctx {
 	struct arena_mark mark;   /* scratch is reset here at each card head */
 	struct diag_sink *diags;
 	const struct hr_alloc *hook; /* flex's buffers come from here */
+	struct lex_block *blocks;    /* flex's live allocations, freed after a fatal error */
+	jmp_buf fatal;               /* where flex's fatal errors return to */
 	/* parser side */
 	parse_card_fn fn;
 	void *ud;
 	int stop;
 	int oom;
 };
+
+/* Header of each allocation flex makes, so a fatal error can free all. */
+struct lex_block {
+	struct lex_block *prev, *next;
+	size_t pad; /* keeps the payload 16-byte aligned on 64-bit targets */
+};
+
+/* Frees every block flex still holds (after a fatal error). */
+void lex_free_all(struct lex_ctx *ctx);
 
 /* Token texts handed to the parser: arena copies in scratch. */
 struct lex_text {

@@ -20,8 +20,8 @@ struct dev_scope {
 				 struct expr_error *err);
 	/* Circuit node for local node name[0..n); NL_NONE on out-of-memory. */
 	uint32_t (*node)(void *ud, const char *name, size_t n);
-	/* Model visible here by name, or NULL. */
-	const struct nl_model *(*model)(void *ud, const char *name, size_t n);
+	/* Model visible here named by atom f, or NULL. */
+	const struct nl_model *(*model)(void *ud, const struct deck_field *f);
 	/* Parses an atom written without braces as an expression ("20e3/t");
 	 * NULL on a syntax error (reported) or out-of-memory (*oom set). */
 	struct expr *(*atom_expr)(void *ud, const struct deck_field *f, int *oom);

@@ -33,7 +33,7 @@ struct elab_annot {
 struct elab_result {
 	struct nl_circuit *circuit; /* owned by the caller: nl_destroy */
 	const char *title;          /* in the circuit's arena, or "" */
-	const struct elab_annot *const *annots;
+	void *const *annots;        /* read with elab_annot_at */
 	size_t nannots;
 	size_t ncards;              /* cards read, all files */
 };
@@ -43,6 +43,9 @@ enum elab_status {
 	ELAB_ERRORS,  /* errors were reported; the circuit holds what was read */
 	ELAB_OOM
 };
+
+/* Annotation i of a result (0 <= i < nannots). */
+const struct elab_annot *elab_annot_at(const struct elab_result *r, size_t i);
 
 /* Reads path (the top file: first line is the title) and everything it
  * includes, and builds the flat circuit into *out. Problems go to d with

@@ -22,7 +22,7 @@ struct subdef {
 	struct smap *portmap;        /* port name -> index + 1 */
 	const struct deck_field *defaults; /* params: key=value, as written */
 	uint32_t ndefaults;
-	struct deck_card **body;     /* elements, .param, *@, in order */
+	void **body;                 /* struct deck_card *: elements, .param, *@ */
 	size_t nbody, capbody;
 	struct smap *subckts;        /* nested definitions */
 	struct smap *models;         /* local models */
@@ -67,9 +67,9 @@ struct elab {
 	struct smap *globals;        /* .global node names */
 	struct smap **maps;          /* every map made, freed at release */
 	size_t nmaps, capmaps;
-	struct deck_card **deferred; /* top-level cards expanded at the end */
+	void **deferred;             /* struct deck_card *: expanded at the end */
 	size_t ndeferred, capdeferred;
-	struct elab_annot **annots;
+	void **annots;               /* struct elab_annot * */
 	size_t nannots, capannots;
 	struct nl_model **pending;   /* models used before their .model */
 	size_t npending, cappending;

@@ -181,7 +181,7 @@ static const struct nl_model *need_model(struct build *b,
 {
 	const struct nl_model *m = NULL;
 	if (f->kind == FIELD_ATOM)
-		m = b->s->model(b->s->ud, f->text, f->len);
+		m = b->s->model(b->s->ud, f);
 	if (!m)
 		*st = err_at(b, f, "undefined model '%s'",
 			     f->kind == FIELD_ATOM ? f->text : "?");
@@ -309,6 +309,19 @@ static enum dev_status build_diode(struct build *b)
 
 static enum dev_status build_source(struct build *b);
 
+/* The forms of a controlled source that this tool keeps as behavioural. */
+static int is_behavioural_form(const struct deck_field *f)
+{
+	static const char *const words[] = {"value", "vol", "cur", "poly",
+					    "table", "laplace", "freq", NULL};
+	if (f->kind == FIELD_EXPR)
+		return 1;
+	for (int i = 0; words[i]; i++)
+		if (num_ieq(f->text ? f->text : "", f->len, words[i]))
+			return 1;
+	return 0;
+}
+
 /* E, G: linear with two control nodes and a gain, or behavioural. */
 static enum dev_status build_ctrl_v(struct build *b)
 {
@@ -325,11 +338,10 @@ static enum dev_status build_ctrl_v(struct build *b)
 		st = value_of(b, &c->fields[4], &b->part.value);
 		return st == DEV_STATE ? behavioural(b) : st;
 	}
-	if (c->nfields < 3)
-		return err_at(b, NULL, "controlled source needs control nodes and a gain, or value=%s", "");
-	b->ext.behavioural = 1;
-	b->has_ext = 1;
-	return DEV_OK;
+	if (c->nfields < 3 || !is_behavioural_form(&c->fields[2]))
+		return err_at(b, c->nfields ? &c->fields[c->nfields - 1] : NULL,
+			      "controlled source needs two control nodes and a gain, or value=, poly() or table%s", "");
+	return behavioural(b);
 }
 
 /* F, H: controlled by the current of a named voltage source. */
@@ -348,10 +360,10 @@ static enum dev_status build_ctrl_i(struct build *b)
 		st = value_of(b, &c->fields[3], &b->part.value);
 		return st == DEV_STATE ? behavioural(b) : st;
 	}
-	if (c->nfields < 3)
-		return err_at(b, NULL, "current-controlled source needs a controlling source and a gain%s", "");
-	b->ext.behavioural = 1;
-	return DEV_OK;
+	if (c->nfields < 3 || !is_behavioural_form(&c->fields[2]))
+		return err_at(b, c->nfields ? &c->fields[c->nfields - 1] : NULL,
+			      "current-controlled source needs a controlling source and a gain, or poly()%s", "");
+	return behavioural(b);
 }
 
 static enum dev_status build_coupling(struct build *b)
@@ -412,7 +424,7 @@ static enum dev_status build_modelled(struct build *b,
 	uint32_t k = r->usual;
 	for (uint32_t i = r->min_nodes; i <= r->max_nodes && i < c->nfields; i++) {
 		const struct deck_field *f = &c->fields[i];
-		if (f->kind == FIELD_ATOM && b->s->model(b->s->ud, f->text, f->len)) {
+		if (f->kind == FIELD_ATOM && b->s->model(b->s->ud, f)) {
 			k = i;
 			break;
 		}

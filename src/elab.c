@@ -23,9 +23,26 @@ struct file_read {
 	const char *want;          /* .lib section wanted, or NULL */
 	int section;               /* 0 outside, 1 in the wanted one, 2 skipping */
 	int found;
-	struct diag_loc section_loc;
+	struct diag_loc section_loc;  /* the .lib card that asked for it */
+	struct diag_loc open_loc;     /* the .lib card that opened a section */
 	struct file_read *outer;
 };
+
+/* The system's text for an errno value, first letter lower-cased to fit
+ * the diagnostic style. */
+static const char *sys_error(int err)
+{
+	static const struct {
+		int code;
+		const char *text;
+	} tab[] = {{ENOENT, "no such file"}, {EACCES, "permission denied"},
+		   {EISDIR, "is a directory"}, {ENOTDIR, "a folder in the path is not a folder"},
+		   {ELOOP, "too many symbolic links"}, {ENAMETOOLONG, "name too long"}};
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		if (tab[i].code == err)
+			return tab[i].text;
+	return "the system refused to open it";
+}
 
 static void oom(struct elab *el)
 {
@@ -59,7 +76,7 @@ static int push_ptr(struct elab *el, void ***arr, size_t *n, size_t *cap,
 
 void scope_add_annot(struct elab *el, struct elab_annot *a)
 {
-	push_ptr(el, (void ***)&el->annots, &el->nannots, &el->capannots, a);
+	push_ptr(el, &el->annots, &el->nannots, &el->capannots, a);
 }
 
 static void add_annot(struct elab *el, const char *text, const char *prefix,
@@ -213,7 +230,7 @@ static void read_stream(struct elab *el, FILE *in, struct file_read *fr,
 		diag_add(el->d, DIAG_ERROR, "lib", fr->section_loc,
 			 "section '%s' not found in '%s'", fr->want, fr->path);
 	if (fr->section)
-		diag_add(el->d, DIAG_ERROR, "lib", loc0(fr->file),
+		diag_add(el->d, DIAG_ERROR, "lib", fr->open_loc,
 			 ".lib section has no .endl before the end of the file");
 	el->fr = fr->outer;
 }
@@ -242,11 +259,11 @@ static void include_file(struct elab *el, const struct deck_card *c,
 	FILE *in = open_input(el, path);
 	if (!in) {
 		diag_add(el->d, DIAG_ERROR, "include", c->loc,
-			 "cannot read '%s': %s", given, strerror(errno));
+			 "cannot read '%s': %s", given, sys_error(errno));
 		return;
 	}
 	struct file_read fr = {path, diag_add_file(el->d, path), section, 0, 0,
-			       c->loc, NULL};
+			       c->loc, c->loc, NULL};
 	el->include_depth++;
 	read_stream(el, in, &fr, 0);
 	el->include_depth--;
@@ -297,6 +314,7 @@ static int on_lib(struct elab *el, const struct deck_card *c)
 	/* Outside a requested read, a section is a definition kept for
 	 * later .lib references, not content: it is skipped. */
 	fr->section = wanted ? 1 : 2;
+	fr->open_loc = c->loc;
 	fr->found |= wanted;
 	return 1;
 }
@@ -387,7 +405,7 @@ static void defer(struct elab *el, const struct deck_card *c)
 		oom(el);
 		return;
 	}
-	push_ptr(el, (void ***)&el->deferred, &el->ndeferred, &el->capdeferred, k);
+	push_ptr(el, &el->deferred, &el->ndeferred, &el->capdeferred, k);
 }
 
 static void top_element(struct elab *el, const struct deck_card *c)
@@ -441,7 +459,7 @@ static void body_card(struct elab *el, const struct deck_card *c)
 		return;
 	}
 	struct deck_card *k = deck_card_clone(el->ar, c);
-	if (!k || !push_ptr(el, (void ***)&def->body, &def->nbody,
+	if (!k || !push_ptr(el, &def->body, &def->nbody,
 			    &def->capbody, k))
 		oom(el);
 }
@@ -503,7 +521,7 @@ static void finish_top(struct elab *el)
 			 ".subckt '%s' has no .ends", d->name);
 	el->open = NULL;
 	for (size_t i = 0; i < el->ndeferred && !el->oom && !el->stop; i++)
-		scope_build(el, &el->global, el->deferred[i], 0);
+		scope_build(el, &el->global, (const struct deck_card *)el->deferred[i], 0);
 	scope_check_models(el);
 	scope_link_controls(el);
 	if (!el->oom && !nl_finish(el->c))
@@ -555,9 +573,9 @@ enum elab_status elab_file(const char *path, const struct elab_opts *opts,
 	FILE *in = open_input(&el, path);
 	if (!in) {
 		diag_add(d, DIAG_ERROR, "io", loc0(file), "cannot read: %s",
-			 strerror(errno));
+			 sys_error(errno));
 	} else {
-		struct file_read fr = {path, file, NULL, 0, 0, loc0(file), NULL};
+		struct file_read fr = {path, file, NULL, 0, 0, loc0(file), loc0(file), NULL};
 		read_stream(&el, in, &fr, 1);
 		fclose(in);
 		if (!el.oom)
@@ -570,8 +588,13 @@ enum elab_status elab_file(const char *path, const struct elab_opts *opts,
 	}
 	out->circuit = el.c;
 	out->title = el.title ? el.title : "";
-	out->annots = (const struct elab_annot *const *)el.annots;
+	out->annots = el.annots;
 	out->nannots = el.nannots;
 	out->ncards = el.ncards;
 	return diag_errors(d, file) > errors0 ? ELAB_ERRORS : ELAB_OK;
+}
+
+const struct elab_annot *elab_annot_at(const struct elab_result *r, size_t i)
+{
+	return (const struct elab_annot *)r->annots[i];
 }

@@ -14,9 +14,9 @@
 struct nl_circuit {
 	struct hr_alloc hook;
 	struct arena *ar;
-	struct nl_part **part_chunks;
+	void **part_chunks;          /* blocks of CHUNK struct nl_part */
 	size_t nparts, part_chunk_cap;
-	struct nl_node **node_chunks;
+	void **node_chunks;          /* blocks of CHUNK struct nl_node */
 	size_t nnodes, node_chunk_cap;
 	uint32_t *table;     /* node ids + 1; 0 = empty slot */
 	size_t table_cap;
@@ -86,7 +86,14 @@ struct arena *nl_arena(struct nl_circuit *c)
 
 static struct nl_node *node_ref(const struct nl_circuit *c, size_t i)
 {
-	return &c->node_chunks[i >> CHUNK_BITS][i & (CHUNK - 1)];
+	struct nl_node *blk = c->node_chunks[i >> CHUNK_BITS];
+	return &blk[i & (CHUNK - 1)];
+}
+
+static struct nl_part *part_ref(const struct nl_circuit *c, size_t i)
+{
+	struct nl_part *blk = c->part_chunks[i >> CHUNK_BITS];
+	return &blk[i & (CHUNK - 1)];
 }
 
 static int is_ground(const char *s, size_t n)
@@ -164,11 +171,9 @@ uint32_t nl_node_intern(struct nl_circuit *c, const char *name, size_t n)
 			return NL_NONE;
 		slot = slot_for(c, name, n);
 	}
-	void **chunks = (void **)c->node_chunks;
-	if (!push_chunk(c, &chunks, &c->node_chunk_cap, c->nnodes,
+	if (!push_chunk(c, &c->node_chunks, &c->node_chunk_cap, c->nnodes,
 			sizeof(struct nl_node)))
 		return NL_NONE;
-	c->node_chunks = (struct nl_node **)chunks;
 	struct nl_node *nd = node_ref(c, c->nnodes);
 	nd->name = arena_strndup(c->ar, name, n);
 	if (!nd->name)
@@ -182,13 +187,10 @@ uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p)
 {
 	if (c->nparts >= NL_NONE - 1)
 		return NL_NONE;
-	void **chunks = (void **)c->part_chunks;
-	if (!push_chunk(c, &chunks, &c->part_chunk_cap, c->nparts,
+	if (!push_chunk(c, &c->part_chunks, &c->part_chunk_cap, c->nparts,
 			sizeof(struct nl_part)))
 		return NL_NONE;
-	c->part_chunks = (struct nl_part **)chunks;
-	struct nl_part *d = &c->part_chunks[c->nparts >> CHUNK_BITS]
-					   [c->nparts & (CHUNK - 1)];
+	struct nl_part *d = part_ref(c, c->nparts);
 	*d = *p;
 	if (p->npins) {
 		uint32_t *pins = arena_alloc(c->ar, p->npins * sizeof *pins);
@@ -212,12 +214,12 @@ size_t nl_node_count(const struct nl_circuit *c)
 
 const struct nl_part *nl_part_at(const struct nl_circuit *c, size_t i)
 {
-	return &c->part_chunks[i >> CHUNK_BITS][i & (CHUNK - 1)];
+	return part_ref(c, i);
 }
 
 struct nl_part *nl_part_mut(struct nl_circuit *c, size_t i)
 {
-	return &c->part_chunks[i >> CHUNK_BITS][i & (CHUNK - 1)];
+	return part_ref(c, i);
 }
 
 const struct nl_node *nl_node_at(const struct nl_circuit *c, size_t i)

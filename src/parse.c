@@ -26,13 +26,17 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 	ctx.fn = fn;
 	ctx.ud = ud;
 
-	yyscan_t scanner;
+	yyscan_t scanner = NULL;
 	if (yylex_init_extra(&ctx, &scanner) != 0)
 		return PARSE_OOM;
-	yyset_in(in, scanner);
-	lex_start(scanner, opts->has_title);
-	int rc = yyparse(scanner, &ctx);
-	yylex_destroy(scanner);
+	volatile int rc = 2;
+	if (setjmp(ctx.fatal) == 0) {
+		yyset_in(in, scanner);
+		lex_start(scanner, opts->has_title);
+		rc = yyparse(scanner, &ctx);
+		yylex_destroy(scanner);
+	}
+	lex_free_all(&ctx);
 	arena_reset(scratch, ctx.mark);
 	if (ctx.oom || rc == 2)
 		return PARSE_OOM;
@@ -53,21 +57,20 @@ struct expr *parse_expr_text(const char *text, size_t n, struct diag_loc at,
 	ctx.diags = diags;
 	ctx.hook = arena_hook(ar);
 	*oom = 0;
-	yyscan_t scanner;
+	yyscan_t scanner = NULL;
 	if (yylex_init_extra(&ctx, &scanner) != 0) {
 		*oom = 1;
 		return NULL;
 	}
-	YY_BUFFER_STATE buf = yy_scan_bytes(text, (int)n, scanner);
-	if (!buf) {
+	volatile int rc = 2;
+	if (setjmp(ctx.fatal) == 0) {
+		YY_BUFFER_STATE buf = yy_scan_bytes(text, (int)n, scanner);
+		lex_start_expr(scanner);
+		rc = yyparse(scanner, &ctx);
+		yy_delete_buffer(buf, scanner);
 		yylex_destroy(scanner);
-		*oom = 1;
-		return NULL;
 	}
-	lex_start_expr(scanner);
-	int rc = yyparse(scanner, &ctx);
-	yy_delete_buffer(buf, scanner);
-	yylex_destroy(scanner);
+	lex_free_all(&ctx);
 	if (ctx.oom || rc == 2)
 		*oom = 1;
 	return rc == 0 && !ctx.card_bad ? ctx.expr_result : NULL;

@@ -120,7 +120,7 @@ static uint32_t cb_node(void *ud, const char *name, size_t n)
 }
 
 static const struct nl_model *placeholder(struct cb *cb, const char *name,
-					  size_t n)
+					  size_t n, struct diag_loc at)
 {
 	struct elab *el = cb->el;
 	struct nl_model *m = arena_zalloc(el->ar, sizeof *m);
@@ -130,7 +130,7 @@ static const struct nl_model *placeholder(struct cb *cb, const char *name,
 		return NULL;
 	}
 	m->name = key;
-	m->loc = cb->at;
+	m->loc = at;
 	struct nl_model **a = el->pending;
 	if (el->npending == el->cappending) {
 		size_t ncap = el->cappending ? el->cappending * 2 : 16;
@@ -148,9 +148,11 @@ static const struct nl_model *placeholder(struct cb *cb, const char *name,
 	return m;
 }
 
-static const struct nl_model *cb_model(void *ud, const char *name, size_t n)
+static const struct nl_model *cb_model(void *ud, const struct deck_field *f)
 {
 	struct cb *cb = ud;
+	const char *name = f->text;
+	size_t n = f->len;
 	for (const struct subdef *d = cb->sc->def; d; d = d->parent) {
 		const struct nl_model *m = smap_get(d->models, name, n);
 		if (m)
@@ -160,7 +162,8 @@ static const struct nl_model *cb_model(void *ud, const char *name, size_t n)
 	if (m && (m->type || cb->first_pass))
 		return m;
 	if (!m && cb->first_pass)
-		return placeholder(cb, name, n);
+		return placeholder(cb, name, n,
+				   (struct diag_loc){cb->at.file, f->line, f->col});
 	return NULL;
 }
 
@@ -471,7 +474,7 @@ static int default_params(struct elab *el, struct scope *ns,
 static void expand_body(struct elab *el, struct scope *ns)
 {
 	for (size_t i = 0; i < ns->def->nbody && !el->oom && !el->stop; i++) {
-		const struct deck_card *b = ns->def->body[i];
+		const struct deck_card *b = (const struct deck_card *)ns->def->body[i];
 		if (b->kind == CARD_ELEMENT)
 			scope_build(el, ns, b, 0);
 		else if (b->kind == CARD_PARAM)

@@ -114,6 +114,8 @@ static enum dev_status set_wave(struct wave_rd *r, enum nl_wave w,
 	enum dev_status st = take_args(r, f, n);
 	if (st != DEV_OK)
 		return st;
+	if (r->src->nargs < 2)
+		return err(r, at, "a waveform needs at least two values");
 	if (w == NL_WAVE_PWL && r->src->nargs % 2 != 0)
 		return err(r, at, "pwl needs time-value pairs: an odd number of values was given");
 	return DEV_OK;

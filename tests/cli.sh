@@ -1,0 +1,87 @@
+#!/usr/bin/env bash
+# Command-line behaviour of headroom: exit codes, formats, diagnostics with
+# the quoted line and caret, include handling on disk. Each check names what
+# it expects; the script ends with a "N passed, N failed" line.
+set -u
+bin=${HEADROOM:-build/headroom}
+here=$(cd "$(dirname "$0")" && pwd)
+data=$here/data
+pass=0 fail=0
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+
+check() { # name, condition (a command)
+	local name=$1
+	shift
+	if "$@"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "cli: FAIL $name"; fi
+}
+
+run() { # args...: sets rc, out, err
+	"$bin" "$@" >"$tmp/out" 2>"$tmp/err"
+	rc=$?
+	out=$(cat "$tmp/out")
+	err=$(cat "$tmp/err")
+}
+
+run --version
+check "version exits 0" test $rc -eq 0
+check "version prints the name" grep -q '^headroom [0-9]' "$tmp/out"
+
+run --help
+check "help exits 0" test $rc -eq 0
+check "help lists parts" grep -q 'parts FILE' "$tmp/out"
+check "help lists every option" bash -c "grep -q -- '--format' '$tmp/out' && grep -q -- '--max-parts' '$tmp/out' && grep -q -- '--max-errors' '$tmp/out'"
+
+run
+check "no command is a usage error (2)" test $rc -eq 2
+run frobnicate x.cir
+check "unknown command is a usage error" test $rc -eq 2
+run parts --bogus "$data/relative.cir"
+check "unknown option is a usage error" test $rc -eq 2
+run parts --format yaml "$data/relative.cir"
+check "unknown format is a usage error" test $rc -eq 2
+run parts --max-parts abc "$data/relative.cir"
+check "bad number for --max-parts is a usage error" test $rc -eq 2
+
+run parts "$data/relative.cir"
+check "relative includes resolve from the including file (exit 0)" test $rc -eq 0
+check "parts of the nested include are listed" grep -q 'X1.C1 ' "$tmp/out"
+check "the part from an include names its own file" grep -q 'inc/stage.inc:2' "$tmp/out"
+
+run parts --format csv "$data/relative.cir"
+check "csv header" test "$(head -1 "$tmp/out")" = "part,element,nodes,value,unit,model,file,line"
+check "csv rows" test "$(wc -l < "$tmp/out")" -eq 4
+
+run parts --format json "$data/relative.cir"
+check "json is well formed" python3 -c "import json,sys; d=json.load(open('$tmp/out')); assert d['schema']==1; assert len(d['files'][0]['parts'])==3"
+
+run parts --format count "$data/relative.cir" "$data/two_errors.cir"
+check "count: one line per file" test "$(wc -l < "$tmp/out")" -eq 2
+check "a file with errors gives exit 2 and the other is still read" test $rc -eq 2
+
+run parts "$data/two_errors.cir"
+check "netlist errors exit 2" test $rc -eq 2
+check "first error located" grep -q 'two_errors.cir:2:12: error: bad number' "$tmp/err"
+check "second error located" grep -q 'two_errors.cir:3:11: error: syntax error, unexpected }' "$tmp/err"
+check "the line is quoted" grep -q '^    C1 a b {1+}$' "$tmp/err"
+check "the caret sits under the column" grep -qx '              ^' "$tmp/err"
+check "the good card is still listed" grep -q '^R2 ' "$tmp/out"
+
+run parts "$data/cycle_a.cir"
+check "include cycle exits 2" test $rc -eq 2
+check "include cycle is reported where it closes" grep -q "cycle_b.inc:2:1: error: include cycle: '../cycle_a.cir' is already being read" "$tmp/err"
+
+run parts "$data/does-not-exist.cir"
+check "missing file exits 2" test $rc -eq 2
+check "missing file is named" grep -q "does-not-exist.cir: error: cannot read: no such file" "$tmp/err"
+
+run parts "$data"
+check "a folder given as a netlist is an error, not a crash" test $rc -eq 2
+check "the folder error says so" grep -q "is a directory" "$tmp/err"
+
+printf 'binary\n\x00\x01\x02R1 a b\n' > "$tmp/nul.cir"
+run parts "$tmp/nul.cir"
+check "NUL bytes give a located error" bash -c "test $rc -eq 2 && grep -q 'nul.cir:2:1: error' '$tmp/err'"
+
+echo "cli: $pass passed, $fail failed"
+[ $fail -eq 0 ]

@@ -1,0 +1,282 @@
+/* test_elab.c: elaboration of whole decks: parameters and expressions,
+ * subcircuit flattening with nested parameters and hierarchical names,
+ * .global and ground aliases, m=, .include, .lib sections, .func, .if,
+ * definitions used before they appear, sources. Expected values are worked
+ * out by hand from the decks (this project's own scenarios). */
+#include "testutil.h"
+
+#include <math.h>
+
+static void assert_close(double a, double b)
+{
+	if (fabs(a - b) > 1e-9 * fmax(fabs(a), fabs(b)))
+		fail_msg("%.12g != %.12g", a, b);
+}
+
+static void test_params_and_expressions(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\n.param vp=10 rload={vp*1k} k2 = 'sqrt(4)+2**3'\n"
+		     ".func half(x) = x/2\n"
+		     "R1 a 0 {rload}\nR2 a 0 'half(rload)'\nR3 a 0 {k2 > 9 ? 1 : 2}\n"
+		     "C1 a 0 {1u*pi}\nR4 a 0 {max(1,5,3)}\nR5 a 0 {-2^2}\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "R1")->value, 10e3);
+	assert_close(find_part(&r, "R2")->value, 5e3);
+	assert_close(find_part(&r, "R3")->value, 1);
+	assert_close(find_part(&r, "C1")->value, 1e-6 * 3.14159265358979323846);
+	assert_close(find_part(&r, "R4")->value, 5);
+	assert_close(find_part(&r, "R5")->value, -4);
+	run_free(&r);
+}
+
+/* Hierarchy: a three-level subcircuit with parameter defaults, instance
+ * overrides, a local .param, nested definitions, a global node and m=. */
+static const char *const hier =
+	"hierarchy\n"
+	".global vdd\n"
+	".param cbase=1n\n"
+	".subckt cell in out params: c=2n r=1k\n"
+	".param rr={2*r}\n"
+	"R1 in mid {rr}\n"
+	"C1 mid out {c}\n"
+	"R2 mid vdd 10k\n"
+	"R3 mid gnd 1meg\n"
+	".ends cell\n"
+	".subckt pair a b c=5n\n"
+	".subckt inner p q\n"
+	"D1 p q dm\n"
+	".model dm d is=1e-15\n"
+	".ends inner\n"
+	"X1 a m cell c={c}\n"
+	"X2 m b cell r=3k\n"
+	"Xi a b inner\n"
+	".ends\n"
+	"Xtop n1 n2 pair c={cbase*4}\n"
+	"Xm n1 0 cell m=3\n";
+
+static void test_hierarchy(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, hier);
+	assert_string_equal(r.diags, "");
+	/* Xtop.X1: c passed down as 4n, r default 1k, rr = 2k */
+	const struct nl_part *p = find_part(&r, "Xtop.X1.R1");
+	assert_non_null(p);
+	assert_close(p->value, 2e3);
+	assert_string_equal(pin_name(&r, p, 0), "n1");
+	assert_string_equal(pin_name(&r, p, 1), "Xtop.X1.mid");
+	assert_close(find_part(&r, "Xtop.X1.C1")->value, 4e-9);
+	assert_string_equal(pin_name(&r, find_part(&r, "Xtop.X1.C1"), 1), "Xtop.m");
+	/* Xtop.X2: r overridden to 3k, c default 2n */
+	assert_close(find_part(&r, "Xtop.X2.R1")->value, 6e3);
+	assert_close(find_part(&r, "Xtop.X2.C1")->value, 2e-9);
+	assert_string_equal(pin_name(&r, find_part(&r, "Xtop.X2.C1"), 1), "n2");
+	/* .global and ground aliases are not renamed */
+	assert_string_equal(pin_name(&r, find_part(&r, "Xtop.X2.R2"), 1), "vdd");
+	assert_int_equal(find_part(&r, "Xtop.X2.R3")->pins[1], NL_GROUND);
+	/* the nested definition and its local model */
+	p = find_part(&r, "Xtop.Xi.D1");
+	assert_non_null(p);
+	assert_non_null(p->model);
+	assert_string_equal(p->model->name, "dm");
+	/* instance m= multiplies every part inside */
+	p = find_part(&r, "Xm.C1");
+	assert_non_null(p->ext);
+	assert_close(p->ext->mult, 3);
+	assert_int_equal(nl_part_count(r.r.circuit), 4 + 4 + 1 + 4);
+	run_free(&r);
+}
+
+/* Definitions may follow their use: models, subcircuits, parameters. */
+static void test_forward_references(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\nD1 a 0 dlate\nX1 a 0 later\nR1 a 0 {rlate}\nQ1 c b e qm\n"
+		     ".model dlate d bv=50\n.param rlate=47\n"
+		     ".subckt later p q\nC1 p q 1p\n.ends\n.model qm npn bf=100\n");
+	assert_string_equal(r.diags, "");
+	assert_string_equal(find_part(&r, "D1")->model->type, "d");
+	assert_non_null(find_part(&r, "X1.C1"));
+	assert_close(find_part(&r, "R1")->value, 47);
+	const struct nl_part *q = find_part(&r, "Q1");
+	assert_int_equal(q->npins, 3);
+	assert_int_equal(q->kind, NL_OPAQUE);
+	run_free(&r);
+}
+
+static void test_include_and_lib(void **state)
+{
+	(void)state;
+	struct run r;
+	run_files(&r, "t\n.include sub/parts.inc\n.lib lib/models.lib fast\nD1 a 0 dfast\nX1 a 0 blk\n",
+		  "sub/parts.inc", ".include more.inc\nR1 a 0 1k\n",
+		  "sub/more.inc", "R2 a 0 2k\n",
+		  "lib/models.lib", "* models\n.lib slow\n.model dfast d tt=1u\n.endl slow\n"
+				    ".lib fast\n.model dfast d tt=1n\n.subckt blk p q\nR9 p q 9\n.ends\n.endl fast\n",
+		  (const char *)NULL);
+	assert_string_equal(r.diags, "");
+	assert_non_null(find_part(&r, "R1"));
+	assert_non_null(find_part(&r, "R2"));
+	const struct nl_part *d = find_part(&r, "D1");
+	assert_close(d->model->values[0], 1e-9);
+	assert_non_null(find_part(&r, "X1.R9"));
+	run_free(&r);
+}
+
+static void test_include_cycle(void **state)
+{
+	(void)state;
+	struct run r;
+	run_files(&r, "t\n.include a.inc\n", "a.inc", ".include a.inc\n",
+		  (const char *)NULL);
+	/* memory files have no real path: depth stops the loop */
+	assert_non_null(strstr(r.diags, "includes nest deeper than 32 files [include]"));
+	assert_int_equal(r.st, ELAB_ERRORS);
+	run_free(&r);
+}
+
+static void test_conditionals(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\n.param sel=2\n.if (sel == 1)\nR1 a 0 1\n.elseif (sel = 2)\n"
+		     "R2 a 0 2\n.if (0)\nR3 a 0 3\n.endif\n.else\nR4 a 0 4\n.endif\n");
+	assert_string_equal(r.diags, "");
+	assert_null(find_part(&r, "R1"));
+	assert_non_null(find_part(&r, "R2"));
+	assert_null(find_part(&r, "R3"));
+	assert_null(find_part(&r, "R4"));
+	run_free(&r);
+}
+
+static void test_sources(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\nV1 a 0 DC 5 AC 1 SIN(0 10 1k 0 0 90)\n"
+		     "V2 b 0 pulse 0 5 1u 1n 1n 4u 10u\n"
+		     "V3 c 0 PWL(0 0 1m 5 2m 0) r=0\n"
+		     "I1 d 0 2m\nV4 e 0 sin 1 2 50\nV5 f 0 dc PWL((0 0) (1 1))\n");
+	assert_string_equal(r.diags, "");
+	const struct nl_source *s = find_part(&r, "V1")->ext->src;
+	assert_close(s->dc, 5);
+	assert_close(s->ac_mag, 1);
+	assert_int_equal(s->wave, NL_WAVE_SIN);
+	assert_int_equal(s->nargs, 6);
+	assert_close(s->args[2], 1e3);
+	s = find_part(&r, "V2")->ext->src;
+	assert_int_equal(s->wave, NL_WAVE_PULSE);
+	assert_int_equal(s->nargs, 7);
+	assert_close(s->args[6], 10e-6);
+	s = find_part(&r, "V3")->ext->src;
+	assert_int_equal(s->wave, NL_WAVE_PWL);
+	assert_int_equal(s->nargs, 6);
+	assert_close(s->pwl_repeat, 0);
+	assert_close(find_part(&r, "I1")->ext->src->dc, 2e-3);
+	assert_int_equal(find_part(&r, "V4")->ext->src->nargs, 3);
+	assert_int_equal(find_part(&r, "V5")->ext->src->nargs, 4);
+	run_free(&r);
+}
+
+static void test_elements(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\nL1 a 0 1m\nL2 b 0 4m\nK1 L1 L2 0.99\nE1 o 0 a 0 10\n"
+		     "G1 o 0 value={v(a)*2}\nF1 o 0 VS 3\nVS s 0 0\nH1 o 0 VS 2\n"
+		     "C1 a b c=10p m=2 ic=1\nD2 a b dd 2 off\n.model dd d\n"
+		     "M1 d g s b nch w=1u\n.model nch nmos\nXU1 a b c d e f g h\n"
+		     "T1 a 0 b 0 z0=50 td=1n\nA1 [a b] c amod\n.model amod adc\n"
+		     "R1 a b r={1k + 0*v(a)}\n.subckt XU1X a b c d e f g\n.ends\n");
+	/* XU1 names subcircuit "h", which does not exist */
+	assert_string_equal(r.diags,
+		"top.cir:15:19: error: undefined subcircuit 'h' [instance]\n");
+	const struct nl_part *k = find_part(&r, "K1");
+	assert_int_equal(k->kind, NL_K);
+	assert_int_equal(k->ext->ctrl_part[0], 0);
+	assert_int_equal(k->ext->ctrl_part[1], 1);
+	assert_int_equal(find_part(&r, "E1")->npins, 4);
+	assert_true(find_part(&r, "G1")->ext->behavioural);
+	assert_int_equal(find_part(&r, "F1")->ext->ctrl_part[0], 6);
+	const struct nl_part *c = find_part(&r, "C1");
+	assert_close(c->value, 10e-12);
+	assert_close(c->ext->mult, 2);
+	assert_close(c->ext->ic, 1);
+	const struct nl_part *d = find_part(&r, "D2");
+	assert_close(d->value, 2);
+	assert_true(d->ext->off);
+	assert_int_equal(find_part(&r, "M1")->npins, 4);
+	assert_int_equal(find_part(&r, "T1")->npins, 4);
+	assert_int_equal(find_part(&r, "A1")->npins, 3);
+	assert_true(find_part(&r, "R1")->ext->behavioural);
+	run_free(&r);
+}
+
+static void test_expansion_cap(void **state)
+{
+	(void)state;
+	static struct memfs fs;
+	fs.name[0] = "top.cir";
+	fs.text[0] = "t\n.subckt a p\nR1 p 0 1\nR2 p 0 1\n.ends\n"
+		     ".subckt b p\nX1 p a\nX2 p a\nX3 p a\n.ends\n"
+		     ".subckt c p\nX1 p b\nX2 p b\nX3 p b\n.ends\nXbig n c\n";
+	fs.n = 1;
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	struct elab_opts o = {0};
+	o.open = memfs_open;
+	o.open_ud = &fs;
+	o.max_parts = 10;
+	struct elab_result res;
+	assert_int_equal(elab_file("top.cir", &o, &h, d, &res), ELAB_ERRORS);
+	char *txt = render_headers(d);
+	assert_string_equal(txt, "top.cir:16:1: error: the circuit grows past 10 parts (the limit; see --max-parts) [expansion]\n");
+	assert_int_equal(nl_part_count(res.circuit), 10);
+	free(txt);
+	nl_destroy(res.circuit);
+	diag_destroy(d);
+	arena_destroy(ar);
+}
+
+/* Adjacency: every pin of every part appears under its node. */
+static void test_adjacency(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\nR1 a b 1\nR2 b c 1\nC1 b 0 1\nD1 b b dm\n.model dm d\n");
+	const struct nl_circuit *c = r.r.circuit;
+	uint32_t b = nl_node_find(c, "B", 1), n;
+	assert_int_not_equal(b, NL_NONE);
+	const uint32_t *adj = nl_adjacency(c, b, &n);
+	assert_int_equal(n, 5); /* R1, R2, C1, D1 twice */
+	size_t total = 0;
+	for (size_t i = 0; i < nl_node_count(c); i++) {
+		nl_adjacency(c, (uint32_t)i, &n);
+		total += n;
+	}
+	assert_int_equal(total, 8);
+	assert_int_equal(adj[0], 0);
+	run_free(&r);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_params_and_expressions),
+		cmocka_unit_test(test_hierarchy),
+		cmocka_unit_test(test_forward_references),
+		cmocka_unit_test(test_include_and_lib),
+		cmocka_unit_test(test_include_cycle),
+		cmocka_unit_test(test_conditionals),
+		cmocka_unit_test(test_sources),
+		cmocka_unit_test(test_elements),
+		cmocka_unit_test(test_expansion_cap),
+		cmocka_unit_test(test_adjacency),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
