@@ -21,6 +21,7 @@ struct lex_ctx {
 	int expr_closer;          /* '}' or '\'' for the open value expression */
 	int brace_depth;
 	int card_bad;             /* a lexical error spoiled the current card */
+	int read_failed;
 	uint32_t control_line;    /* where an open .control block began */
 	uint32_t control_col;
 	int pending_eol;          /* an EOL token is owed before the next one */

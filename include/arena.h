@@ -36,6 +36,10 @@ void arena_destroy(struct arena *ar);
  * lives until the arena is destroyed or reset below a mark taken before it. */
 void *arena_alloc(struct arena *ar, size_t n);
 
+/* As arena_alloc with a smaller alignment (a power of two up to 16): small
+ * strings and index arrays do not pay for 16-byte rounding. */
+void *arena_alloc_aligned(struct arena *ar, size_t n, size_t align);
+
 /* As arena_alloc, zero-filled. */
 void *arena_zalloc(struct arena *ar, size_t n);
 

@@ -54,16 +54,26 @@ struct nl_extra {
 	int off;                   /* D: "off" */
 };
 
+/* A source location packed small: a flat deck holds one per part. */
+struct nl_loc {
+	uint32_t line;
+	uint16_t col;   /* clamped at 65535 */
+	uint16_t file;  /* diag file id, clamped at 65535 */
+};
+
+/* 48 bytes: the size of this record sets the memory per part of a flat
+ * deck, which is a stated target (docs/performance.md). */
 struct nl_part {
 	const char *path;            /* hierarchical name: "X1.X2.C3" */
-	const uint32_t *pins;        /* node ids, npins of them */
 	double value;                /* ohm, farad, henry, coupling, area, gain */
 	const struct nl_model *model;/* D and model-based opaque parts, or NULL */
 	struct nl_extra *ext;        /* NULL when every extra is default */
-	struct diag_loc loc;         /* the card that made the part */
+	uint32_t pin0;               /* first of npins node ids: nl_pins() */
+	struct nl_loc loc;           /* the card that made the part */
 	uint8_t kind;                /* enum nl_kind */
 	uint8_t letter;              /* element letter, lower-case */
-	uint16_t npins;
+	uint8_t npins;
+	uint8_t spare;
 };
 
 struct nl_node {
@@ -87,9 +97,18 @@ uint32_t nl_node_intern(struct nl_circuit *c, const char *name, size_t n);
 /* Id of an existing node, or NL_NONE. */
 uint32_t nl_node_find(const struct nl_circuit *c, const char *name, size_t n);
 
-/* Appends a part (copied; pins copied). Returns its index or NL_NONE on
- * out-of-memory. */
-uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p);
+/* Appends a part (copied) with its npins node ids (copied; p->pin0 is
+ * ignored). Returns its index or NL_NONE on out-of-memory. */
+uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p,
+		     const uint32_t *pins);
+
+/* The node ids of part p. Valid until the next nl_add_part. */
+const uint32_t *nl_pins(const struct nl_circuit *c, const struct nl_part *p);
+
+/* The part's location in diagnostic form. */
+struct diag_loc nl_part_loc(const struct nl_part *p);
+/* Packs a diagnostic location. */
+struct nl_loc nl_loc_pack(struct diag_loc l);
 
 size_t nl_part_count(const struct nl_circuit *c);
 size_t nl_node_count(const struct nl_circuit *c);

@@ -128,24 +128,30 @@ static struct block *new_block(struct arena *ar, size_t n)
 	return b;
 }
 
-void *arena_alloc(struct arena *ar, size_t n)
+void *arena_alloc_aligned(struct arena *ar, size_t n, size_t align)
 {
 	if (n > SIZE_MAX - ARENA_ALIGN)
 		return NULL;
-	n = (n + ARENA_ALIGN - 1) & ~(size_t)(ARENA_ALIGN - 1);
 	if (n == 0)
-		n = ARENA_ALIGN;
+		n = 1;
 	struct block *b = ar->head;
-	if (!b || b->size - b->used < n) {
+	size_t start = b ? (b->used + align - 1) & ~(align - 1) : 0;
+	if (!b || start > b->size || b->size - start < n) {
 		b = new_block(ar, n);
 		if (!b)
 			return NULL;
 		b->next = ar->head;
 		ar->head = b;
+		start = 0;
 	}
-	void *p = (char *)b + header_size() + b->used;
-	b->used += n;
+	void *p = (char *)b + header_size() + start;
+	b->used = start + n;
 	return p;
+}
+
+void *arena_alloc(struct arena *ar, size_t n)
+{
+	return arena_alloc_aligned(ar, n, ARENA_ALIGN);
 }
 
 void *arena_zalloc(struct arena *ar, size_t n)
@@ -158,7 +164,7 @@ void *arena_zalloc(struct arena *ar, size_t n)
 
 char *arena_strndup(struct arena *ar, const char *s, size_t n)
 {
-	char *p = arena_alloc(ar, n + 1);
+	char *p = arena_alloc_aligned(ar, n + 1, 1);
 	if (!p)
 		return NULL;
 	if (n)

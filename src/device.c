@@ -515,13 +515,12 @@ static enum dev_status finish(struct build *b)
 	struct arena *ar = nl_arena(b->c);
 	const char *name = b->card->head;
 	size_t plen = strlen(b->s->prefix), nlen = b->card->headlen;
-	char *path = arena_alloc(ar, plen + nlen + 1);
+	char *path = arena_alloc_aligned(ar, plen + nlen + 1, 1);
 	if (!path)
 		return DEV_OOM;
 	memcpy(path, b->s->prefix, plen);
 	memcpy(path + plen, name, nlen + 1);
 	b->part.path = path;
-	b->part.pins = b->pins;
 	if (b->s->mult != 1.0)
 		set_mult(b, b->ext.mult * b->s->mult);
 	if (b->has_ext) {
@@ -531,7 +530,7 @@ static enum dev_status finish(struct build *b)
 		*e = b->ext;
 		b->part.ext = e;
 	}
-	return nl_add_part(b->c, &b->part) == NL_NONE ? DEV_OOM : DEV_OK;
+	return nl_add_part(b->c, &b->part, b->pins) == NL_NONE ? DEV_OOM : DEV_OK;
 }
 
 enum dev_status dev_build(const struct dev_scope *s,
@@ -544,7 +543,7 @@ enum dev_status dev_build(const struct dev_scope *s,
 	b.card = card;
 	b.c = c;
 	b.d = d;
-	b.part.loc = card->loc;
+	b.part.loc = nl_loc_pack(card->loc);
 	b.ext.mult = 1.0;
 	b.ext.ic = NAN;
 	b.ext.ctrl_part[0] = b.ext.ctrl_part[1] = NL_NONE;

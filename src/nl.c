@@ -21,6 +21,8 @@ struct nl_circuit {
 	uint32_t *table;     /* node ids + 1; 0 = empty slot */
 	size_t table_cap;
 	uint32_t *adj;       /* built by nl_finish */
+	uint32_t *pins;      /* node ids of all parts, in part order */
+	size_t npins, cap_pins;
 };
 
 static int push_chunk(struct nl_circuit *c, void ***chunks, size_t *cap,
@@ -75,6 +77,7 @@ void nl_destroy(struct nl_circuit *c)
 	hr_free(&a, c->node_chunks);
 	hr_free(&a, c->table);
 	hr_free(&a, c->adj);
+	hr_free(&a, c->pins);
 	arena_destroy(c->ar);
 	hr_free(&a, c);
 }
@@ -183,23 +186,56 @@ uint32_t nl_node_intern(struct nl_circuit *c, const char *name, size_t n)
 	return (uint32_t)c->nnodes++;
 }
 
-uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p)
+static int reserve_pins(struct nl_circuit *c, size_t n)
 {
-	if (c->nparts >= NL_NONE - 1)
+	if (c->npins + n <= c->cap_pins)
+		return 1;
+	size_t ncap = c->cap_pins ? c->cap_pins * 2 : 4096;
+	while (ncap < c->npins + n)
+		ncap *= 2;
+	if (ncap > NL_NONE)
+		return 0;
+	uint32_t *np = hr_realloc(&c->hook, c->pins, ncap * sizeof *np);
+	if (!np)
+		return 0;
+	c->pins = np;
+	c->cap_pins = ncap;
+	return 1;
+}
+
+uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p,
+		     const uint32_t *pins)
+{
+	if (c->nparts >= NL_NONE - 1 || !reserve_pins(c, p->npins))
 		return NL_NONE;
 	if (!push_chunk(c, &c->part_chunks, &c->part_chunk_cap, c->nparts,
 			sizeof(struct nl_part)))
 		return NL_NONE;
 	struct nl_part *d = part_ref(c, c->nparts);
 	*d = *p;
-	if (p->npins) {
-		uint32_t *pins = arena_alloc(c->ar, p->npins * sizeof *pins);
-		if (!pins)
-			return NL_NONE;
-		memcpy(pins, p->pins, p->npins * sizeof *pins);
-		d->pins = pins;
-	}
+	d->pin0 = (uint32_t)c->npins;
+	if (p->npins)
+		memcpy(c->pins + c->npins, pins, p->npins * sizeof *pins);
+	c->npins += p->npins;
 	return (uint32_t)c->nparts++;
+}
+
+const uint32_t *nl_pins(const struct nl_circuit *c, const struct nl_part *p)
+{
+	return c->pins + p->pin0;
+}
+
+struct diag_loc nl_part_loc(const struct nl_part *p)
+{
+	struct diag_loc l = {p->loc.file, p->loc.line, p->loc.col};
+	return l;
+}
+
+struct nl_loc nl_loc_pack(struct diag_loc l)
+{
+	struct nl_loc p = {l.line, (uint16_t)(l.col > 65535 ? 65535 : l.col),
+			   (uint16_t)(l.file > 65535 ? 65535 : l.file)};
+	return p;
 }
 
 size_t nl_part_count(const struct nl_circuit *c)
@@ -233,7 +269,7 @@ int nl_finish(struct nl_circuit *c)
 	for (size_t i = 0; i < c->nparts; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
 		for (uint16_t k = 0; k < p->npins; k++)
-			node_ref(c, p->pins[k])->adj_len++;
+			node_ref(c, c->pins[p->pin0 + k])->adj_len++;
 		total += p->npins;
 	}
 	hr_free(&c->hook, c->adj);
@@ -250,7 +286,7 @@ int nl_finish(struct nl_circuit *c)
 	for (size_t i = 0; i < c->nparts; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
 		for (uint16_t k = 0; k < p->npins; k++) {
-			struct nl_node *nd = node_ref(c, p->pins[k]);
+			struct nl_node *nd = node_ref(c, c->pins[p->pin0 + k]);
 			c->adj[nd->adj_start + nd->adj_len++] = (uint32_t)i;
 		}
 	}
@@ -267,11 +303,8 @@ const uint32_t *nl_adjacency(const struct nl_circuit *c, uint32_t node,
 
 size_t nl_footprint(const struct nl_circuit *c)
 {
-	size_t total = 0;
-	for (size_t i = 0; i < c->nparts; i++)
-		total += nl_part_at(c, i)->npins;
 	return arena_footprint(c->ar) + c->table_cap * sizeof *c->table +
-	       total * sizeof *c->adj;
+	       2 * c->npins * sizeof *c->adj;
 }
 
 const char *nl_kind_name(enum nl_kind k)

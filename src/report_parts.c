@@ -99,9 +99,10 @@ static size_t node_list(const struct nl_circuit *c, const struct nl_part *p,
 {
 	size_t k = 0;
 	buf[0] = '\0';
+	const uint32_t *pins = nl_pins(c, p);
 	for (uint16_t i = 0; i < p->npins && k < n; i++)
 		k += (size_t)snprintf(buf + k, n - k, "%s%s", i ? sep : "",
-				      nl_node_at(c, p->pins[i])->name);
+				      nl_node_at(c, pins[i])->name);
 	return k;
 }
 
@@ -184,7 +185,7 @@ static void json_part(FILE *out, const struct nl_circuit *c,
 		nl_kind_name(p->kind), p->letter);
 	for (uint16_t k = 0; k < p->npins; k++) {
 		fputs(k ? ", " : "", out);
-		report_json_string(out, nl_node_at(c, p->pins[k])->name);
+		report_json_string(out, nl_node_at(c, nl_pins(c, p)[k])->name);
 	}
 	fprintf(out, "], \"value\": %.9g, \"unit\": \"%s\", \"text\": ", p->value,
 		nl_value_unit(p));

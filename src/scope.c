@@ -621,7 +621,7 @@ static void link_part(struct elab *el, struct smap *paths, struct nl_part *p)
 		uint32_t q = find_part(el, paths, p->path, p->ext->ctrl[i]);
 		enum nl_kind want = p->kind == NL_K ? NL_L : NL_V;
 		if (q == NL_NONE || nl_part_at(el->c, q)->kind != want) {
-			diag_add(el->d, DIAG_ERROR, "element", p->loc,
+			diag_add(el->d, DIAG_ERROR, "element", nl_part_loc(p),
 				 "'%s' names '%s', which is not %s in the same circuit",
 				 p->path, p->ext->ctrl[i],
 				 want == NL_L ? "an inductor" : "a voltage source");

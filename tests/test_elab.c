@@ -76,7 +76,7 @@ static void test_hierarchy(void **state)
 	assert_string_equal(pin_name(&r, find_part(&r, "Xtop.X2.C1"), 1), "n2");
 	/* .global and ground aliases are not renamed */
 	assert_string_equal(pin_name(&r, find_part(&r, "Xtop.X2.R2"), 1), "vdd");
-	assert_int_equal(find_part(&r, "Xtop.X2.R3")->pins[1], NL_GROUND);
+	assert_int_equal(nl_pins(r.r.circuit, find_part(&r, "Xtop.X2.R3"))[1], NL_GROUND);
 	/* the nested definition and its local model */
 	p = find_part(&r, "Xtop.Xi.D1");
 	assert_non_null(p);

@@ -135,7 +135,7 @@ static inline const struct nl_part *find_part(const struct run *run, const char 
 static inline const char *pin_name(const struct run *run, const struct nl_part *p,
 			    int k)
 {
-	return nl_node_at(run->r.circuit, p->pins[k])->name;
+	return nl_node_at(run->r.circuit, nl_pins(run->r.circuit, p)[k])->name;
 }
 
 #endif
