@@ -59,6 +59,27 @@ struct lex_text {
 	int kind; /* enum deck_card_kind, for card heads */
 };
 
+/* Fields of a card while it is being parsed: a linked list in scratch. */
+struct field_list {
+	struct deck_field *first, *last;
+	uint32_t n;
+};
+
+/* A whole element line of plain words, scanned as one token: its head and
+ * its words as atom fields. */
+struct lex_simple {
+	struct lex_text head;
+	struct field_list *fields;
+};
+
+/* List and field builders shared by scanner and parser (spice.l). They set
+ * ctx->oom and return NULL (or the list unchanged) on out-of-memory. */
+struct field_list *lex_list_new(struct lex_ctx *ctx);
+struct field_list *lex_list_add(struct lex_ctx *ctx, struct field_list *l,
+				struct deck_field *f);
+struct deck_field *lex_field_new(struct lex_ctx *ctx, enum deck_field_kind kind,
+				 struct lex_text t, uint32_t line, uint32_t col);
+
 /* Puts a fresh scanner in its first mode (title line or card start). */
 void lex_start(void *scanner, int has_title);
 /* Puts a fresh scanner in expression mode, for parse_expr_text. */

@@ -10,10 +10,6 @@
 
 %code requires {
 #include "lexctx.h"
-struct field_list {
-	struct deck_field *first, *last;
-	uint32_t n;
-};
 }
 
 %code provides {
@@ -36,43 +32,35 @@ static struct diag_loc at(const struct lex_ctx *ctx, const YYLTYPE *l)
 
 static struct field_list *list_new(struct lex_ctx *ctx)
 {
-	struct field_list *l = arena_zalloc(ctx->scratch, sizeof *l);
-	if (!l)
-		ctx->oom = 1;
-	return l;
+	return lex_list_new(ctx);
 }
 
 static struct field_list *list_add(struct lex_ctx *ctx, struct field_list *l,
 				   struct deck_field *f)
 {
-	if (!l || !f) {
-		ctx->oom = 1;
-		return l;
-	}
-	if (l->last)
-		l->last->next = f;
-	else
-		l->first = f;
-	l->last = f;
-	l->n++;
-	return l;
+	return lex_list_add(ctx, l, f);
 }
 
 static struct deck_field *field_new(struct lex_ctx *ctx,
 				    enum deck_field_kind kind,
 				    struct lex_text t, const YYLTYPE *loc)
 {
-	struct deck_field *f = arena_zalloc(ctx->scratch, sizeof *f);
-	if (!f) {
-		ctx->oom = 1;
-		return NULL;
-	}
-	f->kind = kind;
-	f->text = t.s;
-	f->len = t.n;
-	f->line = (uint32_t)loc->first_line;
-	f->col = (uint32_t)loc->first_column;
-	return f;
+	return lex_field_new(ctx, kind, t, (uint32_t)loc->first_line,
+			     (uint32_t)loc->first_column);
+}
+
+/* The plain words of a one-token line followed by any continuation fields. */
+static struct field_list *join(struct field_list *a, struct field_list *b)
+{
+	if (!a || !b || b->n == 0)
+		return a;
+	if (a->last)
+		a->last->next = b->first;
+	else
+		a->first = b->first;
+	a->last = b->last;
+	a->n += b->n;
+	return a;
 }
 
 /* Turns a linked field list into an array (the shape cards carry). */
@@ -162,6 +150,7 @@ static struct expr *call_expr(struct lex_ctx *ctx, struct lex_text name,
 
 %union {
 	struct lex_text text;
+	struct lex_simple simple;
 	double num;
 	int kind;
 	struct expr *expr;
@@ -171,6 +160,7 @@ static struct expr *call_expr(struct lex_ctx *ctx, struct lex_text name,
 
 %token <text> TITLE "title line"
 %token <text> ELEM "element name"
+%token <simple> SIMPLE "element card"
 %token <text> ANNOT "annotation"
 %token <text> ATOM "word"
 %token <text> IDENT "name"
@@ -231,6 +221,7 @@ cards
 
 card
 	: ELEM fields EOL { emit(ctx, CARD_ELEMENT, $1, &@1, $2); }
+	| SIMPLE fields EOL { emit(ctx, CARD_ELEMENT, $1.head, &@1, join($1.fields, $2)); }
 	| DOTCARD fields EOL { emit(ctx, (enum deck_card_kind)$1.kind, $1, &@1, $2); }
 	| WORDCARD fields EOL { emit(ctx, (enum deck_card_kind)$1.kind, $1, &@1, $2); }
 	| PARAMCARD assigns EOL { emit(ctx, CARD_PARAM, $1, &@1, $2); }

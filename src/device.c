@@ -4,6 +4,7 @@
 #include "device.h"
 
 #include <math.h>
+#include <stddef.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -413,8 +414,14 @@ static const struct opaque_rule *opaque_rule(char letter)
 
 int dev_needs_models(char letter)
 {
-	const struct opaque_rule *r = opaque_rule(letter);
-	return r && r->model && r->min_nodes != r->max_nodes;
+	switch (letter) {
+	case 'r': case 'c': case 'l': case 'd': case 'v': case 'i':
+		return 0; /* the common letters, answered without the table */
+	default: {
+		const struct opaque_rule *r = opaque_rule(letter);
+		return r && r->model && r->min_nodes != r->max_nodes;
+	}
+	}
 }
 
 static enum dev_status build_modelled(struct build *b,
@@ -537,8 +544,8 @@ enum dev_status dev_build(const struct dev_scope *s,
 			  const struct deck_card *card, struct nl_circuit *c,
 			  struct diag_sink *d)
 {
-	struct build b;
-	memset(&b, 0, sizeof b);
+	struct build b; /* pins[] is filled as nodes are taken, not cleared */
+	memset(&b, 0, offsetof(struct build, pins));
 	b.s = s;
 	b.card = card;
 	b.c = c;

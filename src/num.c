@@ -103,6 +103,32 @@ static size_t scan_mantissa(const char *s, size_t n, enum num_status *st)
 	return i;
 }
 
+/* Exact powers of ten: every one up to 1e22 is a double. */
+static const double pow10_exact[] = {
+	1e0,  1e1,  1e2,  1e3,  1e4,  1e5,  1e6,  1e7,  1e8,  1e9,  1e10, 1e11,
+	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22};
+
+/* The value of a scanned mantissa. Short decimals take the exact fast path
+ * (at most 15 digits and an exponent of at most 22 in magnitude: one
+ * rounding, the same result strtod gives); everything else is strtod's. */
+static double mantissa_value(const char *t, size_t n)
+{
+	size_t i = 0;
+	int neg = 0, exp10 = 0, digits = 0;
+	unsigned long long m = 0;
+	if (t[i] == '+' || t[i] == '-')
+		neg = t[i++] == '-';
+	for (; i < n && is_digit(t[i]); i++, digits++)
+		m = m * 10 + (unsigned)(t[i] - '0');
+	if (i < n && t[i] == '.')
+		for (i++; i < n && is_digit(t[i]); i++, digits++, exp10--)
+			m = m * 10 + (unsigned)(t[i] - '0');
+	if (i < n || digits > 15 || exp10 < -22)
+		return strtod(t, NULL); /* exponent part, or too long */
+	double v = (double)m / pow10_exact[-exp10];
+	return neg ? -v : v;
+}
+
 /* Letter code: whole digits, letters (scale, or R for units), digits
  * standing for the fraction, then optional unit letters. */
 static enum num_status parse_rkm(const char *s, size_t n, size_t i,
@@ -174,7 +200,7 @@ enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad)
 		return NUM_BAD_CHAR;
 	}
 	errno = 0;
-	double v = strtod(tmp, NULL) * scale_of(s + i, letters - i);
+	double v = mantissa_value(tmp, i) * scale_of(s + i, letters - i);
 	if (!isfinite(v) || errno == ERANGE) {
 		if (bad)
 			*bad = 0;

@@ -1,0 +1,105 @@
+#!/usr/bin/env bash
+# make bench: speed and memory of parse + elaborate (`headroom parts
+# --format count`) against the floor (`wc -l` on the same file, and a bare
+# flex tokenizer) and against ngspice loading the same deck in batch mode
+# (no analysis). Prints ratios; never fails on a number (targets are read,
+# not asserted: docs/performance.md records them).
+set -euo pipefail
+bin=${1:-build/headroom}
+work=$(mktemp -d)
+trap 'rm -rf "$work"' EXIT
+runs=${BENCH_RUNS:-3}
+
+# Best (smallest) wall time in seconds and peak RSS in KB of a command.
+measure() {
+	local best_t=999999 best_m=0 t m t0 t1
+	for _ in $(seq "$runs"); do
+		t0=$(date +%s%N)
+		/usr/bin/time -f "%M" -o "$work/time" "$@" >/dev/null 2>&1 || true
+		t1=$(date +%s%N)
+		t=$(awk -v a="$t0" -v b="$t1" 'BEGIN{printf "%.4f", (b-a)/1e9}')
+		m=$(tail -n 1 "$work/time")
+		if awk -v a="$t" -v b="$best_t" 'BEGIN{exit !(a<b)}'; then best_t=$t; fi
+		[ "$m" -gt "$best_m" ] && best_m=$m
+	done
+	echo "$best_t $best_m"
+}
+
+# A flat deck of N clamp stages: each a series R, a coupling C and a diode.
+flat_deck() {
+	awk -v n="$1" 'BEGIN {
+		print "flat clamp benchmark"
+		print "Vin in 0 sin(0 10 1k)"
+		print ".model dclamp d is=1e-14 bv=100"
+		for (k = 1; k <= n; k++)
+			printf "R%d in a%d 100\nC%d a%d x%d 1u\nD%d 0 x%d dclamp\n", k, k, k, k, k, k, k
+		print ".end" }'
+}
+
+# N instances of a three-level subcircuit (12 parts per instance).
+hier_deck() {
+	awk -v n="$1" 'BEGIN {
+		print "hierarchical benchmark"
+		print "Vin in 0 sin(0 10 1k)"
+		print ".model dclamp d is=1e-14 bv=100"
+		print ".subckt leaf a b params: c=1u"
+		print "R1 a m 100"
+		print "C1 m b {c}"
+		print "D1 0 b dclamp"
+		print ".ends"
+		print ".subckt mid a b"
+		print "X1 a m leaf c=2u"
+		print "X2 m b leaf"
+		print ".ends"
+		print ".subckt top a b"
+		print "X1 a m mid"
+		print "X2 m b mid"
+		print ".ends"
+		for (k = 1; k <= n; k++)
+			printf "X%d in o%d top\n", k, k
+		print ".end" }'
+}
+
+# The floor: a flex tokenizer that only splits words.
+cat > "$work/floor.l" <<'LEX'
+%option noyywrap nounput noinput full
+%%
+[^ \t\r\n]+ { return 1; }
+[ \t\r\n]+  ;
+%%
+int main(void) { long n = 0; while (yylex()) n++; printf("%ld\n", n); return 0; }
+LEX
+flex -o "$work/floor.c" "$work/floor.l"
+cc -O2 -o "$work/floor" "$work/floor.c"
+
+have_ngspice=1
+command -v ngspice >/dev/null 2>&1 || have_ngspice=0
+
+report() { # name, file, parts
+	local name=$1 file=$2 parts=$3
+	read -r th mh < <(measure "$bin" parts --format count "$file")
+	read -r tw _ < <(measure wc -l "$file")
+	read -r tf _ < <(measure sh -c "'$work/floor' < '$file'")
+	printf '%-22s parts %8d  headroom %6.3f s %7d KB  %5.1f B/part\n' \
+		"$name" "$parts" "$th" "$mh" "$(awk -v m="$mh" -v p="$parts" 'BEGIN{print m*1024/p}')"
+	printf '%-22s floor: wc -l %.3f s, flex tokenizer %.3f s; headroom / tokenizer = %.1fx\n' \
+		"" "$tw" "$tf" "$(awk -v a="$th" -v b="$tf" 'BEGIN{print (b>0)?a/b:0}')"
+	if [ $have_ngspice -eq 1 ]; then
+		read -r tn mn < <(BENCH_RUNS=1 measure ngspice -b "$file")
+		printf '%-22s ngspice load %.3f s %d KB (%.0f B/part); ngspice / headroom = %.1fx (target >= 40x)\n' \
+			"" "$tn" "$mn" "$(awk -v m="$mn" -v p="$parts" 'BEGIN{print m*1024/p}')" \
+			"$(awk -v a="$tn" -v b="$th" 'BEGIN{print (b>0)?a/b:0}')"
+	fi
+	echo "$th" > "$work/$name.t"
+}
+
+echo "bench: parse + elaborate, best of $runs runs"
+flat_deck 20000 > "$work/flat20k.cir"
+flat_deck 200000 > "$work/flat200k.cir"
+hier_deck 10000 > "$work/hier10k.cir"
+report flat-60k-parts "$work/flat20k.cir" 60001
+report flat-600k-parts "$work/flat200k.cir" 600001
+report hier-10k-instances "$work/hier10k.cir" 120001
+t1=$(cat "$work/flat-60k-parts.t") t2=$(cat "$work/flat-600k-parts.t")
+echo "bench: growth 10x parts -> $(awk -v a="$t2" -v b="$t1" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
+[ $have_ngspice -eq 1 ] || echo "bench: ngspice not installed: simulator ratios skipped"
