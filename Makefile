@@ -64,6 +64,7 @@ test-run: $(BUILD)/headroom $(TESTS)
 		HEADROOM=$(BUILD)/headroom $$t; done
 	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
+	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py
 
 check: deps
 	@$(MAKE) --no-print-directory test-run

@@ -5,6 +5,8 @@
 #   libcmocka-dev        unit-test framework (tests/)
 #   ngspice              reference simulator for the comparison tests
 #   libxml2-utils        xmllint, to check XML reports are well formed
+#   python3              runs the comparison scripts in tests/
+#   time                 /usr/bin/time, peak memory in make bench
 set -euo pipefail
 
 need=()
@@ -13,6 +15,10 @@ command -v bison >/dev/null 2>&1 || need+=(bison)
 [ -f /usr/include/cmocka.h ] || need+=(libcmocka-dev)
 command -v ngspice >/dev/null 2>&1 || need+=(ngspice)
 command -v xmllint >/dev/null 2>&1 || need+=(libxml2-utils)
+command -v python3 >/dev/null 2>&1 || need+=(python3)
+[ -x /usr/bin/time ] || need+=(time)
+command -v cc >/dev/null 2>&1 || need+=(gcc)
+command -v make >/dev/null 2>&1 || need+=(make)
 
 if [ ${#need[@]} -eq 0 ]; then
 	echo "deps: everything is installed"

@@ -187,7 +187,7 @@ static void json_part(FILE *out, const struct nl_circuit *c,
 		fputs(k ? ", " : "", out);
 		report_json_string(out, nl_node_at(c, nl_pins(c, p)[k])->name);
 	}
-	fprintf(out, "], \"value\": %.9g, \"unit\": \"%s\", \"text\": ", p->value,
+	fprintf(out, "], \"value\": %.15g, \"unit\": \"%s\", \"text\": ", p->value,
 		nl_value_unit(p));
 	report_part_value(p, buf, sizeof buf);
 	report_json_string(out, buf);
