@@ -45,8 +45,9 @@ int num_ieq(const char *s, size_t n, const char *word);
 /* Case-insensitive equality of a[0..an) and b[0..bn). */
 int num_iequal(const char *a, size_t an, const char *b, size_t bn);
 
-/* Formats v with an engineering suffix and unit into buf ("4.7k", "100n"),
- * at most 4 significant digits. */
+/* Formats v with at most 4 significant digits: without a unit in SPICE
+ * spelling ("4.7k", "2.2Meg"), with one in SI spelling ("4.7 kV",
+ * "2.2 MHz"). */
 void num_format_eng(double v, const char *unit, char *buf, size_t n);
 
 #endif

@@ -2,6 +2,7 @@
  * and is the only place that picks output streams and exit codes:
  * 0 clean, 1 findings at or above --fail-on, 2 usage or netlist errors. */
 #include <errno.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -9,7 +10,9 @@
 #include "arena.h"
 #include "diag.h"
 #include "elab.h"
+#include "audit.h"
 #include "report_parts.h"
+#include "report_topo.h"
 
 #define HEADROOM_VERSION "0.1.0"
 #define EXIT_USAGE 2
@@ -17,6 +20,7 @@
 struct cli {
 	const char *cmd;
 	enum report_parts_format fmt;
+	const char *fmt_name;
 	struct elab_opts eo;
 	unsigned max_errors;
 	const char **files;
@@ -32,9 +36,12 @@ static void usage(FILE *out)
 	      "\n"
 	      "commands:\n"
 	      "  parts FILE...        list the flattened parts of each netlist\n"
+	      "  topo FILE...         find clamps, detectors, doublers, ladders, pumps\n"
+	      "                       and rectifiers; print parts, roles, node ranges\n"
 	      "\n"
 	      "options:\n"
 	      "  --format FMT         parts: text (default), csv, json, count\n"
+	      "                       topo: text (default), json\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
 	      "                       (default 10000000)\n"
 	      "  --max-errors N       errors reported per file before giving up\n"
@@ -59,6 +66,7 @@ static int parse_count(const char *s, size_t *out)
 
 static int set_format(struct cli *c, const char *f)
 {
+	c->fmt_name = f;
 	static const struct {
 		const char *name;
 		enum report_parts_format fmt;
@@ -149,6 +157,41 @@ static int run_parts(const struct cli *c)
 	return status;
 }
 
+/* headroom topo: the structures of each file. */
+static int run_topo(const struct cli *c)
+{
+	struct hr_alloc hook = hr_alloc_default();
+	enum report_topo_format fmt = c->fmt_name && strcmp(c->fmt_name, "json") == 0 ? RT_JSON : RT_TEXT;
+	int status = 0;
+	if (c->fmt_name && strcmp(c->fmt_name, "json") != 0 && strcmp(c->fmt_name, "text") != 0) {
+		fprintf(stderr, "headroom: topo writes text or json, not '%s'\n", c->fmt_name);
+		return EXIT_USAGE;
+	}
+	for (int i = 0; i < c->nfiles; i++) {
+		struct arena *ar = arena_create(&hook);
+		struct diag_sink *d = ar ? diag_create(ar, c->max_errors) : NULL;
+		struct audit a;
+		struct audit_opts o;
+		memset(&o, 0, sizeof o);
+		o.elab = c->eo;
+		o.source_tol = NAN;
+		enum audit_status st = d ? audit_file(c->files[i], &o, &hook, d, &a) : AUDIT_OOM;
+		if (st == AUDIT_OOM)
+			fprintf(stderr, "%s: error: out of memory\n", c->files[i]);
+		else
+			report_topo(stdout, fmt, c->files[i], &a, d, i == 0, i + 1 == c->nfiles);
+		if (d)
+			diag_render(d, UINT32_MAX, stderr);
+		if (st != AUDIT_OK)
+			status = EXIT_USAGE;
+		if (d)
+			audit_free(&a);
+		diag_destroy(d);
+		arena_destroy(ar);
+	}
+	return status;
+}
+
 int main(int argc, char **argv)
 {
 	struct cli c;
@@ -172,8 +215,10 @@ int main(int argc, char **argv)
 		usage(stderr);
 	} else if (strcmp(c.cmd, "parts") == 0 && c.nfiles > 0) {
 		rc = run_parts(&c);
-	} else if (strcmp(c.cmd, "parts") == 0) {
-		fprintf(stderr, "headroom: parts needs at least one netlist file\n");
+	} else if (strcmp(c.cmd, "topo") == 0 && c.nfiles > 0) {
+		rc = run_topo(&c);
+	} else if (strcmp(c.cmd, "parts") == 0 || strcmp(c.cmd, "topo") == 0) {
+		fprintf(stderr, "headroom: %s needs at least one netlist file\n", c.cmd);
 	} else {
 		fprintf(stderr, "headroom: unknown command '%s' (see --help)\n", c.cmd);
 	}

@@ -260,21 +260,24 @@ int num_iequal(const char *a, size_t an, const char *b, size_t bn)
 
 void num_format_eng(double v, const char *unit, char *buf, size_t n)
 {
+	/* without a unit: SPICE spelling ("2.2Meg"); with one: SI ("2.2 MHz") */
 	static const struct {
 		double scale;
-		const char *name;
-	} tab[] = {{1e12, "T"}, {1e9, "G"}, {1e6, "Meg"}, {1e3, "k"},
-		   {1.0, ""},   {1e-3, "m"}, {1e-6, "u"},  {1e-9, "n"},
-		   {1e-12, "p"}, {1e-15, "f"}};
+		const char *spice, *si;
+	} tab[] = {{1e12, "T", "T"}, {1e9, "G", "G"}, {1e6, "Meg", "M"},
+		   {1e3, "k", "k"},  {1.0, "", ""},   {1e-3, "m", "m"},
+		   {1e-6, "u", "u"}, {1e-9, "n", "n"}, {1e-12, "p", "p"},
+		   {1e-15, "f", "f"}};
+	int si = unit[0] != '\0';
 	double a = fabs(v);
 	if (a == 0.0 || !isfinite(v)) {
-		snprintf(buf, n, "%g%s", v, unit);
+		snprintf(buf, n, "%g%s%s", v, si ? " " : "", unit);
 		return;
 	}
 	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++) {
 		if (a >= tab[i].scale * 0.9999999 || i + 1 == sizeof tab / sizeof tab[0]) {
-			snprintf(buf, n, "%.4g%s%s", v / tab[i].scale, tab[i].name,
-				 unit);
+			snprintf(buf, n, "%.4g%s%s%s", v / tab[i].scale, si ? " " : "",
+				 si ? tab[i].si : tab[i].spice, unit);
 			return;
 		}
 	}

@@ -105,9 +105,9 @@ static void test_format(void **state)
 	num_format_eng(4700, "", b, sizeof b);
 	assert_string_equal(b, "4.7k");
 	num_format_eng(1e-7, "F", b, sizeof b);
-	assert_string_equal(b, "100nF");
+	assert_string_equal(b, "100 nF");
 	num_format_eng(0, "V", b, sizeof b);
-	assert_string_equal(b, "0V");
+	assert_string_equal(b, "0 V");
 	num_format_eng(2.2e6, "", b, sizeof b);
 	assert_string_equal(b, "2.2Meg");
 }
