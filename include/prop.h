@@ -43,6 +43,8 @@ struct prop_node {
 	double zs;              /* series resistance back to the driving source */
 	double klo, khi;        /* diode bounds on the DC while SHAPED */
 	uint32_t lo_by, hi_by;  /* diodes giving klo and khi */
+	double slo, shi;        /* soft bounds: a DC node that resistors set */
+	uint8_t has_slo, has_shi;
 };
 
 /* Per voltage-source part: an override of its DC by a slowly moving range

@@ -9,7 +9,7 @@
 
 #include "audit.h"
 
-enum report_topo_format { RT_TEXT, RT_JSON };
+enum report_topo_format { RT_TEXT, RT_JSON, RT_COUNT };
 
 /* Writes one file's structures. first/last bracket the JSON file list. */
 void report_topo(FILE *out, enum report_topo_format fmt, const char *path,

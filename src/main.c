@@ -41,7 +41,7 @@ static void usage(FILE *out)
 	      "\n"
 	      "options:\n"
 	      "  --format FMT         parts: text (default), csv, json, count\n"
-	      "                       topo: text (default), json\n"
+	      "                       topo: text (default), json, count\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
 	      "                       (default 10000000)\n"
 	      "  --max-errors N       errors reported per file before giving up\n"
@@ -161,10 +161,14 @@ static int run_parts(const struct cli *c)
 static int run_topo(const struct cli *c)
 {
 	struct hr_alloc hook = hr_alloc_default();
-	enum report_topo_format fmt = c->fmt_name && strcmp(c->fmt_name, "json") == 0 ? RT_JSON : RT_TEXT;
+	enum report_topo_format fmt = RT_TEXT;
 	int status = 0;
-	if (c->fmt_name && strcmp(c->fmt_name, "json") != 0 && strcmp(c->fmt_name, "text") != 0) {
-		fprintf(stderr, "headroom: topo writes text or json, not '%s'\n", c->fmt_name);
+	if (c->fmt_name && strcmp(c->fmt_name, "json") == 0)
+		fmt = RT_JSON;
+	else if (c->fmt_name && strcmp(c->fmt_name, "count") == 0)
+		fmt = RT_COUNT;
+	else if (c->fmt_name && strcmp(c->fmt_name, "text") != 0) {
+		fprintf(stderr, "headroom: topo writes text, json or count, not '%s'\n", c->fmt_name);
 		return EXIT_USAGE;
 	}
 	for (int i = 0; i < c->nfiles; i++) {

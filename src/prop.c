@@ -459,6 +459,18 @@ static void bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
 	}
 }
 
+static void soft_bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
+{
+	struct prop_node *n = N(u, x), *m = N(u, r);
+	if (pins(u, nl_part_at(u->c, part))[0] == r) {
+		n->slo = n->has_slo ? fmax(n->slo, m->f->hi) : m->f->hi;
+		n->has_slo = 1;
+	} else {
+		n->shi = n->has_shi ? fmin(n->shi, m->f->lo) : m->f->lo;
+		n->has_shi = 1;
+	}
+}
+
 /* A diode between two settled nodes: flag forward conduction where the
  * ideal no-load model says none can happen (a pinned node clipped). */
 static void check(struct run *u, uint32_t part)
@@ -483,6 +495,19 @@ static void check(struct run *u, uint32_t part)
 	}
 }
 
+/* True if a resistor or inductor (not a coupled one) touches node x. */
+static int has_resistor(struct run *u, uint32_t x)
+{
+	uint32_t n;
+	const uint32_t *adj = nl_adjacency(u->c, x, &n);
+	for (uint32_t i = 0; i < n; i++) {
+		const struct nl_part *p = nl_part_at(u->c, adj[i]);
+		if ((p->kind == NL_R || p->kind == NL_L) && !coupled(u, adj[i]))
+			return 1;
+	}
+	return 0;
+}
+
 static void diodes_at(struct run *u, uint32_t r)
 {
 	uint32_t n;
@@ -495,7 +520,13 @@ static void diodes_at(struct run *u, uint32_t r)
 		uint32_t x = q[0] == r ? q[1] : q[0];
 		if (x == r)
 			continue;
-		if (N(u, x)->state == PS_SHAPED)
+		/* A node without AC on a diode to a node without AC, with a
+		 * resistor of its own, is set by the resistor (a zener feed, a
+		 * diode OR): the diode only bounds what the resistor sets. */
+		if (N(u, x)->state == PS_SHAPED && form_is_dc(N(u, x)->f) &&
+		    form_is_dc(N(u, r)->f) && has_resistor(u, x))
+			soft_bound(u, adj[i], r, x);
+		else if (N(u, x)->state == PS_SHAPED)
 			bound(u, adj[i], r, x);
 		else if (N(u, x)->state == PS_RESOLVED && (q[1] == r || x < r))
 			check(u, adj[i]);
@@ -608,12 +639,102 @@ static const struct form *resistive_mean(struct run *u, uint32_t x,
 	return *count ? form_lin(fc, 1 / total, sum, 0, sum) : NULL;
 }
 
+/* The difference v(a) - v(b) when a voltage source or the secondary of a
+ * settled transformer sits directly between a and b; NULL otherwise. */
+static const struct form *floating_difference(struct run *u, uint32_t a,
+					      uint32_t b)
+{
+	uint32_t n;
+	const uint32_t *adj = nl_adjacency(u->c, a, &n);
+	for (uint32_t i = 0; i < n; i++) {
+		const struct nl_part *p = nl_part_at(u->c, adj[i]);
+		const uint32_t *q = pins(u, p);
+		if ((q[0] != a || q[1] != b) && (q[0] != b || q[1] != a))
+			continue;
+		double sign = q[0] == a ? 1.0 : -1.0;
+		if (p->kind == NL_V) {
+			const struct form *s = source_form(u, adj[i]);
+			return s ? form_lin(&u->r->fc, sign, s, 0, s) : NULL;
+		}
+		uint32_t k = p->kind == NL_L ? u->k_of_l[adj[i]] : NL_NONE;
+		if (k == NL_NONE)
+			continue;
+		const struct nl_part *kp = nl_part_at(u->c, k);
+		uint32_t prim = kp->ext->ctrl_part[0] == adj[i] ? kp->ext->ctrl_part[1]
+								: kp->ext->ctrl_part[0];
+		const struct nl_part *l1 = nl_part_at(u->c, prim);
+		const uint32_t *r = pins(u, l1);
+		if (!known(u, r[0]) || !known(u, r[1]) || l1->value <= 0)
+			continue;
+		double t = sign * kp->value * sqrt(p->value / l1->value);
+		const struct form *d = form_lin(&u->r->fc, t, N(u, r[0])->f, -t, N(u, r[1])->f);
+		return d ? form_ac(&u->r->fc, d) : NULL;
+	}
+	return NULL;
+}
+
+/* A bridge fed from a floating input: diodes from a and b into x, from a
+ * settled node m into a and b: x = m + peak |v(a) - v(b)| (ideal, no
+ * load). Returns 1 when x was settled so. */
+static int bridge(struct run *u, uint32_t x)
+{
+	uint32_t n, in[2], dio = NL_NONE, k = 0;
+	const uint32_t *adj = nl_adjacency(u->c, x, &n);
+	for (uint32_t i = 0; i < n && k < 2; i++) {
+		const struct nl_part *p = nl_part_at(u->c, adj[i]);
+		const uint32_t *q = pins(u, p);
+		if (p->kind == NL_D && q[1] == x && !known(u, q[0]) && (k == 0 || in[0] != q[0])) {
+			in[k++] = q[0];
+			dio = adj[i];
+		}
+	}
+	if (k < 2)
+		return 0;
+	const uint32_t *aa = nl_adjacency(u->c, in[0], &n);
+	for (uint32_t i = 0; i < n; i++) {
+		const struct nl_part *p = nl_part_at(u->c, aa[i]);
+		const uint32_t *q = pins(u, p);
+		uint32_t m = q[0];
+		if (p->kind != NL_D || q[1] != in[0] || !known(u, m) || m == x)
+			continue;
+		const struct form *d = floating_difference(u, in[0], in[1]);
+		if (!d)
+			return 0;
+		double lo, hi;
+		int exact;
+		form_range(&u->r->fc, d, &lo, &hi, &exact);
+		double peak = fmax(hi, -lo);
+		const struct form *base = N(u, m)->f;
+		settle(u, x, form_const(&u->r->fc, base->lo + peak, base->hi + peak), PH_PIN, dio);
+		return 1;
+	}
+	return 0;
+}
+
+/* True if a diode joins x to a node not settled yet. */
+static int diode_to_unsettled(struct run *u, uint32_t x)
+{
+	uint32_t n;
+	const uint32_t *adj = nl_adjacency(u->c, x, &n);
+	for (uint32_t i = 0; i < n; i++) {
+		const struct nl_part *p = nl_part_at(u->c, adj[i]);
+		const uint32_t *q = pins(u, p);
+		if (p->kind == NL_D && !known(u, q[0] == x ? q[1] : q[0]))
+			return 1;
+	}
+	return 0;
+}
+
 static void fallback(struct run *u, uint32_t x)
 {
 	struct prop_node *n = N(u, x);
 	uint32_t via = NL_NONE, count = 0;
 	if (known(u, x) || n->has_lo || n->has_hi)
 		return;
+	if (n->state == PS_SHAPED && form_is_dc(n->f) && bridge(u, x))
+		return;
+	if (diode_to_unsettled(u, x))
+		return; /* what the diode does is not known: do not guess */
 	if (n->state == PS_SHAPED && only_capacitors(u, x)) {
 		divider(u, x);
 		return;
@@ -621,6 +742,20 @@ static void fallback(struct run *u, uint32_t x)
 	const struct form *s = resistive_mean(u, x, &via, &count);
 	if (!s)
 		return;
+	if (n->has_slo || n->has_shi) {
+		/* an ideal diode holds the node where the resistors would pull
+		 * it past the diode's other end */
+		double lo = s->lo, hi = s->hi;
+		if (n->has_slo)
+			lo = fmax(lo, n->slo), hi = fmax(hi, n->slo);
+		if (n->has_shi)
+			lo = fmin(lo, n->shi), hi = fmin(hi, n->shi);
+		s = form_with_const(&u->r->fc, s, lo, hi);
+		if (!s) {
+			u->oom = 1;
+			return;
+		}
+	}
 	if (n->state == PS_SHAPED) {
 		/* no DC flows through the capacitors: resistors set the mean */
 		settle(u, x, form_with_const(&u->r->fc, n->f, s->lo, s->hi), PH_BLEED,

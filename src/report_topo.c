@@ -250,7 +250,7 @@ static void json_struct(FILE *out, const struct audit *a,
 	else
 		fputs("null", out);
 	json_parts(out, a, d, s);
-	fputs(",\n        ", out);
+	fputs("\n        ", out);
 	json_nodes(out, a, s);
 	fputc('}', out);
 }
@@ -282,10 +282,30 @@ static void json_file(FILE *out, const char *path, const struct audit *a,
 	fputs(n ? "\n      ]}" : "]}", out);
 }
 
+/* One line: "file: 3 structures: ladder 1, clamp-floor 2". */
+static void count_file(FILE *out, const char *path, const struct audit *a)
+{
+	size_t n = a->analysed ? a->topo.n : 0, per[TK_NETWORK + 1] = {0};
+	for (size_t i = 0; i < n; i++)
+		per[a->topo.s[i].kind]++;
+	fprintf(out, "%s: %zu structure%s", path, n, n == 1 ? "" : "s");
+	const char *sep = ": ";
+	for (int k = 0; k <= TK_NETWORK; k++)
+		if (per[k]) {
+			fprintf(out, "%s%s %zu", sep, topo_kind_name((enum topo_kind)k), per[k]);
+			sep = ", ";
+		}
+	fputc('\n', out);
+}
+
 void report_topo(FILE *out, enum report_topo_format fmt, const char *path,
 		 const struct audit *a, const struct diag_sink *d, int first,
 		 int last)
 {
+	if (fmt == RT_COUNT) {
+		count_file(out, path, a);
+		return;
+	}
 	if (fmt == RT_TEXT) {
 		if (!first)
 			fputc('\n', out);

@@ -200,6 +200,8 @@ static void classify(struct ctx *x)
 		if (n->how != PH_PIN || n->conflict || x->used[n->by])
 			continue;
 		uint32_t r = ref_of(x, id);
+		if (P(x, r)->state != PS_RESOLVED)
+			continue;
 		int ac = !form_is_dc(n->f), rac = !form_is_dc(P(x, r)->f);
 		x->el[id] = ac && rac ? EL_PUMP : ac ? EL_CLAMP : rac ? EL_DET : EL_DC;
 	}
@@ -435,8 +437,14 @@ static const char *bridge_note(struct ctx *x, uint32_t a, uint32_t b)
 
 static void bridge_at(struct ctx *x, uint32_t pnode)
 {
-	uint32_t n;
-	const uint32_t *adj = nl_adjacency(x->c, pnode, &n);
+	uint32_t n, all, buf[64];
+	const uint32_t *every = nl_adjacency(x->c, pnode, &all);
+	/* only the diodes into pnode can form the top of a bridge */
+	n = 0;
+	for (uint32_t i = 0; i < all && n < 64; i++)
+		if (nl_part_at(x->c, every[i])->kind == NL_D && pins(x, every[i])[1] == pnode)
+			buf[n++] = every[i];
+	const uint32_t *adj = buf;
 	for (uint32_t i = 0; i < n; i++)
 		for (uint32_t j = i + 1; j < n; j++) {
 			const struct nl_part *d1 = nl_part_at(x->c, adj[i]), *d2 = nl_part_at(x->c, adj[j]);
@@ -447,6 +455,8 @@ static void bridge_at(struct ctx *x, uint32_t pnode)
 				continue;
 			uint32_t a = q1[0], b = q2[0], m;
 			const uint32_t *aa = nl_adjacency(x->c, a, &m);
+			if (m > 64)
+				continue; /* a bridge input is not a busy node */
 			for (uint32_t k = 0; k < m; k++) {
 				if (nl_part_at(x->c, aa[k])->kind != NL_D || pins(x, aa[k])[1] != a)
 					continue;
