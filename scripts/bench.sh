@@ -60,6 +60,19 @@ hier_deck() {
 		print ".end" }'
 }
 
+# An N-stage half-wave ladder, flat.
+ladder_deck() {
+	awk -v n="$1" 'BEGIN {
+		print "ladder benchmark"
+		print "V1 in 0 sin(0 100 10k)"
+		print ".model dhv d is=1e-12"
+		for (k = 1; k <= n; k++) {
+			pa = k == 1 ? "in" : "a" (k - 1); pd = k == 1 ? "0" : "d" (k - 1)
+			printf "CA%d %s a%d 10n\nDC%d %s a%d dhv\nDP%d a%d d%d dhv\nCD%d %s d%d 10n\n", k, pa, k, k, pd, k, k, k, k, k, pd, k
+		}
+		print ".end" }'
+}
+
 # The floor: a flex tokenizer that only splits words.
 cat > "$work/floor.l" <<'LEX'
 %option noyywrap nounput noinput full
@@ -102,4 +115,15 @@ report flat-600k-parts "$work/flat200k.cir" 600001
 report hier-10k-instances "$work/hier10k.cir" 120001
 t1=$(cat "$work/flat-60k-parts.t") t2=$(cat "$work/flat-600k-parts.t")
 echo "bench: growth 10x parts -> $(awk -v a="$t2" -v b="$t1" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
+
+echo "bench: structure recognition and propagation (headroom topo --format count)"
+ladder_deck 1000 > "$work/ladder1000.cir"
+read -r tl ml < <(measure "$bin" topo --format count "$work/ladder1000.cir")
+printf 'ladder-1000-stages     parts %8d  topo %6.3f s %7d KB (target: well under 1 s)\n' 4001 "$tl" "$ml"
+read -r ta ma < <(measure "$bin" topo --format count "$work/flat20k.cir")
+read -r tb mb < <(measure "$bin" topo --format count "$work/flat200k.cir")
+printf 'flat-20k-clamps        parts %8d  topo %6.3f s %7d KB\n' 60001 "$ta" "$ma"
+printf 'flat-200k-clamps       parts %8d  topo %6.3f s %7d KB  %5.1f B/part\n' 600001 "$tb" "$mb" \
+	"$(awk -v m="$mb" 'BEGIN{print m*1024/600001}')"
+echo "bench: topo growth 10x parts -> $(awk -v a="$tb" -v b="$ta" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
 [ $have_ngspice -eq 1 ] || echo "bench: ngspice not installed: simulator ratios skipped"

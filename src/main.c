@@ -22,6 +22,7 @@ struct cli {
 	enum report_parts_format fmt;
 	const char *fmt_name;
 	struct elab_opts eo;
+	double source_tol;
 	unsigned max_errors;
 	const char **files;
 	int nfiles;
@@ -44,6 +45,8 @@ static void usage(FILE *out)
 	      "                       topo: text (default), json, count\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
 	      "                       (default 10000000)\n"
+	      "  --source-tol PCT     tolerance of every source's amplitude and offset\n"
+	      "                       unless *@source gives one (e.g. 10 or 10%%)\n"
 	      "  --max-errors N       errors reported per file before giving up\n"
 	      "                       (default 50)\n"
 	      "  --help               this text\n"
@@ -81,6 +84,22 @@ static int set_format(struct cli *c, const char *f)
 	return 0;
 }
 
+/* --source-tol 10 or 10%: a percentage from 0 to 100. */
+static int set_tol(struct cli *c, const char *val)
+{
+	char *end;
+	errno = 0;
+	double v = strtod(val, &end);
+	if (*end == '%')
+		end++;
+	if (errno || *end || end == val || !(v >= 0 && v <= 100)) {
+		fprintf(stderr, "headroom: --source-tol takes a percentage from 0 to 100, not '%s'\n", val);
+		return 0;
+	}
+	c->source_tol = v / 100;
+	return 1;
+}
+
 /* Options with a value; returns 0 on a usage error. */
 static int option(struct cli *c, const char *opt, const char *val)
 {
@@ -91,6 +110,8 @@ static int option(struct cli *c, const char *opt, const char *val)
 	}
 	if (strcmp(opt, "--format") == 0)
 		return set_format(c, val);
+	if (strcmp(opt, "--source-tol") == 0)
+		return set_tol(c, val);
 	if (!parse_count(val, &n)) {
 		fprintf(stderr, "headroom: %s takes a positive whole number, not '%s'\n",
 			opt, val);
@@ -111,7 +132,7 @@ static int parse_args(struct cli *c, int argc, char **argv)
 	for (int i = 1; i < argc; i++) {
 		const char *a = argv[i];
 		if (strcmp(a, "--format") == 0 || strcmp(a, "--max-parts") == 0 ||
-		    strcmp(a, "--max-errors") == 0) {
+		    strcmp(a, "--max-errors") == 0 || strcmp(a, "--source-tol") == 0) {
 			if (!option(c, a, i + 1 < argc ? argv[i + 1] : NULL))
 				return 0;
 			i++;
@@ -178,7 +199,7 @@ static int run_topo(const struct cli *c)
 		struct audit_opts o;
 		memset(&o, 0, sizeof o);
 		o.elab = c->eo;
-		o.source_tol = NAN;
+		o.source_tol = c->source_tol;
 		enum audit_status st = d ? audit_file(c->files[i], &o, &hook, d, &a) : AUDIT_OOM;
 		if (st == AUDIT_OOM)
 			fprintf(stderr, "%s: error: out of memory\n", c->files[i]);
@@ -201,6 +222,7 @@ int main(int argc, char **argv)
 	struct cli c;
 	memset(&c, 0, sizeof c);
 	c.max_errors = 50;
+	c.source_tol = NAN;
 	for (int i = 1; i < argc; i++) {
 		if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
 			usage(stdout);

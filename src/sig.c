@@ -38,10 +38,6 @@ static void from_sin(const struct nl_source *s, struct sig *o)
 		set_dc(o, vo, f <= 0 ? "sin without a frequency: its offset is used" : NULL);
 		return;
 	}
-	if (theta > 0) {
-		set_dc(o, vo, "damped sin: it settles to its offset");
-		return;
-	}
 	memset(o, 0, sizeof *o);
 	o->kind = SIG_SIN;
 	o->mean = vo;
@@ -52,8 +48,8 @@ static void from_sin(const struct nl_source *s, struct sig *o)
 	o->period = 1 / f;
 	o->ac_min = -o->amp;
 	o->ac_max = o->amp;
-	if (theta < 0)
-		o->note = "growing sin (negative damping): amplitude taken as written";
+	if (theta != 0)
+		o->note = "damping ignored: the amplitude is taken as written (its worst case)";
 }
 
 /* Stores one period of breakpoints (t[0] = 0 ... t[n-1] = period, linear

@@ -20,6 +20,7 @@ if [ ! -f "$corpus/MANIFEST.tsv" ]; then
 fi
 total=0 accepted=0 crashes=0 regress=0 ngok=0 ngok_acc=0 gapped=0
 fail=()
+declare -A kinds=()
 while IFS=$'\t' read -r file _repo _path _commit _lic _status parse; do
 	[ "$file" = file ] && continue
 	total=$((total + 1))
@@ -31,6 +32,17 @@ while IFS=$'\t' read -r file _repo _path _commit _lic _status parse; do
 		continue
 	fi
 	[ $rc -eq 0 ] && accepted=$((accepted + 1))
+	# structure recognition over the same file: never a signal or a hang
+	timeout 20 "$bin" topo --format count "$corpus/$file" >/tmp/corpus_topo.$$ 2>/dev/null
+	trc=$?
+	if [ $trc -ne 0 ] && [ $trc -ne 2 ]; then
+		crashes=$((crashes + 1))
+		fail+=("topo exit $trc (signal or hang): $file")
+	fi
+	for kv in $(sed -n 's/^.*structures*: //p' /tmp/corpus_topo.$$ | tr -d ' ' | tr ',' ' '); do
+		k=${kv%%[0-9]*}
+		kinds[$k]=$(( ${kinds[$k]:-0} + ${kv#"$k"} ))
+	done
 	[ "$parse" = ok ] || continue
 	ngok=$((ngok + 1))
 	if [ $rc -eq 0 ]; then
@@ -42,7 +54,10 @@ while IFS=$'\t' read -r file _repo _path _commit _lic _status parse; do
 		fail+=("rejected but ngspice accepts it: $file: $(grep -m1 error: /tmp/corpus_err.$$)")
 	fi
 done < "$corpus/MANIFEST.tsv"
-rm -f /tmp/corpus_err.$$
+rm -f /tmp/corpus_err.$$ /tmp/corpus_topo.$$
+summary=""
+for k in $(printf '%s\n' "${!kinds[@]}" | sort); do summary="$summary $k=${kinds[$k]}"; done
+echo "corpus: structures found by topo:${summary:- none}"
 echo "corpus: $accepted/$total files accepted; ngspice-accepted files: $ngok_acc/$ngok accepted, $gapped known gaps (tests/corpus_gaps.txt)"
 for f in "${fail[@]+"${fail[@]}"}"; do echo "corpus: FAIL $f"; done
 failed=$((crashes + regress))
