@@ -79,7 +79,7 @@ bench: deps $(BUILD)/headroom
 	bash scripts/bench.sh $(BUILD)/headroom
 
 demo: deps $(BUILD)/headroom
-	$(BUILD)/headroom parts examples/*.cir
+	-$(BUILD)/headroom check --parts examples/parts.csv examples/
 
 install: $(BUILD)/headroom
 	install -d $(DESTDIR)$(PREFIX)/bin

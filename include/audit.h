@@ -30,7 +30,8 @@ struct audit {
 	struct annot *annots;
 	uint32_t nannots;
 	struct audit_source *sources;/* per part (only V parts filled) */
-	struct prop_result prop;
+	struct prop_range *ranges;   /* per part, for further corner runs */
+	struct prop_result prop;     /* nominal corner, ideal diodes */
 	struct topo_result topo;
 	int analysed;                /* prop and topo ran */
 };

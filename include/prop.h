@@ -64,11 +64,21 @@ struct prop_result {
 	size_t nconflicts;
 };
 
+/* A corner of the worst-case analysis: per part, the scale of a voltage
+ * source's AC part and of its mean (1 = nominal), and the forward drop of
+ * each diode (0 = ideal). NULL arrays mean nominal and ideal. */
+struct prop_corner {
+	const double *amp;
+	const double *off;
+	const double *vf;
+};
+
 /* Runs the propagation over circuit c (after nl_finish). ranges, if not
- * NULL, has one entry per part. Everything is allocated in ar. Returns 0 on
- * out-of-memory. */
+ * NULL, has one entry per part; corner may be NULL (nominal, ideal).
+ * Everything is allocated in ar. Returns 0 on out-of-memory. */
 int prop_run(const struct nl_circuit *c, const struct prop_range *ranges,
-	     struct arena *ar, struct prop_result *out);
+	     const struct prop_corner *corner, struct arena *ar,
+	     struct prop_result *out);
 
 const char *prop_class_name(enum prop_class k);
 const char *prop_how_name(enum prop_how h);

@@ -16,4 +16,8 @@ void report_topo(FILE *out, enum report_topo_format fmt, const char *path,
 		 const struct audit *a, const struct diag_sink *d, int first,
 		 int last);
 
+/* Writes "structures": [...] for one file (the JSON report reuses it). */
+void report_topo_json_structures(FILE *out, const struct audit *a,
+				 const struct diag_sink *d);
+
 #endif

@@ -68,7 +68,8 @@ static int analyse(struct audit *a)
 		rg[i].min = a->sources[i].min;
 		rg[i].max = a->sources[i].max;
 	}
-	if (!prop_run(a->er.circuit, rg, a->ar, &a->prop))
+	a->ranges = rg;
+	if (!prop_run(a->er.circuit, rg, NULL, a->ar, &a->prop))
 		return 0;
 	if (!topo_find(a->er.circuit, &a->prop, a->ar, &a->topo))
 		return 0;

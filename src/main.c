@@ -12,9 +12,14 @@
 #include "elab.h"
 #include "audit.h"
 #include "report_parts.h"
+#include "report_check.h"
 #include "report_topo.h"
+#include "rules.h"
+#include "stress.h"
+#include <dirent.h>
+#include <sys/stat.h>
 
-#define HEADROOM_VERSION "0.1.0"
+#include "version.h"
 #define EXIT_USAGE 2
 
 struct cli {
@@ -26,6 +31,10 @@ struct cli {
 	unsigned max_errors;
 	const char **files;
 	int nfiles;
+	const char *profile;   /* name or path */
+	const char *parts;     /* parts table */
+	int fail_on;           /* DIAG_* level, or -1 for never */
+	const char *argv0;
 };
 
 static void usage(FILE *out)
@@ -39,10 +48,19 @@ static void usage(FILE *out)
 	      "  parts FILE...        list the flattened parts of each netlist\n"
 	      "  topo FILE...         find clamps, detectors, doublers, ladders, pumps\n"
 	      "                       and rectifiers; print parts, roles, node ranges\n"
+	      "  check FILE|DIR...    worst-case stresses against ratings and the\n"
+	      "                       derating profile; findings and a stress table\n"
+	      "  rules                the rules and the profile's limits\n"
 	      "\n"
 	      "options:\n"
 	      "  --format FMT         parts: text (default), csv, json, count\n"
 	      "                       topo: text (default), json, count\n"
+	      "                       check: text (default), json\n"
+	      "  --profile NAME|FILE  derating profile: basic, industrial (default),\n"
+	      "                       flight, or a profile file\n"
+	      "  --parts FILE         parts table (CSV) with ratings\n"
+	      "  --fail-on LEVEL      exit 1 on findings at or above error (default),\n"
+	      "                       warning, note; never: always 0\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
 	      "                       (default 10000000)\n"
 	      "  --source-tol PCT     tolerance of every source's amplitude and offset\n"
@@ -52,7 +70,8 @@ static void usage(FILE *out)
 	      "  --help               this text\n"
 	      "  --version            the version\n"
 	      "\n"
-	      "exit status: 0 success, 2 usage error or a netlist with errors\n",
+	      "exit status: 0 success; 1 findings at or above --fail-on (check);\n"
+	      "2 usage error or a netlist with errors\n",
 	      out);
 }
 
@@ -100,6 +119,21 @@ static int set_tol(struct cli *c, const char *val)
 	return 1;
 }
 
+static int set_fail_on(struct cli *c, const char *val)
+{
+	static const struct {
+		const char *name;
+		int level;
+	} tab[] = {{"error", DIAG_ERROR}, {"warning", DIAG_WARNING}, {"note", DIAG_NOTE}, {"never", -1}};
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		if (strcmp(val, tab[i].name) == 0) {
+			c->fail_on = tab[i].level;
+			return 1;
+		}
+	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'\n", val);
+	return 0;
+}
+
 /* Options with a value; returns 0 on a usage error. */
 static int option(struct cli *c, const char *opt, const char *val)
 {
@@ -112,6 +146,16 @@ static int option(struct cli *c, const char *opt, const char *val)
 		return set_format(c, val);
 	if (strcmp(opt, "--source-tol") == 0)
 		return set_tol(c, val);
+	if (strcmp(opt, "--profile") == 0) {
+		c->profile = val;
+		return 1;
+	}
+	if (strcmp(opt, "--parts") == 0) {
+		c->parts = val;
+		return 1;
+	}
+	if (strcmp(opt, "--fail-on") == 0)
+		return set_fail_on(c, val);
 	if (!parse_count(val, &n)) {
 		fprintf(stderr, "headroom: %s takes a positive whole number, not '%s'\n",
 			opt, val);
@@ -132,7 +176,9 @@ static int parse_args(struct cli *c, int argc, char **argv)
 	for (int i = 1; i < argc; i++) {
 		const char *a = argv[i];
 		if (strcmp(a, "--format") == 0 || strcmp(a, "--max-parts") == 0 ||
-		    strcmp(a, "--max-errors") == 0 || strcmp(a, "--source-tol") == 0) {
+		    strcmp(a, "--max-errors") == 0 || strcmp(a, "--source-tol") == 0 ||
+		    strcmp(a, "--profile") == 0 || strcmp(a, "--parts") == 0 ||
+		    strcmp(a, "--fail-on") == 0) {
 			if (!option(c, a, i + 1 < argc ? argv[i + 1] : NULL))
 				return 0;
 			i++;
@@ -217,12 +263,217 @@ static int run_topo(const struct cli *c)
 	return status;
 }
 
+/* ---- check ---- */
+
+static int netlist_name(const char *name)
+{
+	static const char *const ext[] = {".cir", ".sp", ".spice", ".net", ".ckt", ".cdl"};
+	const char *dot = strrchr(name, '.');
+	for (size_t i = 0; dot && i < sizeof ext / sizeof ext[0]; i++)
+		if (strcmp(dot, ext[i]) == 0)
+			return 1;
+	return 0;
+}
+
+struct flist {
+	char **v;
+	size_t n, cap;
+};
+
+static int flist_add(struct flist *l, const char *path)
+{
+	if (l->n == l->cap) {
+		size_t ncap = l->cap ? l->cap * 2 : 32;
+		char **v = realloc(l->v, ncap * sizeof *v);
+		if (!v)
+			return 0;
+		l->v = v;
+		l->cap = ncap;
+	}
+	return (l->v[l->n++] = strdup(path)) != NULL;
+}
+
+static int by_name(const void *a, const void *b)
+{
+	return strcmp(*(char *const *)a, *(char *const *)b);
+}
+
+/* Netlists under dir, recursively, in name order. */
+static int scan(const char *dir, struct flist *l, int depth)
+{
+	DIR *d = opendir(dir);
+	if (!d || depth > 32)
+		return d ? (closedir(d), 1) : 0;
+	struct flist here = {0};
+	struct dirent *e;
+	while ((e = readdir(d)))
+		if (e->d_name[0] != '.') {
+			char path[4096];
+			size_t dl = strlen(dir);
+			snprintf(path, sizeof path, "%s%s%s", dir,
+				 dl && dir[dl - 1] == '/' ? "" : "/", e->d_name);
+			flist_add(&here, path);
+		}
+	closedir(d);
+	qsort(here.v, here.n, sizeof *here.v, by_name);
+	for (size_t i = 0; i < here.n; i++) {
+		struct stat st;
+		if (stat(here.v[i], &st) == 0 && S_ISDIR(st.st_mode))
+			scan(here.v[i], l, depth + 1);
+		else if (netlist_name(here.v[i]))
+			flist_add(l, here.v[i]);
+		free(here.v[i]);
+	}
+	free(here.v);
+	return 1;
+}
+
+static int expand(const struct cli *c, struct flist *l)
+{
+	for (int i = 0; i < c->nfiles; i++) {
+		struct stat st;
+		if (stat(c->files[i], &st) == 0 && S_ISDIR(st.st_mode)) {
+			if (!scan(c->files[i], l, 0))
+				fprintf(stderr, "%s: error: cannot read the folder\n", c->files[i]);
+		} else if (!flist_add(l, c->files[i])) {
+			return 0;
+		}
+	}
+	return 1;
+}
+
+static int load_profile(const struct cli *c, struct diag_sink *d, struct profile *p)
+{
+	char path[1024];
+	const char *name = c->profile ? c->profile : "industrial";
+	if (!profile_find(name, c->argv0, path, sizeof path)) {
+		fprintf(stderr, "headroom: no profile '%s' (basic, industrial, flight, or a file)\n", name);
+		return 0;
+	}
+	return profile_load(path, d, p);
+}
+
+static int worst_level(const struct rules_result *r)
+{
+	int level = -2;
+	for (size_t i = 0; i < r->n; i++)
+		if (!r->f[i].waived && (int)r->f[i].rule->severity > level)
+			level = (int)r->f[i].rule->severity;
+	return level;
+}
+
+/* Checks one file; returns its exit-status contribution. */
+static int check_one(const struct cli *c, const char *path, const struct profile *p,
+		     enum report_check_format fmt, int first, struct check_totals *t)
+{
+	struct hr_alloc hook = hr_alloc_default();
+	struct arena *ar = arena_create(&hook);
+	struct diag_sink *d = ar ? diag_create(ar, c->max_errors) : NULL;
+	struct audit a;
+	struct audit_opts o;
+	struct stress_result sr;
+	struct rules_result rr;
+	int rc = 0;
+	memset(&o, 0, sizeof o);
+	o.elab = c->eo;
+	o.source_tol = c->source_tol;
+	enum audit_status st = d ? audit_file(path, &o, &hook, d, &a) : AUDIT_OOM;
+	struct check_file f = {path, &a, d, NULL, &sr, &rr};
+	if (st == AUDIT_OK) {
+		const struct rating_table *tab = c->parts ? rating_table_load(c->parts, a.ar, d) : NULL;
+		f.ratings = rating_resolve(a.er.circuit, tab, a.annots, a.nannots, a.ar, d);
+		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) || !rules_run(&a, f.ratings, p, &sr, &rr))
+			st = AUDIT_OOM;
+		else if (c->fail_on >= 0 && worst_level(&rr) >= c->fail_on)
+			rc = 1;
+		if (diag_errors(d, UINT32_MAX))
+			rc = EXIT_USAGE;
+	}
+	if (st == AUDIT_OOM) {
+		fprintf(stderr, "%s: error: out of memory\n", path);
+		rc = EXIT_USAGE;
+	} else {
+		if (st != AUDIT_OK) {
+			a.analysed = 0;
+			rc = EXIT_USAGE;
+		}
+		report_check_file(stdout, fmt, &f, p, first, t);
+	}
+	if (d)
+		diag_render(d, UINT32_MAX, stderr);
+	if (d)
+		audit_free(&a);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return rc;
+}
+
+static int run_check(const struct cli *c)
+{
+	struct hr_alloc hook = hr_alloc_default();
+	struct arena *ar = arena_create(&hook);
+	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
+	struct profile *p = malloc(sizeof *p);
+	struct flist files = {0};
+	int rc = EXIT_USAGE;
+	enum report_check_format fmt = c->fmt_name && strcmp(c->fmt_name, "json") == 0 ? RC_JSON : RC_TEXT;
+	if (c->fmt_name && strcmp(c->fmt_name, "json") != 0 && strcmp(c->fmt_name, "text") != 0) {
+		fprintf(stderr, "headroom: check writes text or json, not '%s'\n", c->fmt_name);
+	} else if (d && p && load_profile(c, d, p) && expand(c, &files)) {
+		struct check_totals t;
+		memset(&t, 0, sizeof t);
+		rc = 0;
+		for (size_t i = 0; i < files.n; i++) {
+			int r = check_one(c, files.v[i], p, fmt, i == 0, &t);
+			rc = r > rc ? r : rc;
+		}
+		report_check_end(stdout, fmt, p, &t);
+	}
+	if (d)
+		diag_render(d, UINT32_MAX, stderr);
+	for (size_t i = 0; i < files.n; i++)
+		free(files.v[i]);
+	free(files.v);
+	free(p);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return rc;
+}
+
+/* headroom rules: every rule, then the profile's limits with sources. */
+static int run_rules(const struct cli *c)
+{
+	struct hr_alloc hook = hr_alloc_default();
+	struct arena *ar = arena_create(&hook);
+	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
+	struct profile *p = malloc(sizeof *p);
+	int rc = EXIT_USAGE;
+	if (d && p && load_profile(c, d, p)) {
+		printf("rules:\n");
+		for (size_t i = 0; i < rules_count; i++)
+			printf("  %-18s %-8s %s\n", rules_table[i].id,
+			       diag_severity_name(rules_table[i].severity), rules_table[i].summary);
+		printf("\nprofile %s (%s): %s\n", p->name, p->path, p->description);
+		for (size_t i = 0; i < p->n; i++)
+			printf("  %-32s %-10g %s\n", p->e[i].key, p->e[i].value, p->e[i].note);
+		rc = 0;
+	}
+	if (d)
+		diag_render(d, UINT32_MAX, stderr);
+	free(p);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return rc;
+}
+
 int main(int argc, char **argv)
 {
 	struct cli c;
 	memset(&c, 0, sizeof c);
 	c.max_errors = 50;
 	c.source_tol = NAN;
+	c.fail_on = DIAG_ERROR;
+	c.argv0 = argv[0];
 	for (int i = 1; i < argc; i++) {
 		if (strcmp(argv[i], "--help") == 0 || strcmp(argv[i], "-h") == 0) {
 			usage(stdout);
@@ -243,7 +494,12 @@ int main(int argc, char **argv)
 		rc = run_parts(&c);
 	} else if (strcmp(c.cmd, "topo") == 0 && c.nfiles > 0) {
 		rc = run_topo(&c);
-	} else if (strcmp(c.cmd, "parts") == 0 || strcmp(c.cmd, "topo") == 0) {
+	} else if (strcmp(c.cmd, "check") == 0 && c.nfiles > 0) {
+		rc = run_check(&c);
+	} else if (strcmp(c.cmd, "rules") == 0) {
+		rc = run_rules(&c);
+	} else if (strcmp(c.cmd, "parts") == 0 || strcmp(c.cmd, "topo") == 0 ||
+		   strcmp(c.cmd, "check") == 0) {
 		fprintf(stderr, "headroom: %s needs at least one netlist file\n", c.cmd);
 	} else {
 		fprintf(stderr, "headroom: unknown command '%s' (see --help)\n", c.cmd);

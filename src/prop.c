@@ -27,6 +27,7 @@ struct queue {
 struct run {
 	const struct nl_circuit *c;
 	const struct prop_range *ranges;
+	const struct prop_corner *corner;
 	struct arena *ar;
 	struct prop_result *r;
 	struct queue settled;   /* newly settled nodes to look around */
@@ -100,7 +101,12 @@ static const struct form *source_form(struct run *u, uint32_t part)
 	const struct prop_range *rg = u->ranges ? &u->ranges[part] : NULL;
 	if (rg && !isnan(rg->min))
 		return form_const(&u->r->fc, rg->min, rg->max);
-	return form_source(&u->r->fc, s, 1.0);
+	const struct prop_corner *k = u->corner;
+	if (!k || !k->amp)
+		return form_source(&u->r->fc, s, 1.0);
+	const struct form *f = form_source(&u->r->fc, s, k->amp[part]);
+	double mean = u->r->sigs[s].mean * k->off[part];
+	return f ? form_with_const(&u->r->fc, f, mean, mean) : NULL;
 }
 
 static void across_source(struct run *u, uint32_t id, uint32_t part)
@@ -440,6 +446,10 @@ static void bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
 	double lo, hi;
 	int exact;
 	form_range(&u->r->fc, d, &lo, &hi, &exact);
+	/* a real diode conducts at its forward drop, not at zero */
+	double vf = u->corner && u->corner->vf ? u->corner->vf[part] : 0;
+	lo += vf;
+	hi -= vf;
 	if (q[0] == r) { /* r is the anode: x may not fall below r */
 		if (!n->has_lo || hi > n->klo) {
 			n->klo = hi;
@@ -487,7 +497,8 @@ static void check(struct run *u, uint32_t part)
 		return;
 	}
 	form_range(&u->r->fc, d, &lo, &hi, &exact);
-	if (hi > PROP_EPS * fmax(1, fabs(lo))) {
+	double vf = u->corner && u->corner->vf ? u->corner->vf[part] : 0;
+	if (hi > vf + PROP_EPS * fmax(1, fabs(lo))) {
 		struct prop_node *m = a->how == PH_PIN ? a : k;
 		if (!m->conflict)
 			u->r->nconflicts++;
@@ -853,13 +864,15 @@ static void loop(struct run *u)
 }
 
 int prop_run(const struct nl_circuit *c, const struct prop_range *ranges,
-	     struct arena *ar, struct prop_result *out)
+	     const struct prop_corner *corner, struct arena *ar,
+	     struct prop_result *out)
 {
 	struct run u;
 	memset(&u, 0, sizeof u);
 	memset(out, 0, sizeof *out);
 	u.c = c;
 	u.ranges = ranges;
+	u.corner = corner;
 	u.ar = ar;
 	u.r = out;
 	out->nnodes = nl_node_count(c);

@@ -258,6 +258,7 @@ static void json_struct(FILE *out, const struct audit *a,
 static void json_file(FILE *out, const char *path, const struct audit *a,
 		      const struct diag_sink *d)
 {
+	/* errors, then the structures */
 	fputs("    {\"path\": ", out);
 	report_json_string(out, path);
 	fputs(", \"errors\": [", out);
@@ -273,13 +274,21 @@ static void json_file(FILE *out, const char *path, const struct audit *a,
 		fputc('}', out);
 		first = 0;
 	}
-	fputs("],\n      \"structures\": [", out);
+	fputs("],\n      ", out);
+	report_topo_json_structures(out, a, d);
+	fputc('}', out);
+}
+
+void report_topo_json_structures(FILE *out, const struct audit *a,
+				 const struct diag_sink *d)
+{
+	fputs("\"structures\": [", out);
 	size_t n = a->analysed ? a->topo.n : 0;
 	for (size_t i = 0; i < n; i++) {
 		fputs(i ? ",\n      " : "\n      ", out);
 		json_struct(out, a, d, i);
 	}
-	fputs(n ? "\n      ]}" : "]}", out);
+	fputs(n ? "\n      ]" : "]", out);
 }
 
 /* One line: "file: 3 structures: ladder 1, clamp-floor 2". */

@@ -1,0 +1,54 @@
+/* profile.h: derating profiles, data files in rules/ (DESIGN §8). A small
+ * "key = value   # source" format: the reader checks every key and value
+ * and reports problems with file:line:col. Lookups fall back from a part
+ * kind to the "default" kind of its class. */
+#ifndef HEADROOM_PROFILE_H
+#define HEADROOM_PROFILE_H
+
+#include <stddef.h>
+
+#include "diag.h"
+
+#define PROFILE_MAX_ENTRIES 160
+
+struct profile_entry {
+	char key[48];        /* e.g. "cap.tantalum.voltage" */
+	double value;        /* fractions for factors, volts, seconds */
+	char note[160];      /* the source the line cites, after '#' */
+	unsigned line;
+};
+
+struct profile {
+	char name[64];
+	char path[512];
+	char description[160];
+	struct profile_entry e[PROFILE_MAX_ENTRIES];
+	size_t n;
+};
+
+/* Capacitor and diode kinds of DESIGN §4; NULL-terminated. */
+extern const char *const profile_cap_kinds[];
+extern const char *const profile_diode_kinds[];
+/* True for the polarised capacitor kinds. */
+int profile_polarised(const char *kind);
+
+/* Reads a profile file into *p. Problems go to d (with a file id it
+ * registers) and give 0. */
+int profile_load(const char *path, struct diag_sink *d, struct profile *p);
+
+/* Finds the file of a profile given as a name ("industrial") or a path:
+ * HEADROOM_RULES, then rules/ next to the program (build/../rules,
+ * ../share/headroom/rules). Returns 0 if not found. */
+int profile_find(const char *name_or_path, const char *argv0, char *out,
+		 size_t n);
+
+/* Value of class.kind.field ("cap", "tantalum", "voltage"), falling back to
+ * class.default.field; NaN when neither is set. *note gets the source. */
+double profile_kind(const struct profile *p, const char *cls, const char *kind,
+		    const char *field, const char **note);
+
+/* A top-level value ("hazard_voltage"); NaN when missing. */
+double profile_value(const struct profile *p, const char *key,
+		     const char **note);
+
+#endif

@@ -1,0 +1,52 @@
+/* rating.h: part ratings from the three places of DESIGN §4, later ones
+ * overriding earlier ones field by field: a diode model's BV, the parts
+ * table (--parts FILE.csv, rows matched by path or glob), and *@part
+ * annotations. Each field remembers where it came from. */
+#ifndef HEADROOM_RATING_H
+#define HEADROOM_RATING_H
+
+#include <stdint.h>
+
+#include "annot.h"
+#include "arena.h"
+#include "diag.h"
+#include "nl.h"
+
+struct rating_field {
+	double value;        /* NaN when not given */
+	const char *from;    /* "model BV", "parts.csv:4", "annotation top.cir:12" */
+};
+
+struct rating {
+	struct rating_field v_rated; /* cap DC rating; diode repetitive reverse */
+	struct rating_field i_surge, i_avg, trr, tol;
+	const char *kind;            /* one of profile_*_kinds, or NULL */
+	const char *kind_from;
+	const char *note;
+};
+
+/* A parsed parts table. */
+struct rating_table;
+
+/* Reads a parts table (CSV, header row, RFC 4180 quoting). Problems go to
+ * d with file:line:col; returns NULL when the file cannot be used. */
+struct rating_table *rating_table_load(const char *path, struct arena *ar,
+				       struct diag_sink *d);
+
+/* Ratings for every part of c (array of nl_part_count entries, in ar).
+ * table may be NULL. Kinds that do not fit the part (a diode kind on a
+ * capacitor) and unknown kinds are errors reported to d. */
+struct rating *rating_resolve(const struct nl_circuit *c,
+			      const struct rating_table *table,
+			      const struct annot *annots, uint32_t nannots,
+			      struct arena *ar, struct diag_sink *d);
+
+/* Diode forward drop at 1 mA times area from the model (Shockley, N*Vt*
+ * ln(1 + I/(IS*area)) + RS*I, Vt at 27 C), else by kind (silicon 0.7 V,
+ * Schottky 0.3 V). */
+double rating_vf(const struct nl_part *d, const char *kind);
+
+/* A diode model parameter by lower-case name, NaN when absent. */
+double rating_model_param(const struct nl_part *p, const char *key);
+
+#endif

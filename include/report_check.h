@@ -1,0 +1,47 @@
+/* report_check.h: the report of `headroom check`: findings with their
+ * numbers and the computation behind them, a stress table per file, the
+ * safety caution when hazardous voltages are involved; as text or as the
+ * versioned JSON report (docs/report.schema.json). */
+#ifndef HEADROOM_REPORT_CHECK_H
+#define HEADROOM_REPORT_CHECK_H
+
+#include <stdio.h>
+
+#include "audit.h"
+#include "profile.h"
+#include "rating.h"
+#include "rules.h"
+#include "stress.h"
+
+/* Everything known about one checked file. */
+struct check_file {
+	const char *path;
+	const struct audit *a;          /* analysed or not (netlist errors) */
+	const struct diag_sink *d;
+	const struct rating *ratings;   /* NULL when not analysed */
+	const struct stress_result *stress;
+	const struct rules_result *rules;
+};
+
+struct check_totals {
+	size_t files, errors, warnings, notes, netlist_errors;
+	double max_voltage;
+	double hazard_voltage;
+};
+
+enum report_check_format { RC_TEXT, RC_JSON };
+
+/* Writes one file; first/last bracket the JSON document; totals are
+ * updated. */
+void report_check_file(FILE *out, enum report_check_format fmt,
+		       const struct check_file *f, const struct profile *p,
+		       int first, struct check_totals *t);
+
+/* Closes the report: totals, the safety caution when due. */
+void report_check_end(FILE *out, enum report_check_format fmt,
+		      const struct profile *p, const struct check_totals *t);
+
+/* The safety caution of DESIGN §14, one paragraph. */
+extern const char report_caution[];
+
+#endif

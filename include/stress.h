@@ -1,0 +1,69 @@
+/* stress.h: worst-case stresses (DESIGN §6). The propagation is run at the
+ * corners of the source tolerances (every amplitude and every offset at one
+ * end of its band) with ideal diodes, and at the nominal corner with each
+ * diode's forward drop; a part's stress is the interval [best, worst] over
+ * those runs, with the corner that gave the worst. Also: power-up surge of
+ * the first diodes of each structure, stored energy and discharge time of
+ * capacitors, clamp droop and ladder regulation under load. */
+#ifndef HEADROOM_STRESS_H
+#define HEADROOM_STRESS_H
+
+#include <stdint.h>
+
+#include "audit.h"
+#include "profile.h"
+#include "rating.h"
+
+enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE };
+
+struct stress {
+	uint32_t part;
+	int32_t structure;      /* index in the audit's topo result, -1 if none */
+	const char *role;       /* role in that structure, or "" */
+	enum stress_qty qty;
+	double best, worst;     /* V (capacitor |V|, diode reverse) or A */
+	const char *corner;     /* where the worst came from */
+	double rev_min;         /* polarised capacitors: lowest V(+) - V(-) */
+	int bounded;            /* the analysis settled both nodes */
+	/* capacitors: stored energy at the worst voltage and discharge */
+	double energy_j;
+	double discharge_r;     /* resistance across it, INFINITY when none */
+	double discharge_s;     /* time to fall below the hazard voltage */
+	/* surge: the series resistance that limits it (0: nothing) */
+	double series_r;
+};
+
+/* Per structure: figures that need the whole structure. */
+struct stress_struct {
+	double period;          /* drive period, s (0 if DC) */
+	double swing;           /* peak-to-peak of the drive, worst corner */
+	double load_r;          /* resistance from the output to settled nodes */
+	double droop_v;         /* clamp: droop per period under the load */
+	double droop_frac;      /* droop / swing */
+	double ladder_i;        /* ladder: load current at the ideal output */
+	double ladder_c;        /* smallest stage capacitance */
+	double ladder_drop;     /* published regulation formulas */
+	double ladder_ripple;
+	double ladder_nopt;
+};
+
+struct stress_result {
+	struct stress *s;
+	size_t n;
+	struct stress_struct *st;   /* one per structure */
+	double max_voltage;         /* largest worst voltage of any stress */
+	const char *corners[8];
+	size_t ncorners;
+	const struct prop_result *runs;   /* one propagation per corner */
+};
+
+/* Computes the stresses for audit a (analysed) with ratings r and profile
+ * p. Allocates in a->ar. Returns 0 on out-of-memory. */
+int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
+	       struct stress_result *out);
+
+/* Source tolerance used for part (annotation, --source-tol, profile). */
+double stress_tolerance(const struct audit *a, const struct profile *p,
+			uint32_t part);
+
+#endif

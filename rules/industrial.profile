@@ -1,0 +1,40 @@
+# headroom derating profile: industrial -- the default, between basic and
+# flight. Diode limits are NAVSEA SD-18 Table 1A, normal environment,
+# quality level 2 (seen, REFERENCES.md 1a; layout rebuilt from a flattened
+# page, confirm against the SD-18 PDF). Capacitor limits: common practice
+# and manufacturers' guidance, each line says which.
+name = industrial
+description = NAVSEA SD-18 Table 1A normal/L2 for diodes; manufacturer guidance for capacitors
+
+source_tol = 10%                 # IEC 60038 mains tolerance +-10 % (from memory); common practice for unregulated inputs
+hazard_voltage = 60V             # IEC 62368-1 ES2/ES3 DC boundary (from memory); DESIGN §7 default
+discharge_time = 2s              # IEC 62368-1 capacitor discharge after disconnection (from memory)
+droop_limit = 5%                 # common practice, no source
+recovery_fraction = 5%           # common practice, no source
+
+cap.default.voltage = 70%        # common practice, no source
+cap.ceramic-c0g.voltage = 80%    # common practice, no source: class 1 ceramics lose no capacitance with bias
+cap.ceramic-x7r.voltage = 50%    # common practice, no source: class 2 ceramics lose capacitance with DC bias
+cap.ceramic.voltage = 50%        # as X7R (common practice, no source)
+cap.film.voltage = 70%           # common practice, no source
+cap.mica.voltage = 60%           # common practice, no source
+cap.glass.voltage = 60%          # common practice, no source
+cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (V: Chemi-Con guide, REFERENCES.md 1f) with 20 % margin (common practice)
+cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (V: Nippon Chemi-Con; REFERENCES.md 2)
+cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (V: KEMET T491; REFERENCES.md 1f)
+cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (V2: REFERENCES.md 2)
+cap.tantalum.reverse_fraction = 3%   # same source as the line above
+cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating (V2: KEMET; REFERENCES.md 1f)
+cap.polymer.reverse_v = 0V       # treat as 0 V (M: REFERENCES.md 2)
+cap.supercap.voltage = 80%       # common practice, no source
+cap.supercap.reverse_v = 0V      # common practice, no source
+
+diode.default.voltage = 75%      # SD-18 Table 1A general-purpose diode VR, normal L2 (V)
+diode.default.surge = 80%        # SD-18 Table 1A general-purpose diode IFSM, normal L2 (V)
+diode.signal.voltage = 75%       # SD-18 Table 1A general-purpose/switching diode VR, normal L2 (V)
+diode.signal.surge = 80%         # SD-18 Table 1A IFSM, normal L2 (V)
+diode.rectifier.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal L2 (V)
+diode.fast-recovery.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal L2 (V)
+diode.hv-stack.voltage = 75%     # SD-18 Table 1A power rectifier VR, normal L2 (V)
+diode.schottky.voltage = 80%     # SD-18 Table 1A Schottky/PIN VR, normal L2 (V)
+diode.zener.voltage = 75%        # common practice, no source: as a general-purpose diode

@@ -1,0 +1,227 @@
+/* profile.c: the profile reader. Grammar, one entry per line:
+ *   key = value [# source]
+ * value: a number with optional unit (0.8, 80%, 60V, 2s); key: name,
+ * description (free text), or a known numeric key. Blank and '#' lines are
+ * skipped. */
+#include "profile.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "num.h"
+
+/* Both lists also appear in docs/profiles.md [kinds-list]. */
+const char *const profile_cap_kinds[] = {
+	"ceramic-c0g", "ceramic-x7r", "ceramic", "film", "mica", "glass",
+	"alu-electrolytic", "tantalum", "polymer", "supercap", "default", NULL};
+const char *const profile_diode_kinds[] = {
+	"rectifier", "fast-recovery", "schottky", "zener", "hv-stack", "signal",
+	"default", NULL};
+
+static const char *const top_keys[] = {"source_tol", "hazard_voltage",
+	"discharge_time", "droop_limit", "recovery_fraction", NULL};
+static const char *const cap_fields[] = {"voltage", "reverse_v", "reverse_fraction", NULL};
+static const char *const diode_fields[] = {"voltage", "surge", NULL};
+
+int profile_polarised(const char *kind)
+{
+	static const char *const pol[] = {"alu-electrolytic", "tantalum", "polymer", "supercap", NULL};
+	for (int i = 0; kind && pol[i]; i++)
+		if (strcmp(kind, pol[i]) == 0)
+			return 1;
+	return 0;
+}
+
+static int in_list(const char *const *list, const char *s, size_t n)
+{
+	for (int i = 0; list[i]; i++)
+		if (strlen(list[i]) == n && strncmp(list[i], s, n) == 0)
+			return 1;
+	return 0;
+}
+
+/* cap.<kind>.<field>, diode.<kind>.<field>, or a top-level key. */
+static int key_known(const char *k)
+{
+	const char *d1 = strchr(k, '.'), *d2 = d1 ? strchr(d1 + 1, '.') : NULL;
+	if (!d1)
+		return in_list(top_keys, k, strlen(k));
+	if (!d2)
+		return 0;
+	size_t cl = (size_t)(d1 - k), kl = (size_t)(d2 - d1 - 1);
+	if (cl == 3 && strncmp(k, "cap", 3) == 0)
+		return in_list(profile_cap_kinds, d1 + 1, kl) &&
+		       in_list(cap_fields, d2 + 1, strlen(d2 + 1));
+	if (cl == 5 && strncmp(k, "diode", 5) == 0)
+		return in_list(profile_diode_kinds, d1 + 1, kl) &&
+		       in_list(diode_fields, d2 + 1, strlen(d2 + 1));
+	return 0;
+}
+
+static void trim(char *s)
+{
+	size_t n = strlen(s);
+	while (n && (s[n - 1] == ' ' || s[n - 1] == '\t' || s[n - 1] == '\r' || s[n - 1] == '\n'))
+		s[--n] = '\0';
+	size_t k = strspn(s, " \t");
+	memmove(s, s + k, strlen(s + k) + 1);
+}
+
+struct reader {
+	struct diag_sink *d;
+	uint32_t file;
+	unsigned line;
+	struct profile *p;
+	int bad;
+};
+
+static void fail(struct reader *r, const char *line, const char *at,
+		 const char *msg, const char *arg)
+{
+	struct diag_loc l = {r->file, r->line, (uint32_t)(at - line) + 1};
+	diag_add(r->d, DIAG_ERROR, "profile", l, msg, arg);
+	r->bad = 1;
+}
+
+static int number(const char *v, double *out)
+{
+	size_t n = strlen(v);
+	int pct = n && v[n - 1] == '%';
+	if (!num_ok(num_parse(v, pct ? n - 1 : n, out, NULL)))
+		return 0;
+	if (pct)
+		*out /= 100;
+	return 1;
+}
+
+static void entry(struct reader *r, char *line)
+{
+	char *hash = strchr(line, '#'), *eq = strchr(line, '=');
+	char note[160] = "";
+	if (hash) {
+		snprintf(note, sizeof note, "%s", hash + 1);
+		trim(note);
+		*hash = '\0';
+	}
+	if (!eq) {
+		fail(r, line, line + strspn(line, " \t"), "expected key = value%s", "");
+		return;
+	}
+	char key[64], val[192];
+	snprintf(key, sizeof key, "%.*s", (int)(eq - line), line);
+	snprintf(val, sizeof val, "%s", eq + 1);
+	trim(key);
+	trim(val);
+	num_fold(key, strlen(key));
+	if (strcmp(key, "name") == 0 || strcmp(key, "description") == 0) {
+		snprintf(strcmp(key, "name") == 0 ? r->p->name : r->p->description,
+			 strcmp(key, "name") == 0 ? sizeof r->p->name : sizeof r->p->description,
+			 "%s", val);
+		return;
+	}
+	const char *vat = eq + 1 + strspn(eq + 1, " \t");
+	double v;
+	if (!key_known(key)) {
+		fail(r, line, line + strspn(line, " \t"), "unknown key '%s' (see docs/profiles.md)", key);
+	} else if (!number(val, &v) || v < 0) {
+		fail(r, line, vat, "'%s' is not a non-negative number", val);
+	} else if (r->p->n == PROFILE_MAX_ENTRIES) {
+		fail(r, line, line, "too many entries%s", "");
+	} else {
+		struct profile_entry *e = &r->p->e[r->p->n++];
+		snprintf(e->key, sizeof e->key, "%s", key);
+		snprintf(e->note, sizeof e->note, "%s", note);
+		e->value = v;
+		e->line = r->line;
+	}
+}
+
+int profile_load(const char *path, struct diag_sink *d, struct profile *p)
+{
+	struct reader r = {d, diag_add_file(d, path), 0, p, 0};
+	memset(p, 0, sizeof *p);
+	snprintf(p->path, sizeof p->path, "%s", path);
+	FILE *f = fopen(path, "r");
+	if (!f) {
+		struct diag_loc l = {r.file, 0, 0};
+		diag_add(d, DIAG_ERROR, "profile", l, "cannot read the profile");
+		return 0;
+	}
+	char line[512];
+	while (fgets(line, sizeof line, f)) {
+		r.line++;
+		char *s = line + strspn(line, " \t");
+		if (*s == '#' || *s == '\n' || *s == '\r' || *s == '\0')
+			continue;
+		entry(&r, line);
+	}
+	fclose(f);
+	if (!r.bad && !p->name[0]) {
+		struct diag_loc l = {r.file, 1, 1};
+		diag_add(d, DIAG_ERROR, "profile", l, "the profile has no name = line");
+		r.bad = 1;
+	}
+	return !r.bad;
+}
+
+static int readable(const char *path)
+{
+	return access(path, R_OK) == 0;
+}
+
+int profile_find(const char *name, const char *argv0, char *out, size_t n)
+{
+	if (strchr(name, '/') || strstr(name, ".profile")) {
+		snprintf(out, n, "%s", name);
+		return readable(out);
+	}
+	const char *env = getenv("HEADROOM_RULES");
+	if (env) {
+		snprintf(out, n, "%s/%s.profile", env, name);
+		if (readable(out))
+			return 1;
+	}
+	char dir[512];
+	snprintf(dir, sizeof dir, "%s", argv0 ? argv0 : "");
+	char *slash = strrchr(dir, '/');
+	if (slash)
+		*slash = '\0';
+	else
+		snprintf(dir, sizeof dir, ".");
+	static const char *const rel[] = {"../rules", "../share/headroom/rules", "rules"};
+	for (size_t i = 0; i < sizeof rel / sizeof rel[0]; i++) {
+		snprintf(out, n, "%s/%s/%s.profile", dir, rel[i], name);
+		if (readable(out))
+			return 1;
+	}
+	snprintf(out, n, "rules/%s.profile", name);
+	return readable(out);
+}
+
+double profile_value(const struct profile *p, const char *key, const char **note)
+{
+	for (size_t i = 0; i < p->n; i++)
+		if (strcmp(p->e[i].key, key) == 0) {
+			if (note)
+				*note = p->e[i].note;
+			return p->e[i].value;
+		}
+	if (note)
+		*note = "";
+	return NAN;
+}
+
+double profile_kind(const struct profile *p, const char *cls, const char *kind,
+		    const char *field, const char **note)
+{
+	char key[64];
+	snprintf(key, sizeof key, "%s.%s.%s", cls, kind && kind[0] ? kind : "default", field);
+	double v = profile_value(p, key, note);
+	if (!isnan(v))
+		return v;
+	snprintf(key, sizeof key, "%s.default.%s", cls, field);
+	return profile_value(p, key, note);
+}

@@ -1,0 +1,369 @@
+/* rating.c: ratings of parts, and the parts-table reader. The table is a
+ * header row then one row per part or pattern; columns ref, kind, v_rated,
+ * i_surge, i_avg, trr, tol, note in any order and case; others ignored. */
+#include "rating.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "num.h"
+#include "profile.h"
+
+enum col { COL_REF, COL_KIND, COL_V, COL_ISURGE, COL_IAVG, COL_TRR, COL_TOL, COL_NOTE, NCOLS };
+static const char *const col_names[NCOLS] = {"ref", "kind", "v_rated", "i_surge",
+					     "i_avg", "trr", "tol", "note"};
+
+struct row {
+	const char *cell[NCOLS];
+	unsigned col[NCOLS];   /* 1-based column of each cell */
+	unsigned line;
+};
+
+struct rating_table {
+	const char *path;
+	uint32_t file;
+	struct row *rows;
+	size_t n;
+};
+
+/* One CSV record from line (RFC 4180 quoting, no embedded newlines); cells
+ * point into out (NUL-separated); starts[] their columns. */
+static int split_csv(const char *line, char *out, const char **cells,
+		     unsigned *starts, int max)
+{
+	int n = 0;
+	size_t i = 0, k = 0;
+	while (n < max) {
+		cells[n] = out + k;
+		starts[n] = (unsigned)i + 1;
+		if (line[i] == '"') {
+			for (i++; line[i]; i++) {
+				if (line[i] == '"' && line[i + 1] == '"')
+					out[k++] = line[i++];
+				else if (line[i] == '"')
+					break;
+				else
+					out[k++] = line[i];
+			}
+			if (line[i] != '"')
+				return -1;
+			i++;
+		} else {
+			while (line[i] && line[i] != ',' && line[i] != '\r' && line[i] != '\n')
+				out[k++] = line[i++];
+		}
+		out[k++] = '\0';
+		n++;
+		if (line[i] != ',')
+			break;
+		i++;
+	}
+	return n;
+}
+
+static void cell_loc(const struct rating_table *t, const struct row *r,
+		     enum col c, struct diag_loc *l)
+{
+	l->file = t->file;
+	l->line = r->line;
+	l->col = r->col[c];
+}
+
+static int header(const char *const *cells, const unsigned *starts, int n,
+		  int *map)
+{
+	int have_ref = 0;
+	(void)starts;
+	for (int i = 0; i < n; i++) {
+		map[i] = -1;
+		char name[32];
+		snprintf(name, sizeof name, "%s", cells[i]);
+		num_fold(name, strlen(name));
+		for (int c = 0; c < NCOLS; c++)
+			if (strcmp(name, col_names[c]) == 0) {
+				map[i] = c;
+				have_ref |= c == COL_REF;
+			}
+	}
+	return have_ref;
+}
+
+struct rating_table *rating_table_load(const char *path, struct arena *ar,
+				       struct diag_sink *d)
+{
+	struct rating_table *t = arena_zalloc(ar, sizeof *t);
+	FILE *f = fopen(path, "r");
+	if (!t || !(t->path = arena_strdup(ar, path)))
+		return NULL;
+	t->file = diag_add_file(d, path);
+	struct diag_loc l = {t->file, 0, 0};
+	if (!f) {
+		diag_add(d, DIAG_ERROR, "parts", l, "cannot read the parts table");
+		return NULL;
+	}
+	char line[4096], buf[4096];
+	const char *cells[64];
+	unsigned starts[64], lineno = 0;
+	int map[64], nh = 0, ok = 1;
+	size_t cap = 0;
+	while (fgets(line, sizeof line, f)) {
+		lineno++;
+		if (line[strspn(line, " \t\r\n")] == '\0')
+			continue;
+		int n = split_csv(line, buf, cells, starts, 64);
+		l.line = lineno;
+		l.col = 1;
+		if (n < 0) {
+			diag_add(d, DIAG_ERROR, "parts", l, "a quoted cell has no closing quote");
+			ok = 0;
+			continue;
+		}
+		if (nh == 0) {
+			nh = n;
+			if (!header(cells, starts, n, map)) {
+				diag_add(d, DIAG_ERROR, "parts", l, "the header row has no 'ref' column");
+				fclose(f);
+				return NULL;
+			}
+			continue;
+		}
+		if (t->n == cap) {
+			size_t ncap = cap ? cap * 2 : 32;
+			struct row *v = arena_alloc(ar, ncap * sizeof *v);
+			if (!v) {
+				fclose(f);
+				return NULL;
+			}
+			if (t->n)
+				memcpy(v, t->rows, t->n * sizeof *v);
+			t->rows = v;
+			cap = ncap;
+		}
+		struct row *r = &t->rows[t->n++];
+		memset(r, 0, sizeof *r);
+		r->line = lineno;
+		for (int i = 0; i < n && i < nh; i++)
+			if (map[i] >= 0) {
+				r->cell[map[i]] = arena_strdup(ar, cells[i]);
+				r->col[map[i]] = starts[i];
+			}
+	}
+	fclose(f);
+	return ok ? t : NULL;
+}
+
+/* ---- values ---- */
+
+static int parse_value(const char *s, int pct_allowed, double *out)
+{
+	size_t n = strlen(s);
+	while (n && s[n - 1] == ' ')
+		n--;
+	int pct = n && s[n - 1] == '%';
+	if (pct && !pct_allowed)
+		return 0;
+	if (!num_ok(num_parse(s, pct ? n - 1 : n, out, NULL)))
+		return 0;
+	if (pct)
+		*out /= 100;
+	return 1;
+}
+
+static int kind_fits(const struct nl_part *p, const char *kind)
+{
+	const char *const *list = p->kind == NL_C ? profile_cap_kinds
+				: p->kind == NL_D ? profile_diode_kinds : NULL;
+	for (int i = 0; list && list[i]; i++)
+		if (strcmp(list[i], kind) == 0 && strcmp(kind, "default") != 0)
+			return 1;
+	return 0;
+}
+
+static const char *known_kind(const char *kind)
+{
+	for (int i = 0; profile_cap_kinds[i]; i++)
+		if (strcmp(profile_cap_kinds[i], kind) == 0)
+			return profile_cap_kinds[i];
+	for (int i = 0; profile_diode_kinds[i]; i++)
+		if (strcmp(profile_diode_kinds[i], kind) == 0)
+			return profile_diode_kinds[i];
+	return NULL;
+}
+
+struct source {
+	const char *from;
+	struct diag_loc loc;
+	struct diag_sink *d;
+	struct arena *ar;
+};
+
+static void set_field(struct rating_field *f, const char *text, int pct,
+		      const struct source *src, const char *what)
+{
+	double v;
+	if (!text || !*text)
+		return;
+	if (!parse_value(text, pct, &v) || v < 0) {
+		diag_add(src->d, DIAG_ERROR, "rating", src->loc,
+			 "%s '%s' is not a non-negative value", what, text);
+		return;
+	}
+	f->value = v;
+	f->from = src->from;
+}
+
+static void set_kind(struct rating *r, const struct nl_part *p, const char *text,
+		     const struct source *src)
+{
+	if (!text || !*text)
+		return;
+	char k[32];
+	snprintf(k, sizeof k, "%s", text);
+	num_fold(k, strlen(k));
+	const char *kind = known_kind(k);
+	if (!kind || strcmp(k, "default") == 0) {
+		diag_add(src->d, DIAG_ERROR, "rating", src->loc, "unknown part kind '%s'", text);
+		return;
+	}
+	if (!kind_fits(p, kind)) {
+		diag_add(src->d, DIAG_WARNING, "rating", src->loc,
+			 "kind '%s' does not fit %s '%s'; ignored for it", kind,
+			 nl_kind_name(p->kind), p->path);
+		return;
+	}
+	r->kind = kind;
+	r->kind_from = src->from;
+}
+
+static void from_model(struct rating *r, const struct nl_part *p)
+{
+	double bv = p->kind == NL_D ? rating_model_param(p, "bv") : NAN;
+	if (!isnan(bv) && bv > 0) {
+		r->v_rated.value = bv;
+		r->v_rated.from = "model BV";
+	}
+	double tt = p->kind == NL_D ? rating_model_param(p, "tt") : NAN;
+	if (!isnan(tt) && tt > 0) {
+		r->trr.value = tt;
+		r->trr.from = "model TT";
+	}
+}
+
+static void from_row(struct rating *r, const struct nl_part *p,
+		     const struct rating_table *t, const struct row *row,
+		     struct source *src)
+{
+	char from[64];
+	snprintf(from, sizeof from, "%s:%u", t->path, row->line);
+	src->from = arena_strdup(src->ar, from);
+	if (!src->from)
+		return;
+	cell_loc(t, row, COL_V, &src->loc);
+	set_field(&r->v_rated, row->cell[COL_V], 0, src, "v_rated");
+	cell_loc(t, row, COL_ISURGE, &src->loc);
+	set_field(&r->i_surge, row->cell[COL_ISURGE], 0, src, "i_surge");
+	cell_loc(t, row, COL_IAVG, &src->loc);
+	set_field(&r->i_avg, row->cell[COL_IAVG], 0, src, "i_avg");
+	cell_loc(t, row, COL_TRR, &src->loc);
+	set_field(&r->trr, row->cell[COL_TRR], 0, src, "trr");
+	cell_loc(t, row, COL_TOL, &src->loc);
+	set_field(&r->tol, row->cell[COL_TOL], 1, src, "tol");
+	cell_loc(t, row, COL_KIND, &src->loc);
+	set_kind(r, p, row->cell[COL_KIND], src);
+	if (row->cell[COL_NOTE] && *row->cell[COL_NOTE])
+		r->note = row->cell[COL_NOTE];
+}
+
+static void from_annot(struct rating *r, const struct nl_part *p,
+		       const struct annot *a, struct source *src)
+{
+	static const char *const keys[] = {"v_rated", "i_surge", "i_avg", "trr", "tol"};
+	struct rating_field *f[] = {&r->v_rated, &r->i_surge, &r->i_avg, &r->trr, &r->tol};
+	src->loc = a->loc;
+	for (int i = 0; i < 5; i++) {
+		const struct annot_kv *kv = annot_get(a, keys[i]);
+		if (kv)
+			set_field(f[i], kv->text, i == 4, src, keys[i]);
+	}
+	const struct annot_kv *k = annot_get(a, "kind");
+	if (k)
+		set_kind(r, p, k->text, src);
+	const struct annot_kv *note = annot_get(a, "note");
+	if (note)
+		r->note = note->text;
+}
+
+static void init(struct rating *r)
+{
+	memset(r, 0, sizeof *r);
+	r->v_rated.value = r->i_surge.value = r->i_avg.value = NAN;
+	r->trr.value = r->tol.value = NAN;
+}
+
+struct rating *rating_resolve(const struct nl_circuit *c,
+			      const struct rating_table *table,
+			      const struct annot *annots, uint32_t nannots,
+			      struct arena *ar, struct diag_sink *d)
+{
+	size_t np = nl_part_count(c);
+	struct rating *out = arena_alloc(ar, (np + 1) * sizeof *out);
+	uint8_t *row_used = table ? arena_zalloc(ar, table->n + 1) : NULL;
+	uint8_t *an_used = arena_zalloc(ar, nannots + 1);
+	if (!out || (table && !row_used) || !an_used)
+		return NULL;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		init(&out[i]);
+		if (p->kind != NL_C && p->kind != NL_D)
+			continue;
+		from_model(&out[i], p);
+		struct source src = {NULL, {0, 0, 0}, d, ar};
+		for (size_t k = 0; table && k < table->n; k++)
+			if (table->rows[k].cell[COL_REF] && annot_glob(table->rows[k].cell[COL_REF], p->path)) {
+				from_row(&out[i], p, table, &table->rows[k], &src);
+				row_used[k] = 1;
+			}
+		for (uint32_t k = 0; k < nannots; k++) {
+			if (annots[k].kind != AN_PART || !annot_glob(annots[k].target, p->path))
+				continue;
+			char from[96];
+			snprintf(from, sizeof from, "annotation %s:%u", diag_file_name(d, annots[k].loc.file),
+				 annots[k].loc.line);
+			src.from = arena_strdup(ar, from);
+			from_annot(&out[i], p, &annots[k], &src);
+			an_used[k] = 1;
+		}
+	}
+	for (uint32_t k = 0; k < nannots; k++)
+		if (annots[k].kind == AN_PART && !an_used[k])
+			diag_add(d, DIAG_WARNING, "annotation", annots[k].loc,
+				 "*@part names '%s', which matches no capacitor or diode", annots[k].target);
+	/* rows that match nothing are normal: one table serves many netlists */
+	return out;
+}
+
+double rating_model_param(const struct nl_part *p, const char *key)
+{
+	if (!p->model)
+		return NAN;
+	for (uint32_t i = 0; i < p->model->nparams; i++)
+		if (strcmp(p->model->keys[i], key) == 0)
+			return p->model->values[i];
+	return NAN;
+}
+
+double rating_vf(const struct nl_part *d, const char *kind)
+{
+	const double vt = 0.025852; /* kT/q at 300.15 K */
+	double is = rating_model_param(d, "is"), n = rating_model_param(d, "n");
+	double rs = rating_model_param(d, "rs"), area = d->value > 0 ? d->value : 1;
+	if (!isnan(is) && is > 0) {
+		if (isnan(n) || n <= 0)
+			n = 1;
+		return n * vt * log1p(1e-3 / (is * area)) + (isnan(rs) ? 0 : rs / area * 1e-3);
+	}
+	if (kind && strcmp(kind, "schottky") == 0)
+		return 0.3;
+	return 0.7;
+}

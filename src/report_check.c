@@ -1,0 +1,325 @@
+/* report_check.c: check reports. Text: one block per finding (location,
+ * severity, message, rule id; then where the number comes from, the rating
+ * and limit, the fix), a stress table, a summary. JSON: DESIGN §10 shape. */
+#include "report_check.h"
+
+#include <math.h>
+#include <string.h>
+
+#include "num.h"
+#include "report_parts.h"
+#include "report_topo.h"
+#include "version.h"
+
+const char report_caution[] =
+	"caution: this design involves voltages above the hazard level. Stored charge "
+	"can injure or kill, also after power is removed. These findings are an aid to "
+	"review, not a certification: follow the applicable safety standard, local codes "
+	"and licensed practice.";
+
+static const char *sev_name(enum diag_severity s)
+{
+	return diag_severity_name(s);
+}
+
+static void count(struct check_totals *t, const struct rules_result *r)
+{
+	for (size_t i = 0; r && i < r->n; i++) {
+		if (r->f[i].waived)
+			continue;
+		switch (r->f[i].rule->severity) {
+		case DIAG_ERROR: t->errors++; break;
+		case DIAG_WARNING: t->warnings++; break;
+		default: t->notes++; break;
+		}
+	}
+}
+
+/* ---- text ---- */
+
+static void text_finding(FILE *out, const struct check_file *f,
+			 const struct finding *g)
+{
+	fprintf(out, "%s:%u:%u: %s: %s [%s]%s\n", diag_file_name(f->d, g->loc.file),
+		g->loc.line, g->loc.col, sev_name(g->rule->severity), g->message, g->rule->id,
+		g->waived ? " (waived)" : "");
+	if (g->computation)
+		fprintf(out, "    how:    %s\n", g->computation);
+	if (g->limits)
+		fprintf(out, "    limits: %s\n", g->limits);
+	if (g->fix)
+		fprintf(out, "    fix:    %s\n", g->fix);
+}
+
+static const char *qty_unit(const struct stress *s)
+{
+	return s->qty == SQ_SURGE ? "A" : "V";
+}
+
+static void text_table(FILE *out, const struct check_file *f)
+{
+	const struct stress_result *sr = f->stress;
+	const struct nl_circuit *c = f->a->er.circuit;
+	if (!sr || sr->n == 0)
+		return;
+	size_t w = 4;
+	for (size_t i = 0; i < sr->n; i++) {
+		size_t l = strlen(nl_part_at(c, sr->s[i].part)->path);
+		w = l > w ? l : w;
+	}
+	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s\n", (int)w, "part", "in",
+		"stress", "role", "worst", "best", "rating", "ratio");
+	for (size_t i = 0; i < sr->n; i++) {
+		const struct stress *s = &sr->s[i];
+		const struct nl_part *p = nl_part_at(c, s->part);
+		const struct rating *r = &f->ratings[s->part];
+		double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+		char st[16] = "-", wv[24] = "unbounded", bv[24] = "-", rv[24] = "-", ratio[16] = "-";
+		if (s->structure >= 0)
+			snprintf(st, sizeof st, "S%d", s->structure + 1);
+		if (s->bounded && isfinite(s->worst))
+			num_format_eng(s->worst, qty_unit(s), wv, sizeof wv);
+		if (s->bounded && isfinite(s->best) && s->qty != SQ_SURGE)
+			num_format_eng(s->best, qty_unit(s), bv, sizeof bv);
+		if (!isnan(rated))
+			num_format_eng(rated, qty_unit(s), rv, sizeof rv);
+		if (!isnan(rated) && s->bounded && isfinite(s->worst))
+			snprintf(ratio, sizeof ratio, "%.0f%%", 100 * s->worst / rated);
+		fprintf(out, "  %-*s  %-4s %-7s %-38.38s %11s %11s %10s %6s\n", (int)w, p->path, st,
+			s->qty == SQ_SURGE ? "surge" : p->kind == NL_D ? "reverse" : "voltage",
+			s->role[0] ? s->role : "-", wv, bv, rv, ratio);
+	}
+}
+
+static void text_structs(FILE *out, const struct check_file *f)
+{
+	const struct audit *a = f->a;
+	for (size_t i = 0; i < a->topo.n; i++) {
+		const struct topo_struct *t = &a->topo.s[i];
+		const struct stress_struct *x = &f->stress->st[i];
+		fprintf(out, "  S%zu %s", i + 1, topo_kind_name(t->kind));
+		if (t->kind == TK_LADDER || t->kind == TK_PUMP)
+			fprintf(out, ", %g stages", t->stages);
+		if (t->output != NL_NONE)
+			fprintf(out, ", output %s", nl_node_at(a->er.circuit, t->output)->name);
+		fputc('\n', out);
+		if (t->kind == TK_LADDER && x->ladder_i > 0) {
+			char i_[24], d_[24], r_[24];
+			num_format_eng(x->ladder_i, "A", i_, sizeof i_);
+			num_format_eng(x->ladder_drop, "V", d_, sizeof d_);
+			num_format_eng(x->ladder_ripple, "V", r_, sizeof r_);
+			fprintf(out, "     under its load (%s): drop %s, ripple %s peak-to-peak, best stage count %.1f\n",
+				i_, d_, r_, x->ladder_nopt);
+		}
+		if (x->droop_v > 0) {
+			char d_[24];
+			num_format_eng(x->droop_v, "V", d_, sizeof d_);
+			fprintf(out, "     clamp droop under its load: %s per period (%.2f%% of the swing)\n",
+				d_, 100 * x->droop_frac);
+		}
+	}
+}
+
+static void text_file(FILE *out, const struct check_file *f,
+		      const struct profile *p)
+{
+	if (!f->a->analysed) {
+		fprintf(out, "%s: not checked: the netlist has errors (listed on standard error)\n", f->path);
+		return;
+	}
+	size_t n = f->rules->n;
+	fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s)\n", f->path, f->a->topo.n,
+		f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name);
+	for (size_t i = 0; i < n; i++)
+		text_finding(out, f, &f->rules->f[i]);
+	text_structs(out, f);
+	text_table(out, f);
+}
+
+/* ---- JSON ---- */
+
+static void jnum(FILE *out, double v)
+{
+	if (isnan(v) || isinf(v))
+		fputs("null", out);
+	else
+		fprintf(out, "%.10g", v);
+}
+
+static void jstr(FILE *out, const char *s)
+{
+	if (s)
+		report_json_string(out, s);
+	else
+		fputs("null", out);
+}
+
+static void json_stress(FILE *out, const struct check_file *f,
+			const struct stress *s)
+{
+	const struct nl_part *p = nl_part_at(f->a->er.circuit, s->part);
+	const struct rating *r = &f->ratings[s->part];
+	const struct rating_field *rf = s->qty == SQ_SURGE ? &r->i_surge : &r->v_rated;
+	char sid[16];
+	snprintf(sid, sizeof sid, "S%d", s->structure + 1);
+	fputs("{\"part\": ", out);
+	jstr(out, p->path);
+	fprintf(out, ", \"element\": \"%c\", \"structure\": ", p->letter == 'c' ? 'C' : 'D');
+	jstr(out, s->structure >= 0 ? sid : NULL);
+	fputs(", \"role\": ", out);
+	jstr(out, s->role[0] ? s->role : NULL);
+	fprintf(out, ", \"quantity\": \"%s\", \"bounded\": %s, \"best\": ",
+		s->qty == SQ_SURGE ? "surge_current" : s->qty == SQ_REVERSE ? "reverse_voltage" : "voltage",
+		s->bounded ? "true" : "false");
+	jnum(out, s->bounded ? s->best : NAN);
+	fputs(", \"worst\": ", out);
+	jnum(out, s->bounded ? s->worst : NAN);
+	fprintf(out, ", \"unit\": \"%s\", \"corner\": ", s->qty == SQ_SURGE ? "A" : "V");
+	jstr(out, s->corner);
+	fputs(", \"kind\": ", out);
+	jstr(out, r->kind);
+	fputs(", \"rating\": ", out);
+	jnum(out, rf->value);
+	fputs(", \"rating_from\": ", out);
+	jstr(out, rf->from);
+	fputs(", \"ratio\": ", out);
+	jnum(out, s->bounded && !isnan(rf->value) ? s->worst / rf->value : NAN);
+	if (s->qty == SQ_SURGE) {
+		fputs(", \"series_r\": ", out);
+		jnum(out, s->series_r);
+	}
+	if (p->kind == NL_C && s->bounded) {
+		fputs(", \"energy\": ", out);
+		jnum(out, s->energy_j);
+	}
+	fputc('}', out);
+}
+
+static void json_finding(FILE *out, const struct check_file *f,
+			 const struct finding *g)
+{
+	fprintf(out, "{\"rule\": \"%s\", \"severity\": \"%s\", \"part\": ", g->rule->id,
+		sev_name(g->rule->severity));
+	jstr(out, g->subject);
+	fputs(", \"file\": ", out);
+	jstr(out, diag_file_name(f->d, g->loc.file));
+	fprintf(out, ", \"line\": %u, \"col\": %u, \"message\": ", g->loc.line, g->loc.col);
+	jstr(out, g->message);
+	fputs(", \"computation\": ", out);
+	jstr(out, g->computation);
+	fputs(", \"limits\": ", out);
+	jstr(out, g->limits);
+	fputs(", \"fix\": ", out);
+	jstr(out, g->fix);
+	fputs(", \"worst\": ", out);
+	jnum(out, g->worst);
+	fputs(", \"limit\": ", out);
+	jnum(out, g->limit);
+	fputs(", \"rating\": ", out);
+	jnum(out, g->rating);
+	fprintf(out, ", \"unit\": \"%s\", \"waived\": %s}", g->unit, g->waived ? "true" : "false");
+}
+
+static void json_errors(FILE *out, const struct check_file *f)
+{
+	int first = 1;
+	fputs("\"errors\": [", out);
+	for (size_t i = 0; i < diag_count(f->d); i++) {
+		const struct diag *g = diag_at(f->d, i);
+		if (g->severity != DIAG_ERROR)
+			continue;
+		fputs(first ? "{\"file\": " : ", {\"file\": ", out);
+		jstr(out, diag_file_name(f->d, g->loc.file));
+		fprintf(out, ", \"line\": %u, \"col\": %u, \"code\": \"%s\", \"message\": ",
+			g->loc.line, g->loc.col, g->code);
+		jstr(out, g->message);
+		fputc('}', out);
+		first = 0;
+	}
+	fputc(']', out);
+}
+
+static void json_file(FILE *out, const struct check_file *f)
+{
+	fputs("    {\"path\": ", out);
+	jstr(out, f->path);
+	fputs(", ", out);
+	json_errors(out, f);
+	fputs(",\n      ", out);
+	report_topo_json_structures(out, f->a, f->d);
+	fputs(",\n      \"stresses\": [", out);
+	size_t n = f->a->analysed ? f->stress->n : 0;
+	for (size_t i = 0; i < n; i++) {
+		fputs(i ? ",\n        " : "\n        ", out);
+		json_stress(out, f, &f->stress->s[i]);
+	}
+	fputs("],\n      \"findings\": [", out);
+	n = f->a->analysed ? f->rules->n : 0;
+	for (size_t i = 0; i < n; i++) {
+		fputs(i ? ",\n        " : "\n        ", out);
+		json_finding(out, f, &f->rules->f[i]);
+	}
+	fputs("]}", out);
+}
+
+static void json_head(FILE *out, const struct profile *p)
+{
+	fputs("{\"schema\": 1, \"tool\": {\"name\": \"headroom\", \"version\": \"" HEADROOM_VERSION "\"},\n", out);
+	fputs("  \"profile\": ", out);
+	jstr(out, p->name);
+	fputs(", \"assumptions\": {\"source_tol_default\": ", out);
+	jnum(out, profile_value(p, "source_tol", NULL));
+	fputs(", \"hazard_voltage\": ", out);
+	jnum(out, profile_value(p, "hazard_voltage", NULL));
+	fputs(", \"diodes\": \"ideal for the worst case; forward drop at 1 mA for the best\", "
+	      "\"load\": \"none for node waveforms; loads used for droop, ladder regulation and discharge\"},\n"
+	      "  \"files\": [\n", out);
+}
+
+void report_check_file(FILE *out, enum report_check_format fmt,
+		       const struct check_file *f, const struct profile *p,
+		       int first, struct check_totals *t)
+{
+	t->files++;
+	if (!f->a->analysed)
+		t->netlist_errors++;
+	else {
+		count(t, f->rules);
+		t->max_voltage = fmax(t->max_voltage, f->stress->max_voltage);
+	}
+	if (fmt == RC_TEXT) {
+		if (!first)
+			fputc('\n', out);
+		text_file(out, f, p);
+		return;
+	}
+	if (first)
+		json_head(out, p);
+	else
+		fputs(",\n", out);
+	json_file(out, f);
+}
+
+void report_check_end(FILE *out, enum report_check_format fmt,
+		      const struct profile *p, const struct check_totals *t)
+{
+	double hz = profile_value(p, "hazard_voltage", NULL);
+	int hazard = !isnan(hz) && t->max_voltage > hz;
+	if (fmt == RC_TEXT) {
+		fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",
+			t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
+			t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s",
+			t->netlist_errors ? "; some files have netlist errors" : "");
+		if (hazard)
+			fprintf(out, "\n%s\n", report_caution);
+		return;
+	}
+	if (t->files == 0)
+		json_head(out, p);
+	fprintf(out, "\n  ],\n  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu, \"max_voltage\": ",
+		t->files, t->errors, t->warnings, t->notes, t->netlist_errors);
+	jnum(out, t->max_voltage);
+	fputs(", \"caution\": ", out);
+	jstr(out, hazard ? report_caution : NULL);
+	fputs("}\n}\n", out);
+}

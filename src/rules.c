@@ -1,0 +1,432 @@
+/* rules.c: findings. Each rule is a small function of one stress (or one
+ * structure, or one *@expect line); the table below is the list reports and
+ * `headroom rules` show, and docs/rules/ID.md explains each [rules-list]. */
+#include "rules.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "num.h"
+
+const struct rule_info rules_table[] = {
+	{"cap-overvoltage", DIAG_ERROR, "a capacitor sees more than its rated voltage"},
+	{"cap-derating", DIAG_WARNING, "a capacitor is above the profile's share of its rating"},
+	{"cap-reverse-bias", DIAG_ERROR, "a polarised capacitor is reverse-biased past its limit"},
+	{"diode-overvoltage", DIAG_ERROR, "a diode's reverse voltage is above its rating"},
+	{"diode-derating", DIAG_WARNING, "a diode's reverse voltage is above the profile's share of its rating"},
+	{"surge-current", DIAG_WARNING, "the power-up surge through a diode is above its surge rating"},
+	{"surge-unbounded", DIAG_WARNING, "nothing limits the power-up surge through a diode"},
+	{"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
+	{"clamp-droop", DIAG_WARNING, "the load makes a clamp's capacitor droop too much each period"},
+	{"slow-recovery", DIAG_WARNING, "a diode recovers too slowly for the drive frequency"},
+	{"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
+	{"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
+	{"stress-unsettled", DIAG_NOTE, "a part's stress could not be bounded"},
+};
+const size_t rules_count = sizeof rules_table / sizeof rules_table[0];
+
+const struct rule_info *rules_find(const char *id)
+{
+	for (size_t i = 0; i < rules_count; i++)
+		if (strcmp(rules_table[i].id, id) == 0)
+			return &rules_table[i];
+	return NULL;
+}
+
+/* Standard rated-voltage steps: capacitors along the usual R10-based
+ * ladder, diodes along common VRRM steps (common practice, no source). */
+static const double cap_steps[] = {2.5, 4, 6.3, 10, 16, 25, 35, 50, 63, 80,
+	100, 160, 200, 250, 315, 350, 400, 450, 500, 630, 800, 1000, 1250, 1600,
+	2000, 2500, 3000, 4000, 5000, 6300, 8000, 10000, 12500, 16000, 20000,
+	25000, 30000, 40000, 50000};
+static const double diode_steps[] = {20, 30, 40, 50, 60, 100, 150, 200, 300,
+	400, 500, 600, 800, 1000, 1200, 1500, 1600, 1800, 2000, 2500, 3000, 4000,
+	5000, 6000, 8000, 10000, 12000, 15000, 20000, 30000, 40000, 50000};
+
+double rules_standard_rating(double v, int diode)
+{
+	const double *s = diode ? diode_steps : cap_steps;
+	size_t n = diode ? sizeof diode_steps / sizeof *diode_steps
+			 : sizeof cap_steps / sizeof *cap_steps;
+	for (size_t i = 0; i < n; i++)
+		if (s[i] >= v * (1 - 1e-12))
+			return s[i];
+	return NAN;
+}
+
+struct ctx {
+	struct audit *a;
+	const struct rating *r;
+	const struct profile *p;
+	const struct stress_result *s;
+	struct rules_result *out;
+	size_t cap;
+	int oom;
+};
+
+static const char *str(struct ctx *x, const char *fmt, ...)
+	DIAG_PRINTF(2, 3);
+
+static const char *str(struct ctx *x, const char *fmt, ...)
+{
+	char buf[600];
+	va_list ap;
+	va_start(ap, fmt);
+	vsnprintf(buf, sizeof buf, fmt, ap);
+	va_end(ap);
+	const char *c = arena_strdup(x->a->ar, buf);
+	if (!c)
+		x->oom = 1;
+	return c ? c : "";
+}
+
+static struct finding *add(struct ctx *x, const char *rule, uint32_t part,
+			   int32_t st)
+{
+	if (x->out->n == x->cap) {
+		size_t ncap = x->cap ? x->cap * 2 : 32;
+		struct finding *v = arena_alloc(x->a->ar, ncap * sizeof *v);
+		if (!v) {
+			x->oom = 1;
+			return NULL;
+		}
+		if (x->out->n)
+			memcpy(v, x->out->f, x->out->n * sizeof *v);
+		x->out->f = v;
+		x->cap = ncap;
+	}
+	struct finding *f = &x->out->f[x->out->n++];
+	memset(f, 0, sizeof *f);
+	f->rule = rules_find(rule);
+	f->part = part;
+	f->structure = st;
+	f->worst = f->limit = f->rating = NAN;
+	f->unit = "V";
+	if (part != NL_NONE) {
+		const struct nl_part *pt = nl_part_at(x->a->er.circuit, part);
+		f->loc = nl_part_loc(pt);
+		f->subject = pt->path;
+	}
+	return f;
+}
+
+static const char *v(struct ctx *x, double val, const char *unit)
+{
+	char b[40];
+	num_format_eng(val, unit, b, sizeof b);
+	return str(x, "%s", b);
+}
+
+/* "ladder stage 2, coupling column of S1 (ladder)" */
+static const char *where(struct ctx *x, const struct stress *s)
+{
+	if (s->structure < 0)
+		return "outside any structure";
+	const struct topo_struct *t = &x->a->topo.s[s->structure];
+	return str(x, "%s in S%d (%s)", s->role, s->structure + 1, topo_kind_name(t->kind));
+}
+
+static const char *computation(struct ctx *x, const struct stress *s)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	const struct nl_part *p = nl_part_at(c, s->part);
+	const uint32_t *q = nl_pins(c, p);
+	const char *n0 = nl_node_at(c, q[0])->name, *n1 = nl_node_at(c, q[1])->name;
+	if (s->qty == SQ_SURGE)
+		return str(x, "%s: power-up surge = peak drive %s / series %s (%s)", where(x, s),
+			   v(x, s->worst * s->series_r, "V"), v(x, s->series_r, "ohm"), s->corner);
+	if (p->kind == NL_D)
+		return str(x, "%s: reverse = max v(%s) - v(%s) over a period = %s (%s); best case %s",
+			   where(x, s), n1, n0, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"));
+	return str(x, "%s: |V| = max |v(%s) - v(%s)| over a period = %s (%s); best case %s",
+		   where(x, s), n0, n1, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"));
+}
+
+static const char *fix_rating(struct ctx *x, double worst, double factor,
+			      int diode)
+{
+	double need = worst / (factor > 0 ? factor : 1);
+	double std = rules_standard_rating(need, diode);
+	if (isnan(std))
+		return str(x, "no standard step reaches %s: split the stress (series parts) or lower it", v(x, need, "V"));
+	return str(x, "use a part rated %s or more: the smallest standard step at or above %s / %.0f%% = %s",
+		   v(x, std, "V"), v(x, worst, "V"), factor * 100, v(x, need, "V"));
+}
+
+static const char *limits(struct ctx *x, const struct rating *r, double factor,
+			  const char *key, const char *note)
+{
+	return str(x, "rating %s (%s); limit %s = %.0f%% of it (profile %s, %s%s%s)",
+		   v(x, r->v_rated.value, "V"), r->v_rated.from ? r->v_rated.from : "?",
+		   v(x, r->v_rated.value * factor, "V"), factor * 100, x->p->name, key,
+		   note && *note ? ": " : "", note ? note : "");
+}
+
+static void overvoltage(struct ctx *x, const struct stress *s, const char *cls)
+{
+	const struct rating *r = &x->r[s->part];
+	const char *note, *kind = r->kind;
+	double factor = profile_kind(x->p, cls, kind, "voltage", &note);
+	if (isnan(factor))
+		factor = 1;
+	char key[64];
+	snprintf(key, sizeof key, "%s.%s.voltage", cls, kind ? kind : "default");
+	int diode = strcmp(cls, "diode") == 0;
+	const char *what = diode ? "reverse" : "across it";
+	struct finding *f = NULL;
+	if (s->worst > r->v_rated.value) {
+		f = add(x, diode ? "diode-overvoltage" : "cap-overvoltage", s->part, s->structure);
+		if (f)
+			f->message = str(x, "%s sees %s %s worst case, above its %s rating",
+					 f->subject, v(x, s->worst, "V"), what, v(x, r->v_rated.value, "V"));
+	} else if (s->worst > r->v_rated.value * factor) {
+		f = add(x, diode ? "diode-derating" : "cap-derating", s->part, s->structure);
+		if (f)
+			f->message = str(x, "%s sees %s %s worst case, %.0f%% of its %s rating (limit %.0f%%)",
+					 f->subject, v(x, s->worst, "V"), what,
+					 100 * s->worst / r->v_rated.value, v(x, r->v_rated.value, "V"), factor * 100);
+	}
+	if (!f)
+		return;
+	f->worst = s->worst;
+	f->rating = r->v_rated.value;
+	f->limit = r->v_rated.value * factor;
+	f->computation = computation(x, s);
+	f->limits = limits(x, r, factor, key, note);
+	f->fix = fix_rating(x, s->worst, factor, diode);
+}
+
+static void reverse_bias(struct ctx *x, const struct stress *s)
+{
+	const struct rating *r = &x->r[s->part];
+	if (!r->kind || !profile_polarised(r->kind) || isnan(s->rev_min))
+		return;
+	const char *n1, *n2;
+	double lv = profile_kind(x->p, "cap", r->kind, "reverse_v", &n1);
+	double lf = profile_kind(x->p, "cap", r->kind, "reverse_fraction", &n2);
+	double lim = isnan(lv) ? 0 : lv;
+	if (!isnan(lf) && !isnan(r->v_rated.value))
+		lim = fmin(lim, lf * r->v_rated.value);
+	if (s->rev_min >= -lim - 1e-9)
+		return;
+	struct finding *f = add(x, "cap-reverse-bias", s->part, s->structure);
+	if (!f)
+		return;
+	f->worst = -s->rev_min;
+	f->limit = lim;
+	f->rating = r->v_rated.value;
+	f->message = str(x, "%s (%s, first node +) is reverse-biased by %s, past its %s limit",
+			 f->subject, r->kind, v(x, -s->rev_min, "V"), v(x, lim, "V"));
+	f->computation = str(x, "%s: lowest v(+) - v(-) over the corners = %s", where(x, s),
+			     v(x, s->rev_min, "V"));
+	f->limits = str(x, "reverse limit %s (profile %s: cap.%s.reverse_v%s)", v(x, lim, "V"),
+			x->p->name, r->kind, isnan(lf) ? "" : " and reverse_fraction");
+	f->fix = "turn the capacitor round, use a bipolar or non-polarised part, or keep the node from inverting";
+}
+
+static void missing(struct ctx *x, const struct stress *s, const char *cls)
+{
+	const char *note;
+	double factor = profile_kind(x->p, cls, x->r[s->part].kind, "voltage", &note);
+	struct finding *f = add(x, "rating-missing", s->part, s->structure);
+	if (!f)
+		return;
+	f->worst = s->worst;
+	f->message = str(x, "%s has no voltage rating; it sees %s worst case", f->subject,
+			 v(x, s->worst, "V"));
+	f->computation = computation(x, s);
+	f->fix = fix_rating(x, s->worst, isnan(factor) ? 1 : factor, strcmp(cls, "diode") == 0);
+}
+
+static void stored_charge(struct ctx *x, const struct stress *s)
+{
+	const char *n1, *n2;
+	double hz = profile_value(x->p, "hazard_voltage", &n1);
+	double tmax = profile_value(x->p, "discharge_time", &n2);
+	if (isnan(hz) || !(s->worst > hz) || (!isinf(s->discharge_r) && !(s->discharge_s > tmax)))
+		return;
+	struct finding *f = add(x, "stored-charge", s->part, s->structure);
+	if (!f)
+		return;
+	f->worst = s->worst;
+	f->limit = hz;
+	f->message = isinf(s->discharge_r)
+		? str(x, "%s holds %s (%s) and has no resistor across it to discharge it",
+		      f->subject, v(x, s->worst, "V"), v(x, s->energy_j, "J"))
+		: str(x, "%s holds %s (%s) and takes %s to fall below %s",
+		      f->subject, v(x, s->worst, "V"), v(x, s->energy_j, "J"), v(x, s->discharge_s, "s"),
+		      v(x, hz, "V"));
+	f->computation = str(x, "%s: E = C V^2 / 2 = %s; discharge t = R C ln(V / %s)%s", where(x, s),
+			     v(x, s->energy_j, "J"), v(x, hz, "V"),
+			     isinf(s->discharge_r) ? " with no R" : "");
+	f->limits = str(x, "hazard voltage %s, discharge within %s (profile %s)", v(x, hz, "V"),
+			v(x, tmax, "s"), x->p->name);
+	f->fix = "add a bleeder resistor across the capacitor sized to reach the hazard voltage in time";
+}
+
+static double period_of(struct ctx *x, int32_t st)
+{
+	return st >= 0 ? x->s->st[st].period : 0;
+}
+
+static void recovery(struct ctx *x, const struct stress *s)
+{
+	const struct rating *r = &x->r[s->part];
+	const char *note;
+	double frac = profile_value(x->p, "recovery_fraction", &note);
+	double T = period_of(x, s->structure), trr = r->trr.value;
+	if (isnan(trr) || isnan(frac) || !(T > 0) || !(trr > frac * T))
+		return;
+	struct finding *f = add(x, "slow-recovery", s->part, s->structure);
+	if (!f)
+		return;
+	f->worst = trr;
+	f->limit = frac * T;
+	f->unit = "s";
+	f->message = str(x, "%s recovers in %s, %.1f%% of the %s drive period (limit %.0f%%)",
+			 f->subject, v(x, trr, "s"), 100 * trr / T, v(x, T, "s"), frac * 100);
+	f->computation = str(x, "%s: trr from %s; drive period %s", where(x, s), r->trr.from, v(x, T, "s"));
+	f->limits = str(x, "recovery fraction %.0f%% (profile %s)", frac * 100, x->p->name);
+	f->fix = "use a faster diode (fast-recovery or Schottky) or a lower drive frequency";
+}
+
+static void surge_rules(struct ctx *x, const struct stress *s)
+{
+	const struct rating *r = &x->r[s->part];
+	if (!s->bounded)
+		return;
+	if (s->series_r <= 0) {
+		struct finding *f = add(x, "surge-unbounded", s->part, s->structure);
+		if (!f)
+			return;
+		f->unit = "A";
+		f->message = str(x, "nothing limits the power-up surge through %s: no resistance between the source and the discharged capacitor",
+				 f->subject);
+		f->computation = str(x, "%s: series resistance 0 (source, series parts and model RS)", where(x, s));
+		f->fix = "add a series resistor or an inrush limiter, or give the diode model its RS";
+		return;
+	}
+	const char *note;
+	double factor = profile_kind(x->p, "diode", r->kind, "surge", &note);
+	if (isnan(r->i_surge.value) || isnan(factor) || !(s->worst > r->i_surge.value * factor))
+		return;
+	struct finding *f = add(x, "surge-current", s->part, s->structure);
+	if (!f)
+		return;
+	f->worst = s->worst;
+	f->rating = r->i_surge.value;
+	f->limit = r->i_surge.value * factor;
+	f->unit = "A";
+	f->message = str(x, "power-up surge through %s is %s, above %.0f%% of its %s surge rating",
+			 f->subject, v(x, s->worst, "A"), factor * 100, v(x, r->i_surge.value, "A"));
+	f->computation = computation(x, s);
+	f->limits = str(x, "i_surge %s (%s); limit %s (profile %s, diode.%s.surge)", v(x, r->i_surge.value, "A"),
+			r->i_surge.from, v(x, f->limit, "A"), x->p->name, r->kind ? r->kind : "default");
+	f->fix = str(x, "raise the series resistance to at least %s, or use a diode with a higher surge rating",
+		     v(x, s->worst * s->series_r / f->limit, "ohm"));
+}
+
+static void part_rules(struct ctx *x, const struct stress *s)
+{
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
+	const char *cls = p->kind == NL_D ? "diode" : "cap";
+	if (s->qty == SQ_SURGE) {
+		surge_rules(x, s);
+		return;
+	}
+	if (!s->bounded) {
+		struct finding *f = add(x, "stress-unsettled", s->part, s->structure);
+		if (f)
+			f->message = str(x, "the stress on %s could not be bounded (%s): no rule is applied to it",
+					 f->subject, where(x, s));
+		return;
+	}
+	if (isnan(x->r[s->part].v_rated.value)) {
+		if (s->structure >= 0)
+			missing(x, s, cls);
+	} else {
+		overvoltage(x, s, cls);
+	}
+	if (p->kind == NL_C) {
+		reverse_bias(x, s);
+		stored_charge(x, s);
+	} else {
+		recovery(x, s);
+	}
+}
+
+static void droop(struct ctx *x, size_t si)
+{
+	const struct stress_struct *f0 = &x->s->st[si];
+	const char *note;
+	double lim = profile_value(x->p, "droop_limit", &note);
+	if (isnan(lim) || !(f0->droop_frac > lim))
+		return;
+	const struct topo_struct *t = &x->a->topo.s[si];
+	uint32_t part = NL_NONE;
+	for (uint32_t k = 0; k < t->nparts && part == NL_NONE; k++)
+		if (strncmp(t->parts[k].role, "coupling", 8) == 0)
+			part = t->parts[k].part;
+	struct finding *f = add(x, "clamp-droop", part, (int32_t)si);
+	if (!f)
+		return;
+	f->worst = f0->droop_v;
+	f->limit = lim * f0->swing;
+	f->message = str(x, "the clamp of S%zu droops %s per period under its %s load, %.1f%% of its %s swing (limit %.0f%%)",
+			 si + 1, v(x, f0->droop_v, "V"), v(x, f0->load_r, "ohm"), 100 * f0->droop_frac,
+			 v(x, f0->swing, "V"), lim * 100);
+	f->computation = str(x, "droop = Vcap T / (R C) with T %s, R %s", v(x, f0->period, "s"),
+			     v(x, f0->load_r, "ohm"));
+	f->limits = str(x, "droop limit %.0f%% of the swing (profile %s)", lim * 100, x->p->name);
+	f->fix = "raise the coupling capacitance or the load resistance";
+}
+
+static void intent(struct ctx *x, const struct annot *an)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	uint32_t id = nl_node_find(c, an->target, strlen(an->target));
+	const struct annot_kv *mn = annot_get(an, "min"), *mx = annot_get(an, "max");
+	double lo = INFINITY, hi = -INFINITY;
+	for (size_t k = 0; id != NL_NONE && k < x->s->ncorners; k++) {
+		const struct prop_node *n = &x->s->runs[k].nodes[id];
+		double a, b;
+		int exact;
+		if (n->state != PS_RESOLVED)
+			continue;
+		form_range(&x->s->runs[k].fc, n->f, &a, &b, &exact);
+		lo = fmin(lo, a);
+		hi = fmax(hi, b);
+	}
+	double want_lo = mn ? mn->num : -INFINITY, want_hi = mx ? mx->num : INFINITY;
+	if (lo == INFINITY || (lo >= want_lo && hi <= want_hi))
+		return;
+	struct finding *f = add(x, "intent-miss", NL_NONE, -1);
+	if (!f)
+		return;
+	f->loc = an->loc;
+	f->subject = an->target;
+	f->worst = hi > want_hi ? hi : lo;
+	f->limit = hi > want_hi ? want_hi : want_lo;
+	f->message = str(x, "node %s ranges %s .. %s over the corners, outside the declared %s .. %s",
+			 an->target, v(x, lo, "V"), v(x, hi, "V"), mn ? v(x, want_lo, "V") : "-",
+			 mx ? v(x, want_hi, "V") : "-");
+	f->computation = "the node's range at every corner of the source tolerances";
+	f->fix = "change the design or the *@expect line";
+}
+
+int rules_run(struct audit *a, const struct rating *r, const struct profile *p,
+	      const struct stress_result *s, struct rules_result *out)
+{
+	struct ctx x = {a, r, p, s, out, 0, 0};
+	memset(out, 0, sizeof *out);
+	for (size_t i = 0; i < s->n && !x.oom; i++)
+		part_rules(&x, &s->s[i]);
+	for (size_t i = 0; i < a->topo.n && !x.oom; i++)
+		droop(&x, i);
+	for (uint32_t i = 0; i < a->nannots && !x.oom; i++)
+		if (a->annots[i].kind == AN_EXPECT)
+			intent(&x, &a->annots[i]);
+	return !x.oom;
+}

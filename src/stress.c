@@ -1,0 +1,405 @@
+/* stress.c: worst-case stresses over corners. Formulas and their sources:
+ *  - ladder regulation under load I (half-wave Cockcroft-Walton, equal stage
+ *    capacitors C, drive frequency f, N stages): drop
+ *    dV = I/(fC) (2N^3/3 + N^2/2 - N/6), ripple dv = I/(fC) N(N+1)/2, optimum
+ *    N = sqrt(Vp f C / I): Kuffel, Zaengl & Kuffel, High Voltage Engineering
+ *    Fundamentals, 2nd ed., section 2.2 (from memory; the same formulas are
+ *    seen in secondary sources, REFERENCES.md section 3);
+ *  - clamp droop per period with load R: dV = Vcap T / (R C) (DESIGN §6);
+ *  - surge: I = Vpeak / R_series (DESIGN §6);
+ *  - stored energy E = C V^2 / 2; RC discharge to the hazard voltage
+ *    t = R C ln(V / Vhaz). */
+#include "stress.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+enum { C_NOM, C_HH, C_HL, C_LH, C_LL, C_VF, NCORNER };
+
+static const char *const corner_names[NCORNER] = {
+	"nominal sources, ideal diodes",
+	"amplitudes and offsets at +tol, ideal diodes",
+	"amplitudes at +tol, offsets at -tol, ideal diodes",
+	"amplitudes at -tol, offsets at +tol, ideal diodes",
+	"amplitudes and offsets at -tol, ideal diodes",
+	"nominal sources, diode forward drops"};
+
+double stress_tolerance(const struct audit *a, const struct profile *p,
+			uint32_t part)
+{
+	double t = a->sources[part].tol;
+	if (isnan(t))
+		t = profile_value(p, "source_tol", NULL);
+	return isnan(t) ? 0 : t;
+}
+
+struct ctx {
+	struct audit *a;
+	const struct rating *r;
+	const struct profile *p;
+	struct prop_result runs[NCORNER];
+	uint32_t *struct_of;     /* part -> structure index or UINT32_MAX */
+	const char **role_of;
+};
+
+static int run_corner(struct ctx *x, int k)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	size_t np = nl_part_count(c);
+	double *amp = arena_alloc(x->a->ar, (np + 1) * sizeof *amp);
+	double *off = arena_alloc(x->a->ar, (np + 1) * sizeof *off);
+	double *vf = k == C_VF ? arena_alloc(x->a->ar, (np + 1) * sizeof *vf) : NULL;
+	if (!amp || !off || (k == C_VF && !vf))
+		return 0;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		double t = p->kind == NL_V ? stress_tolerance(x->a, x->p, (uint32_t)i) : 0;
+		int ah = k == C_HH || k == C_HL, al = k == C_LH || k == C_LL;
+		int oh = k == C_HH || k == C_LH, ol = k == C_HL || k == C_LL;
+		amp[i] = ah ? 1 + t : al ? 1 - t : 1;
+		off[i] = oh ? 1 + t : ol ? 1 - t : 1;
+		if (vf)
+			vf[i] = p->kind == NL_D ? rating_vf(p, x->r[i].kind) : 0;
+	}
+	struct prop_corner corner = {amp, off, vf};
+	return prop_run(c, x->a->ranges, &corner, x->a->ar, &x->runs[k]);
+}
+
+/* v(p0) - v(p1) extremes at corner k; 0 when a node is not settled. */
+static int across(const struct ctx *x, int k, const struct nl_part *p,
+		  double *lo, double *hi)
+{
+	const uint32_t *q = nl_pins(x->a->er.circuit, p);
+	const struct prop_result *r = &x->runs[k];
+	const struct prop_node *a = &r->nodes[q[0]], *b = &r->nodes[q[1]];
+	if (a->state != PS_RESOLVED || b->state != PS_RESOLVED || a->conflict || b->conflict)
+		return 0;
+	const struct form *d = form_lin((struct form_ctx *)&r->fc, 1, a->f, -1, b->f);
+	if (!d)
+		return 0;
+	int exact;
+	form_range(&r->fc, d, lo, hi, &exact);
+	return 1;
+}
+
+static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
+{
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, i);
+	memset(s, 0, sizeof *s);
+	s->part = i;
+	s->structure = x->struct_of[i] == UINT32_MAX ? -1 : (int32_t)x->struct_of[i];
+	s->role = x->role_of[i] ? x->role_of[i] : "";
+	s->qty = p->kind == NL_D ? SQ_REVERSE : SQ_VOLTAGE;
+	s->best = INFINITY;
+	s->worst = -INFINITY;
+	s->rev_min = INFINITY;
+	s->bounded = 1;
+	for (int k = 0; k < NCORNER; k++) {
+		double lo, hi;
+		if (!across(x, k, p, &lo, &hi)) {
+			s->bounded = 0;
+			continue;
+		}
+		/* a diode: reverse is cathode above anode, v(p1) - v(p0) */
+		double v = p->kind == NL_D ? -lo : fmax(hi, -lo);
+		if (v > s->worst) {
+			s->worst = v;
+			s->corner = corner_names[k];
+		}
+		s->best = fmin(s->best, p->kind == NL_D ? fmax(-lo, 0) : fmax(fmax(hi, -lo), 0));
+		s->rev_min = fmin(s->rev_min, lo);
+	}
+	if (!s->bounded || s->worst == -INFINITY) {
+		s->bounded = 0;
+		s->best = s->worst = s->rev_min = NAN;
+	}
+}
+
+/* Resistance directly across a part's two nodes (parallel resistors). */
+static double across_r(const struct nl_circuit *c, const struct nl_part *p)
+{
+	const uint32_t *q = nl_pins(c, p);
+	uint32_t n;
+	const uint32_t *adj = nl_adjacency(c, q[0], &n);
+	double g = 0;
+	for (uint32_t i = 0; i < n; i++) {
+		const struct nl_part *r = nl_part_at(c, adj[i]);
+		if (r->kind != NL_R || !(r->value > 0))
+			continue;
+		const uint32_t *rq = nl_pins(c, r);
+		if ((rq[0] == q[0] && rq[1] == q[1]) || (rq[0] == q[1] && rq[1] == q[0]))
+			g += (r->ext ? r->ext->mult : 1.0) / r->value;
+	}
+	return g > 0 ? 1 / g : INFINITY;
+}
+
+static void energy(struct ctx *x, struct stress *s)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	const struct nl_part *p = nl_part_at(c, s->part);
+	double cap = p->value * (p->ext ? p->ext->mult : 1.0);
+	double hz = profile_value(x->p, "hazard_voltage", NULL);
+	s->energy_j = 0.5 * cap * s->worst * s->worst;
+	s->discharge_r = across_r(c, p);
+	s->discharge_s = NAN;
+	if (!isnan(hz) && s->worst > hz)
+		s->discharge_s = isinf(s->discharge_r) ? INFINITY
+				: s->discharge_r * cap * log(s->worst / hz);
+}
+
+/* ---- structures ---- */
+
+static double node_extreme(const struct prop_result *r, uint32_t a, uint32_t b,
+			   double *lo, double *hi)
+{
+	*lo = *hi = NAN;
+	if (a == NL_NONE || b == NL_NONE)
+		return NAN;
+	const struct prop_node *na = &r->nodes[a], *nb = &r->nodes[b];
+	if (na->state != PS_RESOLVED || nb->state != PS_RESOLVED)
+		return NAN;
+	const struct form *d = form_lin((struct form_ctx *)&r->fc, 1, na->f, -1, nb->f);
+	int exact;
+	if (!d)
+		return NAN;
+	form_range(&r->fc, d, lo, hi, &exact);
+	return fmax(fabs(*lo), fabs(*hi));
+}
+
+/* Conductance from node to settled nodes through resistors, and the
+ * current they draw at the nominal corner (V across each / R). */
+static double load_at(const struct ctx *x, uint32_t node, double *current)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	const struct prop_result *r = &x->runs[C_NOM];
+	uint32_t n;
+	const uint32_t *adj = nl_adjacency(c, node, &n);
+	double g = 0;
+	*current = 0;
+	for (uint32_t i = 0; i < n; i++) {
+		const struct nl_part *p = nl_part_at(c, adj[i]);
+		if (p->kind != NL_R || !(p->value > 0))
+			continue;
+		const uint32_t *q = nl_pins(c, p);
+		uint32_t other = q[0] == node ? q[1] : q[0];
+		/* a resistor to a node that only it holds carries no DC */
+		if (r->nodes[other].by == adj[i] || r->nodes[other].state != PS_RESOLVED)
+			continue;
+		double lo, hi, v = node_extreme(r, node, other, &lo, &hi);
+		double gi = (p->ext ? p->ext->mult : 1.0) / p->value;
+		g += gi;
+		if (!isnan(v))
+			*current += gi * (lo + hi) / 2 * (lo + hi > 0 ? 1 : -1);
+	}
+	return g;
+}
+
+static double drive_period(const struct ctx *x, const struct topo_struct *t)
+{
+	if (t->drive_source == NL_NONE)
+		return 0;
+	const struct prop_result *r = &x->runs[C_NOM];
+	return r->sigs[r->sig_of_part[t->drive_source]].period;
+}
+
+static double struct_caps(const struct ctx *x, const struct topo_struct *t,
+			  const char *role_prefix, int smallest)
+{
+	double total = 0, min = INFINITY;
+	for (uint32_t i = 0; i < t->nparts; i++) {
+		const struct nl_part *p = nl_part_at(x->a->er.circuit, t->parts[i].part);
+		if (p->kind != NL_C || (role_prefix && strncmp(t->parts[i].role, role_prefix, strlen(role_prefix))))
+			continue;
+		double c = p->value * (p->ext ? p->ext->mult : 1.0);
+		total += c;
+		min = fmin(min, c);
+	}
+	return smallest ? min : total;
+}
+
+static void figures(struct ctx *x, size_t si, struct stress_struct *f,
+		    const struct stress *coupling)
+{
+	const struct topo_struct *t = &x->a->topo.s[si];
+	double lo, hi, cur = 0;
+	memset(f, 0, sizeof *f);
+	f->period = drive_period(x, t);
+	f->swing = 0;
+	for (int k = 0; k < NCORNER; k++)
+		if (!isnan(node_extreme(&x->runs[k], t->drive, NL_GROUND, &lo, &hi)))
+			f->swing = fmax(f->swing, hi - lo);
+	double g = t->output != NL_NONE ? load_at(x, t->output, &cur) : 0;
+	f->load_r = g > 0 ? 1 / g : INFINITY;
+	if ((t->kind == TK_CLAMP_FLOOR || t->kind == TK_CLAMP_CEILING) && g > 0 && coupling &&
+	    f->period > 0) {
+		double c = struct_caps(x, t, "coupling", 0);
+		f->droop_v = coupling->worst * f->period / (f->load_r * c);
+		f->droop_frac = f->swing > 0 ? f->droop_v / f->swing : 0;
+	}
+	if (t->kind == TK_LADDER && g > 0 && f->period > 0) {
+		double n = floor(t->stages), fq = 1 / f->period;
+		f->ladder_i = fabs(cur);
+		f->ladder_c = struct_caps(x, t, NULL, 1);
+		double k = f->ladder_i / (fq * f->ladder_c);
+		f->ladder_drop = k * (2 * n * n * n / 3 + n * n / 2 - n / 6);
+		f->ladder_ripple = k * n * (n + 1) / 2;
+		f->ladder_nopt = f->ladder_i > 0 ? sqrt(f->swing / 2 * fq * f->ladder_c / f->ladder_i) : INFINITY;
+	}
+}
+
+/* At power-up every capacitor is discharged: a pinned node still sits at
+ * the node its capacitors couple it to. */
+static uint32_t at_power_up(const struct prop_result *r, uint32_t node)
+{
+	const struct prop_node *n = &r->nodes[node];
+	return n->how == PH_PIN && n->anchor != NL_NONE ? n->anchor : node;
+}
+
+/* Power-up surge of a first-stage diode: its largest forward voltage with
+ * the capacitors discharged, through everything in series with it. */
+static void surge(struct ctx *x, size_t si, uint32_t part, struct stress *s)
+{
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, part);
+	const uint32_t *q = nl_pins(x->a->er.circuit, p);
+	double v = 0, lo, hi;
+	memset(s, 0, sizeof *s);
+	s->part = part;
+	s->structure = (int32_t)si;
+	s->role = x->role_of[part] ? x->role_of[part] : "";
+	s->qty = SQ_SURGE;
+	uint32_t an = at_power_up(&x->runs[C_NOM], q[0]), ka = at_power_up(&x->runs[C_NOM], q[1]);
+	for (int k = C_NOM; k < C_VF; k++) {
+		double e = node_extreme(&x->runs[k], an, ka, &lo, &hi);
+		if (!isnan(e) && hi > v) {
+			v = hi;
+			s->corner = corner_names[k];
+		}
+	}
+	double rs = rating_model_param(p, "rs");
+	const struct prop_node *na = &x->runs[C_NOM].nodes[an], *nk = &x->runs[C_NOM].nodes[ka];
+	s->series_r = na->zs + nk->zs + (isnan(rs) ? 0 : rs / (p->value > 0 ? p->value : 1));
+	s->bounded = v > 0;
+	s->worst = s->series_r > 0 ? v / s->series_r : INFINITY;
+	s->best = s->worst;
+	s->rev_min = NAN;
+}
+
+static int membership(struct ctx *x)
+{
+	size_t np = nl_part_count(x->a->er.circuit);
+	x->struct_of = arena_alloc(x->a->ar, (np + 1) * sizeof *x->struct_of);
+	x->role_of = arena_zalloc(x->a->ar, (np + 1) * sizeof *x->role_of);
+	if (!x->struct_of || !x->role_of)
+		return 0;
+	for (size_t i = 0; i < np; i++)
+		x->struct_of[i] = UINT32_MAX;
+	for (size_t s = 0; s < x->a->topo.n; s++)
+		for (uint32_t k = 0; k < x->a->topo.s[s].nparts; k++) {
+			const struct topo_part *tp = &x->a->topo.s[s].parts[k];
+			x->struct_of[tp->part] = (uint32_t)s;
+			x->role_of[tp->part] = tp->role;
+		}
+	return 1;
+}
+
+static int first_stage_diode(const struct ctx *x, uint32_t part)
+{
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, part);
+	if (p->kind != NL_D || x->struct_of[part] == UINT32_MAX)
+		return 0;
+	const struct topo_struct *t = &x->a->topo.s[x->struct_of[part]];
+	for (uint32_t k = 0; k < t->nparts; k++)
+		if (t->parts[k].part == part)
+			return t->kind != TK_NETWORK && t->parts[k].stage <= 1;
+	return 0;
+}
+
+static int push(struct ctx *x, struct stress_result *out, size_t *cap,
+		const struct stress *s)
+{
+	if (out->n == *cap) {
+		size_t ncap = *cap ? *cap * 2 : 64;
+		struct stress *v = arena_alloc(x->a->ar, ncap * sizeof *v);
+		if (!v)
+			return 0;
+		if (out->n)
+			memcpy(v, out->s, out->n * sizeof *v);
+		out->s = v;
+		*cap = ncap;
+	}
+	out->s[out->n++] = *s;
+	return 1;
+}
+
+int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
+	       struct stress_result *out)
+{
+	struct ctx x;
+	memset(&x, 0, sizeof x);
+	memset(out, 0, sizeof *out);
+	x.a = a;
+	x.r = r;
+	x.p = p;
+	for (int k = 0; k < NCORNER; k++)
+		if (!run_corner(&x, k))
+			return 0;
+	if (!membership(&x))
+		return 0;
+	const struct nl_circuit *c = a->er.circuit;
+	size_t cap = 0, np = nl_part_count(c);
+	const struct stress **coupling = arena_zalloc(a->ar, (a->topo.n + 1) * sizeof *coupling);
+	if (!coupling)
+		return 0;
+	for (uint32_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		if (pt->kind != NL_C && pt->kind != NL_D)
+			continue;
+		struct stress s;
+		part_stress(&x, i, &s);
+		if (!s.bounded && s.structure < 0)
+			continue; /* not in a structure and not bounded: not listed */
+		if (pt->kind == NL_C && s.bounded)
+			energy(&x, &s);
+		if (!push(&x, out, &cap, &s))
+			return 0;
+		if (s.bounded)
+			out->max_voltage = fmax(out->max_voltage, s.worst);
+		if (first_stage_diode(&x, i)) {
+			struct stress sg;
+			surge(&x, (size_t)s.structure, i, &sg);
+			if (!push(&x, out, &cap, &sg))
+				return 0;
+		}
+	}
+	for (size_t i = 0; i < out->n; i++)
+		if (out->s[i].structure >= 0 && nl_part_at(c, out->s[i].part)->kind == NL_C &&
+		    strncmp(out->s[i].role, "coupling", 8) == 0 && out->s[i].bounded)
+			coupling[out->s[i].structure] = &out->s[i];
+	out->st = arena_zalloc(a->ar, (a->topo.n + 1) * sizeof *out->st);
+	if (!out->st)
+		return 0;
+	for (size_t s = 0; s < a->topo.n; s++)
+		figures(&x, s, &out->st[s], coupling[s]);
+	/* a capacitor inside a loaded structure discharges through the load */
+	for (size_t i = 0; i < out->n; i++) {
+		struct stress *s = &out->s[i];
+		const struct nl_part *pt = nl_part_at(c, s->part);
+		if (pt->kind != NL_C || s->structure < 0 || !s->bounded || !isinf(s->discharge_r))
+			continue;
+		double rl = out->st[s->structure].load_r;
+		double hz = profile_value(p, "hazard_voltage", NULL);
+		if (!isfinite(rl) || isnan(hz) || !(s->worst > hz))
+			continue;
+		s->discharge_r = rl;
+		s->discharge_s = rl * pt->value * (pt->ext ? pt->ext->mult : 1.0) * log(s->worst / hz);
+	}
+	for (int k = 0; k < NCORNER; k++)
+		out->corners[out->ncorners++] = corner_names[k];
+	struct prop_result *runs = arena_alloc(a->ar, sizeof x.runs);
+	if (!runs)
+		return 0;
+	memcpy(runs, x.runs, sizeof x.runs);
+	out->runs = runs;
+	return 1;
+}
