@@ -1,8 +1,8 @@
 /* stress.h: worst-case stresses (DESIGN §6). The propagation is run at the
  * corners of the source tolerances (every amplitude and every offset at one
- * end of its band) with ideal diodes, and at the nominal corner with each
- * diode's forward drop; a part's stress is the interval [best, worst] over
- * those runs, with the corner that gave the worst. Also: power-up surge of
+ * end of its band) with ideal diodes, and once more with every source at
+ * its low end and each diode at its forward drop; a part's stress is the
+ * interval [best, worst] over those runs, with the corner of the worst. Also: power-up surge of
  * the first diodes of each structure, stored energy and discharge time of
  * capacitors, clamp droop and ladder regulation under load. */
 #ifndef HEADROOM_STRESS_H

@@ -14,8 +14,8 @@ recovery_fraction = 2%           # common practice, no source
 
 cap.default.voltage = 50%        # common practice, no source: the strictest of the kinds below
 cap.ceramic-c0g.voltage = 60%    # EEE-INST-002 ceramic (CCR/CKR/CDR) 0.60 (M: REFERENCES.md 1b)
-cap.ceramic-x7r.voltage = 60%    # EEE-INST-002 ceramic 0.60 (M)
-cap.ceramic.voltage = 60%        # EEE-INST-002 ceramic 0.60 (M)
+cap.ceramic-x7r.voltage = 50%    # EEE-INST-002 ceramic 0.60 (M), lowered to the industrial 0.50 for class 2 DC-bias loss (common practice)
+cap.ceramic.voltage = 50%        # as ceramic-x7r above
 cap.glass.voltage = 50%          # EEE-INST-002 glass, mica 0.50 (M)
 cap.mica.voltage = 50%           # EEE-INST-002 glass, mica 0.50 (M)
 cap.film.voltage = 60%           # EEE-INST-002 plastic film 0.60 (M)

@@ -23,7 +23,7 @@ static const char *const corner_names[NCORNER] = {
 	"amplitudes at +tol, offsets at -tol, ideal diodes",
 	"amplitudes at -tol, offsets at +tol, ideal diodes",
 	"amplitudes and offsets at -tol, ideal diodes",
-	"nominal sources, diode forward drops"};
+	"amplitudes and offsets at -tol, diode forward drops"};
 
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part)
@@ -55,8 +55,8 @@ static int run_corner(struct ctx *x, int k)
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
 		double t = p->kind == NL_V ? stress_tolerance(x->a, x->p, (uint32_t)i) : 0;
-		int ah = k == C_HH || k == C_HL, al = k == C_LH || k == C_LL;
-		int oh = k == C_HH || k == C_LH, ol = k == C_HL || k == C_LL;
+		int ah = k == C_HH || k == C_HL, al = k == C_LH || k == C_LL || k == C_VF;
+		int oh = k == C_HH || k == C_LH, ol = k == C_HL || k == C_LL || k == C_VF;
 		amp[i] = ah ? 1 + t : al ? 1 - t : 1;
 		off[i] = oh ? 1 + t : ol ? 1 - t : 1;
 		if (vf)

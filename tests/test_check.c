@@ -1,0 +1,303 @@
+/* test_check.c: ratings, profiles, stresses and rules.
+ * - each rule fires on one small netlist and stays quiet on its fixed twin
+ *   (this project's own scenarios, values worked out by hand: DESIGN §5/§6);
+ * - profile values against the tables they cite (NAVSEA SD-18 Table 1A,
+ *   normal environment, quality level 2: seen, REFERENCES.md 1a; NASA
+ *   EEE-INST-002: from memory, REFERENCES.md 1b; KEMET tantalum 50 %: seen;
+ *   Nippon Chemi-Con 1 V reverse: seen);
+ * - ladder regulation against the worked example E1 of REFERENCES.md §9
+ *   (N = 8, C = 0.05 uF, Vp = 125 kV, f = 150 Hz, I = 5 mA: drop 248.0 kV,
+ *   ripple 24.0 kV, optimum 13.69 stages; seen in a textbook companion of the
+ *   chapter "Generation of High Voltages", formulas of Kuffel, Zaengl &
+ *   Kuffel §2.2, from memory). */
+#include "testutil.h"
+
+#include <math.h>
+
+#include "audit.h"
+#include "profile.h"
+#include "rating.h"
+#include "rules.h"
+#include "stress.h"
+
+struct checked {
+	struct hr_alloc h;
+	struct arena *ar;
+	struct diag_sink *d;
+	struct audit a;
+	struct profile p;
+	const struct rating *r;
+	struct stress_result s;
+	struct rules_result rr;
+	char *diags;
+};
+
+static void check_text(struct checked *c, const char *deck, const char *profile,
+		       double tol)
+{
+	static struct memfs fs;
+	memset(c, 0, sizeof *c);
+	fs.name[0] = "t.cir";
+	fs.text[0] = deck;
+	fs.n = 1;
+	c->h = hr_alloc_default();
+	c->ar = arena_create(&c->h);
+	c->d = diag_create(c->ar, 50);
+	char path[256];
+	assert_true(profile_find(profile, "build/headroom", path, sizeof path));
+	assert_true(profile_load(path, c->d, &c->p));
+	struct audit_opts o;
+	memset(&o, 0, sizeof o);
+	o.elab.open = memfs_open;
+	o.elab.open_ud = &fs;
+	o.source_tol = tol;
+	assert_int_equal(audit_file("t.cir", &o, &c->h, c->d, &c->a), AUDIT_OK);
+	c->r = rating_resolve(c->a.er.circuit, NULL, c->a.annots, c->a.nannots, c->a.ar, c->d);
+	assert_non_null(c->r);
+	assert_true(stress_run(&c->a, c->r, &c->p, &c->s));
+	assert_true(rules_run(&c->a, c->r, &c->p, &c->s, &c->rr));
+	c->diags = render_headers(c->d);
+}
+
+static void checked_free(struct checked *c)
+{
+	audit_free(&c->a);
+	diag_destroy(c->d);
+	arena_destroy(c->ar);
+	free(c->diags);
+}
+
+static int fired(const struct checked *c, const char *rule, const char *part)
+{
+	for (size_t i = 0; i < c->rr.n; i++)
+		if (strcmp(c->rr.f[i].rule->id, rule) == 0 &&
+		    (!part || (c->rr.f[i].subject && strcmp(c->rr.f[i].subject, part) == 0)))
+			return 1;
+	return 0;
+}
+
+static const struct stress *stress_of(const struct checked *c, const char *part,
+				      enum stress_qty q)
+{
+	for (size_t i = 0; i < c->s.n; i++)
+		if (c->s.s[i].qty == q &&
+		    strcmp(nl_part_at(c->a.er.circuit, c->s.s[i].part)->path, part) == 0)
+			return &c->s.s[i];
+	return NULL;
+}
+
+/* A floor clamp: 10 V peak sine, coupling cap CC, diode DD to ground. The
+ * cap holds Vp = 10 V (11 V at +10 %), the diode 2Vp = 20 V (22 V). */
+#define CLAMP(cc_rating, dd_rating)                                         \
+	"clamp\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n" \
+	".model dm d is=1e-14 rs=0.1\n*@part CC v_rated=" cc_rating " kind=film\n" \
+	"*@part DD v_rated=" dd_rating " kind=rectifier i_surge=20A\n"
+
+struct rule_case {
+	const char *rule, *part;
+	const char *fires, *quiet;
+	double tol;
+};
+
+static const struct rule_case cases[] = {
+	/* 11 V on a 10 V part; fixed: 25 V */
+	{"cap-overvoltage", "CC", CLAMP("10V", "100V"), CLAMP("25V", "100V"), 0.10},
+	/* 11 V is 69 % of 16 V, film limit 70 %: quiet; 11 V on 15 V is 73 %: fires */
+	{"cap-derating", "CC", CLAMP("15V", "100V"), CLAMP("16V", "100V"), 0.10},
+	/* 22 V reverse on a 20 V diode; fixed: 100 V */
+	{"diode-overvoltage", "DD", CLAMP("25V", "20V"), CLAMP("25V", "100V"), 0.10},
+	/* 22 V is 73 % of 30 V (limit 75 %: quiet), 88 % of 25 V: fires */
+	{"diode-derating", "DD", CLAMP("25V", "25V"), CLAMP("25V", "30V"), 0.10},
+	/* an electrolytic turned the wrong way on a detector output: -10 V */
+	{"cap-reverse-bias", "CE",
+	 "rev\nV1 a 0 sin(0 10 1k)\nD1 a o dm\nCE 0 o 10u\n.model dm d\n*@part CE v_rated=25V kind=alu-electrolytic\n",
+	 "rev\nV1 a 0 sin(0 10 1k)\nD1 a o dm\nCE o 0 10u\n.model dm d\n*@part CE v_rated=25V kind=alu-electrolytic\n",
+	 0},
+	/* 11 V / (10 ohm + 0.1 ohm) = 1.09 A: against 1 A x 80 % fires, 20 A quiet */
+	{"surge-current", "DD",
+	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1A\n",
+	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=20A\n",
+	 0.10},
+	/* nothing in series with the source and no RS */
+	{"surge-unbounded", "DD",
+	 "u\nV1 in 0 sin(0 10 1k)\nCC in x 1u\nDD 0 x dm\n.model dm d\n",
+	 "u\nV1 in 0 sin(0 10 1k)\nCC in x 1u\nDD 0 x dm\n.model dm d rs=1\n", 0},
+	/* 200 V on 10 uF with no bleeder; fixed: 100 k across (t = 1.1 s < 2 s) */
+	{"stored-charge", "CS",
+	 "q\nV1 a 0 sin(0 200 50)\nR1 a b 1\nD1 b o dm\nCS o 0 10u\n.model dm d\n",
+	 "q\nV1 a 0 sin(0 200 50)\nR1 a b 1\nD1 b o dm\nCS o 0 10u\nRB o 0 100k\n.model dm d\n", 0},
+	/* clamp with 1 k load: droop 10 V x 1 ms / (1 k x 1 uF) = 10 V per period */
+	{"clamp-droop", "CC",
+	 "d\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\nRL x 0 1k\n.model dm d\n",
+	 "d\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\nRL x 0 100meg\n.model dm d\n", 0},
+	/* trr 100 us at 1 kHz is 10 % of the period (limit 5 %); 1 us is 0.1 % */
+	{"slow-recovery", "DD",
+	 "r\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d tt=100u\n",
+	 "r\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d tt=1u\n", 0},
+	{"rating-missing", "CC",
+	 "m\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d bv=50\n",
+	 "m\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d bv=50\n*@part CC v_rated=50V\n", 0},
+	/* the clamp output swings 0..20 V: declared 0..15 misses, 0..25 holds */
+	{"intent-miss", "x",
+	 "i\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d\n*@expect x min=0 max=15\n",
+	 "i\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d\n*@expect x min=-1 max=25\n", 0},
+};
+
+static void test_each_rule(void **state)
+{
+	(void)state;
+	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
+		struct checked c;
+		check_text(&c, cases[i].fires, "industrial", cases[i].tol);
+		if (!fired(&c, cases[i].rule, cases[i].part))
+			fail_msg("%s did not fire on %s", cases[i].rule, cases[i].part);
+		checked_free(&c);
+		check_text(&c, cases[i].quiet, "industrial", cases[i].tol);
+		if (fired(&c, cases[i].rule, cases[i].part))
+			fail_msg("%s fired on the fixed %s", cases[i].rule, cases[i].part);
+		checked_free(&c);
+	}
+}
+
+/* Stresses of the plain clamp: DESIGN §5 (cap holds Vp, diode sees 2Vp),
+ * 10 % tolerance: worst 11 V and 22 V; best with a forward drop below the
+ * ideal values at -10 %. */
+static void test_clamp_stresses(void **state)
+{
+	(void)state;
+	struct checked c;
+	check_text(&c, CLAMP("25V", "100V"), "industrial", 0.10);
+	const struct stress *cc = stress_of(&c, "CC", SQ_VOLTAGE), *dd = stress_of(&c, "DD", SQ_REVERSE);
+	assert_non_null(cc);
+	assert_non_null(dd);
+	assert_true(fabs(cc->worst - 11) < 1e-9 && fabs(dd->worst - 22) < 1e-9);
+	assert_true(cc->best < 9.0 && cc->best > 8.0);   /* 9 V minus the drop */
+	assert_true(dd->best <= 18.0 + 1e-9);
+	assert_non_null(strstr(cc->corner, "+tol"));
+	const struct stress *sg = stress_of(&c, "DD", SQ_SURGE);
+	assert_non_null(sg);
+	/* forward at power-up 11 V over R1 10 ohm + RS 0.1 ohm */
+	assert_true(fabs(sg->worst - 11 / 10.1) < 1e-9);
+	checked_free(&c);
+}
+
+/* Ratings: model BV, then the parts table, then *@part, field by field. */
+static void test_rating_precedence(void **state)
+{
+	(void)state;
+	struct checked c;
+	check_text(&c, "p\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d bv=75 tt=5n\n"
+		       "*@part DD kind=schottky\n", "industrial", 0);
+	const struct nl_part *dd = NULL;
+	for (size_t i = 0; i < nl_part_count(c.a.er.circuit); i++)
+		if (strcmp(nl_part_at(c.a.er.circuit, i)->path, "DD") == 0)
+			dd = nl_part_at(c.a.er.circuit, i);
+	const struct rating *r = &c.r[dd - nl_part_at(c.a.er.circuit, 0)];
+	assert_true(r->v_rated.value == 75);
+	assert_string_equal(r->v_rated.from, "model BV");
+	assert_true(fabs(r->trr.value - 5e-9) < 1e-21);
+	assert_string_equal(r->kind, "schottky");
+	checked_free(&c);
+}
+
+static void test_profiles_cite_tables(void **state)
+{
+	(void)state;
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	static struct profile basic, ind, flt;
+	assert_true(profile_load("rules/basic.profile", d, &basic));
+	assert_true(profile_load("rules/industrial.profile", d, &ind));
+	assert_true(profile_load("rules/flight.profile", d, &flt));
+	/* NAVSEA SD-18 Table 1A, normal environment, quality level 2 (seen) */
+	assert_true(profile_kind(&ind, "diode", "signal", "voltage", NULL) == 0.75);
+	assert_true(profile_kind(&ind, "diode", "signal", "surge", NULL) == 0.80);
+	assert_true(profile_kind(&ind, "diode", "rectifier", "voltage", NULL) == 0.75);
+	assert_true(profile_kind(&ind, "diode", "schottky", "voltage", NULL) == 0.80);
+	/* NASA EEE-INST-002 (from memory) */
+	assert_true(profile_kind(&flt, "diode", "rectifier", "voltage", NULL) == 0.70);
+	assert_true(profile_kind(&flt, "diode", "rectifier", "surge", NULL) == 0.50);
+	assert_true(profile_kind(&flt, "cap", "ceramic-c0g", "voltage", NULL) == 0.60);
+	assert_true(profile_kind(&flt, "cap", "mica", "voltage", NULL) == 0.50);
+	assert_true(profile_kind(&flt, "cap", "tantalum", "voltage", NULL) == 0.50);
+	/* KEMET MnO2 tantalum <= 50 % (seen); Chemi-Con ~1 V reverse (seen) */
+	assert_true(profile_kind(&basic, "cap", "tantalum", "voltage", NULL) == 0.50);
+	assert_true(profile_kind(&basic, "cap", "alu-electrolytic", "reverse_v", NULL) == 1.0);
+	/* least to most conservative, kind by kind */
+	const char *kinds[] = {"ceramic-x7r", "film", "tantalum", "alu-electrolytic"};
+	for (int i = 0; i < 4; i++) {
+		double b = profile_kind(&basic, "cap", kinds[i], "voltage", NULL);
+		double m = profile_kind(&ind, "cap", kinds[i], "voltage", NULL);
+		double f = profile_kind(&flt, "cap", kinds[i], "voltage", NULL);
+		assert_true(b >= m && m >= f);
+	}
+	assert_true(profile_value(&ind, "hazard_voltage", NULL) == 60);
+	diag_destroy(d);
+	arena_destroy(ar);
+}
+
+static void test_profile_errors(void **state)
+{
+	(void)state;
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	const char *path = "/tmp/headroom-test-bad.profile";
+	FILE *f = fopen(path, "w");
+	fputs("name = bad\n# comment\ncap.film.voltage = 0.8\ncap.flim.voltage = 0.5\n"
+	      "diode.default.surge = lots\nhazard_voltage 60\n", f);
+	fclose(f);
+	static struct profile p;
+	assert_false(profile_load(path, d, &p));
+	char *txt = render_headers(d);
+	assert_string_equal(txt,
+		"/tmp/headroom-test-bad.profile:4:1: error: unknown key 'cap.flim.voltage' (see docs/profiles.md) [profile]\n"
+		"/tmp/headroom-test-bad.profile:5:23: error: 'lots' is not a non-negative number [profile]\n"
+		"/tmp/headroom-test-bad.profile:6:1: error: expected key = value [profile]\n");
+	free(txt);
+	remove(path);
+	diag_destroy(d);
+	arena_destroy(ar);
+}
+
+static void test_ladder_regulation(void **state)
+{
+	(void)state;
+	/* E1: 8 stages, 0.05 uF, 125 kV peak at 150 Hz, 5 mA at 2 MV: 400 Mohm */
+	char deck[4096];
+	size_t k = (size_t)snprintf(deck, sizeof deck, "e1\nV1 in 0 sin(0 125k 150)\n.model dm d\n");
+	for (int i = 1; i <= 8; i++) {
+		char pa[16], pd[16];
+		snprintf(pa, sizeof pa, i == 1 ? "in" : "a%d", i - 1);
+		snprintf(pd, sizeof pd, i == 1 ? "0" : "d%d", i - 1);
+		k += (size_t)snprintf(deck + k, sizeof deck - k,
+				      "CA%d %s a%d 0.05u\nDC%d %s a%d dm\nDP%d a%d d%d dm\nCD%d %s d%d 0.05u\n",
+				      i, pa, i, i, pd, i, i, i, i, i, pd, i);
+	}
+	snprintf(deck + k, sizeof deck - k, "RL d8 0 400meg\n");
+	struct checked c;
+	check_text(&c, deck, "industrial", 0);
+	assert_int_equal(c.a.topo.n, 1);
+	const struct stress_struct *f = &c.s.st[0];
+	print_message("ladder E1: I %.6g A, drop %.6g V, ripple %.6g V, optimum %.4g stages\n",
+		      f->ladder_i, f->ladder_drop, f->ladder_ripple, f->ladder_nopt);
+	assert_true(fabs(f->ladder_i - 5e-3) < 1e-12);
+	assert_true(fabs(f->ladder_drop - 248.0e3) < 0.05e3);     /* 248.0 kV */
+	assert_true(fabs(f->ladder_ripple - 24.0e3) < 0.05e3);    /* 24.0 kV */
+	assert_true(fabs(f->ladder_nopt - 13.69) < 0.01);          /* sqrt(187.5) */
+	checked_free(&c);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_each_rule),
+		cmocka_unit_test(test_clamp_stresses),
+		cmocka_unit_test(test_rating_precedence),
+		cmocka_unit_test(test_profiles_cite_tables),
+		cmocka_unit_test(test_profile_errors),
+		cmocka_unit_test(test_ladder_regulation),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
