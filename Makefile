@@ -66,6 +66,7 @@ test-run: $(BUILD)/headroom $(TESTS)
 	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
 
 check: deps
 	@$(MAKE) --no-print-directory test-run
