@@ -67,6 +67,7 @@ test-run: $(BUILD)/headroom $(TESTS)
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 
 check: deps
 	@$(MAKE) --no-print-directory test-run

@@ -6,6 +6,7 @@
 #   ngspice              reference simulator for the comparison tests
 #   libxml2-utils        xmllint, to check XML reports are well formed
 #   python3              runs the comparison scripts in tests/
+#   python3-jsonschema   validates the JSON report against docs/report.schema.json
 #   time                 /usr/bin/time, peak memory in make bench
 set -euo pipefail
 
@@ -16,6 +17,7 @@ command -v bison >/dev/null 2>&1 || need+=(bison)
 command -v ngspice >/dev/null 2>&1 || need+=(ngspice)
 command -v xmllint >/dev/null 2>&1 || need+=(libxml2-utils)
 command -v python3 >/dev/null 2>&1 || need+=(python3)
+/usr/bin/python3 -c 'import jsonschema' >/dev/null 2>&1 || need+=(python3-jsonschema)
 [ -x /usr/bin/time ] || need+=(time)
 command -v cc >/dev/null 2>&1 || need+=(gcc)
 command -v make >/dev/null 2>&1 || need+=(make)

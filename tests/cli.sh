@@ -83,5 +83,47 @@ printf 'binary\n\x00\x01\x02R1 a b\n' > "$tmp/nul.cir"
 run parts "$tmp/nul.cir"
 check "NUL bytes give a located error" bash -c "test $rc -eq 2 && grep -q 'nul.cir:2:1: error' '$tmp/err'"
 
+# ---- check ----
+ex=$here/../examples
+run check --parts "$ex/parts.csv" "$ex"
+check "check on the examples finds errors: exit 1" test $rc -eq 1
+check "an under-rated ladder cap is an error with its location" grep -q "detector_bias_ladder.cir:37:1: error: X2.CAC sees 288.9 V across it worst case, above its 250 V rating \[cap-overvoltage\]" "$tmp/out"
+check "each finding explains its number" grep -q "^    how:    ladder stage 2, coupling column in S1 (ladder)" "$tmp/out"
+check "each finding gives the limit and its source" grep -q "^    limits: rating 250 V (annotation" "$tmp/out"
+check "each finding suggests a fix" grep -q "^    fix:    use a part rated 450 V or more: the smallest standard step at or above 288.9 V / 70% = 412.8 V" "$tmp/out"
+check "the stress table is printed" grep -q "^  X2.CAC  S1   voltage ladder stage 2, coupling column" "$tmp/out"
+check "hazardous voltages carry the caution" grep -q "^caution: this design involves voltages above the hazard level" "$tmp/out"
+check "a summary closes the report" grep -q "^6 files checked: " "$tmp/out"
+run check --fail-on never --parts "$ex/parts.csv" "$ex"
+check "--fail-on never: exit 0" test $rc -eq 0
+run check --fail-on warning "$ex/sensor_restorer.cir"
+check "--fail-on warning: a derating warning gives exit 1" test $rc -eq 1
+run check "$ex/sensor_restorer.cir"
+check "--fail-on error (default): warnings only give exit 0" test $rc -eq 0
+run check --fail-on note "$ex/charge_pump.cir"
+check "--fail-on note: a missing rating gives exit 1" test $rc -eq 1
+run check --fail-on sometimes "$ex/charge_pump.cir"
+check "bad --fail-on is a usage error" test $rc -eq 2
+run check --profile nosuch "$ex/charge_pump.cir"
+check "unknown profile is a usage error" test $rc -eq 2
+run check "$data/two_errors.cir"
+check "netlist errors: exit 2 and the file is reported unchecked" bash -c "test $rc -eq 2 && grep -q 'not checked' '$tmp/out'"
+run check --source-tol 0 --profile basic "$ex/mains_doubler.cir"
+check "source tolerance 0: the doubler caps see 325 V" grep -q "CM2 sees 357.5 V" "$tmp/out"
+run rules
+check "rules lists every rule" bash -c "test $rc -eq 0 && grep -q '^  cap-reverse-bias ' '$tmp/out' && grep -q '^  intent-miss ' '$tmp/out'"
+check "rules shows the profile's limits with sources" grep -q "^  diode.signal.voltage  *0.75  *SD-18" "$tmp/out"
+run rules --profile flight
+check "rules --profile flight" grep -q "^profile flight" "$tmp/out"
+printf 'name = broken\ncap.film.volts = 1\n' > "$tmp/broken.profile"
+run rules --profile "$tmp/broken.profile"
+check "a broken profile file is a located error" bash -c "test $rc -eq 2 && grep -q 'broken.profile:2:1: error: unknown key' '$tmp/err'"
+printf 'ref,kind,v_rated\nCCPL,film,ten volts\n' > "$tmp/bad.csv"
+run check --parts "$tmp/bad.csv" "$ex/sensor_restorer.cir"
+check "a bad parts table value is a located error" bash -c "test $rc -eq 2 && grep -q 'bad.csv:2:11: error: v_rated' '$tmp/err'"
+printf 'bad annotation\nV1 a 0 sin(0 1 1k)\n*@part C1 volts=5\nC1 a b 1u\n' > "$tmp/annot.cir"
+run check "$tmp/annot.cir"
+check "a malformed *@ line is a located error" bash -c "test $rc -eq 2 && grep -q \"annot.cir:3:11: error: 'volts' is not a key of this directive\" '$tmp/err'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

@@ -1,0 +1,44 @@
+#!/usr/bin/env python3
+"""The JSON report of `headroom check` validated against docs/report.schema.json
+with the jsonschema package (Debian: python3-jsonschema), on the examples
+(with their parts table), on every hand-written structure netlist, and on a
+file with netlist errors. Prints one line per document."""
+import json
+import os
+import subprocess
+import sys
+
+try:
+    import jsonschema
+except ImportError:
+    if os.path.exists("/usr/bin/python3") and sys.executable != "/usr/bin/python3":
+        os.execv("/usr/bin/python3", ["/usr/bin/python3"] + sys.argv)
+    print("report-schema: FAIL the jsonschema package is missing (scripts/deps.sh installs python3-jsonschema)")
+    print("report-schema: 0 passed, 1 failed")
+    sys.exit(1)
+
+HERE = os.path.dirname(os.path.abspath(__file__))
+ROOT = os.path.dirname(HERE)
+BIN = os.environ.get("HEADROOM", os.path.join(ROOT, "build", "headroom"))
+schema = json.load(open(os.path.join(ROOT, "docs", "report.schema.json")))
+runs = [
+    ["--parts", os.path.join(ROOT, "examples", "parts.csv"), os.path.join(ROOT, "examples")],
+    [os.path.join(HERE, "data", "topo")],
+    [os.path.join(HERE, "data", "two_errors.cir"), os.path.join(ROOT, "examples", "rf_doubler.cir")],
+    ["--profile", "flight", "--source-tol", "0", os.path.join(ROOT, "examples", "mains_doubler.cir")],
+]
+passed = failed = 0
+for args in runs:
+    r = subprocess.run([BIN, "check", "--format", "json"] + args, capture_output=True, text=True)
+    try:
+        doc = json.loads(r.stdout)
+        jsonschema.validate(doc, schema)
+        print("report-schema: %s: valid (%d files, %d findings)" % (
+            " ".join(os.path.relpath(a, ROOT) if os.path.isabs(a) else a for a in args),
+            len(doc["files"]), sum(len(f["findings"]) for f in doc["files"])))
+        passed += 1
+    except (ValueError, jsonschema.ValidationError) as e:
+        print("report-schema: FAIL %s: %s" % (args, str(e)[:400]))
+        failed += 1
+print("report-schema: %d passed, %d failed" % (passed, failed))
+sys.exit(1 if failed else 0)
