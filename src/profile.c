@@ -86,6 +86,16 @@ static void fail(struct reader *r, const char *line, const char *at,
 	r->bad = 1;
 }
 
+/* Copies src into dst of size n, cut to fit. */
+static void copy_cut(char *dst, size_t n, const char *src)
+{
+	size_t k = strlen(src);
+	if (k >= n)
+		k = n - 1;
+	memcpy(dst, src, k);
+	dst[k] = '\0';
+}
+
 static int number(const char *v, double *out)
 {
 	size_t n = strlen(v);
@@ -102,7 +112,7 @@ static void entry(struct reader *r, char *line)
 	char *hash = strchr(line, '#'), *eq = strchr(line, '=');
 	char note[160] = "";
 	if (hash) {
-		snprintf(note, sizeof note, "%s", hash + 1);
+		copy_cut(note, sizeof note, hash + 1);
 		trim(note);
 		*hash = '\0';
 	}
@@ -111,15 +121,18 @@ static void entry(struct reader *r, char *line)
 		return;
 	}
 	char key[64], val[192];
-	snprintf(key, sizeof key, "%.*s", (int)(eq - line), line);
-	snprintf(val, sizeof val, "%s", eq + 1);
+	size_t kl = (size_t)(eq - line) < sizeof key - 1 ? (size_t)(eq - line) : sizeof key - 1;
+	memcpy(key, line, kl);
+	key[kl] = '\0';
+	copy_cut(val, sizeof val, eq + 1);
 	trim(key);
 	trim(val);
 	num_fold(key, strlen(key));
 	if (strcmp(key, "name") == 0 || strcmp(key, "description") == 0) {
-		snprintf(strcmp(key, "name") == 0 ? r->p->name : r->p->description,
-			 strcmp(key, "name") == 0 ? sizeof r->p->name : sizeof r->p->description,
-			 "%s", val);
+		if (strcmp(key, "name") == 0)
+			copy_cut(r->p->name, sizeof r->p->name, val);
+		else
+			copy_cut(r->p->description, sizeof r->p->description, val);
 		return;
 	}
 	const char *vat = eq + 1 + strspn(eq + 1, " \t");
@@ -132,8 +145,8 @@ static void entry(struct reader *r, char *line)
 		fail(r, line, line, "too many entries%s", "");
 	} else {
 		struct profile_entry *e = &r->p->e[r->p->n++];
-		snprintf(e->key, sizeof e->key, "%s", key);
-		snprintf(e->note, sizeof e->note, "%s", note);
+		copy_cut(e->key, sizeof e->key, key);
+		copy_cut(e->note, sizeof e->note, note);
 		e->value = v;
 		e->line = r->line;
 	}
@@ -143,7 +156,7 @@ int profile_load(const char *path, struct diag_sink *d, struct profile *p)
 {
 	struct reader r = {d, diag_add_file(d, path), 0, p, 0};
 	memset(p, 0, sizeof *p);
-	snprintf(p->path, sizeof p->path, "%s", path);
+	copy_cut(p->path, sizeof p->path, path);
 	FILE *f = fopen(path, "r");
 	if (!f) {
 		struct diag_loc l = {r.file, 0, 0};
