@@ -47,6 +47,14 @@ int profile_find(const char *name_or_path, const char *argv0, char *out,
 double profile_kind(const struct profile *p, const char *cls, const char *kind,
 		    const char *field, const char **note);
 
+/* As profile_kind, also giving the key the value came from. */
+double profile_kind_key(const struct profile *p, const char *cls,
+			const char *kind, const char *field, const char **note,
+			const char **key_used);
+
+/* The hazard voltage, 60 V when the profile does not set it (DESIGN §7). */
+double profile_hazard(const struct profile *p);
+
 /* A top-level value ("hazard_voltage"); NaN when missing. */
 double profile_value(const struct profile *p, const char *key,
 		     const char **note);

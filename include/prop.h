@@ -65,11 +65,13 @@ struct prop_result {
 };
 
 /* A corner of the worst-case analysis: per part, the scale of a voltage
- * source's AC part and of its mean (1 = nominal), and the forward drop of
- * each diode (0 = ideal). NULL arrays mean nominal and ideal. */
+ * source's AC part, the band its mean may take (scales of the mean, the
+ * constant becomes that interval: every source's offset independently
+ * anywhere in its band), and the forward drop of each diode (0 = ideal).
+ * NULL arrays mean nominal and ideal. */
 struct prop_corner {
 	const double *amp;
-	const double *off;
+	const double *off_lo, *off_hi;
 	const double *vf;
 };
 

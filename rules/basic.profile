@@ -6,7 +6,7 @@ name = basic
 description = commercial practice: parts at up to 80 % of their rating
 
 source_tol = 5%                  # common practice, no source: regulated supplies and signal sources
-hazard_voltage = 60V             # IEC 62368-1 ES2/ES3 DC boundary (from memory); DESIGN §7 default
+hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, REFERENCES.md 6); DESIGN §7 default
 discharge_time = 5s              # common practice, no source
 droop_limit = 10%                # common practice, no source: clamp droop per period, fraction of the swing
 recovery_fraction = 10%          # common practice, no source: trr as a fraction of the drive period

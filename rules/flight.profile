@@ -7,7 +7,7 @@ name = flight
 description = NASA EEE-INST-002 style derating (from memory: confirm before relying on it)
 
 source_tol = 10%                 # common practice, no source
-hazard_voltage = 60V             # IEC 62368-1 ES2/ES3 DC boundary (from memory); DESIGN §7 default
+hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, REFERENCES.md 6); DESIGN §7 default
 discharge_time = 1s              # common practice, no source
 droop_limit = 2%                 # common practice, no source
 recovery_fraction = 2%           # common practice, no source

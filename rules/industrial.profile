@@ -6,9 +6,9 @@
 name = industrial
 description = NAVSEA SD-18 Table 1A normal/L2 for diodes; manufacturer guidance for capacitors
 
-source_tol = 10%                 # IEC 60038 mains tolerance +-10 % (from memory); common practice for unregulated inputs
-hazard_voltage = 60V             # IEC 62368-1 ES2/ES3 DC boundary (from memory); DESIGN §7 default
-discharge_time = 2s              # IEC 62368-1 capacitor discharge after disconnection (from memory)
+source_tol = 10%                 # IEC 60038 mains 230 V +-10 % (secondary source, REFERENCES.md 7); common practice for unregulated inputs
+hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, REFERENCES.md 6); DESIGN §7 default
+discharge_time = 2s              # IEC 62368-1 5.5.2.2: voltage measured 2 s after disconnection (seen in a test-report excerpt, REFERENCES.md 6)
 droop_limit = 5%                 # common practice, no source
 recovery_fraction = 5%           # common practice, no source
 

@@ -19,6 +19,12 @@ static void apply_source(struct audit *a, const struct annot *an,
 		const struct annot_kv *mn = annot_get(an, "min"), *mx = annot_get(an, "max");
 		if (tol)
 			s->tol = tol->num;
+		if (tol && (isnan(tol->num) || (tol->num >= 1 && !tol->percent))) {
+			diag_add(d, DIAG_ERROR, "annotation", an->loc,
+				 "*@source tol='%s': write a tolerance with %% (tol=10%%) or as a fraction below 1",
+				 tol->text);
+			s->tol = NAN;
+		}
 		if (mn && mx) {
 			s->min = fmin(mn->num, mx->num);
 			s->max = fmax(mn->num, mx->num);

@@ -379,6 +379,23 @@ static int check_one(const struct cli *c, const char *path, const struct profile
 	o.source_tol = c->source_tol;
 	enum audit_status st = d ? audit_file(path, &o, &hook, d, &a) : AUDIT_OOM;
 	struct check_file f = {path, &a, d, NULL, &sr, &rr};
+	struct profile *own = NULL; /* a *@profile line's choice, for this file */
+	if (st == AUDIT_OK && !c->profile) {
+		for (uint32_t i = 0; i < a.nannots; i++)
+			if (a.annots[i].kind == AN_PROFILE) {
+				char pp[1024];
+				if (!own)
+					own = malloc(sizeof *own);
+				if (!own || !profile_find(a.annots[i].target, c->argv0, pp, sizeof pp) ||
+				    !profile_load(pp, d, own)) {
+					diag_add(d, DIAG_ERROR, "annotation", a.annots[i].loc,
+						 "*@profile names '%s', which cannot be loaded", a.annots[i].target);
+					st = AUDIT_ERRORS;
+				} else {
+					p = own;
+				}
+			}
+	}
 	if (st == AUDIT_OK) {
 		const struct rating_table *tab = c->parts ? rating_table_load(c->parts, a.ar, d) : NULL;
 		f.ratings = rating_resolve(a.er.circuit, tab, a.annots, a.nannots, a.ar, d);
@@ -403,6 +420,7 @@ static int check_one(const struct cli *c, const char *path, const struct profile
 		diag_render(d, UINT32_MAX, stderr);
 	if (d)
 		audit_free(&a);
+	free(own);
 	diag_destroy(d);
 	arena_destroy(ar);
 	return rc;

@@ -96,6 +96,16 @@ static void copy_cut(char *dst, size_t n, const char *src)
 	dst[k] = '\0';
 }
 
+/* Keys whose value is a share (0..1): factors, tolerances, limits. */
+static int is_fraction(const char *key)
+{
+	const char *dot = strrchr(key, '.');
+	const char *f = dot ? dot + 1 : key;
+	return strcmp(f, "voltage") == 0 || strcmp(f, "surge") == 0 ||
+	       strcmp(f, "reverse_fraction") == 0 || strcmp(key, "source_tol") == 0 ||
+	       strcmp(key, "droop_limit") == 0 || strcmp(key, "recovery_fraction") == 0;
+}
+
 static int number(const char *v, double *out)
 {
 	size_t n = strlen(v);
@@ -141,6 +151,10 @@ static void entry(struct reader *r, char *line)
 		fail(r, line, line + strspn(line, " \t"), "unknown key '%s' (see docs/profiles.md)", key);
 	} else if (!number(val, &v) || v < 0) {
 		fail(r, line, vat, "'%s' is not a non-negative number", val);
+	} else if (is_fraction(key) && v > 1) {
+		fail(r, line, vat, "'%s' is a share of the rating: at most 100%%", val);
+	} else if (!isnan(profile_value(r->p, key, NULL))) {
+		fail(r, line, line + strspn(line, " \t"), "'%s' is given twice", key);
 	} else if (r->p->n == PROFILE_MAX_ENTRIES) {
 		fail(r, line, line, "too many entries%s", "");
 	} else {
@@ -198,7 +212,11 @@ int profile_find(const char *name, const char *argv0, char *out, size_t n)
 			return 1;
 	}
 	char dir[512];
-	snprintf(dir, sizeof dir, "%s", argv0 ? argv0 : "");
+	ssize_t k = readlink("/proc/self/exe", dir, sizeof dir - 1);
+	if (k > 0)
+		dir[k] = '\0'; /* the program's own path, also when found on PATH */
+	else
+		snprintf(dir, sizeof dir, "%s", argv0 ? argv0 : "");
 	char *slash = strrchr(dir, '/');
 	if (slash)
 		*slash = '\0';
@@ -230,11 +248,35 @@ double profile_value(const struct profile *p, const char *key, const char **note
 double profile_kind(const struct profile *p, const char *cls, const char *kind,
 		    const char *field, const char **note)
 {
+	return profile_kind_key(p, cls, kind, field, note, NULL);
+}
+
+double profile_kind_key(const struct profile *p, const char *cls,
+			const char *kind, const char *field, const char **note,
+			const char **key_used)
+{
 	char key[64];
 	snprintf(key, sizeof key, "%s.%s.%s", cls, kind && kind[0] ? kind : "default", field);
-	double v = profile_value(p, key, note);
-	if (!isnan(v))
-		return v;
-	snprintf(key, sizeof key, "%s.default.%s", cls, field);
-	return profile_value(p, key, note);
+	for (int pass = 0; pass < 2; pass++) {
+		for (size_t i = 0; i < p->n; i++)
+			if (strcmp(p->e[i].key, key) == 0) {
+				if (note)
+					*note = p->e[i].note;
+				if (key_used)
+					*key_used = p->e[i].key;
+				return p->e[i].value;
+			}
+		snprintf(key, sizeof key, "%s.default.%s", cls, field);
+	}
+	if (note)
+		*note = "";
+	if (key_used)
+		*key_used = "";
+	return NAN;
+}
+
+double profile_hazard(const struct profile *p)
+{
+	double v = profile_value(p, "hazard_voltage", NULL);
+	return isnan(v) ? 60.0 : v;
 }

@@ -105,8 +105,8 @@ static const struct form *source_form(struct run *u, uint32_t part)
 	if (!k || !k->amp)
 		return form_source(&u->r->fc, s, 1.0);
 	const struct form *f = form_source(&u->r->fc, s, k->amp[part]);
-	double mean = u->r->sigs[s].mean * k->off[part];
-	return f ? form_with_const(&u->r->fc, f, mean, mean) : NULL;
+	double a = u->r->sigs[s].mean * k->off_lo[part], b = u->r->sigs[s].mean * k->off_hi[part];
+	return f ? form_with_const(&u->r->fc, f, fmin(a, b), fmax(a, b)) : NULL;
 }
 
 static void across_source(struct run *u, uint32_t id, uint32_t part)
@@ -225,7 +225,8 @@ static void try_series(struct run *u, uint32_t id)
 		return;
 	settle(u, id, N(u, src)->f, PH_SERIES, via);
 	const struct nl_part *p = nl_part_at(u->c, via);
-	N(u, id)->zs = N(u, src)->zs + (p->kind == NL_R ? p->value : 0);
+	N(u, id)->zs = N(u, src)->zs +
+		       (p->kind == NL_R ? p->value / (p->ext ? p->ext->mult : 1.0) : 0);
 	N(u, id)->cls = N(u, src)->cls;
 }
 

@@ -209,6 +209,11 @@ static void set_field(struct rating_field *f, const char *text, int pct,
 			 "%s '%s' is not a non-negative value", what, text);
 		return;
 	}
+	if (pct && v >= 1 && !strchr(text, '%')) {
+		diag_add(src->d, DIAG_ERROR, "rating", src->loc,
+			 "%s '%s': write a tolerance with %% (10%%) or as a fraction below 1", what, text);
+		return;
+	}
 	f->value = v;
 	f->from = src->from;
 }

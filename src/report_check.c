@@ -270,7 +270,7 @@ static void json_head(FILE *out, const struct profile *p)
 	fputs(", \"assumptions\": {\"source_tol_default\": ", out);
 	jnum(out, profile_value(p, "source_tol", NULL));
 	fputs(", \"hazard_voltage\": ", out);
-	jnum(out, profile_value(p, "hazard_voltage", NULL));
+	jnum(out, profile_hazard(p));
 	fputs(", \"diodes\": \"ideal for the worst case; forward drop at 1 mA for the best\", "
 	      "\"load\": \"none for node waveforms; loads used for droop, ladder regulation and discharge\"},\n"
 	      "  \"files\": [\n", out);
@@ -303,7 +303,7 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 void report_check_end(FILE *out, enum report_check_format fmt,
 		      const struct profile *p, const struct check_totals *t)
 {
-	double hz = profile_value(p, "hazard_voltage", NULL);
+	double hz = profile_hazard(p);
 	int hazard = !isnan(hz) && t->max_voltage > hz;
 	if (fmt == RC_TEXT) {
 		fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",

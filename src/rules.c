@@ -167,12 +167,12 @@ static const char *limits(struct ctx *x, const struct rating *r, double factor,
 static void overvoltage(struct ctx *x, const struct stress *s, const char *cls)
 {
 	const struct rating *r = &x->r[s->part];
-	const char *note, *kind = r->kind;
-	double factor = profile_kind(x->p, cls, kind, "voltage", &note);
-	if (isnan(factor))
+	const char *note, *key, *kind = r->kind;
+	double factor = profile_kind_key(x->p, cls, kind, "voltage", &note, &key);
+	if (isnan(factor)) {
 		factor = 1;
-	char key[64];
-	snprintf(key, sizeof key, "%s.%s.voltage", cls, kind ? kind : "default");
+		key = "no factor: the rating itself";
+	}
 	int diode = strcmp(cls, "diode") == 0;
 	const char *what = diode ? "reverse" : "across it";
 	struct finding *f = NULL;
@@ -206,9 +206,12 @@ static void reverse_bias(struct ctx *x, const struct stress *s)
 	const char *n1, *n2;
 	double lv = profile_kind(x->p, "cap", r->kind, "reverse_v", &n1);
 	double lf = profile_kind(x->p, "cap", r->kind, "reverse_fraction", &n2);
-	double lim = isnan(lv) ? 0 : lv;
+	/* the smaller of the two limits that are given; none given: 0 V */
+	double lim = isnan(lv) ? INFINITY : lv;
 	if (!isnan(lf) && !isnan(r->v_rated.value))
 		lim = fmin(lim, lf * r->v_rated.value);
+	if (isinf(lim))
+		lim = 0;
 	if (s->rev_min >= -lim - 1e-9)
 		return;
 	struct finding *f = add(x, "cap-reverse-bias", s->part, s->structure);
@@ -243,7 +246,9 @@ static void missing(struct ctx *x, const struct stress *s, const char *cls)
 static void stored_charge(struct ctx *x, const struct stress *s)
 {
 	const char *n1, *n2;
-	double hz = profile_value(x->p, "hazard_voltage", &n1);
+	double hz = profile_hazard(x->p);
+	n1 = NULL;
+	(void)n1;
 	double tmax = profile_value(x->p, "discharge_time", &n2);
 	if (isnan(hz) || !(s->worst > hz) || (!isinf(s->discharge_r) && !(s->discharge_s > tmax)))
 		return;
@@ -308,8 +313,8 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 		f->fix = "add a series resistor or an inrush limiter, or give the diode model its RS";
 		return;
 	}
-	const char *note;
-	double factor = profile_kind(x->p, "diode", r->kind, "surge", &note);
+	const char *note, *key;
+	double factor = profile_kind_key(x->p, "diode", r->kind, "surge", &note, &key);
 	if (isnan(r->i_surge.value) || isnan(factor) || !(s->worst > r->i_surge.value * factor))
 		return;
 	struct finding *f = add(x, "surge-current", s->part, s->structure);
@@ -322,8 +327,8 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	f->message = str(x, "power-up surge through %s is %s, above %.0f%% of its %s surge rating",
 			 f->subject, v(x, s->worst, "A"), factor * 100, v(x, r->i_surge.value, "A"));
 	f->computation = computation(x, s);
-	f->limits = str(x, "i_surge %s (%s); limit %s (profile %s, diode.%s.surge)", v(x, r->i_surge.value, "A"),
-			r->i_surge.from, v(x, f->limit, "A"), x->p->name, r->kind ? r->kind : "default");
+	f->limits = str(x, "i_surge %s (%s); limit %s (profile %s, %s)", v(x, r->i_surge.value, "A"),
+			r->i_surge.from, v(x, f->limit, "A"), x->p->name, key);
 	f->fix = str(x, "raise the series resistance to at least %s, or use a diode with a higher surge rating",
 		     v(x, s->worst * s->series_r / f->limit, "ohm"));
 }
@@ -400,7 +405,17 @@ static void intent(struct ctx *x, const struct annot *an)
 		hi = fmax(hi, b);
 	}
 	double want_lo = mn ? mn->num : -INFINITY, want_hi = mx ? mx->num : INFINITY;
-	if (lo == INFINITY || (lo >= want_lo && hi <= want_hi))
+	if (lo == INFINITY) {
+		struct finding *g = add(x, "stress-unsettled", NL_NONE, -1);
+		if (g) {
+			g->loc = an->loc;
+			g->subject = an->target;
+			g->message = str(x, "*@expect names node '%s', which %s: nothing to compare", an->target,
+					 id == NL_NONE ? "is not in the circuit" : "the analysis could not settle");
+		}
+		return;
+	}
+	if (lo >= want_lo && hi <= want_hi)
 		return;
 	struct finding *f = add(x, "intent-miss", NL_NONE, -1);
 	if (!f)

@@ -15,14 +15,14 @@
 #include <stdio.h>
 #include <string.h>
 
-enum { C_NOM, C_HH, C_HL, C_LH, C_LL, C_VF, NCORNER };
+enum { C_NOM, C_HI, C_LO, C_VF, NCORNER };
 
+/* Offsets are intervals in the two tolerance corners: each source's DC
+ * independently anywhere in its band, so rails that move apart are seen. */
 static const char *const corner_names[NCORNER] = {
 	"nominal sources, ideal diodes",
-	"amplitudes and offsets at +tol, ideal diodes",
-	"amplitudes at +tol, offsets at -tol, ideal diodes",
-	"amplitudes at -tol, offsets at +tol, ideal diodes",
-	"amplitudes and offsets at -tol, ideal diodes",
+	"amplitudes at +tol, each offset anywhere in its band, ideal diodes",
+	"amplitudes at -tol, each offset anywhere in its band, ideal diodes",
 	"amplitudes and offsets at -tol, diode forward drops"};
 
 double stress_tolerance(const struct audit *a, const struct profile *p,
@@ -48,21 +48,21 @@ static int run_corner(struct ctx *x, int k)
 	const struct nl_circuit *c = x->a->er.circuit;
 	size_t np = nl_part_count(c);
 	double *amp = arena_alloc(x->a->ar, (np + 1) * sizeof *amp);
-	double *off = arena_alloc(x->a->ar, (np + 1) * sizeof *off);
+	double *olo = arena_alloc(x->a->ar, (np + 1) * sizeof *olo);
+	double *ohi = arena_alloc(x->a->ar, (np + 1) * sizeof *ohi);
 	double *vf = k == C_VF ? arena_alloc(x->a->ar, (np + 1) * sizeof *vf) : NULL;
-	if (!amp || !off || (k == C_VF && !vf))
+	if (!amp || !olo || !ohi || (k == C_VF && !vf))
 		return 0;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
 		double t = p->kind == NL_V ? stress_tolerance(x->a, x->p, (uint32_t)i) : 0;
-		int ah = k == C_HH || k == C_HL, al = k == C_LH || k == C_LL || k == C_VF;
-		int oh = k == C_HH || k == C_LH, ol = k == C_HL || k == C_LL || k == C_VF;
-		amp[i] = ah ? 1 + t : al ? 1 - t : 1;
-		off[i] = oh ? 1 + t : ol ? 1 - t : 1;
+		amp[i] = k == C_HI ? 1 + t : k == C_LO || k == C_VF ? 1 - t : 1;
+		olo[i] = k == C_HI || k == C_LO ? 1 - t : k == C_VF ? 1 - t : 1;
+		ohi[i] = k == C_HI || k == C_LO ? 1 + t : k == C_VF ? 1 - t : 1;
 		if (vf)
 			vf[i] = p->kind == NL_D ? rating_vf(p, x->r[i].kind) : 0;
 	}
-	struct prop_corner corner = {amp, off, vf};
+	struct prop_corner corner = {amp, olo, ohi, vf};
 	return prop_run(c, x->a->ranges, &corner, x->a->ar, &x->runs[k]);
 }
 
@@ -116,9 +116,41 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 	}
 }
 
-/* Resistance directly across a part's two nodes (parallel resistors). */
-static double across_r(const struct nl_circuit *c, const struct nl_part *p)
+/* Resistance from node to ground through resistors alone (capacitors and
+ * diodes open), a node held by a source counting as ground: the path a
+ * stored charge drains through once the circuit is off. Depth and a call
+ * budget bound the search on meshes (it then answers INFINITY, the safe
+ * side for a discharge check). */
+static double to_ground(const struct ctx *x, uint32_t node, uint32_t from,
+			int depth, int *budget)
 {
+	const struct prop_node *n = &x->runs[C_NOM].nodes[node];
+	if (node == NL_GROUND || n->how == PH_SOURCE || n->how == PH_VCVS)
+		return 0;
+	if (depth > 16 || --*budget < 0)
+		return INFINITY;
+	const struct nl_circuit *c = x->a->er.circuit;
+	uint32_t k;
+	const uint32_t *adj = nl_adjacency(c, node, &k);
+	double g = 0;
+	for (uint32_t i = 0; i < k; i++) {
+		const struct nl_part *r = nl_part_at(c, adj[i]);
+		if (r->kind != NL_R || adj[i] == from || !(r->value > 0))
+			continue;
+		const uint32_t *q = nl_pins(c, r);
+		uint32_t other = q[0] == node ? q[1] : q[0];
+		double rest = to_ground(x, other, adj[i], depth + 1, budget);
+		if (isfinite(rest))
+			g += 1 / (r->value / (r->ext ? r->ext->mult : 1.0) + rest);
+	}
+	return g > 0 ? 1 / g : INFINITY;
+}
+
+/* A capacitor drains through resistors straight across it and through
+ * each terminal's path to ground. */
+static double across_r(const struct ctx *x, const struct nl_part *p)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
 	const uint32_t *q = nl_pins(c, p);
 	uint32_t n;
 	const uint32_t *adj = nl_adjacency(c, q[0], &n);
@@ -131,6 +163,10 @@ static double across_r(const struct nl_circuit *c, const struct nl_part *p)
 		if ((rq[0] == q[0] && rq[1] == q[1]) || (rq[0] == q[1] && rq[1] == q[0]))
 			g += (r->ext ? r->ext->mult : 1.0) / r->value;
 	}
+	int budget = 10000;
+	double via = to_ground(x, q[0], NL_NONE, 0, &budget) + to_ground(x, q[1], NL_NONE, 0, &budget);
+	if (isfinite(via) && via > 0)
+		g += 1 / via;
 	return g > 0 ? 1 / g : INFINITY;
 }
 
@@ -139,9 +175,9 @@ static void energy(struct ctx *x, struct stress *s)
 	const struct nl_circuit *c = x->a->er.circuit;
 	const struct nl_part *p = nl_part_at(c, s->part);
 	double cap = p->value * (p->ext ? p->ext->mult : 1.0);
-	double hz = profile_value(x->p, "hazard_voltage", NULL);
+	double hz = profile_hazard(x->p);
 	s->energy_j = 0.5 * cap * s->worst * s->worst;
-	s->discharge_r = across_r(c, p);
+	s->discharge_r = across_r(x, p);
 	s->discharge_s = NAN;
 	if (!isnan(hz) && s->worst > hz)
 		s->discharge_s = isinf(s->discharge_r) ? INFINITY
@@ -218,6 +254,36 @@ static double struct_caps(const struct ctx *x, const struct topo_struct *t,
 	return smallest ? min : total;
 }
 
+/* Capacitance of a clamp's coupling: pieces between the same two nodes add,
+ * groups on different node pairs (a capacitor split in series) combine in
+ * series. */
+static double coupling_c(const struct ctx *x, const struct topo_struct *t)
+{
+	uint32_t a[16], b[16];
+	double cg[16];
+	int ng = 0;
+	for (uint32_t i = 0; i < t->nparts; i++) {
+		const struct nl_part *p = nl_part_at(x->a->er.circuit, t->parts[i].part);
+		if (p->kind != NL_C || strncmp(t->parts[i].role, "coupling", 8) != 0)
+			continue;
+		const uint32_t *q = nl_pins(x->a->er.circuit, p);
+		int g = 0;
+		while (g < ng && !((a[g] == q[0] && b[g] == q[1]) || (a[g] == q[1] && b[g] == q[0])))
+			g++;
+		if (g == ng && ng < 16) {
+			a[ng] = q[0];
+			b[ng] = q[1];
+			cg[ng++] = 0;
+		}
+		if (g < 16)
+			cg[g] += p->value * (p->ext ? p->ext->mult : 1.0);
+	}
+	double inv = 0;
+	for (int g = 0; g < ng; g++)
+		inv += 1 / cg[g];
+	return inv > 0 ? 1 / inv : INFINITY;
+}
+
 static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 		    const struct stress *coupling)
 {
@@ -233,8 +299,14 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 	f->load_r = g > 0 ? 1 / g : INFINITY;
 	if ((t->kind == TK_CLAMP_FLOOR || t->kind == TK_CLAMP_CEILING) && g > 0 && coupling &&
 	    f->period > 0) {
-		double c = struct_caps(x, t, "coupling", 0);
-		f->droop_v = coupling->worst * f->period / (f->load_r * c);
+		/* the whole coupling (pieces in series and in parallel) between the
+		 * drive and the clamp node */
+		double c = coupling_c(x, t), vcap = 0;
+		for (int k = 0; k < NCORNER; k++)
+			if (!isnan(node_extreme(&x->runs[k], t->output, t->drive, &lo, &hi)))
+				vcap = fmax(vcap, fmax(fabs(lo), fabs(hi)));
+		(void)coupling;
+		f->droop_v = vcap * f->period / (f->load_r * c);
 		f->droop_frac = f->swing > 0 ? f->droop_v / f->swing : 0;
 	}
 	if (t->kind == TK_LADDER && g > 0 && f->period > 0) {
@@ -381,14 +453,18 @@ int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
 		return 0;
 	for (size_t s = 0; s < a->topo.n; s++)
 		figures(&x, s, &out->st[s], coupling[s]);
-	/* a capacitor inside a loaded structure discharges through the load */
+	/* a capacitor inside a structure also drains through the structure's
+	 * output and whatever path that has to ground (the stack empties into
+	 * its load) */
 	for (size_t i = 0; i < out->n; i++) {
 		struct stress *s = &out->s[i];
 		const struct nl_part *pt = nl_part_at(c, s->part);
 		if (pt->kind != NL_C || s->structure < 0 || !s->bounded || !isinf(s->discharge_r))
 			continue;
-		double rl = out->st[s->structure].load_r;
-		double hz = profile_value(p, "hazard_voltage", NULL);
+		const struct topo_struct *t = &a->topo.s[s->structure];
+		int budget = 10000;
+		double rl = t->output != NL_NONE ? to_ground(&x, t->output, NL_NONE, 0, &budget) : INFINITY;
+		double hz = profile_hazard(p);
 		if (!isfinite(rl) || isnan(hz) || !(s->worst > hz))
 			continue;
 		s->discharge_r = rl;
