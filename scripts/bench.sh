@@ -127,3 +127,15 @@ printf 'flat-200k-clamps       parts %8d  topo %6.3f s %7d KB  %5.1f B/part\n' 6
 	"$(awk -v m="$mb" 'BEGIN{print m*1024/600001}')"
 echo "bench: topo growth 10x parts -> $(awk -v a="$tb" -v b="$ta" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
 [ $have_ngspice -eq 1 ] || echo "bench: ngspice not installed: simulator ratios skipped"
+
+echo "bench: the whole check (headroom check --format json, report to /dev/null)"
+read -r ca cma < <(measure "$bin" check --format json --fail-on never "$work/flat20k.cir")
+read -r cb cmb < <(measure "$bin" check --format json --fail-on never "$work/flat200k.cir")
+printf 'flat-20k-clamps        parts %8d  check %6.3f s %7d KB\n' 60001 "$ca" "$cma"
+printf 'flat-200k-clamps       parts %8d  check %6.3f s %7d KB  %5.1f B/part\n' 600001 "$cb" "$cmb" \
+	"$(awk -v m="$cmb" 'BEGIN{print m*1024/600001}')"
+if [ $have_ngspice -eq 1 ]; then
+	read -r tn _ < <(BENCH_RUNS=1 measure ngspice -b "$work/flat200k.cir")
+	echo "bench: ngspice load / full check = $(awk -v a="$tn" -v b="$cb" 'BEGIN{printf "%.2f", (b>0)?a/b:0}')x (target >= 40x)"
+fi
+echo "bench: check growth 10x parts -> $(awk -v a="$cb" -v b="$ca" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
