@@ -27,9 +27,11 @@ struct check_totals {
 	size_t files, errors, warnings, notes, netlist_errors;
 	double max_voltage;
 	double hazard_voltage;
+	size_t emitted;        /* records written so far (SARIF results) */
+	const char *docs_uri;  /* absolute file: URI of docs/, for help links */
 };
 
-enum report_check_format { RC_TEXT, RC_JSON };
+enum report_check_format { RC_TEXT, RC_JSON, RC_CSV, RC_JUNIT, RC_SARIF, RC_HTML };
 
 /* Writes one file; first/last bracket the JSON document; totals are
  * updated. */

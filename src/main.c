@@ -1,7 +1,9 @@
 /* main.c: the command line. Parses options, runs the library per file,
  * and is the only place that picks output streams and exit codes:
  * 0 clean, 1 findings at or above --fail-on, 2 usage or netlist errors. */
+#include <ctype.h>
 #include <errno.h>
+#include <unistd.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
@@ -55,7 +57,8 @@ static void usage(FILE *out)
 	      "options:\n"
 	      "  --format FMT         parts: text (default), csv, json, count\n"
 	      "                       topo: text (default), json, count\n"
-	      "                       check: text (default), json\n"
+	      "                       check: text (default), json, csv, junit, sarif,\n"
+	      "                       html\n"
 	      "  --profile NAME|FILE  derating profile: basic, industrial (default),\n"
 	      "                       flight, or a profile file\n"
 	      "  --parts FILE         parts table (CSV) with ratings\n"
@@ -86,20 +89,29 @@ static int parse_count(const char *s, size_t *out)
 	return 1;
 }
 
+/* The format is checked by the command that uses it. */
 static int set_format(struct cli *c, const char *f)
 {
 	c->fmt_name = f;
+	return 1;
+}
+
+/* parts: text, csv, json, count. */
+static int parts_format(struct cli *c)
+{
 	static const struct {
 		const char *name;
 		enum report_parts_format fmt;
 	} tab[] = {{"text", RP_TEXT}, {"csv", RP_CSV}, {"json", RP_JSON},
 		   {"count", RP_COUNT}};
+	if (!c->fmt_name)
+		return 1;
 	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
-		if (strcmp(f, tab[i].name) == 0) {
+		if (strcmp(c->fmt_name, tab[i].name) == 0) {
 			c->fmt = tab[i].fmt;
 			return 1;
 		}
-	fprintf(stderr, "headroom: unknown format '%s' (text, csv, json, count)\n", f);
+	fprintf(stderr, "headroom: unknown format '%s' (text, csv, json, count)\n", c->fmt_name);
 	return 0;
 }
 
@@ -426,6 +438,47 @@ static int check_one(const struct cli *c, const char *path, const struct profile
 	return rc;
 }
 
+/* The start of the trailing "/rules" of a path, or NULL. */
+static char *strrstr_rules(char *s)
+{
+	size_t n = strlen(s);
+	return n >= 6 && strcmp(s + n - 6, "/rules") == 0 ? s + n - 6 : NULL;
+}
+
+/* file:// URI of the documentation folder next to the program (the build
+ * tree's docs/, or an installed share/doc/headroom/), percent-encoded. */
+static char *docs_uri(void)
+{
+	char exe[2048], dir[2100];
+	ssize_t k = readlink("/proc/self/exe", exe, sizeof exe - 1);
+	if (k <= 0)
+		return NULL;
+	exe[k] = '\0';
+	char *slash = strrchr(exe, '/');
+	if (slash)
+		*slash = '\0';
+	static const char *const rel[] = {"/../docs/", "/../share/doc/headroom/"};
+	for (size_t i = 0; i < 2; i++) {
+		snprintf(dir, sizeof dir, "%s%srules", exe, rel[i]);
+		char *real = realpath(dir, NULL);
+		if (!real)
+			continue;
+		char *out = malloc(strlen(real) * 3 + 16);
+		if (out) {
+			char *o = out + sprintf(out, "file://");
+			for (const unsigned char *p = (const unsigned char *)real; *p; p++)
+				o += (isalnum(*p) || strchr("-._~/", *p)) ? sprintf(o, "%c", *p) : sprintf(o, "%%%02X", *p);
+			/* up from .../rules to the docs folder */
+			char *last = strrstr_rules(out);
+			if (last)
+				strcpy(last, "/");
+		}
+		free(real);
+		return out;
+	}
+	return NULL;
+}
+
 static int run_check(const struct cli *c)
 {
 	struct hr_alloc hook = hr_alloc_default();
@@ -434,12 +487,25 @@ static int run_check(const struct cli *c)
 	struct profile *p = malloc(sizeof *p);
 	struct flist files = {0};
 	int rc = EXIT_USAGE;
-	enum report_check_format fmt = c->fmt_name && strcmp(c->fmt_name, "json") == 0 ? RC_JSON : RC_TEXT;
-	if (c->fmt_name && strcmp(c->fmt_name, "json") != 0 && strcmp(c->fmt_name, "text") != 0) {
-		fprintf(stderr, "headroom: check writes text or json, not '%s'\n", c->fmt_name);
+	char *docs = docs_uri();
+	static const struct {
+		const char *name;
+		enum report_check_format fmt;
+	} fmts[] = {{"text", RC_TEXT}, {"json", RC_JSON}, {"csv", RC_CSV},
+		    {"junit", RC_JUNIT}, {"sarif", RC_SARIF}, {"html", RC_HTML}};
+	enum report_check_format fmt = RC_TEXT;
+	int known = !c->fmt_name;
+	for (size_t i = 0; c->fmt_name && i < sizeof fmts / sizeof fmts[0]; i++)
+		if (strcmp(c->fmt_name, fmts[i].name) == 0) {
+			fmt = fmts[i].fmt;
+			known = 1;
+		}
+	if (!known) {
+		fprintf(stderr, "headroom: check writes text, json, csv, junit, sarif or html, not '%s'\n", c->fmt_name);
 	} else if (d && p && load_profile(c, d, p) && expand(c, &files)) {
 		struct check_totals t;
 		memset(&t, 0, sizeof t);
+		t.docs_uri = docs;
 		rc = 0;
 		for (size_t i = 0; i < files.n; i++) {
 			int r = check_one(c, files.v[i], p, fmt, i == 0, &t);
@@ -452,6 +518,7 @@ static int run_check(const struct cli *c)
 	for (size_t i = 0; i < files.n; i++)
 		free(files.v[i]);
 	free(files.v);
+	free(docs);
 	free(p);
 	diag_destroy(d);
 	arena_destroy(ar);
@@ -509,7 +576,7 @@ int main(int argc, char **argv)
 	} else if (!c.cmd) {
 		usage(stderr);
 	} else if (strcmp(c.cmd, "parts") == 0 && c.nfiles > 0) {
-		rc = run_parts(&c);
+		rc = parts_format(&c) ? run_parts(&c) : EXIT_USAGE;
 	} else if (strcmp(c.cmd, "topo") == 0 && c.nfiles > 0) {
 		rc = run_topo(&c);
 	} else if (strcmp(c.cmd, "check") == 0 && c.nfiles > 0) {

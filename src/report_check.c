@@ -2,6 +2,7 @@
  * severity, message, rule id; then where the number comes from, the rating
  * and limit, the fix), a stress table, a summary. JSON: DESIGN §10 shape. */
 #include "report_check.h"
+#include "report_formats.h"
 
 #include <math.h>
 #include <string.h>
@@ -287,11 +288,26 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		count(t, f->rules);
 		t->max_voltage = fmax(t->max_voltage, f->stress->max_voltage);
 	}
-	if (fmt == RC_TEXT) {
+	switch (fmt) {
+	case RC_TEXT:
 		if (!first)
 			fputc('\n', out);
 		text_file(out, f, p);
 		return;
+	case RC_CSV:
+		report_csv_file(out, f, p, first);
+		return;
+	case RC_JUNIT:
+		report_junit_file(out, f, p, first);
+		return;
+	case RC_SARIF:
+		report_sarif_file(out, f, p, first, t);
+		return;
+	case RC_HTML:
+		report_html_file(out, f, p, first);
+		return;
+	default:
+		break;
 	}
 	if (first)
 		json_head(out, p);
@@ -305,6 +321,20 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 {
 	double hz = profile_hazard(p);
 	int hazard = !isnan(hz) && t->max_voltage > hz;
+	if (fmt == RC_CSV)
+		return;
+	if (fmt == RC_JUNIT) {
+		report_junit_end(out, t);
+		return;
+	}
+	if (fmt == RC_SARIF) {
+		report_sarif_end(out, p, t);
+		return;
+	}
+	if (fmt == RC_HTML) {
+		report_html_end(out, p, t);
+		return;
+	}
 	if (fmt == RC_TEXT) {
 		fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",
 			t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",

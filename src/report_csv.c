@@ -1,0 +1,96 @@
+/* report_csv.c: one row per capacitor and diode that is stressed or rated,
+ * RFC 4180 quoting, a header row; the columns of DESIGN §10 plus the file
+ * and the quantity. */
+#include "report_formats.h"
+
+#include <math.h>
+#include <string.h>
+
+#include "report_parts.h"
+
+void report_xml_text(FILE *out, const char *s)
+{
+	for (; s && *s; s++) {
+		switch (*s) {
+		case '&': fputs("&amp;", out); break;
+		case '<': fputs("&lt;", out); break;
+		case '>': fputs("&gt;", out); break;
+		case '"': fputs("&quot;", out); break;
+		default:
+			if ((unsigned char)*s < 0x20 && *s != '\n' && *s != '\t')
+				fputc(' ', out); /* not allowed in XML 1.0 */
+			else
+				fputc(*s, out);
+		}
+	}
+}
+
+double report_limit(const struct check_file *f, const struct profile *p,
+		    const struct stress *s)
+{
+	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
+	const struct rating *r = &f->ratings[s->part];
+	const char *cls = pt->kind == NL_D ? "diode" : "cap";
+	double factor = profile_kind(p, cls, r->kind, s->qty == SQ_SURGE ? "surge" : "voltage", NULL);
+	double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+	return rated * (isnan(factor) ? 1 : factor);
+}
+
+static void num(FILE *out, double v)
+{
+	if (!isnan(v) && !isinf(v))
+		fprintf(out, "%.6g", v);
+}
+
+static void row(FILE *out, const struct check_file *f, const struct profile *p,
+		const struct stress *s)
+{
+	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
+	const struct rating *r = &f->ratings[s->part];
+	const struct rating_field *rf = s->qty == SQ_SURGE ? &r->i_surge : &r->v_rated;
+	double worst = s->bounded ? s->worst : NAN, limit = report_limit(f, p, s);
+	char st[16] = "";
+	if (s->structure >= 0)
+		snprintf(st, sizeof st, "S%d", s->structure + 1);
+	report_csv_field(out, f->path);
+	fputc(',', out);
+	report_csv_field(out, pt->path);
+	fprintf(out, ",%c,", pt->kind == NL_D ? 'D' : 'C');
+	report_csv_field(out, r->kind ? r->kind : "");
+	fprintf(out, ",%s,", st);
+	report_csv_field(out, s->role);
+	fprintf(out, ",%s,", s->qty == SQ_SURGE ? "surge_current" : s->qty == SQ_REVERSE ? "reverse_voltage" : "voltage");
+	num(out, worst);
+	fputc(',', out);
+	num(out, s->bounded && s->qty != SQ_SURGE ? s->best : NAN);
+	fprintf(out, ",%s,", s->qty == SQ_SURGE ? "A" : "V");
+	report_csv_field(out, s->corner ? s->corner : "");
+	fputc(',', out);
+	num(out, rf->value);
+	fputc(',', out);
+	report_csv_field(out, rf->from ? rf->from : "");
+	fputc(',', out);
+	num(out, limit);
+	fputc(',', out);
+	num(out, worst / rf->value);
+	fputc(',', out);
+	num(out, limit - worst);
+	fputc('\n', out);
+}
+
+void report_csv_file(FILE *out, const struct check_file *f,
+		     const struct profile *p, int first)
+{
+	if (first)
+		fputs("file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"
+		      "rating,rating_from,limit,ratio,margin\n", out);
+	if (!f->a->analysed)
+		return;
+	for (size_t i = 0; i < f->stress->n; i++) {
+		const struct stress *s = &f->stress->s[i];
+		const struct rating *r = &f->ratings[s->part];
+		double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+		if (s->bounded || !isnan(rated) || s->structure >= 0)
+			row(out, f, p, s);
+	}
+}

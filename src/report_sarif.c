@@ -1,0 +1,135 @@
+/* report_sarif.c: SARIF 2.1.0 (OASIS). One run per invocation: the tool's
+ * rules with short and full descriptions and a help reference into
+ * docs/rules/, then one result per finding with its level, message, the
+ * physical location of the part's card (file URI relative to the working
+ * directory), the hierarchical part path as logical location, and a
+ * partial fingerprint from rule, file and part (not the line) so results
+ * stay matched when lines move. Waived findings carry suppressions. */
+#include "report_formats.h"
+
+#include <math.h>
+#include <stdint.h>
+#include <string.h>
+
+#include "report_parts.h"
+#include "rules.h"
+#include "version.h"
+
+static const char *level(enum diag_severity s)
+{
+	return s == DIAG_ERROR ? "error" : s == DIAG_WARNING ? "warning" : "note";
+}
+
+/* A relative path as a URI reference: unreserved characters and '/' as
+ * they are, everything else percent-encoded (RFC 3986). */
+static void uri(FILE *out, const char *path)
+{
+	fputc('"', out);
+	while (path[0] == '.' && path[1] == '/')
+		path += 2;
+	for (const unsigned char *p = (const unsigned char *)path; *p; p++) {
+		if ((*p >= 'a' && *p <= 'z') || (*p >= 'A' && *p <= 'Z') ||
+		    (*p >= '0' && *p <= '9') || strchr("-._~/", *p))
+			fputc(*p, out);
+		else
+			fprintf(out, "%%%02X", *p);
+	}
+	fputc('"', out);
+}
+
+static uint64_t fnv(const char *a, const char *b, const char *c)
+{
+	uint64_t h = 1469598103934665603ull;
+	const char *parts[3] = {a, b, c};
+	for (int i = 0; i < 3; i++) {
+		for (const char *s = parts[i] ? parts[i] : ""; *s; s++)
+			h = (h ^ (unsigned char)*s) * 1099511628211ull;
+		h = (h ^ '|') * 1099511628211ull;
+	}
+	return h;
+}
+
+static void rules(FILE *out, const char *docs)
+{
+	fputs("\"rules\": [", out);
+	for (size_t i = 0; i < rules_count; i++) {
+		const struct rule_info *r = &rules_table[i];
+		fprintf(out, "%s\n          {\"id\": \"%s\", \"name\": \"%s\", \"shortDescription\": {\"text\": ",
+			i ? "," : "", r->id, r->id);
+		report_json_string(out, r->summary);
+		fputs("}, \"fullDescription\": {\"text\": ", out);
+		char full[512];
+		snprintf(full, sizeof full, "%s. The finding gives the worst-case stress, how it was "
+			 "worked out, the rating and the derating limit with their sources, and a fix. "
+			 "Reference: docs/rules/%s.md in the headroom sources.", r->summary, r->id);
+		report_json_string(out, full);
+		fputc('}', out);
+		if (docs)
+			fprintf(out, ", \"helpUri\": \"%srules/%s.md\"", docs, r->id);
+		fprintf(out, ", \"defaultConfiguration\": {\"level\": \"%s\"}}", level(r->severity));
+	}
+	fputs("]", out);
+}
+
+static void head(FILE *out, const char *docs)
+{
+	fputs("{\"$schema\": \"https://raw.githubusercontent.com/oasis-tcs/sarif-spec/master/Schemata/sarif-schema-2.1.0.json\",\n"
+	      "  \"version\": \"2.1.0\",\n  \"runs\": [{\n    \"tool\": {\"driver\": {\"name\": \"headroom\", "
+	      "\"version\": \"" HEADROOM_VERSION "\", \"semanticVersion\": \"" HEADROOM_VERSION "\",\n        ", out);
+	if (docs)
+		fprintf(out, "\"informationUri\": \"%scheck.md\",\n        ", docs);
+	rules(out, docs);
+	fputs("}},\n    \"columnKind\": \"unicodeCodePoints\",\n    \"results\": [", out);
+}
+
+static size_t rule_index(const struct rule_info *r)
+{
+	return (size_t)(r - rules_table);
+}
+
+static void result(FILE *out, const struct check_file *f, const struct finding *g,
+		   int first)
+{
+	const char *file = diag_file_name(f->d, g->loc.file);
+	fprintf(out, "%s\n      {\"ruleId\": \"%s\", \"ruleIndex\": %zu, \"level\": \"%s\", \"message\": {\"text\": ",
+		first ? "" : ",", g->rule->id, rule_index(g->rule), level(g->rule->severity));
+	report_json_string(out, g->message);
+	fputs("},\n        \"locations\": [{\"physicalLocation\": {\"artifactLocation\": {\"uri\": ", out);
+	uri(out, file);
+	fprintf(out, "}, \"region\": {\"startLine\": %u, \"startColumn\": %u}}", g->loc.line ? g->loc.line : 1,
+		g->loc.col ? g->loc.col : 1);
+	if (g->subject) {
+		fputs(", \"logicalLocations\": [{\"fullyQualifiedName\": ", out);
+		report_json_string(out, g->subject);
+		fputs(", \"kind\": \"member\"}]", out);
+	}
+	fprintf(out, "}],\n        \"partialFingerprints\": {\"headroomFinding/v1\": \"%016llx\"}",
+		(unsigned long long)fnv(g->rule->id, file, g->subject));
+	if (g->waived) {
+		fputs(", \"suppressions\": [{\"kind\": \"inSource\", \"justification\": ", out);
+		report_json_string(out, g->waiver ? g->waiver : "waived");
+		fputs("}]", out);
+	}
+	fputc('}', out);
+}
+
+void report_sarif_file(FILE *out, const struct check_file *f,
+		       const struct profile *p, int first, struct check_totals *t)
+{
+	(void)p;
+	if (first)
+		head(out, t->docs_uri);
+	if (!f->a->analysed)
+		return;
+	for (size_t i = 0; i < f->rules->n; i++)
+		result(out, f, &f->rules->f[i], t->emitted++ == 0);
+}
+
+void report_sarif_end(FILE *out, const struct profile *p,
+		      const struct check_totals *t)
+{
+	(void)p;
+	if (t->files == 0)
+		head(out, t->docs_uri);
+	fputs("]\n  }]\n}\n", out);
+}
