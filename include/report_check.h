@@ -29,6 +29,8 @@ struct check_totals {
 	double hazard_voltage;
 	size_t emitted;        /* records written so far (SARIF results) */
 	const char *docs_uri;  /* absolute file: URI of docs/, for help links */
+	int color;             /* text: ANSI colours */
+	int quiet;             /* text: findings only */
 };
 
 enum report_check_format { RC_TEXT, RC_JSON, RC_CSV, RC_JUNIT, RC_SARIF, RC_HTML };

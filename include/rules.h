@@ -44,8 +44,13 @@ struct finding {
 
 struct rules_result {
 	struct finding *f;
-	size_t n;
+	size_t n, cap;
 };
+
+/* Appends an empty finding of rule id to rr (allocating in ar); NULL on
+ * out-of-memory or an unknown id. */
+struct finding *rules_add(struct rules_result *rr, struct arena *ar,
+			  const char *id);
 
 /* Applies every rule. Allocates in a->ar. Returns 0 on out-of-memory. */
 int rules_run(struct audit *a, const struct rating *r, const struct profile *p,

@@ -3,6 +3,8 @@
  * 0 clean, 1 findings at or above --fail-on, 2 usage or netlist errors. */
 #include <ctype.h>
 #include <errno.h>
+#include <pthread.h>
+#include <time.h>
 #include <unistd.h>
 #include <math.h>
 #include <stdio.h>
@@ -18,6 +20,7 @@
 #include "report_topo.h"
 #include "rules.h"
 #include "stress.h"
+#include "waiver.h"
 #include <dirent.h>
 #include <sys/stat.h>
 
@@ -34,6 +37,9 @@ struct cli {
 	const char **files;
 	int nfiles;
 	const char *profile;   /* name or path */
+	const char *waivers, *baseline, *write_baseline, *today, *out_path;
+	size_t jobs;           /* -j; 0: one per processor */
+	int quiet;
 	const char *parts;     /* parts table */
 	int fail_on;           /* DIAG_* level, or -1 for never */
 	const char *argv0;
@@ -64,6 +70,16 @@ static void usage(FILE *out)
 	      "  --parts FILE         parts table (CSV) with ratings\n"
 	      "  --fail-on LEVEL      exit 1 on findings at or above error (default),\n"
 	      "                       warning, note; never: always 0\n"
+	      "  -o FILE              write the report to FILE (replaced only when the\n"
+	      "                       run succeeds)\n"
+	      "  -j N                 check N files at once (default: one per processor)\n"
+	      "  --waivers FILE       *@waive lines that apply to every file\n"
+	      "  --baseline FILE      report only findings not in this earlier JSON report\n"
+	      "  --write-baseline FILE  also write the JSON report to FILE\n"
+	      "  --today YYYY-MM-DD   the date waiver expiry is judged against\n"
+	      "  -q, --quiet          findings only: no structures, tables, summary or\n"
+	      "                       progress bar\n"
+	      "colour: on a terminal, unless NO_COLOR is set\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
 	      "                       (default 10000000)\n"
 	      "  --source-tol PCT     tolerance of every source's amplitude and offset\n"
@@ -168,6 +184,15 @@ static int option(struct cli *c, const char *opt, const char *val)
 	}
 	if (strcmp(opt, "--fail-on") == 0)
 		return set_fail_on(c, val);
+	const char **str = strcmp(opt, "--waivers") == 0 ? &c->waivers
+			 : strcmp(opt, "--baseline") == 0 ? &c->baseline
+			 : strcmp(opt, "--write-baseline") == 0 ? &c->write_baseline
+			 : strcmp(opt, "--today") == 0 ? &c->today
+			 : strcmp(opt, "-o") == 0 ? &c->out_path : NULL;
+	if (str) {
+		*str = val;
+		return 1;
+	}
 	if (!parse_count(val, &n)) {
 		fprintf(stderr, "headroom: %s takes a positive whole number, not '%s'\n",
 			opt, val);
@@ -175,6 +200,8 @@ static int option(struct cli *c, const char *opt, const char *val)
 	}
 	if (strcmp(opt, "--max-parts") == 0)
 		c->eo.max_parts = n;
+	else if (strcmp(opt, "-j") == 0)
+		c->jobs = n;
 	else
 		c->max_errors = (unsigned)n;
 	return 1;
@@ -190,10 +217,14 @@ static int parse_args(struct cli *c, int argc, char **argv)
 		if (strcmp(a, "--format") == 0 || strcmp(a, "--max-parts") == 0 ||
 		    strcmp(a, "--max-errors") == 0 || strcmp(a, "--source-tol") == 0 ||
 		    strcmp(a, "--profile") == 0 || strcmp(a, "--parts") == 0 ||
-		    strcmp(a, "--fail-on") == 0) {
+		    strcmp(a, "--fail-on") == 0 || strcmp(a, "--waivers") == 0 ||
+		    strcmp(a, "--baseline") == 0 || strcmp(a, "--write-baseline") == 0 ||
+		    strcmp(a, "--today") == 0 || strcmp(a, "-o") == 0 || strcmp(a, "-j") == 0) {
 			if (!option(c, a, i + 1 < argc ? argv[i + 1] : NULL))
 				return 0;
 			i++;
+		} else if (strcmp(a, "--quiet") == 0 || strcmp(a, "-q") == 0) {
+			c->quiet = 1;
 		} else if (a[0] == '-' && a[1] != '\0') {
 			fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", a);
 			return 0;
@@ -375,9 +406,35 @@ static int worst_level(const struct rules_result *r)
 }
 
 /* Checks one file; returns its exit-status contribution. */
-static int check_one(const struct cli *c, const char *path, const struct profile *p,
-		     enum report_check_format fmt, int first, struct check_totals *t)
+/* What every file's check shares: read-only once the batch starts. */
+struct batch {
+	const struct cli *c;
+	const struct profile *p;
+	enum report_check_format fmt;
+	const struct waiver_file *waivers;
+	const struct baseline *baseline;
+	const char *today;
+	const char *docs;
+	int color, quiet, json_too;
+};
+
+/* One file's check and its outputs, kept until they are written in order. */
+struct job {
+	const char *path;
+	size_t index;
+	char *out, *err, *json;
+	size_t outn, errn, jsonn;
+	struct check_totals t, tj;
+	int rc;
+	int done;
+};
+
+static int check_one(const struct batch *b, const char *path, int first,
+		     FILE *out, FILE *err, FILE *json, struct check_totals *t,
+		     struct check_totals *tj)
 {
+	const struct cli *c = b->c;
+	const struct profile *p = b->p;
 	struct hr_alloc hook = hr_alloc_default();
 	struct arena *ar = arena_create(&hook);
 	struct diag_sink *d = ar ? diag_create(ar, c->max_errors) : NULL;
@@ -411,25 +468,32 @@ static int check_one(const struct cli *c, const char *path, const struct profile
 	if (st == AUDIT_OK) {
 		const struct rating_table *tab = c->parts ? rating_table_load(c->parts, a.ar, d) : NULL;
 		f.ratings = rating_resolve(a.er.circuit, tab, a.annots, a.nannots, a.ar, d);
-		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) || !rules_run(&a, f.ratings, p, &sr, &rr))
+		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) || !rules_run(&a, f.ratings, p, &sr, &rr) ||
+		    !waiver_apply(&a, b->waivers, b->today, &rr))
 			st = AUDIT_OOM;
-		else if (c->fail_on >= 0 && worst_level(&rr) >= c->fail_on)
-			rc = 1;
+		else {
+			if (b->baseline)
+				baseline_filter(b->baseline, path, &rr);
+			if (c->fail_on >= 0 && worst_level(&rr) >= c->fail_on)
+				rc = 1;
+		}
 		if (diag_errors(d, UINT32_MAX))
 			rc = EXIT_USAGE;
 	}
 	if (st == AUDIT_OOM) {
-		fprintf(stderr, "%s: error: out of memory\n", path);
+		fprintf(err, "%s: error: out of memory\n", path);
 		rc = EXIT_USAGE;
 	} else {
 		if (st != AUDIT_OK) {
 			a.analysed = 0;
 			rc = EXIT_USAGE;
 		}
-		report_check_file(stdout, fmt, &f, p, first, t);
+		report_check_file(out, b->fmt, &f, p, first, t);
+		if (json)
+			report_check_file(json, RC_JSON, &f, p, first, tj);
 	}
 	if (d)
-		diag_render(d, UINT32_MAX, stderr);
+		diag_render(d, UINT32_MAX, err);
 	if (d)
 		audit_free(&a);
 	free(own);
@@ -479,6 +543,205 @@ static char *docs_uri(void)
 	return NULL;
 }
 
+/* ---- the batch: worker threads, output in file order ---- */
+
+struct pool {
+	const struct batch *b;
+	struct job *jobs;
+	size_t n, next;
+	pthread_mutex_t mu;
+	pthread_cond_t cv;
+};
+
+static void run_job(const struct batch *b, struct job *j)
+{
+	FILE *out = open_memstream(&j->out, &j->outn);
+	FILE *err = open_memstream(&j->err, &j->errn);
+	FILE *json = b->json_too ? open_memstream(&j->json, &j->jsonn) : NULL;
+	j->t.color = j->tj.color = b->color;
+	j->t.quiet = b->quiet;
+	j->t.docs_uri = j->tj.docs_uri = b->docs;
+	if (!out || !err || (b->json_too && !json))
+		j->rc = EXIT_USAGE;
+	else
+		j->rc = check_one(b, j->path, j->index == 0, out, err, json, &j->t, &j->tj);
+	if (out)
+		fclose(out);
+	if (err)
+		fclose(err);
+	if (json)
+		fclose(json);
+}
+
+static void *worker(void *arg)
+{
+	struct pool *pl = arg;
+	for (;;) {
+		pthread_mutex_lock(&pl->mu);
+		size_t i = pl->next < pl->n ? pl->next++ : pl->n;
+		pthread_mutex_unlock(&pl->mu);
+		if (i == pl->n)
+			return NULL;
+		run_job(pl->b, &pl->jobs[i]);
+		pthread_mutex_lock(&pl->mu);
+		pl->jobs[i].done = 1;
+		pthread_cond_broadcast(&pl->cv);
+		pthread_mutex_unlock(&pl->mu);
+	}
+}
+
+static void merge(struct check_totals *t, const struct check_totals *j)
+{
+	t->files += j->files;
+	t->errors += j->errors;
+	t->warnings += j->warnings;
+	t->notes += j->notes;
+	t->netlist_errors += j->netlist_errors;
+	t->max_voltage = fmax(t->max_voltage, j->max_voltage);
+}
+
+/* Writes a job's outputs; SARIF results of a file whose predecessors
+ * wrote none must not start with the separating comma. */
+static void emit(struct check_totals *t, struct check_totals *tj, struct job *j,
+		 FILE *out, FILE *json, int progress, size_t n, int sarif)
+{
+	const char *o = j->out;
+	size_t on = j->outn;
+	if (sarif && j->index > 0 && t->emitted == 0 && on && o[0] == ',') {
+		o++;
+		on--;
+	}
+	fwrite(o, 1, on, out);
+	if (json && j->json)
+		fwrite(j->json, 1, j->jsonn, json);
+	if (progress)
+		fputs("\r\033[K", stderr);
+	fwrite(j->err, 1, j->errn, stderr);
+	if (progress)
+		fprintf(stderr, "[%zu/%zu] %s", j->index + 1, n, j->path);
+	t->emitted += j->t.emitted;
+	merge(t, &j->t);
+	merge(tj, &j->tj);
+}
+
+static int run_batch(const struct batch *b, char **files, size_t n, FILE *out,
+		     FILE *json, struct check_totals *t, struct check_totals *tj)
+{
+	struct pool pl = {b, calloc(n ? n : 1, sizeof *pl.jobs), n, 0,
+			  PTHREAD_MUTEX_INITIALIZER, PTHREAD_COND_INITIALIZER};
+	if (!pl.jobs)
+		return EXIT_USAGE;
+	for (size_t i = 0; i < n; i++) {
+		pl.jobs[i].path = files[i];
+		pl.jobs[i].index = i;
+	}
+	size_t nthreads = b->c->jobs ? b->c->jobs : (size_t)sysconf(_SC_NPROCESSORS_ONLN);
+	if (nthreads < 1)
+		nthreads = 1;
+	if (nthreads > n)
+		nthreads = n ? n : 1;
+	pthread_t *th = calloc(nthreads, sizeof *th);
+	size_t started = 0;
+	for (size_t i = 0; th && i < nthreads; i++)
+		started += pthread_create(&th[i], NULL, worker, &pl) == 0;
+	if (started == 0)
+		worker(&pl); /* no threads: do it here */
+	int progress = !b->quiet && n > 1 && isatty(STDERR_FILENO);
+	int rc = 0;
+	for (size_t i = 0; i < n; i++) {
+		pthread_mutex_lock(&pl.mu);
+		while (!pl.jobs[i].done)
+			pthread_cond_wait(&pl.cv, &pl.mu);
+		pthread_mutex_unlock(&pl.mu);
+		emit(t, tj, &pl.jobs[i], out, json, progress, n, b->fmt == RC_SARIF);
+		rc = pl.jobs[i].rc > rc ? pl.jobs[i].rc : rc;
+		free(pl.jobs[i].out);
+		free(pl.jobs[i].err);
+		free(pl.jobs[i].json);
+	}
+	if (progress)
+		fputs("\r\033[K", stderr);
+	for (size_t i = 0; i < started; i++)
+		pthread_join(th[i], NULL);
+	free(th);
+	free(pl.jobs);
+	return rc;
+}
+
+/* Output files are written beside their final name and renamed into place
+ * only when the run succeeds: a failed run leaves an old report alone. */
+static FILE *open_temp(const char *path, char *tmp, size_t n)
+{
+	snprintf(tmp, n, "%s.tmp-XXXXXX", path);
+	int fd = mkstemp(tmp);
+	return fd < 0 ? NULL : fdopen(fd, "w");
+}
+
+static int finish_temp(FILE *f, const char *tmp, const char *path, int ok)
+{
+	int bad = ferror(f) | fclose(f);
+	if (!ok || bad) {
+		remove(tmp);
+		if (bad)
+			fprintf(stderr, "headroom: cannot write '%s'\n", path);
+		return !bad;
+	}
+	if (rename(tmp, path) != 0) {
+		fprintf(stderr, "headroom: cannot write '%s': %s\n", path, strerror(errno));
+		remove(tmp);
+		return 0;
+	}
+	return 1;
+}
+
+static void today_of(char *buf, size_t n, const char *given)
+{
+	if (given) {
+		snprintf(buf, n, "%s", given);
+		return;
+	}
+	time_t now = time(NULL);
+	struct tm tm;
+	gmtime_r(&now, &tm);
+	strftime(buf, n, "%Y-%m-%d", &tm);
+}
+
+static int choose_format(const struct cli *c, enum report_check_format *fmt)
+{
+	static const struct {
+		const char *name;
+		enum report_check_format fmt;
+	} fmts[] = {{"text", RC_TEXT}, {"json", RC_JSON}, {"csv", RC_CSV},
+		    {"junit", RC_JUNIT}, {"sarif", RC_SARIF}, {"html", RC_HTML}};
+	*fmt = RC_TEXT;
+	for (size_t i = 0; c->fmt_name && i < sizeof fmts / sizeof fmts[0]; i++)
+		if (strcmp(c->fmt_name, fmts[i].name) == 0) {
+			*fmt = fmts[i].fmt;
+			return 1;
+		}
+	if (!c->fmt_name)
+		return 1;
+	fprintf(stderr, "headroom: check writes text, json, csv, junit, sarif or html, not '%s'\n", c->fmt_name);
+	return 0;
+}
+
+/* Loads what the batch shares; 0 on a usage error (reported). */
+static int prepare(const struct cli *c, struct batch *b, struct profile *p,
+		   struct arena *ar, struct diag_sink *d)
+{
+	if (!choose_format(c, &b->fmt) || !load_profile(c, d, p))
+		return 0;
+	if (c->waivers && !(b->waivers = waiver_load(c->waivers, ar, d)))
+		return 0;
+	if (c->baseline && !(b->baseline = baseline_load(c->baseline, ar, d)))
+		return 0;
+	if (c->today && (strlen(c->today) != 10 || c->today[4] != '-' || c->today[7] != '-')) {
+		fprintf(stderr, "headroom: --today takes YYYY-MM-DD, not '%s'\n", c->today);
+		return 0;
+	}
+	return 1;
+}
+
 static int run_check(const struct cli *c)
 {
 	struct hr_alloc hook = hr_alloc_default();
@@ -486,39 +749,47 @@ static int run_check(const struct cli *c)
 	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
 	struct profile *p = malloc(sizeof *p);
 	struct flist files = {0};
+	struct batch b;
+	char today[32], tmp[4200], jtmp[4200];
 	int rc = EXIT_USAGE;
-	char *docs = docs_uri();
-	static const struct {
-		const char *name;
-		enum report_check_format fmt;
-	} fmts[] = {{"text", RC_TEXT}, {"json", RC_JSON}, {"csv", RC_CSV},
-		    {"junit", RC_JUNIT}, {"sarif", RC_SARIF}, {"html", RC_HTML}};
-	enum report_check_format fmt = RC_TEXT;
-	int known = !c->fmt_name;
-	for (size_t i = 0; c->fmt_name && i < sizeof fmts / sizeof fmts[0]; i++)
-		if (strcmp(c->fmt_name, fmts[i].name) == 0) {
-			fmt = fmts[i].fmt;
-			known = 1;
+	memset(&b, 0, sizeof b);
+	b.c = c;
+	b.p = p;
+	b.docs = docs_uri();
+	b.quiet = c->quiet;
+	b.json_too = c->write_baseline != NULL;
+	b.color = !c->out_path && isatty(STDOUT_FILENO) && !getenv("NO_COLOR");
+	today_of(today, sizeof today, c->today);
+	b.today = today;
+	if (d && p && prepare(c, &b, p, ar, d) && expand(c, &files)) {
+		FILE *out = c->out_path ? open_temp(c->out_path, tmp, sizeof tmp) : stdout;
+		FILE *json = c->write_baseline ? open_temp(c->write_baseline, jtmp, sizeof jtmp) : NULL;
+		if (!out || (c->write_baseline && !json)) {
+			fprintf(stderr, "headroom: cannot create the output file next to '%s'\n",
+				!out ? c->out_path : c->write_baseline);
+		} else {
+			struct check_totals t, tj;
+			memset(&t, 0, sizeof t);
+			memset(&tj, 0, sizeof tj);
+			t.color = b.color;
+			t.quiet = b.quiet;
+			rc = run_batch(&b, files.v, files.n, out, json, &t, &tj);
+			report_check_end(out, b.fmt, p, &t);
+			if (json)
+				report_check_end(json, RC_JSON, p, &tj);
+			waiver_unused(b.waivers, d);
+			if (c->out_path && !finish_temp(out, tmp, c->out_path, 1))
+				rc = EXIT_USAGE;
+			if (json && !finish_temp(json, jtmp, c->write_baseline, 1))
+				rc = EXIT_USAGE;
 		}
-	if (!known) {
-		fprintf(stderr, "headroom: check writes text, json, csv, junit, sarif or html, not '%s'\n", c->fmt_name);
-	} else if (d && p && load_profile(c, d, p) && expand(c, &files)) {
-		struct check_totals t;
-		memset(&t, 0, sizeof t);
-		t.docs_uri = docs;
-		rc = 0;
-		for (size_t i = 0; i < files.n; i++) {
-			int r = check_one(c, files.v[i], p, fmt, i == 0, &t);
-			rc = r > rc ? r : rc;
-		}
-		report_check_end(stdout, fmt, p, &t);
 	}
 	if (d)
 		diag_render(d, UINT32_MAX, stderr);
 	for (size_t i = 0; i < files.n; i++)
 		free(files.v[i]);
 	free(files.v);
-	free(docs);
+	free((char *)b.docs);
 	free(p);
 	diag_destroy(d);
 	arena_destroy(ar);

@@ -39,11 +39,16 @@ static void count(struct check_totals *t, const struct rules_result *r)
 /* ---- text ---- */
 
 static void text_finding(FILE *out, const struct check_file *f,
-			 const struct finding *g)
+			 const struct finding *g, int color)
 {
-	fprintf(out, "%s:%u:%u: %s: %s [%s]%s\n", diag_file_name(f->d, g->loc.file),
-		g->loc.line, g->loc.col, sev_name(g->rule->severity), g->message, g->rule->id,
+	/* bold red errors, yellow warnings, blue notes */
+	static const char *const paint[] = {"\033[1;34m", "\033[1;33m", "\033[1;31m"};
+	fprintf(out, "%s:%u:%u: %s%s%s: %s [%s]%s\n", diag_file_name(f->d, g->loc.file),
+		g->loc.line, g->loc.col, color ? paint[g->rule->severity] : "",
+		sev_name(g->rule->severity), color ? "\033[0m" : "", g->message, g->rule->id,
 		g->waived ? " (waived)" : "");
+	if (g->waived && g->waiver)
+		fprintf(out, "    waived: %s\n", g->waiver);
 	if (g->computation)
 		fprintf(out, "    how:    %s\n", g->computation);
 	if (g->limits)
@@ -122,17 +127,20 @@ static void text_structs(FILE *out, const struct check_file *f)
 }
 
 static void text_file(FILE *out, const struct check_file *f,
-		      const struct profile *p)
+		      const struct profile *p, const struct check_totals *t)
 {
 	if (!f->a->analysed) {
 		fprintf(out, "%s: not checked: the netlist has errors (listed on standard error)\n", f->path);
 		return;
 	}
 	size_t n = f->rules->n;
-	fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s)\n", f->path, f->a->topo.n,
+	if (!t->quiet)
+		fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s)\n", f->path, f->a->topo.n,
 		f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name);
 	for (size_t i = 0; i < n; i++)
-		text_finding(out, f, &f->rules->f[i]);
+		text_finding(out, f, &f->rules->f[i], t->color);
+	if (t->quiet)
+		return;
 	text_structs(out, f);
 	text_table(out, f);
 }
@@ -290,9 +298,9 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 	}
 	switch (fmt) {
 	case RC_TEXT:
-		if (!first)
+		if (!first && !t->quiet)
 			fputc('\n', out);
-		text_file(out, f, p);
+		text_file(out, f, p, t);
 		return;
 	case RC_CSV:
 		report_csv_file(out, f, p, first);
@@ -333,6 +341,11 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 	}
 	if (fmt == RC_HTML) {
 		report_html_end(out, p, t);
+		return;
+	}
+	if (fmt == RC_TEXT && t->quiet) {
+		if (hazard)
+			fprintf(out, "%s\n", report_caution);
 		return;
 	}
 	if (fmt == RC_TEXT) {

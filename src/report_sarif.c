@@ -25,6 +25,8 @@ static const char *level(enum diag_severity s)
 static void uri(FILE *out, const char *path)
 {
 	fputc('"', out);
+	if (path[0] == '/')
+		fputs("file://", out); /* an absolute path: a file URI */
 	while (path[0] == '.' && path[1] == '/')
 		path += 2;
 	for (const unsigned char *p = (const unsigned char *)path; *p; p++) {
@@ -121,8 +123,13 @@ void report_sarif_file(FILE *out, const struct check_file *f,
 		head(out, t->docs_uri);
 	if (!f->a->analysed)
 		return;
-	for (size_t i = 0; i < f->rules->n; i++)
-		result(out, f, &f->rules->f[i], t->emitted++ == 0);
+	/* every result but the very first is preceded by a comma; a later
+	 * file cannot know whether earlier ones had any, so the batch writer
+	 * drops a leading comma when nothing came before */
+	for (size_t i = 0; i < f->rules->n; i++) {
+		result(out, f, &f->rules->f[i], first && t->emitted == 0);
+		t->emitted++;
+	}
 }
 
 void report_sarif_end(FILE *out, const struct profile *p,

@@ -24,6 +24,8 @@ const struct rule_info rules_table[] = {
 	{"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
 	{"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
 	{"stress-unsettled", DIAG_NOTE, "a part's stress could not be bounded"},
+	{"waiver-expired", DIAG_WARNING, "a waiver's date has passed: what it covered is reported again"},
+	{"waiver-unused", DIAG_NOTE, "a waiver matches no finding"},
 };
 const size_t rules_count = sizeof rules_table / sizeof rules_table[0];
 
@@ -82,24 +84,40 @@ static const char *str(struct ctx *x, const char *fmt, ...)
 	return c ? c : "";
 }
 
+struct finding *rules_add(struct rules_result *rr, struct arena *ar,
+			  const char *id)
+{
+	const struct rule_info *r = rules_find(id);
+	if (!r)
+		return NULL;
+	if (rr->n == rr->cap) {
+		size_t ncap = rr->cap ? rr->cap * 2 : 32;
+		struct finding *v = arena_alloc(ar, ncap * sizeof *v);
+		if (!v)
+			return NULL;
+		if (rr->n)
+			memcpy(v, rr->f, rr->n * sizeof *v);
+		rr->f = v;
+		rr->cap = ncap;
+	}
+	struct finding *f = &rr->f[rr->n++];
+	memset(f, 0, sizeof *f);
+	f->rule = r;
+	f->part = NL_NONE;
+	f->structure = -1;
+	f->worst = f->limit = f->rating = NAN;
+	f->unit = "V";
+	return f;
+}
+
 static struct finding *add(struct ctx *x, const char *rule, uint32_t part,
 			   int32_t st)
 {
-	if (x->out->n == x->cap) {
-		size_t ncap = x->cap ? x->cap * 2 : 32;
-		struct finding *v = arena_alloc(x->a->ar, ncap * sizeof *v);
-		if (!v) {
-			x->oom = 1;
-			return NULL;
-		}
-		if (x->out->n)
-			memcpy(v, x->out->f, x->out->n * sizeof *v);
-		x->out->f = v;
-		x->cap = ncap;
+	struct finding *f = rules_add(x->out, x->a->ar, rule);
+	if (!f) {
+		x->oom = 1;
+		return NULL;
 	}
-	struct finding *f = &x->out->f[x->out->n++];
-	memset(f, 0, sizeof *f);
-	f->rule = rules_find(rule);
 	f->part = part;
 	f->structure = st;
 	f->worst = f->limit = f->rating = NAN;
@@ -435,6 +453,7 @@ int rules_run(struct audit *a, const struct rating *r, const struct profile *p,
 	      const struct stress_result *s, struct rules_result *out)
 {
 	struct ctx x = {a, r, p, s, out, 0, 0};
+	(void)x.cap;
 	memset(out, 0, sizeof *out);
 	for (size_t i = 0; i < s->n && !x.oom; i++)
 		part_rules(&x, &s->s[i]);

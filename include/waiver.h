@@ -1,0 +1,52 @@
+/* waiver.h: waivers (*@waive lines in a netlist or in a --waivers file) and
+ * baselines (an earlier JSON report). A waiver names a rule (or "*"), a
+ * part glob, a mandatory reason and an optional expiry date; a finding it
+ * matches is kept but marked waived; an expired waiver waives nothing and
+ * becomes a finding; a waiver that matches nothing is a note. A baseline
+ * drops findings already present in it, matched by file, rule and part
+ * (never by line). */
+#ifndef HEADROOM_WAIVER_H
+#define HEADROOM_WAIVER_H
+
+#include <stdatomic.h>
+#include <stddef.h>
+
+#include "annot.h"
+#include "arena.h"
+#include "diag.h"
+#include "audit.h"
+#include "rules.h"
+
+/* Waiver lines read from a file (the *@waive syntax, one per line). */
+struct waiver_file {
+	struct annot *w;
+	uint32_t n;
+	atomic_uchar *used;   /* set by any file's check, from any thread */
+};
+
+/* Reads a waiver file; problems go to d with locations. NULL on error. */
+struct waiver_file *waiver_load(const char *path, struct arena *ar,
+				struct diag_sink *d);
+
+/* Applies inline waivers (a->annots) and file waivers to the findings of
+ * one netlist; today is "YYYY-MM-DD". Adds waiver-expired and
+ * waiver-unused findings. Returns 0 on out-of-memory. */
+int waiver_apply(struct audit *a, const struct waiver_file *wf,
+		 const char *today, struct rules_result *rr);
+
+/* Notes, once after a batch, the file waivers that matched nothing. */
+void waiver_unused(const struct waiver_file *wf, struct diag_sink *d);
+
+/* Findings of an earlier JSON report, as (file, rule, part) keys. */
+struct baseline;
+
+/* Reads a JSON report written by `headroom check --format json`. Problems
+ * go to d with file:line:col. NULL on error. */
+struct baseline *baseline_load(const char *path, struct arena *ar,
+			       struct diag_sink *d);
+
+/* Removes from rr the findings present in the baseline for file path. */
+void baseline_filter(const struct baseline *b, const char *path,
+		     struct rules_result *rr);
+
+#endif

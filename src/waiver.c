@@ -1,0 +1,479 @@
+/* waiver.c: waivers and baselines (see waiver.h). The baseline reader is a
+ * small JSON parser of its own (strict JSON, depth-limited, every error
+ * with line:col), since only three fields of a known layout are needed. */
+#include "waiver.h"
+
+#include <math.h>
+#include <stdatomic.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "num.h"
+
+/* ---- waivers ---- */
+
+struct waiver_file *waiver_load(const char *path, struct arena *ar,
+				struct diag_sink *d)
+{
+	FILE *f = fopen(path, "r");
+	uint32_t file = diag_add_file(d, path);
+	struct diag_loc l = {file, 0, 0};
+	if (!f) {
+		diag_add(d, DIAG_ERROR, "waiver", l, "cannot read the waiver file");
+		return NULL;
+	}
+	struct elab_annot **lines = NULL;
+	size_t n = 0, cap = 0;
+	char buf[2048];
+	unsigned lineno = 0;
+	int ok = 1;
+	while (fgets(buf, sizeof buf, f)) {
+		lineno++;
+		char *s = buf + strspn(buf, " \t");
+		s[strcspn(s, "\r\n")] = '\0';
+		if (!*s || (*s == '#' ) || (*s == '*' && s[1] != '@'))
+			continue;
+		l.line = lineno;
+		l.col = (uint32_t)(s - buf) + 1;
+		if (strncmp(s, "*@", 2) != 0) {
+			diag_add(d, DIAG_ERROR, "waiver", l, "expected a *@waive line");
+			ok = 0;
+			continue;
+		}
+		if (n == cap) {
+			cap = cap ? cap * 2 : 16;
+			struct elab_annot **v = arena_alloc(ar, cap * sizeof *v);
+			if (!v) {
+				fclose(f);
+				return NULL;
+			}
+			if (n)
+				memcpy(v, lines, n * sizeof *v);
+			lines = v;
+		}
+		struct elab_annot *a = arena_zalloc(ar, sizeof *a);
+		if (!a || !(a->text = arena_strdup(ar, s + 2))) {
+			fclose(f);
+			return NULL;
+		}
+		a->prefix = "";
+		a->loc = l;
+		lines[n++] = a;
+	}
+	fclose(f);
+	struct elab_result fake;
+	memset(&fake, 0, sizeof fake);
+	fake.annots = (void *const *)lines;
+	fake.nannots = n;
+	struct waiver_file *wf = arena_zalloc(ar, sizeof *wf);
+	if (!wf || !annot_parse_all(&fake, ar, d, &wf->w, &wf->n))
+		return NULL;
+	wf->used = arena_alloc(ar, (wf->n + 1) * sizeof *wf->used);
+	if (!wf->used)
+		return NULL;
+	for (uint32_t i = 0; i < wf->n; i++)
+		atomic_init(&wf->used[i], 0);
+	for (uint32_t i = 0; i < wf->n; i++)
+		if (wf->w[i].kind != AN_WAIVE) {
+			diag_add(d, DIAG_ERROR, "waiver", wf->w[i].loc, "a waiver file holds *@waive lines only");
+			ok = 0;
+		}
+	return ok && diag_errors(d, UINT32_MAX) == 0 ? wf : NULL;
+}
+
+static int matches(const struct annot *w, const struct finding *f)
+{
+	if (strcmp(w->rule, "*") != 0 && strcmp(w->rule, f->rule->id) != 0)
+		return 0;
+	return f->subject && annot_glob(w->target, f->subject);
+}
+
+/* A date "YYYY-MM-DD" before today (string order is date order). */
+static int expired(const struct annot *w, const char *today)
+{
+	const struct annot_kv *u = annot_get(w, "until");
+	return u && today && strcmp(u->text, today) < 0;
+}
+
+static void apply_one(struct audit *a, const struct annot *w, const char *today,
+		      struct rules_result *rr)
+{
+	int used = 0;
+	const char *reason = annot_get(w, "reason") ? annot_get(w, "reason")->text : "";
+	size_t n = rr->n;
+	for (size_t i = 0; i < n; i++) {
+		struct finding *f = &rr->f[i];
+		if (!matches(w, f))
+			continue;
+		used = 1;
+		if (expired(w, today))
+			continue;
+		f->waived = 1;
+		f->waiver = reason;
+	}
+	if (expired(w, today) && used) {
+		struct finding *g = rules_add(rr, a->ar, "waiver-expired");
+		if (g) {
+			g->loc = w->loc;
+			g->subject = w->target;
+			g->message = "a waiver has expired: the findings it covered are reported again";
+			g->limits = annot_get(w, "until")->text;
+		}
+	} else if (!used) {
+		struct finding *g = rules_add(rr, a->ar, "waiver-unused");
+		if (g) {
+			g->loc = w->loc;
+			g->subject = w->target;
+			g->message = "this waiver matches no finding: remove it or correct its rule and part";
+		}
+	}
+}
+
+/* A waiver from a file: matched findings are marked as for inline ones;
+ * whether it was used anywhere is reported once, after the batch. */
+static void apply_file_one(struct audit *a, const struct waiver_file *wf,
+			   uint32_t i, const char *today, struct rules_result *rr)
+{
+	const struct annot *w = &wf->w[i];
+	const char *reason = annot_get(w, "reason") ? annot_get(w, "reason")->text : "";
+	int used = 0;
+	size_t n = rr->n;
+	for (size_t k = 0; k < n; k++) {
+		struct finding *f = &rr->f[k];
+		if (!matches(w, f))
+			continue;
+		used = 1;
+		if (!expired(w, today)) {
+			f->waived = 1;
+			f->waiver = reason;
+		}
+	}
+	if (!used)
+		return;
+	atomic_store(&wf->used[i], 1);
+	if (expired(w, today)) {
+		struct finding *g = rules_add(rr, a->ar, "waiver-expired");
+		if (g) {
+			g->loc = w->loc;
+			g->subject = w->target;
+			g->message = "a waiver has expired: the findings it covered are reported again";
+			g->limits = annot_get(w, "until")->text;
+		}
+	}
+}
+
+int waiver_apply(struct audit *a, const struct waiver_file *wf,
+		 const char *today, struct rules_result *rr)
+{
+	for (uint32_t i = 0; i < a->nannots; i++)
+		if (a->annots[i].kind == AN_WAIVE)
+			apply_one(a, &a->annots[i], today, rr);
+	for (uint32_t i = 0; wf && i < wf->n; i++)
+		apply_file_one(a, wf, i, today, rr);
+	return 1;
+}
+
+void waiver_unused(const struct waiver_file *wf, struct diag_sink *d)
+{
+	for (uint32_t i = 0; wf && i < wf->n; i++)
+		if (!atomic_load(&wf->used[i]))
+			diag_add(d, DIAG_NOTE, "waiver-unused", wf->w[i].loc,
+				 "this waiver matched no finding in any file checked");
+}
+
+/* ---- baselines: a small strict JSON reader ---- */
+
+#define JSON_MAX_DEPTH 64
+
+struct key {
+	const char *file, *rule, *part;
+};
+
+struct baseline {
+	struct key *k;
+	size_t n, cap;
+};
+
+struct jr {
+	const char *s;
+	size_t i, n;
+	unsigned line;
+	size_t col0;
+	int depth;
+	struct arena *ar;
+	struct diag_sink *d;
+	uint32_t file;
+	int bad;
+	/* what the walk is inside of */
+	const char *cur_file;
+	struct baseline *b;
+};
+
+static void jerr(struct jr *j, const char *msg)
+{
+	if (j->bad)
+		return;
+	struct diag_loc l = {j->file, j->line, (uint32_t)(j->i - j->col0) + 1};
+	diag_add(j->d, DIAG_ERROR, "baseline", l, "%s", msg);
+	j->bad = 1;
+}
+
+static void ws(struct jr *j)
+{
+	while (j->i < j->n && j->s[j->i] && strchr(" \t\r\n", j->s[j->i])) {
+		if (j->s[j->i] == '\n') {
+			j->line++;
+			j->col0 = j->i + 1;
+		}
+		j->i++;
+	}
+}
+
+/* A string: returns an arena copy (escapes decoded, \u kept as '?'). */
+static const char *jstring(struct jr *j)
+{
+	if (j->i >= j->n || j->s[j->i] != '"') {
+		jerr(j, "expected a string");
+		return NULL;
+	}
+	size_t start = ++j->i, k = 0;
+	char *out = arena_alloc(j->ar, j->n - start + 1);
+	if (!out) {
+		j->bad = 1;
+		return NULL;
+	}
+	while (j->i < j->n && j->s[j->i] != '"') {
+		char c = j->s[j->i++];
+		if ((unsigned char)c < 0x20) {
+			jerr(j, "control character in a string");
+			return NULL;
+		}
+		if (c == '\\' && j->i < j->n) {
+			char e = j->s[j->i++];
+			c = e == 'n' ? '\n' : e == 't' ? '\t' : e == 'r' ? '\r' : e == 'b' ? '\b' : e == 'f' ? '\f' : e;
+			if (e == 'u') {
+				if (j->i + 4 > j->n) {
+					jerr(j, "short \\u escape");
+					return NULL;
+				}
+				j->i += 4;
+				c = '?';
+			}
+		}
+		out[k++] = c;
+	}
+	if (j->i >= j->n) {
+		jerr(j, "unterminated string");
+		return NULL;
+	}
+	j->i++;
+	out[k] = '\0';
+	return out;
+}
+
+static void jvalue(struct jr *j, const char *key, int in_findings, struct key *fk);
+
+static void add_key(struct jr *j, const struct key *k)
+{
+	struct baseline *b = j->b;
+	if (!k->rule || !j->cur_file)
+		return;
+	if (b->n == b->cap) {
+		size_t ncap = b->cap ? b->cap * 2 : 64;
+		struct key *v = arena_alloc(j->ar, ncap * sizeof *v);
+		if (!v) {
+			j->bad = 1;
+			return;
+		}
+		if (b->n)
+			memcpy(v, b->k, b->n * sizeof *v);
+		b->k = v;
+		b->cap = ncap;
+	}
+	b->k[b->n] = *k;
+	b->k[b->n++].file = j->cur_file;
+}
+
+static void jobject(struct jr *j, const char *parent, int in_findings)
+{
+	struct key fk = {NULL, NULL, NULL};
+	j->i++;
+	ws(j);
+	if (j->i < j->n && j->s[j->i] == '}') {
+		j->i++;
+		return;
+	}
+	while (!j->bad) {
+		ws(j);
+		const char *k = jstring(j);
+		ws(j);
+		if (j->bad || j->i >= j->n || j->s[j->i] != ':') {
+			jerr(j, "expected ':'");
+			return;
+		}
+		j->i++;
+		ws(j);
+		if (k && strcmp(k, "path") == 0 && parent && strcmp(parent, "files") == 0 &&
+		    j->i < j->n && j->s[j->i] == '"') {
+			j->cur_file = jstring(j);
+		} else if (in_findings && k && (strcmp(k, "rule") == 0 || strcmp(k, "part") == 0) &&
+			   j->i < j->n && j->s[j->i] == '"') {
+			const char *v = jstring(j);
+			if (strcmp(k, "rule") == 0)
+				fk.rule = v;
+			else
+				fk.part = v;
+		} else {
+			jvalue(j, k, 0, NULL);
+		}
+		ws(j);
+		if (j->i < j->n && j->s[j->i] == ',') {
+			j->i++;
+			continue;
+		}
+		if (j->i < j->n && j->s[j->i] == '}') {
+			j->i++;
+			break;
+		}
+		jerr(j, "expected ',' or '}'");
+		return;
+	}
+	if (in_findings)
+		add_key(j, &fk);
+}
+
+static void jarray(struct jr *j, const char *key)
+{
+	int findings = key && strcmp(key, "findings") == 0;
+	j->i++;
+	ws(j);
+	if (j->i < j->n && j->s[j->i] == ']') {
+		j->i++;
+		return;
+	}
+	while (!j->bad) {
+		ws(j);
+		if (j->i < j->n && j->s[j->i] == '{') {
+			if (++j->depth > JSON_MAX_DEPTH) {
+				jerr(j, "nested too deeply");
+				return;
+			}
+			jobject(j, key, findings);
+			j->depth--;
+		} else {
+			jvalue(j, NULL, 0, NULL);
+		}
+		ws(j);
+		if (j->i < j->n && j->s[j->i] == ',') {
+			j->i++;
+			continue;
+		}
+		if (j->i < j->n && j->s[j->i] == ']') {
+			j->i++;
+			return;
+		}
+		jerr(j, "expected ',' or ']'");
+		return;
+	}
+}
+
+static void jvalue(struct jr *j, const char *key, int in_findings, struct key *fk)
+{
+	(void)in_findings;
+	(void)fk;
+	ws(j);
+	if (j->i >= j->n) {
+		jerr(j, "unexpected end of the file");
+		return;
+	}
+	char c = j->s[j->i];
+	if (++j->depth > JSON_MAX_DEPTH) {
+		jerr(j, "nested too deeply");
+		return;
+	}
+	if (c == '{')
+		jobject(j, key, 0);
+	else if (c == '[')
+		jarray(j, key);
+	else if (c == '"')
+		jstring(j);
+	else if (strncmp(j->s + j->i, "true", 4) == 0 || strncmp(j->s + j->i, "null", 4) == 0)
+		j->i += 4;
+	else if (strncmp(j->s + j->i, "false", 5) == 0)
+		j->i += 5;
+	else if (c == '-' || (c >= '0' && c <= '9')) {
+		char *end;
+		strtod(j->s + j->i, &end);
+		if (end == j->s + j->i)
+			jerr(j, "bad number");
+		j->i = (size_t)(end - j->s);
+	} else {
+		jerr(j, "expected a JSON value");
+	}
+	j->depth--;
+}
+
+struct baseline *baseline_load(const char *path, struct arena *ar,
+			       struct diag_sink *d)
+{
+	uint32_t file = diag_add_file(d, path);
+	struct diag_loc l = {file, 0, 0};
+	FILE *f = fopen(path, "rb");
+	if (!f) {
+		diag_add(d, DIAG_ERROR, "baseline", l, "cannot read the baseline");
+		return NULL;
+	}
+	char *buf = NULL;
+	size_t n = 0, cap = 0;
+	for (;;) {
+		if (n + 65536 + 1 > cap) {
+			if (cap > (size_t)256 << 20) {
+				diag_add(d, DIAG_ERROR, "baseline", l, "the baseline is larger than 256 MB");
+				free(buf);
+				fclose(f);
+				return NULL;
+			}
+			cap = cap ? cap * 2 : 131072;
+			char *nb = realloc(buf, cap);
+			if (!nb) {
+				free(buf);
+				fclose(f);
+				return NULL;
+			}
+			buf = nb;
+		}
+		size_t k = fread(buf + n, 1, 65536, f);
+		n += k;
+		if (k == 0)
+			break;
+	}
+	fclose(f);
+	struct baseline *b = arena_zalloc(ar, sizeof *b);
+	struct jr j = {buf, 0, n, 1, 0, 0, ar, d, file, 0, NULL, b};
+	if (b && buf) {
+		jvalue(&j, NULL, 0, NULL);
+		ws(&j);
+		if (!j.bad && j.i != j.n)
+			jerr(&j, "text after the JSON document");
+	}
+	free(buf);
+	return b && !j.bad ? b : NULL;
+}
+
+void baseline_filter(const struct baseline *b, const char *path,
+		     struct rules_result *rr)
+{
+	size_t k = 0;
+	for (size_t i = 0; i < rr->n; i++) {
+		const struct finding *f = &rr->f[i];
+		int old = 0;
+		for (size_t m = 0; m < b->n && !old; m++)
+			old = strcmp(b->k[m].file, path) == 0 && strcmp(b->k[m].rule, f->rule->id) == 0 &&
+			      ((b->k[m].part == NULL) == (f->subject == NULL)) &&
+			      (!f->subject || strcmp(b->k[m].part, f->subject) == 0);
+		if (!old)
+			rr->f[k++] = *f;
+	}
+	rr->n = k;
+}
