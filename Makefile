@@ -22,7 +22,7 @@ LIB_OBJ := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIB_SRC)) \
 TESTS   := $(patsubst tests/%.c,$(BUILD)/%,$(wildcard tests/test_*.c))
 DEPS_STAMP := $(BUILD)/.deps-ok
 
-.PHONY: all deps check asan bench demo clean install test-run fuzz-build
+.PHONY: all deps check asan bench demo clean install test-run expected
 all: $(BUILD)/headroom
 
 deps: $(DEPS_STAMP)
@@ -68,6 +68,7 @@ test-run: $(BUILD)/headroom $(TESTS)
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
+	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
 
 check: deps
 	@$(MAKE) --no-print-directory test-run
@@ -83,9 +84,18 @@ bench: deps $(BUILD)/headroom
 demo: deps $(BUILD)/headroom
 	-$(BUILD)/headroom check --parts examples/parts.csv examples/
 
+# Rewrites tests/expected/ from the current build: review the diff.
+expected: $(BUILD)/headroom
+	UPDATE_EXPECTED=1 HEADROOM=$(BUILD)/headroom bash tests/reports.sh
+
 install: $(BUILD)/headroom
-	install -d $(DESTDIR)$(PREFIX)/bin
+	install -d $(DESTDIR)$(PREFIX)/bin $(DESTDIR)$(PREFIX)/share/headroom/rules \
+		$(DESTDIR)$(PREFIX)/share/man/man1 $(DESTDIR)$(PREFIX)/share/doc/headroom/rules
 	install -m 755 $(BUILD)/headroom $(DESTDIR)$(PREFIX)/bin/headroom
+	install -m 644 rules/*.profile $(DESTDIR)$(PREFIX)/share/headroom/rules/
+	install -m 644 docs/headroom.1 $(DESTDIR)$(PREFIX)/share/man/man1/headroom.1
+	install -m 644 docs/*.md docs/report.schema.json $(DESTDIR)$(PREFIX)/share/doc/headroom/
+	install -m 644 docs/rules/*.md $(DESTDIR)$(PREFIX)/share/doc/headroom/rules/
 
 clean:
 	rm -rf build

@@ -8,6 +8,8 @@
 #   python3              runs the comparison scripts in tests/
 #   python3-jsonschema   validates the JSON report against docs/report.schema.json
 #   time                 /usr/bin/time, peak memory in make bench
+#   npm                  fetches the official SARIF validator (npm registry:
+#                        @microsoft/sarif-multitool) into .tools/
 set -euo pipefail
 
 need=()
@@ -21,8 +23,25 @@ command -v python3 >/dev/null 2>&1 || need+=(python3)
 [ -x /usr/bin/time ] || need+=(time)
 command -v cc >/dev/null 2>&1 || need+=(gcc)
 command -v make >/dev/null 2>&1 || need+=(make)
+command -v npm >/dev/null 2>&1 || need+=(npm)
+
+root=$(cd "$(dirname "$0")/.." && pwd)
+
+# The SARIF validator: a self-contained program from the npm registry.
+sarif_tool() {
+	local bin="$root/.tools/node_modules/@microsoft/sarif-multitool-linux/Sarif.Multitool"
+	[ -x "$bin" ] && return 0
+	command -v npm >/dev/null 2>&1 || return 1
+	echo "deps: installing the SARIF validator (@microsoft/sarif-multitool) into .tools/"
+	mkdir -p "$root/.tools"
+	npm install --prefix "$root/.tools" --no-audit --no-fund --silent \
+		@microsoft/sarif-multitool@5.7.0 >/dev/null 2>&1 || return 1
+	chmod u+x "$bin" 2>/dev/null
+	[ -x "$bin" ]
+}
 
 if [ ${#need[@]} -eq 0 ]; then
+	sarif_tool || echo "deps: could not install the SARIF validator: run npm install --prefix .tools @microsoft/sarif-multitool" >&2
 	echo "deps: everything is installed"
 	exit 0
 fi
@@ -42,4 +61,5 @@ if ! $sudo apt-get update -qq || \
 	echo "deps: apt-get failed; install by hand: apt-get install ${need[*]}" >&2
 	exit 1
 fi
+sarif_tool || echo "deps: could not install the SARIF validator: run npm install --prefix .tools @microsoft/sarif-multitool" >&2
 echo "deps: done"

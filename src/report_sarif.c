@@ -56,8 +56,17 @@ static void rules(FILE *out, const char *docs)
 	fputs("\"rules\": [", out);
 	for (size_t i = 0; i < rules_count; i++) {
 		const struct rule_info *r = &rules_table[i];
+		/* the name is the id in words' form: "cap-overvoltage" ->
+		 * "CapOvervoltage" (SARIF wants the two to differ) */
+		char name[64];
+		size_t k = 0;
+		for (const char *c = r->id; *c && k + 1 < sizeof name; c++)
+			if (*c != '-')
+				name[k++] = (c == r->id || c[-1] == '-') && *c >= 'a' && *c <= 'z'
+						    ? (char)(*c - 'a' + 'A') : *c;
+		name[k] = '\0';
 		fprintf(out, "%s\n          {\"id\": \"%s\", \"name\": \"%s\", \"shortDescription\": {\"text\": ",
-			i ? "," : "", r->id, r->id);
+			i ? "," : "", r->id, name);
 		report_json_string(out, r->summary);
 		fputs("}, \"fullDescription\": {\"text\": ", out);
 		char full[512];

@@ -1,0 +1,124 @@
+#!/usr/bin/env bash
+# Reports and CI behaviour of `headroom check`:
+#  - every format on the examples against the checked-in files in
+#    tests/expected/ (refresh with `make expected`, then review the diff);
+#  - SARIF validated by the official validator (@microsoft/sarif-multitool,
+#    npm registry, installed into .tools/ by scripts/deps.sh): no errors, no
+#    warnings; JUnit well formed (xmllint); CSV rectangular;
+#  - exit codes for each --fail-on level, a baseline round trip, waivers
+#    and their expiry (--today), an output file left alone by a failed run;
+#  - -j 1 and -j 4 byte-identical over the third-party corpus.
+# Ends with "reports: N passed, N failed".
+set -u
+bin=${HEADROOM:-build/headroom}
+here=$(cd "$(dirname "$0")" && pwd)
+root=$(cd "$here/.." && pwd)
+ex=examples
+tmp=$(mktemp -d)
+trap 'rm -rf "$tmp"' EXIT
+pass=0 fail=0
+check() {
+	local name=$1
+	shift
+	if "$@"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "reports: FAIL $name"; fi
+}
+cd "$root" || exit 1
+
+# The help links in SARIF point at this checkout's docs: made neutral here.
+neutral() { sed -e "s|file://[^\"]*/docs/|file:///DOCS/|g" "$1"; }
+
+update=${UPDATE_EXPECTED:-}
+for fmt in text json csv junit sarif; do
+	"$bin" check --format "$fmt" --today 2026-12-01 --fail-on never --parts $ex/parts.csv $ex > "$tmp/out.$fmt" 2>/dev/null
+	neutral "$tmp/out.$fmt" > "$tmp/n.$fmt"
+	if [ -n "$update" ]; then
+		cp "$tmp/n.$fmt" "tests/expected/examples.$fmt"
+	fi
+	check "$fmt report matches tests/expected/examples.$fmt" diff -u "tests/expected/examples.$fmt" "$tmp/n.$fmt"
+done
+
+validator=$root/.tools/node_modules/@microsoft/sarif-multitool-linux/Sarif.Multitool
+if [ -x "$validator" ]; then
+	"$validator" validate "$tmp/out.sarif" > "$tmp/validate.txt" 2>&1
+	cat "$tmp/validate.txt" | grep -E "error|warning" | head -5
+	check "the official SARIF validator finds no error" bash -c "! grep -q 'error SARIF' '$tmp/validate.txt'"
+	check "the official SARIF validator finds no warning" bash -c "! grep -q 'warning SARIF' '$tmp/validate.txt'"
+	echo "reports: SARIF validator: $(grep -c 'SARIF[0-9]' "$tmp/validate.txt") messages"
+elif [ -n "${CI:-}" ]; then
+	check "the SARIF validator is installed (scripts/deps.sh)" false
+else
+	echo "reports: SKIPPED the SARIF validator is not installed (scripts/deps.sh)"
+fi
+check "JUnit is well formed XML" xmllint --noout "$tmp/out.junit"
+check "CSV rows all have the header's columns" python3 -c "
+import csv,sys
+rows=list(csv.reader(open('$tmp/out.csv')))
+sys.exit(0 if len(rows) > 1 and len({len(r) for r in rows}) == 1 else 1)"
+
+# exit codes
+"$bin" check $ex/sensor_restorer.cir >/dev/null 2>&1; check "error level: warnings only -> 0" test $? -eq 0
+"$bin" check --fail-on warning $ex/sensor_restorer.cir >/dev/null 2>&1; check "warning level -> 1" test $? -eq 1
+"$bin" check --fail-on note $ex/charge_pump.cir >/dev/null 2>&1; check "note level -> 1" test $? -eq 1
+"$bin" check --fail-on never --parts $ex/parts.csv $ex >/dev/null 2>&1; check "never -> 0" test $? -eq 0
+"$bin" check --parts $ex/parts.csv $ex >/dev/null 2>&1; check "errors present -> 1" test $? -eq 1
+
+# baseline round trip: no new findings against itself; a new one after a change
+"$bin" check --fail-on never --write-baseline "$tmp/base.json" --parts $ex/parts.csv $ex >/dev/null 2>&1
+check "the baseline is written" test -s "$tmp/base.json"
+"$bin" check --format json --baseline "$tmp/base.json" --parts $ex/parts.csv $ex > "$tmp/again.json" 2>/dev/null
+rc=$?
+check "against its own baseline: no findings, exit 0" bash -c "test $rc -eq 0 && python3 -c \"import json; d=json.load(open('$tmp/again.json')); assert sum(len(f['findings']) for f in d['files']) == 0\""
+mkdir -p "$tmp/changed"
+cp $ex/*.cir "$tmp/changed/"
+sed -i 's/\*@part CCPL v_rated=10V/*@part CCPL v_rated=6.3V/' "$tmp/changed/sensor_restorer.cir"
+"$bin" check --write-baseline "$tmp/base2.json" --fail-on never "$ex/sensor_restorer.cir" >/dev/null 2>&1
+sed -i "s|\"path\": \"$ex/sensor_restorer.cir\"|\"path\": \"$tmp/changed/sensor_restorer.cir\"|" "$tmp/base2.json"
+"$bin" check --baseline "$tmp/base2.json" "$tmp/changed/sensor_restorer.cir" > "$tmp/new.txt" 2>/dev/null
+rc=$?
+check "after a change only the new finding is reported" bash -c "test $rc -eq 1 && grep -q 'cap-overvoltage' '$tmp/new.txt' && ! grep -q 'cap-derating' '$tmp/new.txt'"
+printf '{"schema": 1, "files": [ {"path": "x", "findings": [ {"rule": 5} ]}\n' > "$tmp/bad.json"
+"$bin" check --baseline "$tmp/bad.json" $ex/sensor_restorer.cir > /dev/null 2> "$tmp/bad.err"
+check "a broken baseline is a located error" bash -c "test $? -ne 0 && grep -q \"bad.json:2:1: error: expected ',' or ']'\" '$tmp/bad.err'"
+
+# waivers: inline, from a file, expired, unused
+sed 's/^\.end$/*@waive cap-derating CCPL reason="input never exceeds 4 V in this product" until=2027-06-30\n.end/' \
+	$ex/sensor_restorer.cir > "$tmp/w.cir"
+"$bin" check --today 2026-12-01 --fail-on warning "$tmp/w.cir" > "$tmp/w.txt" 2>&1
+rc=$?
+check "a waived finding is listed as waived and does not fail" bash -c "test $rc -eq 0 && grep -q '\[cap-derating\] (waived)' '$tmp/w.txt' && grep -q 'waived: input never exceeds' '$tmp/w.txt'"
+"$bin" check --today 2027-07-01 --fail-on warning "$tmp/w.cir" > "$tmp/w2.txt" 2>&1
+rc=$?
+check "an expired waiver waives nothing and is a finding" bash -c "test $rc -eq 1 && grep -q 'waiver-expired' '$tmp/w2.txt' && ! grep -q '(waived)' '$tmp/w2.txt'"
+"$bin" check --format sarif --today 2026-12-01 "$tmp/w.cir" > "$tmp/w.sarif" 2>/dev/null
+check "SARIF carries the waiver as a suppression" grep -q '"suppressions": \[{"kind": "inSource", "justification": "input never exceeds 4 V in this product"}\]' "$tmp/w.sarif"
+printf '*@waive diode-overvoltage NOSUCH* reason="old part"\n*@waive cap-derating CCPL reason="checked by hand"\n' > "$tmp/waivers.txt"
+"$bin" check --waivers "$tmp/waivers.txt" --fail-on warning $ex/sensor_restorer.cir > "$tmp/wf.txt" 2> "$tmp/wf.err"
+rc=$?
+check "a waiver file applies to the files checked" bash -c "test $rc -eq 0 && grep -q '(waived)' '$tmp/wf.txt'"
+check "an unused waiver is a note" grep -q "waivers.txt:1:1: note: this waiver matched no finding" "$tmp/wf.err"
+printf '*@waive cap-derating CCPL\n' > "$tmp/noreason.txt"
+"$bin" check --waivers "$tmp/noreason.txt" $ex/sensor_restorer.cir > /dev/null 2> "$tmp/nr.err"
+check "a waiver without a reason is a located error" bash -c "test $? -eq 2 && grep -q 'noreason.txt:1:.*a waiver needs reason=' '$tmp/nr.err'"
+
+# -o: replaced only when the run succeeds
+echo "old report" > "$tmp/report.txt"
+"$bin" check --profile nosuch -o "$tmp/report.txt" $ex/sensor_restorer.cir > /dev/null 2>&1
+check "a failed run leaves the old report" grep -qx "old report" "$tmp/report.txt"
+check "and leaves no temporary file" bash -c "! ls '$tmp' | grep -q 'report.txt.tmp'"
+"$bin" check -o "$tmp/report.txt" $ex/sensor_restorer.cir > /dev/null 2>&1
+check "a good run replaces it" grep -q "sensor_restorer.cir: 1 structure" "$tmp/report.txt"
+
+# determinism over the corpus
+corpus=${HEADROOM_CORPUS:-$root/../shared/corpus/real}
+if [ -d "$corpus" ]; then
+	"$bin" check -j 1 --format json --fail-on never "$corpus" > "$tmp/j1.json" 2> "$tmp/j1.err"
+	"$bin" check -j 4 --format json --fail-on never "$corpus" > "$tmp/j4.json" 2> "$tmp/j4.err"
+	check "-j 1 and -j 4 give byte-identical reports over the corpus" cmp -s "$tmp/j1.json" "$tmp/j4.json"
+	check "and byte-identical diagnostics" cmp -s "$tmp/j1.err" "$tmp/j4.err"
+	check "the corpus report is valid JSON" python3 -c "import json; json.load(open('$tmp/j4.json'))"
+elif [ -n "${CI:-}" ]; then
+	check "the corpus is present" false
+fi
+
+echo "reports: $pass passed, $fail failed"
+[ $fail -eq 0 ]
