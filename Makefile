@@ -69,6 +69,7 @@ test-run: $(BUILD)/headroom $(TESTS)
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
+	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py
 
 check: deps
 	@$(MAKE) --no-print-directory test-run

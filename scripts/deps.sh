@@ -10,6 +10,7 @@
 #   time                 /usr/bin/time, peak memory in make bench
 #   npm                  fetches the official SARIF validator (npm registry:
 #                        @microsoft/sarif-multitool) into .tools/
+#   chromium             headless browser for the HTML report test
 set -euo pipefail
 
 need=()
@@ -24,6 +25,7 @@ command -v python3 >/dev/null 2>&1 || need+=(python3)
 command -v cc >/dev/null 2>&1 || need+=(gcc)
 command -v make >/dev/null 2>&1 || need+=(make)
 command -v npm >/dev/null 2>&1 || need+=(npm)
+command -v chromium >/dev/null 2>&1 || need+=(chromium)
 
 root=$(cd "$(dirname "$0")/.." && pwd)
 

@@ -674,7 +674,21 @@ static FILE *open_temp(const char *path, char *tmp, size_t n)
 {
 	snprintf(tmp, n, "%s.tmp-XXXXXX", path);
 	int fd = mkstemp(tmp);
-	return fd < 0 ? NULL : fdopen(fd, "w");
+	if (fd < 0)
+		return NULL;
+	/* mkstemp makes the file private; give it the mode a plain create
+	 * would, or keep the mode of the report it replaces */
+	struct stat st;
+	mode_t mode;
+	if (stat(path, &st) == 0) {
+		mode = st.st_mode & 07777;
+	} else {
+		mode_t mask = umask(0);
+		umask(mask);
+		mode = 0666 & ~mask;
+	}
+	fchmod(fd, mode);
+	return fdopen(fd, "w");
 }
 
 static int finish_temp(FILE *f, const char *tmp, const char *path, int ok)
