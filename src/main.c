@@ -79,16 +79,16 @@ static void usage(FILE *out)
 	      "  --today YYYY-MM-DD   the date waiver expiry is judged against\n"
 	      "  -q, --quiet          findings only: no structures, tables, summary or\n"
 	      "                       progress bar\n"
-	      "colour: on a terminal, unless NO_COLOR is set\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
 	      "                       (default 10000000)\n"
 	      "  --source-tol PCT     tolerance of every source's amplitude and offset\n"
-	      "                       unless *@source gives one (e.g. 10 or 10%%)\n"
+	      "                       unless *@source gives one (e.g. 10 or 10%)\n"
 	      "  --max-errors N       errors reported per file before giving up\n"
 	      "                       (default 50)\n"
 	      "  --help               this text\n"
 	      "  --version            the version\n"
 	      "\n"
+	      "colour: on a terminal only, and never when NO_COLOR is set.\n"
 	      "exit status: 0 success; 1 findings at or above --fail-on (check);\n"
 	      "2 usage error or a netlist with errors\n",
 	      out);

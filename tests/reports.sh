@@ -107,6 +107,13 @@ check "a failed run leaves the old report" grep -qx "old report" "$tmp/report.tx
 check "and leaves no temporary file" bash -c "! ls '$tmp' | grep -q 'report.txt.tmp'"
 "$bin" check -o "$tmp/report.txt" $ex/sensor_restorer.cir > /dev/null 2>&1
 check "a good run replaces it" grep -q "sensor_restorer.cir: 1 structure" "$tmp/report.txt"
+rm -f "$tmp/new.txt"
+(umask 022 && "$bin" check -o "$tmp/new.txt" $ex/sensor_restorer.cir > /dev/null 2>&1)
+check "a new report gets the mode of a plain create (umask 022: 644)" \
+	bash -c "test \"\$(stat -c %a '$tmp/new.txt')\" = 644"
+chmod 640 "$tmp/report.txt"
+"$bin" check -o "$tmp/report.txt" $ex/sensor_restorer.cir > /dev/null 2>&1
+check "a replaced report keeps its mode" bash -c "test \"\$(stat -c %a '$tmp/report.txt')\" = 640"
 
 # determinism over the corpus
 corpus=${HEADROOM_CORPUS:-$root/../shared/corpus/real}
