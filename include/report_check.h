@@ -23,8 +23,20 @@ struct check_file {
 	const struct rules_result *rules;
 };
 
+/* The most stressed parts of a run, by ratio to their rating. */
+#define TOTALS_RULES 32
+#define TOTALS_TOP 5
+struct totals_part {
+	char file[160], part[96]; /* truncated when longer */
+	const char *qty;        /* static string: "voltage", ... */
+	double ratio;
+};
+
 struct check_totals {
 	size_t files, errors, warnings, notes, netlist_errors;
+	size_t per_rule[TOTALS_RULES]; /* unwaived findings, by rules_table index */
+	struct totals_part top[TOTALS_TOP];
+	size_t ntop;
 	double max_voltage;
 	double hazard_voltage;
 	size_t emitted;        /* records written so far (SARIF results) */
@@ -34,6 +46,10 @@ struct check_totals {
 };
 
 enum report_check_format { RC_TEXT, RC_JSON, RC_CSV, RC_JUNIT, RC_SARIF, RC_HTML };
+
+/* Adds the counts and most stressed parts of j into t (in file order, so
+ * that ties keep the earlier file). */
+void report_totals_merge(struct check_totals *t, const struct check_totals *j);
 
 /* Writes one file; first/last bracket the JSON document; totals are
  * updated. */

@@ -590,15 +590,6 @@ static void *worker(void *arg)
 	}
 }
 
-static void merge(struct check_totals *t, const struct check_totals *j)
-{
-	t->files += j->files;
-	t->errors += j->errors;
-	t->warnings += j->warnings;
-	t->notes += j->notes;
-	t->netlist_errors += j->netlist_errors;
-	t->max_voltage = fmax(t->max_voltage, j->max_voltage);
-}
 
 /* Writes a job's outputs; SARIF results of a file whose predecessors
  * wrote none must not start with the separating comma. */
@@ -620,8 +611,8 @@ static void emit(struct check_totals *t, struct check_totals *tj, struct job *j,
 	if (progress)
 		fprintf(stderr, "[%zu/%zu] %s", j->index + 1, n, j->path);
 	t->emitted += j->t.emitted;
-	merge(t, &j->t);
-	merge(tj, &j->tj);
+	report_totals_merge(t, &j->t);
+	report_totals_merge(tj, &j->tj);
 }
 
 static int run_batch(const struct batch *b, char **files, size_t n, FILE *out,

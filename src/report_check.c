@@ -28,6 +28,9 @@ static void count(struct check_totals *t, const struct rules_result *r)
 	for (size_t i = 0; r && i < r->n; i++) {
 		if (r->f[i].waived)
 			continue;
+		size_t k = (size_t)(r->f[i].rule - rules_table);
+		if (k < TOTALS_RULES)
+			t->per_rule[k]++;
 		switch (r->f[i].rule->severity) {
 		case DIAG_ERROR: t->errors++; break;
 		case DIAG_WARNING: t->warnings++; break;
@@ -285,6 +288,59 @@ static void json_head(FILE *out, const struct profile *p)
 	      "  \"files\": [\n", out);
 }
 
+/* Inserts one part into the top list, kept sorted by ratio (descending);
+ * an equal ratio goes after the ones already there. */
+static void top_add(struct check_totals *t, const struct totals_part *x)
+{
+	if (!(x->ratio > 0))
+		return;
+	size_t k = t->ntop;
+	if (k == TOTALS_TOP) {
+		if (!(x->ratio > t->top[k - 1].ratio))
+			return;
+		k--;
+	} else {
+		t->ntop++;
+	}
+	while (k > 0 && x->ratio > t->top[k - 1].ratio) {
+		t->top[k] = t->top[k - 1];
+		k--;
+	}
+	t->top[k] = *x;
+}
+
+static void top_file(struct check_totals *t, const struct check_file *f)
+{
+	for (size_t i = 0; i < f->stress->n; i++) {
+		const struct stress *s = &f->stress->s[i];
+		const struct rating *r = &f->ratings[s->part];
+		double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+		if (!s->bounded || !(rated > 0))
+			continue;
+		struct totals_part x;
+		snprintf(x.file, sizeof x.file, "%s", f->path);
+		snprintf(x.part, sizeof x.part, "%s", nl_part_at(f->a->er.circuit, s->part)->path);
+		x.qty = s->qty == SQ_SURGE ? "surge_current"
+			: s->qty == SQ_REVERSE ? "reverse_voltage" : "voltage";
+		x.ratio = s->worst / rated;
+		top_add(t, &x);
+	}
+}
+
+void report_totals_merge(struct check_totals *t, const struct check_totals *j)
+{
+	t->files += j->files;
+	t->errors += j->errors;
+	t->warnings += j->warnings;
+	t->notes += j->notes;
+	t->netlist_errors += j->netlist_errors;
+	t->max_voltage = fmax(t->max_voltage, j->max_voltage);
+	for (size_t i = 0; i < TOTALS_RULES; i++)
+		t->per_rule[i] += j->per_rule[i];
+	for (size_t i = 0; i < j->ntop; i++)
+		top_add(t, &j->top[i]);
+}
+
 void report_check_file(FILE *out, enum report_check_format fmt,
 		       const struct check_file *f, const struct profile *p,
 		       int first, struct check_totals *t)
@@ -294,6 +350,7 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		t->netlist_errors++;
 	else {
 		count(t, f->rules);
+		top_file(t, f);
 		t->max_voltage = fmax(t->max_voltage, f->stress->max_voltage);
 	}
 	switch (fmt) {
@@ -322,6 +379,23 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 	else
 		fputs(",\n", out);
 	json_file(out, f);
+}
+
+/* Across files: findings per rule and the most stressed parts. */
+static void text_batch(FILE *out, const struct check_totals *t)
+{
+	int any = 0;
+	for (size_t i = 0; i < rules_count && i < TOTALS_RULES; i++)
+		if (t->per_rule[i])
+			fprintf(out, "%s%s %zu", any++ ? ", " : "  by rule: ", rules_table[i].id,
+				t->per_rule[i]);
+	if (any)
+		fputc('\n', out);
+	if (t->ntop)
+		fputs("  most stressed, by ratio to rating:\n", out);
+	for (size_t i = 0; i < t->ntop; i++)
+		fprintf(out, "    %5.0f%%  %s %s (%s)\n", 100 * t->top[i].ratio, t->top[i].file,
+			t->top[i].part, t->top[i].qty);
 }
 
 void report_check_end(FILE *out, enum report_check_format fmt,
@@ -353,6 +427,8 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 			t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
 			t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s",
 			t->netlist_errors ? "; some files have netlist errors" : "");
+		if (t->files > 1)
+			text_batch(out, t);
 		if (hazard)
 			fprintf(out, "\n%s\n", report_caution);
 		return;
@@ -364,5 +440,19 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 	jnum(out, t->max_voltage);
 	fputs(", \"caution\": ", out);
 	jstr(out, hazard ? report_caution : NULL);
-	fputs("}\n}\n", out);
+	fputs(",\n    \"per_rule\": {", out);
+	for (size_t i = 0, n = 0; i < rules_count && i < TOTALS_RULES; i++)
+		if (t->per_rule[i])
+			fprintf(out, "%s\"%s\": %zu", n++ ? ", " : "", rules_table[i].id, t->per_rule[i]);
+	fputs("},\n    \"most_stressed\": [", out);
+	for (size_t i = 0; i < t->ntop; i++) {
+		fputs(i ? ", {\"file\": " : "{\"file\": ", out);
+		jstr(out, t->top[i].file);
+		fputs(", \"part\": ", out);
+		jstr(out, t->top[i].part);
+		fprintf(out, ", \"quantity\": \"%s\", \"ratio\": ", t->top[i].qty);
+		jnum(out, t->top[i].ratio);
+		fputc('}', out);
+	}
+	fputs("]}\n}\n", out);
 }

@@ -259,6 +259,25 @@ void report_html_end(FILE *out, const struct profile *p,
 		"<span class=\"note\">%zu note%s</span>.</p>\n",
 		t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
 		t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s");
+	if (t->ntop) {
+		fputs("<table><tr><th>most stressed</th><th>quantity</th><th class=\"num\">of rating</th></tr>\n", out);
+		for (size_t i = 0; i < t->ntop; i++) {
+			fputs("<tr><td>", out);
+			x(out, t->top[i].file);
+			fputs(" ", out);
+			x(out, t->top[i].part);
+			fprintf(out, "</td><td>%s</td><td class=\"num\">%.0f%%</td></tr>\n",
+				t->top[i].qty, 100 * t->top[i].ratio);
+		}
+		fputs("</table>\n", out);
+	}
+	int any = 0;
+	for (size_t i = 0; i < rules_count && i < TOTALS_RULES; i++)
+		if (t->per_rule[i])
+			fprintf(out, "%s%s %zu", any++ ? ", " : "<p class=\"small\">by rule: ",
+				rules_table[i].id, t->per_rule[i]);
+	if (any)
+		fputs("</p>\n", out);
 	if (t->max_voltage > profile_hazard(p)) {
 		fputs("<p class=\"caution\"><strong>Caution.</strong> ", out);
 		x(out, report_caution + strlen("caution: "));

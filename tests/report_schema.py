@@ -27,12 +27,40 @@ runs = [
     [os.path.join(HERE, "data", "two_errors.cir"), os.path.join(ROOT, "examples", "rf_doubler.cir")],
     ["--profile", "flight", "--source-tol", "0", os.path.join(ROOT, "examples", "mains_doubler.cir")],
 ]
+
+
+def summary_agrees(doc):
+    """The batch summary is recomputed from the per-file sections: counts
+    per rule from the unwaived findings, and the most stressed parts from
+    every bounded, rated stress (worst / rating, highest first)."""
+    per_rule, sev = {}, {"error": 0, "warning": 0, "note": 0}
+    ratios = []
+    for f in doc["files"]:
+        for g in f["findings"]:
+            if not g["waived"]:
+                per_rule[g["rule"]] = per_rule.get(g["rule"], 0) + 1
+                sev[g["severity"]] += 1
+        for s in f.get("stresses", []):
+            if s.get("bounded") and s.get("ratio") is not None and s["ratio"] > 0:
+                ratios.append(s["ratio"])
+    sm = doc["summary"]
+    if sm["per_rule"] != per_rule:
+        raise ValueError("summary per_rule %s, findings give %s" % (sm["per_rule"], per_rule))
+    if (sm["errors"], sm["warnings"], sm["notes"]) != (sev["error"], sev["warning"], sev["note"]):
+        raise ValueError("summary counts disagree with the findings")
+    top = sorted(ratios, reverse=True)[:5]
+    got = [t["ratio"] for t in sm["most_stressed"]]
+    if len(got) != len(top) or any(abs(a - b) > 1e-6 * max(1, b) for a, b in zip(got, top)):
+        raise ValueError("most_stressed %s, stresses give %s" % (got, top))
+
+
 passed = failed = 0
 for args in runs:
     r = subprocess.run([BIN, "check", "--format", "json"] + args, capture_output=True, text=True)
     try:
         doc = json.loads(r.stdout)
         jsonschema.validate(doc, schema)
+        summary_agrees(doc)
         print("report-schema: %s: valid (%d files, %d findings)" % (
             " ".join(os.path.relpath(a, ROOT) if os.path.isabs(a) else a for a in args),
             len(doc["files"]), sum(len(f["findings"]) for f in doc["files"])))
