@@ -22,7 +22,7 @@ LIB_OBJ := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIB_SRC)) \
 TESTS   := $(patsubst tests/%.c,$(BUILD)/%,$(wildcard tests/test_*.c))
 DEPS_STAMP := $(BUILD)/.deps-ok
 
-.PHONY: all deps check asan bench demo clean install test-run expected
+.PHONY: all deps check asan tsan memcheck bench demo clean install test-run expected
 all: $(BUILD)/headroom
 
 deps: $(DEPS_STAMP)
@@ -78,6 +78,12 @@ asan: deps
 	@$(MAKE) --no-print-directory BUILD=build/asan OPT="-O1 -g" \
 		SAN="-fsanitize=address,undefined -fno-sanitize-recover=all -fno-omit-frame-pointer" \
 		test-run
+
+# Batch mode under ThreadSanitizer (gcc's -fsanitize=thread).
+tsan: deps
+	@$(MAKE) --no-print-directory BUILD=build/tsan OPT="-O1 -g" \
+		SAN="-fsanitize=thread -fno-omit-frame-pointer" build/tsan/headroom
+	bash scripts/tsan.sh build/tsan/headroom
 
 bench: deps $(BUILD)/headroom
 	bash scripts/bench.sh $(BUILD)/headroom
