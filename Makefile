@@ -85,6 +85,10 @@ tsan: deps
 		SAN="-fsanitize=thread -fno-omit-frame-pointer" build/tsan/headroom
 	bash scripts/tsan.sh build/tsan/headroom
 
+# The unit, command-line and report tests under valgrind memcheck.
+memcheck: deps $(BUILD)/headroom $(TESTS)
+	bash scripts/memcheck.sh $(BUILD)
+
 bench: deps $(BUILD)/headroom
 	bash scripts/bench.sh $(BUILD)/headroom
 

@@ -11,6 +11,7 @@
 #   npm                  fetches the official SARIF validator (npm registry:
 #                        @microsoft/sarif-multitool) into .tools/
 #   chromium             headless browser for the HTML report test
+#   valgrind             make memcheck
 set -euo pipefail
 
 need=()
@@ -26,6 +27,7 @@ command -v cc >/dev/null 2>&1 || need+=(gcc)
 command -v make >/dev/null 2>&1 || need+=(make)
 command -v npm >/dev/null 2>&1 || need+=(npm)
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
+command -v valgrind >/dev/null 2>&1 || need+=(valgrind)
 
 root=$(cd "$(dirname "$0")/.." && pwd)
 
