@@ -16,6 +16,8 @@ struct lex_ctx {
 	uint32_t file;
 	uint32_t line, col;       /* position of the next byte */
 	uint32_t max_line_len;
+	uint32_t raw_line;        /* physical line at the read position */
+	uint64_t raw_len;         /* bytes read so far on that line */
 	int title_pending;        /* next line is the title */
 	int cont_state;           /* start condition a continuation resumes */
 	int expr_closer;          /* '}' or '\'' for the open value expression */

@@ -17,6 +17,7 @@ struct elab_opts {
 	size_t max_parts;          /* expansion cap; 0 = default 10,000,000 */
 	unsigned max_include_depth;/* 0 = default 32 */
 	unsigned max_inst_depth;   /* subcircuit nesting; 0 = default 256 */
+	uint32_t max_line_len;     /* physical line, bytes; 0 = default 1 MiB */
 	/* Opens a file for reading; NULL = fopen. Lets tests and fuzzers serve
 	 * in-memory file sets. Sets errno on failure. */
 	FILE *(*open)(void *ud, const char *path);

@@ -221,7 +221,7 @@ static void read_stream(struct elab *el, FILE *in, struct file_read *fr,
 {
 	fr->outer = el->fr;
 	el->fr = fr;
-	struct parse_opts po = {fr->file, title, 0};
+	struct parse_opts po = {fr->file, title, el->o.max_line_len};
 	enum parse_status st = parse_stream(in, &po, el->scratch, el->d,
 					    on_card, el);
 	if (st == PARSE_OOM)
@@ -245,7 +245,7 @@ static void include_file(struct elab *el, const struct deck_card *c,
 	}
 	if (el->include_depth >= el->o.max_include_depth) {
 		diag_add(el->d, DIAG_ERROR, "include", c->loc,
-			 "includes nest deeper than %u files", el->o.max_include_depth);
+			 "includes nest deeper than %u levels (--max-include-depth)", el->o.max_include_depth);
 		return;
 	}
 	char *canon = el->o.open ? NULL : realpath(path, NULL);

@@ -7,6 +7,7 @@
 #include <time.h>
 #include <unistd.h>
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -83,6 +84,10 @@ static void usage(FILE *out)
 	      "                       (default 10000000)\n"
 	      "  --source-tol PCT     tolerance of every source's amplitude and offset\n"
 	      "                       unless *@source gives one (e.g. 10 or 10%)\n"
+	      "  --max-line N         longest physical line read, in bytes\n"
+	      "                       (default 1048576)\n"
+	      "  --max-include-depth N  .include/.lib nesting (default 32)\n"
+	      "  --max-depth N        subcircuit nesting (default 256)\n"
 	      "  --max-errors N       errors reported per file before giving up\n"
 	      "                       (default 50)\n"
 	      "  --help               this text\n"
@@ -198,8 +203,20 @@ static int option(struct cli *c, const char *opt, const char *val)
 			opt, val);
 		return 0;
 	}
+	int small = strcmp(opt, "--max-line") == 0 || strcmp(opt, "--max-include-depth") == 0 ||
+		    strcmp(opt, "--max-depth") == 0 || strcmp(opt, "--max-errors") == 0;
+	if (small && n > UINT32_MAX) {
+		fprintf(stderr, "headroom: %s is at most %u, not '%s'\n", opt, UINT32_MAX, val);
+		return 0;
+	}
 	if (strcmp(opt, "--max-parts") == 0)
 		c->eo.max_parts = n;
+	else if (strcmp(opt, "--max-line") == 0)
+		c->eo.max_line_len = (uint32_t)n;
+	else if (strcmp(opt, "--max-include-depth") == 0)
+		c->eo.max_include_depth = (unsigned)n;
+	else if (strcmp(opt, "--max-depth") == 0)
+		c->eo.max_inst_depth = (unsigned)n;
 	else if (strcmp(opt, "-j") == 0)
 		c->jobs = n;
 	else
@@ -215,6 +232,8 @@ static int parse_args(struct cli *c, int argc, char **argv)
 	for (int i = 1; i < argc; i++) {
 		const char *a = argv[i];
 		if (strcmp(a, "--format") == 0 || strcmp(a, "--max-parts") == 0 ||
+		    strcmp(a, "--max-line") == 0 || strcmp(a, "--max-include-depth") == 0 ||
+		    strcmp(a, "--max-depth") == 0 ||
 		    strcmp(a, "--max-errors") == 0 || strcmp(a, "--source-tol") == 0 ||
 		    strcmp(a, "--profile") == 0 || strcmp(a, "--parts") == 0 ||
 		    strcmp(a, "--fail-on") == 0 || strcmp(a, "--waivers") == 0 ||
@@ -510,7 +529,8 @@ static char *strrstr_rules(char *s)
 }
 
 /* file:// URI of the documentation folder next to the program (the build
- * tree's docs/, or an installed share/doc/headroom/), percent-encoded. */
+ * tree's docs/, also from a sanitizer build one level deeper, or an
+ * installed share/doc/headroom/), percent-encoded. */
 static char *docs_uri(void)
 {
 	char exe[2048], dir[2100];
@@ -521,8 +541,9 @@ static char *docs_uri(void)
 	char *slash = strrchr(exe, '/');
 	if (slash)
 		*slash = '\0';
-	static const char *const rel[] = {"/../docs/", "/../share/doc/headroom/"};
-	for (size_t i = 0; i < 2; i++) {
+	/* build/headroom, build/asan/headroom, PREFIX/bin/headroom */
+	static const char *const rel[] = {"/../docs/", "/../../docs/", "/../share/doc/headroom/"};
+	for (size_t i = 0; i < sizeof rel / sizeof rel[0]; i++) {
 		snprintf(dir, sizeof dir, "%s%srules", exe, rel[i]);
 		char *real = realpath(dir, NULL);
 		if (!real)

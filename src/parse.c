@@ -19,6 +19,7 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 	ctx.col = 1;
 	ctx.max_line_len = opts->max_line_len ? opts->max_line_len
 					      : PARSE_DEFAULT_MAX_LINE;
+	ctx.raw_line = 1;
 	ctx.scratch = scratch;
 	ctx.mark = arena_mark(scratch);
 	ctx.diags = diags;

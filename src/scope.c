@@ -525,7 +525,7 @@ static const struct subdef *check_instance(struct elab *el,
 	}
 	if (sc->depth + 1 > el->o.max_inst_depth) {
 		diag_add(el->d, DIAG_ERROR, "instance", c->loc,
-			 "subcircuits nest deeper than %u levels", el->o.max_inst_depth);
+			 "subcircuits nest deeper than %u levels (--max-depth)", el->o.max_inst_depth);
 		return NULL;
 	}
 	return def;

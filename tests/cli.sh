@@ -125,5 +125,38 @@ printf 'bad annotation\nV1 a 0 sin(0 1 1k)\n*@part C1 volts=5\nC1 a b 1u\n' > "$
 run check "$tmp/annot.cir"
 check "a malformed *@ line is a located error" bash -c "test $rc -eq 2 && grep -q \"annot.cir:3:11: error: 'volts' is not a key of this directive\" '$tmp/err'"
 
+# Limits (docs/robustness.md): each one hit, each a located error.
+head -c 3000000 /dev/zero | tr '\0' '1' > "$tmp/digits"
+{ printf 'long line\nR1 a 0 '; cat "$tmp/digits"; printf '\nR2 a 0 1\n'; } > "$tmp/long.cir"
+run parts "$tmp/long.cir"
+check "a 3 MB line stops at the default 1 MiB limit, located" bash -c "test $rc -eq 2 && grep -q 'long.cir:2:1048577: error: line longer than 1048576 bytes' '$tmp/err'"
+if [ -x /usr/bin/time ]; then
+	/usr/bin/time -f '%M' -o "$tmp/rss" "$bin" parts "$tmp/long.cir" > /dev/null 2>&1
+	check "the long line is streamed, not held whole (peak RSS under 32 MB)" test "$(tail -1 "$tmp/rss")" -lt 32768
+fi
+printf 't\nR1 a 0 1k\nR2 a b 2k\n' > "$tmp/short.cir"
+run parts --max-line 8 "$tmp/short.cir"
+check "--max-line 8: a 9-byte line is refused at column 9" bash -c "test $rc -eq 2 && grep -q 'short.cir:2:9: error: line longer than 8 bytes' '$tmp/err'"
+run parts --max-line 9 "$tmp/short.cir"
+check "--max-line 9: the same file reads" test $rc -eq 0
+printf 't\n.include b.cir\nR1 a 0 1\n' > "$tmp/inc_a.cir"; printf '.include c.cir\n' > "$tmp/b.cir"; printf 'R9 x 0 1\n' > "$tmp/c.cir"
+run parts --max-include-depth 1 "$tmp/inc_a.cir"
+check "--max-include-depth 1: the second level is a located error" bash -c "test $rc -eq 2 && grep -q 'b.cir:1:1: error: includes nest deeper than 1 levels' '$tmp/err'"
+run parts --max-include-depth 2 "$tmp/inc_a.cir"
+check "--max-include-depth 2: the same file reads" test $rc -eq 0
+printf 't\n.subckt s1 a\nX2 a s2\n.ends\n.subckt s2 a\nR1 a 0 1\n.ends\nX1 n s1\n' > "$tmp/deep.cir"
+run parts --max-depth 1 "$tmp/deep.cir"
+check "--max-depth 1: the nested instance is a located error" bash -c "test $rc -eq 2 && grep -q 'deep.cir:3:1: error: subcircuits nest deeper than 1 levels' '$tmp/err'"
+run parts --max-depth 2 "$tmp/deep.cir"
+check "--max-depth 2: the same file reads" bash -c "test $rc -eq 0 && grep -q 'X1.X2.R1' '$tmp/out'"
+printf 't\nR1 a 0 1\nR2 a 0 1\nR3 a 0 1\n' > "$tmp/three.cir"
+run parts --max-parts 2 "$tmp/three.cir"
+check "--max-parts 2: the third part is a located error" bash -c "test $rc -eq 2 && grep -q 'three.cir:4:1: error: the circuit grows past 2 parts' '$tmp/err'"
+printf 't\nR1 a\nR2 a\nR3 a\nR4 a\n' > "$tmp/errs.cir"
+run parts --max-errors 2 "$tmp/errs.cir"
+check "--max-errors 2: two errors, then a note that it stopped" bash -c "test \$(grep -c ': error:' '$tmp/err') -eq 2 && grep -q 'note: stopped after 2 errors' '$tmp/err'"
+run parts --max-line 99999999999 "$tmp/short.cir"
+check "a limit past its range is a usage error" test $rc -eq 2
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
