@@ -22,7 +22,7 @@ LIB_OBJ := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIB_SRC)) \
 TESTS   := $(patsubst tests/%.c,$(BUILD)/%,$(wildcard tests/test_*.c))
 DEPS_STAMP := $(BUILD)/.deps-ok
 
-.PHONY: all deps check asan tsan memcheck bench demo clean install test-run expected
+.PHONY: all deps check asan tsan memcheck fuzz fuzz-replay bench demo clean install test-run expected
 all: $(BUILD)/headroom
 
 deps: $(DEPS_STAMP)
@@ -58,8 +58,48 @@ $(BUILD)/test_%: tests/test_%.c tests/testutil.h $(BUILD)/libheadroom.a
 	$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -Wno-missing-prototypes -o $@ $< \
 		$(BUILD)/libheadroom.a -lcmocka $(LDLIBS)
 
+# Fuzz harnesses (tests/fuzz/): each is replayed over its seeds and saved
+# crash reproducers in `make check`; `make fuzz` runs them under libFuzzer.
+FUZZ    := netlist elab parts profile waiver baseline check
+FUZZ_REPLAY := $(patsubst %,$(BUILD)/fuzz_replay_%,$(FUZZ))
+FUZZ_DEF := -DFUZZ_RULES='"$(CURDIR)/rules"'
+seeds_netlist  := examples tests/data tests/data/topo tests/data/flatten tests/data/inc tests/fuzz/seeds/netlist
+seeds_elab     := tests/fuzz/seeds/elab
+seeds_parts    := examples/parts.csv tests/fuzz/seeds/parts
+seeds_profile  := rules tests/fuzz/seeds/profile
+seeds_waiver   := tests/fuzz/seeds/waiver
+seeds_baseline := tests/expected/examples.json tests/fuzz/seeds/baseline
+seeds_check    := examples tests/data/topo tests/fuzz/seeds/netlist
+
+$(BUILD)/fuzz_replay_%: tests/fuzz/fuzz_%.c tests/fuzz/replay.c tests/fuzz/fuzz.h $(BUILD)/libheadroom.a
+	$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -Wno-missing-prototypes $(FUZZ_DEF) -o $@ \
+		tests/fuzz/fuzz_$*.c tests/fuzz/replay.c $(BUILD)/libheadroom.a $(LDLIBS)
+
+fuzz-replay: $(FUZZ_REPLAY)
+	@set -e; for h in $(FUZZ); do \
+		case $$h in netlist) s="$(seeds_netlist)";; elab) s="$(seeds_elab)";; \
+		parts) s="$(seeds_parts)";; profile) s="$(seeds_profile)";; \
+		waiver) s="$(seeds_waiver)";; baseline) s="$(seeds_baseline)";; \
+		check) s="$(seeds_check)";; esac; \
+		$(BUILD)/fuzz_replay_$$h $$s tests/fuzz/crashes/$$h; done
+
+# libFuzzer builds (clang): the library with coverage and sanitizers, each
+# harness linked against the fuzzing engine.
+FUZZ_SAN := -fsanitize=address,undefined -fno-sanitize-recover=all
+fuzz: deps
+	@$(MAKE) --no-print-directory CC=clang BUILD=build/fuzz OPT="-O1 -g" \
+		SAN="-fsanitize=fuzzer-no-link $(FUZZ_SAN)" build/fuzz/libheadroom.a
+	@set -e; for h in $(FUZZ); do \
+		clang $(CPPFLAGS:$(BUILD)=build/fuzz) -std=c17 -O1 -g -fsanitize=fuzzer $(FUZZ_SAN) \
+		$(FUZZ_DEF) -o build/fuzz/fuzz_$$h tests/fuzz/fuzz_$$h.c \
+		build/fuzz/libheadroom.a $(LDLIBS); done
+	SEEDS_netlist="$(seeds_netlist)" SEEDS_elab="$(seeds_elab)" SEEDS_parts="$(seeds_parts)" \
+	SEEDS_profile="$(seeds_profile)" SEEDS_waiver="$(seeds_waiver)" \
+	SEEDS_baseline="$(seeds_baseline)" SEEDS_check="$(seeds_check)" \
+		bash scripts/fuzz.sh build/fuzz $(FUZZ)
+
 # Runs every unit test, then the command-line and corpus checks.
-test-run: $(BUILD)/headroom $(TESTS)
+test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@set -e; for t in $(TESTS); do echo "== $$t"; \
 		HEADROOM=$(BUILD)/headroom $$t; done
 	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh

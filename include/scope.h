@@ -42,6 +42,7 @@ struct scope {
 };
 
 #define ELAB_MAX_COND 64
+#define ELAB_MAX_INCLUDES 10000 /* files read per netlist */
 
 /* One open .if block. */
 struct cond_frame {
@@ -75,6 +76,7 @@ struct elab {
 	size_t npending, cappending;
 	struct file_read *fr;
 	unsigned include_depth;
+	unsigned includes_read;   /* files opened by .include/.lib, in total */
 	const char *title;
 	size_t ncards;
 	struct diag_loc root;        /* top-level card being expanded */

@@ -207,7 +207,7 @@ static int in_chain(const struct elab *el, const char *canon,
 		if ((f->want == NULL) != (section == NULL) ||
 		    (section && strcmp(f->want, section) != 0))
 			continue;
-		char *c = realpath(f->path, NULL);
+		char *c = el->o.open ? strdup(f->path) : realpath(f->path, NULL);
 		int same = c && strcmp(c, canon) == 0;
 		free(c);
 		if (same)
@@ -248,12 +248,22 @@ static void include_file(struct elab *el, const struct deck_card *c,
 			 "includes nest deeper than %u levels (--max-include-depth)", el->o.max_include_depth);
 		return;
 	}
-	char *canon = el->o.open ? NULL : realpath(path, NULL);
+	/* files read through the open hook have no real path: their names
+	 * are their identity */
+	char *canon = el->o.open ? strdup(path) : realpath(path, NULL);
 	int cycle = canon && in_chain(el, canon, section);
 	free(canon);
 	if (cycle) {
 		diag_add(el->d, DIAG_ERROR, "include", c->loc,
 			 "include cycle: '%s' is already being read", given);
+		return;
+	}
+	/* includes that repeat without a cycle (each file reading the next
+	 * twice) would grow exponentially with depth */
+	if (el->includes_read >= ELAB_MAX_INCLUDES) {
+		diag_add(el->d, DIAG_ERROR, "include", c->loc,
+			 "more than %u files read by .include and .lib for one netlist",
+			 ELAB_MAX_INCLUDES);
 		return;
 	}
 	FILE *in = open_input(el, path);
@@ -262,6 +272,7 @@ static void include_file(struct elab *el, const struct deck_card *c,
 			 "cannot read '%s': %s", given, sys_error(errno));
 		return;
 	}
+	el->includes_read++;
 	struct file_read fr = {path, diag_add_file(el->d, path), section, 0, 0,
 			       c->loc, c->loc, NULL};
 	el->include_depth++;

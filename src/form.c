@@ -133,7 +133,7 @@ static int sine_phasor(const struct form_ctx *fc, const struct form *x,
 	double w = 0, re = 0, im = 0;
 	for (uint32_t i = 0; i < x->n; i++) {
 		const struct sig *s = &fc->sigs[x->t[i].src];
-		if (s->kind != SIG_SIN || (w && fabs(s->w - w) > 1e-12 * w))
+		if (s->kind != SIG_SIN || (w != 0 && fabs(s->w - w) > 1e-12 * w))
 			return 0;
 		w = s->w;
 		re += x->t[i].c * s->amp * cos(s->phase);

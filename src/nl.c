@@ -222,7 +222,8 @@ uint32_t nl_add_part(struct nl_circuit *c, const struct nl_part *p,
 
 const uint32_t *nl_pins(const struct nl_circuit *c, const struct nl_part *p)
 {
-	return c->pins + p->pin0;
+	/* a circuit whose parts have no pins has no pin array at all */
+	return c->pins ? c->pins + p->pin0 : NULL;
 }
 
 struct diag_loc nl_part_loc(const struct nl_part *p)
