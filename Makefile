@@ -87,6 +87,7 @@ fuzz-replay: $(FUZZ_REPLAY)
 # harness linked against the fuzzing engine.
 FUZZ_SAN := -fsanitize=address,undefined -fno-sanitize-recover=all
 fuzz: deps
+	@bash scripts/deps.sh --fuzz > /dev/null
 	@$(MAKE) --no-print-directory CC=clang BUILD=build/fuzz OPT="-O1 -g" \
 		SAN="-fsanitize=fuzzer-no-link $(FUZZ_SAN)" build/fuzz/libheadroom.a
 	@set -e; for h in $(FUZZ); do \

@@ -12,6 +12,7 @@
 #                        @microsoft/sarif-multitool) into .tools/
 #   chromium             headless browser for the HTML report test
 #   valgrind             make memcheck
+#   clang                make fuzz only (libFuzzer): with --fuzz
 set -euo pipefail
 
 need=()
@@ -28,6 +29,9 @@ command -v make >/dev/null 2>&1 || need+=(make)
 command -v npm >/dev/null 2>&1 || need+=(npm)
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
 command -v valgrind >/dev/null 2>&1 || need+=(valgrind)
+if [ "${1:-}" = --fuzz ]; then
+	command -v clang >/dev/null 2>&1 || need+=(clang)
+fi
 
 root=$(cd "$(dirname "$0")/.." && pwd)
 
