@@ -3,6 +3,7 @@
  * with line:col), since only three fields of a known layout are needed. */
 #include "waiver.h"
 
+#include <ctype.h>
 #include <math.h>
 #include <stdatomic.h>
 #include <stdio.h>
@@ -237,8 +238,12 @@ static const char *jstring(struct jr *j)
 		jerr(j, "expected a string");
 		return NULL;
 	}
-	size_t start = ++j->i, k = 0;
-	char *out = arena_alloc(j->ar, j->n - start + 1);
+	size_t start = ++j->i, k = 0, end = start;
+	/* the decoded text is never longer than the raw text up to the
+	 * closing quote (an escaped quote does not end it) */
+	while (end < j->n && j->s[end] != '"')
+		end += j->s[end] == '\\' ? 2 : 1;
+	char *out = arena_alloc(j->ar, (end < j->n ? end : j->n) - start + 1);
 	if (!out) {
 		j->bad = 1;
 		return NULL;
@@ -253,8 +258,11 @@ static const char *jstring(struct jr *j)
 			char e = j->s[j->i++];
 			c = e == 'n' ? '\n' : e == 't' ? '\t' : e == 'r' ? '\r' : e == 'b' ? '\b' : e == 'f' ? '\f' : e;
 			if (e == 'u') {
-				if (j->i + 4 > j->n) {
-					jerr(j, "short \\u escape");
+				if (j->i + 4 > j->n || !isxdigit((unsigned char)j->s[j->i]) ||
+				    !isxdigit((unsigned char)j->s[j->i + 1]) ||
+				    !isxdigit((unsigned char)j->s[j->i + 2]) ||
+				    !isxdigit((unsigned char)j->s[j->i + 3])) {
+					jerr(j, "\\u needs four hex digits");
 					return NULL;
 				}
 				j->i += 4;
