@@ -67,7 +67,8 @@ static int run_dir(const char *dir, size_t *count)
 		names[n++] = strdup(e->d_name);
 	}
 	closedir(d);
-	qsort(names, n, sizeof *names, by_name);
+	if (n)
+		qsort(names, n, sizeof *names, by_name);
 	int ok = 1;
 	for (size_t i = 0; i < n; i++) {
 		char path[4096];
