@@ -97,30 +97,43 @@ static int expired(const struct annot *w, const char *today)
 	return u && today && strcmp(u->text, today) < 0;
 }
 
-static void apply_one(struct audit *a, const struct annot *w, const char *today,
-		      struct rules_result *rr)
+static void note_expired(struct audit *a, const struct annot *w, struct rules_result *rr)
 {
-	int used = 0;
+	struct finding *g = rules_add(rr, a->ar, "waiver-expired");
+	if (g) {
+		g->loc = w->loc;
+		g->subject = w->target;
+		g->message = "a waiver has expired: the findings it covered are reported again";
+		g->limits = annot_get(w, "until")->text;
+	}
+}
+
+/* Marks the findings w covers as waived (unless it has expired); returns
+ * whether it covers any. */
+static int mark(const struct annot *w, const char *today, struct rules_result *rr)
+{
 	const char *reason = annot_get(w, "reason") ? annot_get(w, "reason")->text : "";
+	int used = 0;
 	size_t n = rr->n;
 	for (size_t i = 0; i < n; i++) {
 		struct finding *f = &rr->f[i];
 		if (!matches(w, f))
 			continue;
 		used = 1;
-		if (expired(w, today))
-			continue;
-		f->waived = 1;
-		f->waiver = reason;
-	}
-	if (expired(w, today) && used) {
-		struct finding *g = rules_add(rr, a->ar, "waiver-expired");
-		if (g) {
-			g->loc = w->loc;
-			g->subject = w->target;
-			g->message = "a waiver has expired: the findings it covered are reported again";
-			g->limits = annot_get(w, "until")->text;
+		if (!expired(w, today)) {
+			f->waived = 1;
+			f->waiver = reason;
 		}
+	}
+	return used;
+}
+
+static void apply_one(struct audit *a, const struct annot *w, const char *today,
+		      struct rules_result *rr)
+{
+	int used = mark(w, today, rr);
+	if (expired(w, today) && used) {
+		note_expired(a, w, rr);
 	} else if (!used) {
 		struct finding *g = rules_add(rr, a->ar, "waiver-unused");
 		if (g) {
@@ -137,31 +150,11 @@ static void apply_file_one(struct audit *a, const struct waiver_file *wf,
 			   uint32_t i, const char *today, struct rules_result *rr)
 {
 	const struct annot *w = &wf->w[i];
-	const char *reason = annot_get(w, "reason") ? annot_get(w, "reason")->text : "";
-	int used = 0;
-	size_t n = rr->n;
-	for (size_t k = 0; k < n; k++) {
-		struct finding *f = &rr->f[k];
-		if (!matches(w, f))
-			continue;
-		used = 1;
-		if (!expired(w, today)) {
-			f->waived = 1;
-			f->waiver = reason;
-		}
-	}
-	if (!used)
+	if (!mark(w, today, rr))
 		return;
 	atomic_store(&wf->used[i], 1);
-	if (expired(w, today)) {
-		struct finding *g = rules_add(rr, a->ar, "waiver-expired");
-		if (g) {
-			g->loc = w->loc;
-			g->subject = w->target;
-			g->message = "a waiver has expired: the findings it covered are reported again";
-			g->limits = annot_get(w, "until")->text;
-		}
-	}
+	if (expired(w, today))
+		note_expired(a, w, rr);
 }
 
 int waiver_apply(struct audit *a, const struct waiver_file *wf,

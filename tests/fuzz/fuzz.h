@@ -33,4 +33,24 @@ static inline int fuzz_memfile(const uint8_t *data, size_t size, char *path, siz
 	return fd;
 }
 
+/* A harness for a reader that takes a path: the input becomes a memory
+ * file, and READ(path, ar, d) runs on it with a fresh arena and sink. */
+#define FUZZ_PATH_READER(READ)                                              \
+	int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)       \
+	{                                                                   \
+		char path[64];                                              \
+		int fd = fuzz_memfile(data, size, path, sizeof path);       \
+		if (fd < 0)                                                 \
+			return 0;                                           \
+		struct hr_alloc h = hr_alloc_default();                     \
+		struct arena *ar = arena_create(&h);                        \
+		struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;      \
+		if (d)                                                      \
+			READ(path, ar, d);                                  \
+		diag_destroy(d);                                            \
+		arena_destroy(ar);                                          \
+		close(fd);                                                  \
+		return 0;                                                   \
+	}
+
 #endif
