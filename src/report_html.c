@@ -78,7 +78,7 @@ static void findings(FILE *out, const struct check_file *f)
 static void sketch(FILE *out, const struct check_file *f, const struct topo_struct *t)
 {
 	uint32_t n = t->nparts > 24 ? 24 : t->nparts;
-	double w = 60.0 * n + 20;
+	double w = 60.0 * n + 20 + (n < t->nparts ? 80 : 0);
 	fprintf(out, "<svg class=\"sketch\" width=\"%.0f\" viewBox=\"0 0 %.0f 70\" role=\"img\" aria-label=\"sketch\">"
 		"<line x1=\"10\" y1=\"30\" x2=\"%.0f\" y2=\"30\" stroke=\"#8895a2\"/>", w, w, w - 10);
 	for (uint32_t i = 0; i < n; i++) {
@@ -97,6 +97,9 @@ static void sketch(FILE *out, const struct check_file *f, const struct topo_stru
 		x(out, p->path);
 		fputs("</text>", out);
 	}
+	if (n < t->nparts)
+		fprintf(out, "<text x=\"%.0f\" y=\"34\" font-size=\"11\">+%u more</text>",
+			40 + 60.0 * n, t->nparts - n);
 	fputs("</svg>\n", out);
 }
 
