@@ -18,6 +18,7 @@ struct elab_opts {
 	unsigned max_include_depth;/* 0 = default 32 */
 	unsigned max_inst_depth;   /* subcircuit nesting; 0 = default 256 */
 	uint32_t max_line_len;     /* physical line, bytes; 0 = default 1 MiB */
+	unsigned max_includes;     /* files read by .include/.lib; 0 = 10,000 */
 	/* Opens a file for reading; NULL = fopen. Lets tests and fuzzers serve
 	 * in-memory file sets. Sets errno on failure. */
 	FILE *(*open)(void *ud, const char *path);

@@ -260,10 +260,10 @@ static void include_file(struct elab *el, const struct deck_card *c,
 	}
 	/* includes that repeat without a cycle (each file reading the next
 	 * twice) would grow exponentially with depth */
-	if (el->includes_read >= ELAB_MAX_INCLUDES) {
+	if (el->includes_read >= el->o.max_includes) {
 		diag_add(el->d, DIAG_ERROR, "include", c->loc,
 			 "more than %u files read by .include and .lib for one netlist",
-			 ELAB_MAX_INCLUDES);
+			 el->o.max_includes);
 		return;
 	}
 	FILE *in = open_input(el, path);
@@ -547,6 +547,8 @@ static int elab_init(struct elab *el, const struct elab_opts *opts,
 		el->o = *opts;
 	if (!el->o.max_parts)
 		el->o.max_parts = 10000000;
+	if (!el->o.max_includes)
+		el->o.max_includes = ELAB_MAX_INCLUDES;
 	if (!el->o.max_include_depth)
 		el->o.max_include_depth = 32;
 	if (!el->o.max_inst_depth)

@@ -243,6 +243,35 @@ static void test_expansion_cap(void **state)
 	arena_destroy(ar);
 }
 
+/* Includes that repeat without a cycle stop at the file count cap. */
+static void test_include_count_cap(void **state)
+{
+	(void)state;
+	static struct memfs fs;
+	fs.name[0] = "top.cir";
+	fs.text[0] = "t\n.include a.inc\n.include a.inc\n";
+	fs.name[1] = "a.inc";
+	fs.text[1] = ".include b.inc\n.include b.inc\n";
+	fs.name[2] = "b.inc";
+	fs.text[2] = "R1 x 0 1\n";
+	fs.n = 3;
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	struct elab_opts o = {0};
+	o.open = memfs_open;
+	o.open_ud = &fs;
+	o.max_includes = 5; /* a.inc, b.inc, b.inc, a.inc, b.inc; the 6th is refused */
+	struct elab_result res;
+	assert_int_equal(elab_file("top.cir", &o, &h, d, &res), ELAB_ERRORS);
+	char *txt = render_headers(d);
+	assert_non_null(strstr(txt, "a.inc:2:1: error: more than 5 files read by .include and .lib for one netlist [include]"));
+	free(txt);
+	nl_destroy(res.circuit);
+	diag_destroy(d);
+	arena_destroy(ar);
+}
+
 /* Adjacency: every pin of every part appears under its node. */
 static void test_adjacency(void **state)
 {
@@ -276,6 +305,7 @@ int main(void)
 		cmocka_unit_test(test_sources),
 		cmocka_unit_test(test_elements),
 		cmocka_unit_test(test_expansion_cap),
+		cmocka_unit_test(test_include_count_cap),
 		cmocka_unit_test(test_adjacency),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
