@@ -16,6 +16,7 @@ struct lex_ctx {
 	uint32_t file;
 	uint32_t line, col;       /* position of the next byte */
 	uint32_t max_line_len;
+	uint32_t max_token_len;
 	uint32_t raw_line;        /* physical line at the read position */
 	uint64_t raw_len;         /* bytes read so far on that line */
 	int title_pending;        /* next line is the title */
@@ -43,6 +44,7 @@ struct lex_ctx {
 	void *ud;
 	int stop;
 	int oom;
+	int too_deep;                /* the parser's stack overflowed */
 };
 
 /* Header of each allocation flex makes, so a fatal error can free all. */

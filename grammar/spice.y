@@ -353,5 +353,11 @@ exprlist
 void yyerror(YYLTYPE *loc, void *scanner, struct lex_ctx *ctx, const char *msg)
 {
 	(void)scanner;
+	if (strcmp(msg, "memory exhausted") == 0) {
+		/* the parser's stack (YYMAXDEPTH entries) is full */
+		ctx->too_deep = 1;
+		msg = "nesting too deep for the parser (over 10000 open levels): "
+		      "the rest of this file is not read";
+	}
 	diag_add(ctx->diags, DIAG_ERROR, "syntax", at(ctx, loc), "%s", msg);
 }

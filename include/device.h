@@ -29,6 +29,7 @@ struct dev_scope {
 	int defer_undefined;    /* return DEV_DEFER instead of reporting an
 				   undefined parameter (first pass at top level) */
 	double mult;            /* instance m= product applied to every part */
+	uint32_t max_wave_values; /* values in one waveform; 0 = 200,000 */
 };
 
 /* DEV_STATE: a value depends on the circuit's state (v(), i(), time); it

@@ -19,6 +19,11 @@ struct elab_opts {
 	unsigned max_inst_depth;   /* subcircuit nesting; 0 = default 256 */
 	uint32_t max_line_len;     /* physical line, bytes; 0 = default 1 MiB */
 	unsigned max_includes;     /* files read by .include/.lib; 0 = 10,000 */
+	uint32_t max_token_len;    /* one word or value, bytes; 0 = 64 KiB */
+	unsigned max_expr_depth;   /* expression nesting; 0 = 1000 */
+	unsigned max_cond_depth;   /* .if nesting; 0 = 64 */
+	size_t max_nodes;          /* circuit nodes; 0 = 10,000,000 */
+	uint32_t max_pwl_points;   /* time-value pairs per source; 0 = 100,000 */
 	/* Opens a file for reading; NULL = fopen. Lets tests and fuzzers serve
 	 * in-memory file sets. Sets errno on failure. */
 	FILE *(*open)(void *ud, const char *path);

@@ -68,7 +68,10 @@ struct expr_env {
 	int (*lookup_var)(void *ud, const char *name, double *v);
 	const struct expr_func *(*lookup_func)(void *ud, const char *name);
 	void *ud;
+	unsigned max_depth; /* nesting and call depth; 0 = EXPR_DEFAULT_DEPTH */
 };
+
+#define EXPR_DEFAULT_DEPTH 1000u
 
 enum expr_status {
 	EXPR_OK,
@@ -82,6 +85,7 @@ struct expr_error {
 	enum expr_status status;
 	const char *name;  /* offending name, if any (borrowed from the tree) */
 	uint32_t line, col;
+	unsigned depth;    /* the limit, for EXPR_TOO_DEEP */
 };
 
 /* Evaluates e. On failure returns the status, fills *err, leaves *out. */

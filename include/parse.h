@@ -20,6 +20,7 @@ struct parse_opts {
 	uint32_t file;          /* diag file id of this stream */
 	int has_title;          /* first line is the title (top-level file) */
 	uint32_t max_line_len;  /* longest physical line accepted, bytes */
+	uint32_t max_token_len; /* longest word or value, bytes; 0 = 64 KiB */
 };
 
 enum parse_status {

@@ -41,7 +41,7 @@ struct scope {
 	unsigned depth;
 };
 
-#define ELAB_MAX_COND 64
+#define ELAB_MAX_COND 64 /* default .if nesting */
 #define ELAB_MAX_INCLUDES 10000 /* files read per netlist */
 
 /* One open .if block. */
@@ -80,8 +80,8 @@ struct elab {
 	const char *title;
 	size_t ncards;
 	struct diag_loc root;        /* top-level card being expanded */
-	struct cond_frame cond[ELAB_MAX_COND];
-	size_t ncond;
+	struct cond_frame *cond;     /* open .if blocks, innermost last */
+	size_t ncond, capcond;
 	int oom, stop;
 };
 

@@ -2,6 +2,9 @@
  * source line re-reads the file, so the front end never has to keep whole
  * files in memory. */
 #include "diag.h"
+#include "infile.h"
+
+#include <errno.h>
 
 #include <stdlib.h>
 #include <string.h>
@@ -186,7 +189,7 @@ void diag_format(const struct diag_sink *s, const struct diag *d, char *buf,
  * Returns 0 when the file or the line cannot be read. */
 static int read_line(const char *path, uint32_t line, char *buf, size_t n)
 {
-	FILE *f = fopen(path, "rb");
+	FILE *f = infile_open(path);
 	if (!f)
 		return 0;
 	uint32_t cur = 1;

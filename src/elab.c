@@ -4,6 +4,7 @@
  * and expanded once the whole top file is read (definitions may come after
  * their use). Scoping of parameters and nodes inside instances: scope.c. */
 #include "elab.h"
+#include "infile.h"
 
 #include <errno.h>
 #include <stdio.h>
@@ -27,22 +28,6 @@ struct file_read {
 	struct diag_loc open_loc;     /* the .lib card that opened a section */
 	struct file_read *outer;
 };
-
-/* The system's text for an errno value, first letter lower-cased to fit
- * the diagnostic style. */
-static const char *sys_error(int err)
-{
-	static const struct {
-		int code;
-		const char *text;
-	} tab[] = {{ENOENT, "no such file"}, {EACCES, "permission denied"},
-		   {EISDIR, "is a directory"}, {ENOTDIR, "a folder in the path is not a folder"},
-		   {ELOOP, "too many symbolic links"}, {ENAMETOOLONG, "name too long"}};
-	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
-		if (tab[i].code == err)
-			return tab[i].text;
-	return "the system refused to open it";
-}
 
 static void oom(struct elab *el)
 {
@@ -173,12 +158,7 @@ static FILE *open_input(struct elab *el, const char *path)
 {
 	if (el->o.open)
 		return el->o.open(el->o.open_ud, path);
-	struct stat st;
-	if (stat(path, &st) == 0 && S_ISDIR(st.st_mode)) {
-		errno = EISDIR;
-		return NULL;
-	}
-	return fopen(path, "rb");
+	return infile_open(path);
 }
 
 /* Path of an included file: relative paths are taken from the folder of
@@ -216,16 +196,32 @@ static int in_chain(const struct elab *el, const char *canon,
 	return 0;
 }
 
+static int changed(const struct stat *a, const struct stat *b)
+{
+	return a->st_size != b->st_size || a->st_ino != b->st_ino ||
+	       a->st_mtim.tv_sec != b->st_mtim.tv_sec ||
+	       a->st_mtim.tv_nsec != b->st_mtim.tv_nsec;
+}
+
 static void read_stream(struct elab *el, FILE *in, struct file_read *fr,
 			int title)
 {
 	fr->outer = el->fr;
 	el->fr = fr;
-	struct parse_opts po = {fr->file, title, el->o.max_line_len};
+	struct parse_opts po = {fr->file, title, el->o.max_line_len, el->o.max_token_len};
+	struct stat before, after;
+	int fd = fileno(in), known = fd >= 0 && fstat(fd, &before) == 0;
 	enum parse_status st = parse_stream(in, &po, el->scratch, el->d,
 					    on_card, el);
 	if (st == PARSE_OOM)
 		oom(el);
+	if (known && fstat(fd, &after) == 0 && changed(&before, &after)) {
+		struct diag_loc at = {fr->file, 0, 0};
+		diag_add(el->d, DIAG_ERROR, "io", at,
+			 "the file changed while it was read (%lld bytes, now %lld): "
+			 "check it again once it is complete",
+			 (long long)before.st_size, (long long)after.st_size);
+	}
 	if (fr->want && !fr->found && !el->oom)
 		diag_add(el->d, DIAG_ERROR, "lib", fr->section_loc,
 			 "section '%s' not found in '%s'", fr->want, fr->path);
@@ -269,7 +265,7 @@ static void include_file(struct elab *el, const struct deck_card *c,
 	FILE *in = open_input(el, path);
 	if (!in) {
 		diag_add(el->d, DIAG_ERROR, "include", c->loc,
-			 "cannot read '%s': %s", given, sys_error(errno));
+			 "cannot read '%s': %s", given, infile_error_text(errno));
 		return;
 	}
 	el->includes_read++;
@@ -371,6 +367,23 @@ static int taking(const struct elab *el)
 	return el->ncond == 0 || el->cond[el->ncond - 1].taking;
 }
 
+static int grow_cond(struct elab *el)
+{
+	if (el->ncond < el->capcond)
+		return 1;
+	size_t ncap = el->capcond ? el->capcond * 2 : 8;
+	struct cond_frame *a = arena_alloc(el->ar, ncap * sizeof *a);
+	if (!a) {
+		oom(el);
+		return 0;
+	}
+	if (el->ncond)
+		memcpy(a, el->cond, el->ncond * sizeof *a);
+	el->cond = a;
+	el->capcond = ncap;
+	return 1;
+}
+
 /* Conditional blocks are decided as they are read, with global parameters. */
 static void on_cond(struct elab *el, const struct deck_card *c)
 {
@@ -378,11 +391,15 @@ static void on_cond(struct elab *el, const struct deck_card *c)
 	size_t n = c->headlen - 1;
 	struct cond_frame *top = el->ncond ? &el->cond[el->ncond - 1] : NULL;
 	if (num_ieq(w, n, "if")) {
-		if (el->ncond == ELAB_MAX_COND) {
+		if (el->ncond == el->o.max_cond_depth) {
 			diag_add(el->d, DIAG_ERROR, "condition", c->loc,
-				 ".if blocks nest deeper than %d", ELAB_MAX_COND);
+				 ".if blocks nest deeper than %u levels (--max-if-depth)",
+				 el->o.max_cond_depth);
+			el->stop = 1;
 			return;
 		}
+		if (!grow_cond(el))
+			return;
 		int outer = taking(el);
 		int v = outer && condition(el, c);
 		el->cond[el->ncond++] = (struct cond_frame){outer, v, v, 0, c->loc};
@@ -523,7 +540,7 @@ static int on_card(void *ud, const struct deck_card *c)
 
 static void finish_top(struct elab *el)
 {
-	for (size_t i = el->ncond; i > 0; i--)
+	for (size_t i = el->stop ? 0 : el->ncond; i > 0; i--)
 		diag_add(el->d, DIAG_ERROR, "condition", el->cond[i - 1].loc,
 			 ".if has no .endif");
 	el->ncond = 0;
@@ -553,6 +570,10 @@ static int elab_init(struct elab *el, const struct elab_opts *opts,
 		el->o.max_include_depth = 32;
 	if (!el->o.max_inst_depth)
 		el->o.max_inst_depth = 256;
+	if (!el->o.max_cond_depth)
+		el->o.max_cond_depth = ELAB_MAX_COND;
+	if (!el->o.max_nodes)
+		el->o.max_nodes = 10000000;
 	el->hook = *hook;
 	el->d = d;
 	el->c = nl_create(hook);
@@ -586,7 +607,7 @@ enum elab_status elab_file(const char *path, const struct elab_opts *opts,
 	FILE *in = open_input(&el, path);
 	if (!in) {
 		diag_add(d, DIAG_ERROR, "io", loc0(file), "cannot read: %s",
-			 sys_error(errno));
+			 infile_error_text(errno));
 	} else {
 		struct file_read fr = {path, file, NULL, 0, 0, loc0(file), loc0(file), NULL};
 		read_stream(&el, in, &fr, 1);

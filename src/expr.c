@@ -8,7 +8,6 @@
 #include <string.h>
 #include <strings.h>
 
-#define EXPR_MAX_DEPTH 1000
 
 static struct expr *node(struct arena *ar, enum expr_op op, uint32_t line,
 			 uint32_t col)
@@ -312,8 +311,11 @@ static enum expr_status ev_ops(struct eval *st, const struct expr *e,
 
 static enum expr_status ev(struct eval *st, const struct expr *e, double *out)
 {
-	if (st->depth > EXPR_MAX_DEPTH)
+	unsigned lim = st->env->max_depth ? st->env->max_depth : EXPR_DEFAULT_DEPTH;
+	if (st->depth > lim) {
+		st->err->depth = lim;
 		return fail(st, EXPR_TOO_DEEP, e);
+	}
 	st->depth++;
 	enum expr_status s;
 	switch (e->op) {
@@ -363,7 +365,8 @@ void expr_error_text(const struct expr_error *err, char *buf, unsigned n)
 		snprintf(buf, n, "expression has no finite value (division by zero or out of domain)");
 		break;
 	case EXPR_TOO_DEEP:
-		snprintf(buf, n, "expression nests deeper than %d levels", EXPR_MAX_DEPTH);
+		snprintf(buf, n, "expression nests deeper than %u levels (--max-expr-depth)",
+			 err->depth);
 		break;
 	default:
 		snprintf(buf, n, "expression error");

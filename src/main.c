@@ -86,8 +86,14 @@ static void usage(FILE *out)
 	      "                       unless *@source gives one (e.g. 10 or 10%)\n"
 	      "  --max-line N         longest physical line read, in bytes\n"
 	      "                       (default 1048576)\n"
+	      "  --max-token N        longest word or value on a card, in bytes\n"
+	      "                       (default 65536)\n"
 	      "  --max-include-depth N  .include/.lib nesting (default 32)\n"
 	      "  --max-depth N        subcircuit nesting (default 256)\n"
+	      "  --max-expr-depth N   expression and .func call nesting (default 1000)\n"
+	      "  --max-if-depth N     .if nesting (default 64)\n"
+	      "  --max-nodes N        stop expanding past N nodes (default 10000000)\n"
+	      "  --max-pwl N          time-value pairs in one PWL source (default 100000)\n"
 	      "  --max-errors N       errors reported per file before giving up\n"
 	      "                       (default 50)\n"
 	      "  --help               this text\n"
@@ -97,6 +103,36 @@ static void usage(FILE *out)
 	      "exit status: 0 success; 1 findings at or above --fail-on (check);\n"
 	      "2 usage error or a netlist with errors\n",
 	      out);
+}
+
+/* Options that take a positive whole number, and their largest value. */
+enum count_id { CO_PARTS, CO_NODES, CO_LINE, CO_TOKEN, CO_INCLUDE, CO_DEPTH,
+		CO_EXPR, CO_IF, CO_PWL, CO_ERRORS, CO_JOBS };
+struct count_opt {
+	const char *name;
+	enum count_id id;
+	size_t max;
+};
+
+static const struct count_opt *count_opt_find(const char *name)
+{
+	static const struct count_opt tab[] = {
+		{"--max-parts", CO_PARTS, SIZE_MAX / 2},
+		{"--max-nodes", CO_NODES, UINT32_MAX - 2},
+		{"--max-line", CO_LINE, UINT32_MAX - 1},
+		{"--max-token", CO_TOKEN, UINT32_MAX - 1},
+		{"--max-include-depth", CO_INCLUDE, 100000},
+		{"--max-depth", CO_DEPTH, 100000},
+		{"--max-expr-depth", CO_EXPR, 100000},
+		{"--max-if-depth", CO_IF, 1000000},
+		{"--max-pwl", CO_PWL, UINT32_MAX / 2},
+		{"--max-errors", CO_ERRORS, UINT32_MAX},
+		{"-j", CO_JOBS, 1024},
+	};
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		if (strcmp(name, tab[i].name) == 0)
+			return &tab[i];
+	return NULL;
 }
 
 static int parse_count(const char *s, size_t *out)
@@ -203,24 +239,25 @@ static int option(struct cli *c, const char *opt, const char *val)
 			opt, val);
 		return 0;
 	}
-	int small = strcmp(opt, "--max-line") == 0 || strcmp(opt, "--max-include-depth") == 0 ||
-		    strcmp(opt, "--max-depth") == 0 || strcmp(opt, "--max-errors") == 0;
-	if (small && n > UINT32_MAX) {
-		fprintf(stderr, "headroom: %s is at most %u, not '%s'\n", opt, UINT32_MAX, val);
+	const struct count_opt *o = count_opt_find(opt);
+	if (n > o->max) {
+		fprintf(stderr, "headroom: %s is at most %zu, not '%s'\n", opt, o->max, val);
 		return 0;
 	}
-	if (strcmp(opt, "--max-parts") == 0)
-		c->eo.max_parts = n;
-	else if (strcmp(opt, "--max-line") == 0)
-		c->eo.max_line_len = (uint32_t)n;
-	else if (strcmp(opt, "--max-include-depth") == 0)
-		c->eo.max_include_depth = (unsigned)n;
-	else if (strcmp(opt, "--max-depth") == 0)
-		c->eo.max_inst_depth = (unsigned)n;
-	else if (strcmp(opt, "-j") == 0)
-		c->jobs = n;
-	else
-		c->max_errors = (unsigned)n;
+	struct elab_opts *e = &c->eo;
+	switch (o->id) {
+	case CO_PARTS: e->max_parts = n; break;
+	case CO_NODES: e->max_nodes = n; break;
+	case CO_LINE: e->max_line_len = (uint32_t)n; break;
+	case CO_TOKEN: e->max_token_len = (uint32_t)n; break;
+	case CO_INCLUDE: e->max_include_depth = (unsigned)n; break;
+	case CO_DEPTH: e->max_inst_depth = (unsigned)n; break;
+	case CO_EXPR: e->max_expr_depth = (unsigned)n; break;
+	case CO_IF: e->max_cond_depth = (unsigned)n; break;
+	case CO_PWL: e->max_pwl_points = (uint32_t)n; break;
+	case CO_ERRORS: c->max_errors = (unsigned)n; break;
+	case CO_JOBS: c->jobs = n; break;
+	}
 	return 1;
 }
 
@@ -231,10 +268,8 @@ static int parse_args(struct cli *c, int argc, char **argv)
 		return 0;
 	for (int i = 1; i < argc; i++) {
 		const char *a = argv[i];
-		if (strcmp(a, "--format") == 0 || strcmp(a, "--max-parts") == 0 ||
-		    strcmp(a, "--max-line") == 0 || strcmp(a, "--max-include-depth") == 0 ||
-		    strcmp(a, "--max-depth") == 0 ||
-		    strcmp(a, "--max-errors") == 0 || strcmp(a, "--source-tol") == 0 ||
+		if (strcmp(a, "--format") == 0 || count_opt_find(a) ||
+		    strcmp(a, "--source-tol") == 0 ||
 		    strcmp(a, "--profile") == 0 || strcmp(a, "--parts") == 0 ||
 		    strcmp(a, "--fail-on") == 0 || strcmp(a, "--waivers") == 0 ||
 		    strcmp(a, "--baseline") == 0 || strcmp(a, "--write-baseline") == 0 ||

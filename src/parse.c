@@ -8,6 +8,7 @@
 #include "spice.lex.h"
 
 #define PARSE_DEFAULT_MAX_LINE (1u << 20)
+#define PARSE_DEFAULT_MAX_TOKEN (1u << 16)
 
 enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 			       struct arena *scratch, struct diag_sink *diags,
@@ -19,6 +20,8 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 	ctx.col = 1;
 	ctx.max_line_len = opts->max_line_len ? opts->max_line_len
 					      : PARSE_DEFAULT_MAX_LINE;
+	ctx.max_token_len = opts->max_token_len ? opts->max_token_len
+						: PARSE_DEFAULT_MAX_TOKEN;
 	ctx.raw_line = 1;
 	ctx.scratch = scratch;
 	ctx.mark = arena_mark(scratch);
@@ -39,7 +42,7 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 	}
 	lex_free_all(&ctx);
 	arena_reset(scratch, ctx.mark);
-	if (ctx.oom || rc == 2)
+	if (ctx.oom || (rc == 2 && !ctx.too_deep))
 		return PARSE_OOM;
 	return ctx.stop ? PARSE_STOPPED : PARSE_OK;
 }
@@ -53,6 +56,7 @@ struct expr *parse_expr_text(const char *text, size_t n, struct diag_loc at,
 	ctx.line = at.line;
 	ctx.col = at.col;
 	ctx.max_line_len = PARSE_DEFAULT_MAX_LINE;
+	ctx.max_token_len = PARSE_DEFAULT_MAX_LINE;
 	ctx.scratch = ar;
 	ctx.mark = arena_mark(ar);
 	ctx.diags = diags;
@@ -72,7 +76,7 @@ struct expr *parse_expr_text(const char *text, size_t n, struct diag_loc at,
 		yylex_destroy(scanner);
 	}
 	lex_free_all(&ctx);
-	if (ctx.oom || rc == 2)
+	if (ctx.oom || (rc == 2 && !ctx.too_deep))
 		*oom = 1;
 	return rc == 0 && !ctx.card_bad ? ctx.expr_result : NULL;
 }

@@ -4,6 +4,9 @@
  * description (free text), or a known numeric key. Blank and '#' lines are
  * skipped. */
 #include "profile.h"
+#include "infile.h"
+
+#include <errno.h>
 
 #include <math.h>
 #include <stdio.h>
@@ -171,10 +174,11 @@ int profile_load(const char *path, struct diag_sink *d, struct profile *p)
 	struct reader r = {d, diag_add_file(d, path), 0, p, 0};
 	memset(p, 0, sizeof *p);
 	copy_cut(p->path, sizeof p->path, path);
-	FILE *f = fopen(path, "r");
+	FILE *f = infile_open(path);
 	if (!f) {
 		struct diag_loc l = {r.file, 0, 0};
-		diag_add(d, DIAG_ERROR, "profile", l, "cannot read the profile");
+		diag_add(d, DIAG_ERROR, "profile", l, "cannot read the profile: %s",
+			 infile_error_text(errno));
 		return 0;
 	}
 	char line[512];

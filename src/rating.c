@@ -2,6 +2,9 @@
  * header row then one row per part or pattern; columns ref, kind, v_rated,
  * i_surge, i_avg, trr, tol, note in any order and case; others ignored. */
 #include "rating.h"
+#include "infile.h"
+
+#include <errno.h>
 
 #include <math.h>
 #include <stdio.h>
@@ -93,13 +96,18 @@ struct rating_table *rating_table_load(const char *path, struct arena *ar,
 				       struct diag_sink *d)
 {
 	struct rating_table *t = arena_zalloc(ar, sizeof *t);
-	FILE *f = fopen(path, "r");
-	if (!t || !(t->path = arena_strdup(ar, path)))
+	FILE *f = infile_open(path);
+	int err = errno;
+	if (!t || !(t->path = arena_strdup(ar, path))) {
+		if (f)
+			fclose(f);
 		return NULL;
+	}
 	t->file = diag_add_file(d, path);
 	struct diag_loc l = {t->file, 0, 0};
 	if (!f) {
-		diag_add(d, DIAG_ERROR, "parts", l, "cannot read the parts table");
+		diag_add(d, DIAG_ERROR, "parts", l, "cannot read the parts table: %s",
+			 infile_error_text(err));
 		return NULL;
 	}
 	char line[4096], buf[4096];

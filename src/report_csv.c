@@ -7,10 +7,22 @@
 #include <string.h>
 
 #include "report_parts.h"
+#include "utf8.h"
 
 void report_xml_text(FILE *out, const char *s)
 {
-	for (; s && *s; s++) {
+	if (!s)
+		return;
+	for (const char *end = s + strlen(s); *s; s++) {
+		size_t k = utf8_seq((const unsigned char *)s, (size_t)(end - s));
+		if (k != 1) {
+			if (k == 0)
+				fputs(UTF8_REPLACEMENT, out);
+			else
+				fwrite(s, 1, k, out);
+			s += k ? k - 1 : 0;
+			continue;
+		}
 		switch (*s) {
 		case '&': fputs("&amp;", out); break;
 		case '<': fputs("&lt;", out); break;

@@ -1,6 +1,7 @@
 /* report_parts.c: listings of the flattened circuit. Text is aligned in
  * columns (two passes: widths, then rows); CSV and JSON are for tools. */
 #include "report_parts.h"
+#include "utf8.h"
 
 #include <string.h>
 
@@ -10,8 +11,15 @@
 void report_json_string(FILE *out, const char *s)
 {
 	fputc('"', out);
+	size_t n = strlen(s);
 	for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
-		if (*p == '"' || *p == '\\')
+		size_t k = utf8_seq(p, n - (size_t)(p - (const unsigned char *)s));
+		if (k == 0) {
+			fputs(UTF8_REPLACEMENT, out);
+		} else if (k > 1) {
+			fwrite(p, 1, k, out);
+			p += k - 1;
+		} else if (*p == '"' || *p == '\\')
 			fprintf(out, "\\%c", *p);
 		else if (*p == '\n')
 			fputs("\\n", out);
@@ -25,17 +33,23 @@ void report_json_string(FILE *out, const char *s)
 
 void report_csv_field(FILE *out, const char *s)
 {
-	if (!strpbrk(s, ",\"\r\n")) {
-		fputs(s, out);
-		return;
-	}
-	fputc('"', out);
-	for (; *s; s++) {
-		if (*s == '"')
+	int quote = strpbrk(s, ",\"\r\n") != NULL;
+	size_t n = strlen(s);
+	if (quote)
+		fputc('"', out);
+	for (size_t i = 0; i < n; i++) {
+		size_t k = utf8_seq((const unsigned char *)s + i, n - i);
+		if (k == 0) {
+			fputs(UTF8_REPLACEMENT, out);
+			continue;
+		}
+		if (s[i] == '"')
 			fputc('"', out);
-		fputc(*s, out);
+		fwrite(s + i, 1, k, out);
+		i += k - 1;
 	}
-	fputc('"', out);
+	if (quote)
+		fputc('"', out);
 }
 
 static size_t source_value(const struct nl_source *s, char *buf, size_t n)

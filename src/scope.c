@@ -93,7 +93,8 @@ static const struct expr_func *lookup_func(void *ud, const char *name)
 static enum expr_status cb_eval(void *ud, const struct expr *e, double *out,
 				struct expr_error *err)
 {
-	struct expr_env env = {lookup_var, lookup_func, ud};
+	const struct cb *cb = ud;
+	struct expr_env env = {lookup_var, lookup_func, ud, cb->el->o.max_expr_depth};
 	return expr_eval(e, &env, out, err);
 }
 
@@ -389,6 +390,7 @@ static struct dev_scope dev_scope_of(struct cb *cb)
 	ds.prefix = cb->sc->prefix;
 	ds.defer_undefined = cb->first_pass;
 	ds.mult = cb->sc->mult;
+	ds.max_wave_values = 2 * cb->el->o.max_pwl_points;
 	return ds;
 }
 
@@ -594,6 +596,13 @@ enum dev_status scope_build(struct elab *el, struct scope *sc,
 	enum dev_status st = dev_build(&ds, c, el->c, el->d);
 	if (st == DEV_OOM)
 		el->oom = 1;
+	if (nl_node_count(el->c) > el->o.max_nodes) {
+		diag_add(el->d, DIAG_ERROR, "expansion", el->root,
+			 "the circuit grows past %zu nodes (the limit; see --max-nodes)",
+			 el->o.max_nodes);
+		el->stop = 1;
+		return DEV_ERROR;
+	}
 	return st;
 }
 

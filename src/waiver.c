@@ -2,6 +2,9 @@
  * small JSON parser of its own (strict JSON, depth-limited, every error
  * with line:col), since only three fields of a known layout are needed. */
 #include "waiver.h"
+#include "infile.h"
+
+#include <errno.h>
 
 #include <ctype.h>
 #include <math.h>
@@ -17,11 +20,13 @@
 struct waiver_file *waiver_load(const char *path, struct arena *ar,
 				struct diag_sink *d)
 {
-	FILE *f = fopen(path, "r");
+	FILE *f = infile_open(path);
+	int err = errno;
 	uint32_t file = diag_add_file(d, path);
 	struct diag_loc l = {file, 0, 0};
 	if (!f) {
-		diag_add(d, DIAG_ERROR, "waiver", l, "cannot read the waiver file");
+		diag_add(d, DIAG_ERROR, "waiver", l, "cannot read the waiver file: %s",
+			 infile_error_text(err));
 		return NULL;
 	}
 	struct elab_annot **lines = NULL;
@@ -420,9 +425,10 @@ struct baseline *baseline_load(const char *path, struct arena *ar,
 {
 	uint32_t file = diag_add_file(d, path);
 	struct diag_loc l = {file, 0, 0};
-	FILE *f = fopen(path, "rb");
+	FILE *f = infile_open(path);
 	if (!f) {
-		diag_add(d, DIAG_ERROR, "baseline", l, "cannot read the baseline");
+		diag_add(d, DIAG_ERROR, "baseline", l, "cannot read the baseline: %s",
+			 infile_error_text(errno));
 		return NULL;
 	}
 	char *buf = NULL;

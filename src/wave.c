@@ -8,7 +8,7 @@
 
 #include "num.h"
 
-#define WAVE_MAX_ARGS 200000u
+#define WAVE_MAX_ARGS 200000u /* 100,000 time-value pairs */
 
 struct wave_rd {
 	const struct dev_scope *s;
@@ -103,8 +103,14 @@ static enum dev_status set_wave(struct wave_rd *r, enum nl_wave w,
 {
 	if (r->src->wave != NL_WAVE_NONE)
 		return err(r, at, "a source takes one transient waveform, this is a second one");
-	if (count_args(f, n) > WAVE_MAX_ARGS)
-		return err(r, at, "waveform has more than 200000 values");
+	uint32_t lim = r->s->max_wave_values ? r->s->max_wave_values : WAVE_MAX_ARGS;
+	if (count_args(f, n) > lim) {
+		struct diag_loc l = {r->card->loc.file, at->line, at->col};
+		diag_add(r->d, DIAG_ERROR, "source", l,
+			 "waveform has more than %u values (%u points; see --max-pwl)",
+			 lim, lim / 2);
+		return DEV_ERROR;
+	}
 	r->src->wave = w;
 	r->src->nargs = 0;
 	uint32_t total = count_args(f, n);

@@ -83,6 +83,44 @@ printf 'binary\n\x00\x01\x02R1 a b\n' > "$tmp/nul.cir"
 run parts "$tmp/nul.cir"
 check "NUL bytes give a located error" bash -c "test $rc -eq 2 && grep -q 'nul.cir:2:1: error' '$tmp/err'"
 
+# Hostile files (docs/robustness.md): each a clear error, never a hang,
+# and a batch goes on past them.
+mkfifo "$tmp/pipe.cir"
+"$bin" parts "$tmp/pipe.cir" >"$tmp/out" 2>"$tmp/err" &
+pid=$!; waited=0
+while kill -0 $pid 2>/dev/null && [ $waited -lt 50 ]; do sleep 0.1; waited=$((waited + 1)); done
+if kill -0 $pid 2>/dev/null; then kill $pid; rc=hung; else wait $pid; rc=$?; fi
+check "a FIFO given as a netlist is refused at once, not waited on" bash -c "test '$rc' = 2 && grep -q 'pipe.cir: error: cannot read: not a regular file (a FIFO, socket or device)' '$tmp/err'"
+printf 't\n.include /dev/zero\nR1 a 0 1\n' > "$tmp/zero.cir"
+run parts "$tmp/zero.cir"
+check "an include of /dev/zero is a located error, not an endless read" bash -c "test $rc -eq 2 && grep -q \"zero.cir:2:1: error: cannot read '/dev/zero': not a regular file\" '$tmp/err'"
+printf 'caf\xe9 title\n* comment in Latin-1: 10 \xb5F\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 b 0 dx\n.model dx D\n' > "$tmp/latin1.cir"
+run check --format json "$tmp/latin1.cir"
+check "Latin-1 bytes in the title and comments: read, and the JSON report is valid UTF-8" bash -c "test $rc -ne 2 && python3 -c 'import json,sys; json.loads(open(sys.argv[1],\"rb\").read().decode(\"utf-8\"))' '$tmp/out'"
+printf 't\nR1 a 0 1\nR\xff2 a 0 1\n' > "$tmp/badname.cir"
+run parts "$tmp/badname.cir"
+check "a name that is not UTF-8 is a located error at the bad byte" bash -c "test $rc -eq 2 && grep -q 'badname.cir:3:2: error: byte 0xFF is not UTF-8 text' '$tmp/err'"
+mkdir "$tmp/batch"
+cp "$here/../examples/sensor_restorer.cir" "$tmp/batch/a.cir"
+cp "$here/../examples/rf_doubler.cir" "$tmp/batch/z.cir"
+mkfifo "$tmp/batch/m_pipe.cir"
+ln -s "$tmp/batch/gone.cir" "$tmp/batch/n_dangling.cir"
+head -c 4096 /dev/urandom > "$tmp/batch/o_random.cir"
+printf 't\nR1 a 0 1\n' > "$tmp/batch/p_locked.cir"; chmod 000 "$tmp/batch/p_locked.cir"
+run check --format json -q "$tmp/batch"
+check "a batch with a FIFO, a dangling link and random bytes: the good files are still checked" bash -c "python3 -c '
+import json,sys
+r=json.load(open(sys.argv[1]))
+files={f[\"path\"].rsplit(\"/\",1)[-1]: f for f in r[\"files\"]}
+assert files[\"a.cir\"][\"stresses\"] and files[\"z.cir\"][\"stresses\"], files.keys()
+' '$tmp/out' && grep -q 'm_pipe.cir: error: cannot read: not a regular file' '$tmp/err' && grep -q 'n_dangling.cir: error: cannot read: no such file' '$tmp/err' && grep -q 'o_random.cir:' '$tmp/err'"
+if [ "$(id -u)" -ne 0 ]; then
+	check "an unreadable file in the batch is named with the reason" grep -q 'p_locked.cir: error: cannot read: permission denied' "$tmp/err"
+else
+	echo "cli: note: running as root, so a chmod 000 file is readable; the unreadable-file case is covered by the dangling link above"
+fi
+chmod 600 "$tmp/batch/p_locked.cir"
+
 # ---- check ----
 ex=$here/../examples
 run check --parts "$ex/parts.csv" "$ex"
@@ -155,6 +193,40 @@ check "--max-parts 2: the third part is a located error" bash -c "test $rc -eq 2
 printf 't\nR1 a\nR2 a\nR3 a\nR4 a\n' > "$tmp/errs.cir"
 run parts --max-errors 2 "$tmp/errs.cir"
 check "--max-errors 2: two errors, then a note that it stopped" bash -c "test \$(grep -c ': error:' '$tmp/err') -eq 2 && grep -q 'note: stopped after 2 errors' '$tmp/err'"
+printf 't\nR1 a 0 123456789\nRLONGNAME1 a 0 1\n' > "$tmp/tok.cir"
+run parts --max-token 8 "$tmp/tok.cir"
+check "--max-token 8: a 9-byte value is a located error" bash -c "test $rc -eq 2 && grep -q 'tok.cir:2:8: error: a word of 9 bytes is longer than the limit of 8' '$tmp/err'"
+check "--max-token 8: a 10-byte card name is a located error" grep -q 'tok.cir:3:1: error: a card name of 10 bytes' "$tmp/err"
+run parts --max-token 10 "$tmp/tok.cir"
+check "--max-token 10: the same file reads" test $rc -eq 0
+printf 't\n.param a={-(-(-(-(1))))}\nR1 x 0 {a}\n' > "$tmp/expr.cir"
+run parts --max-expr-depth 3 "$tmp/expr.cir"
+check "--max-expr-depth 3: a 5-deep expression is a located error" bash -c "test $rc -eq 2 && grep -q 'expr.cir:2:.*error: expression nests deeper than 3 levels' '$tmp/err'"
+run parts --max-expr-depth 6 "$tmp/expr.cir"
+check "--max-expr-depth 6: the same file reads" test $rc -eq 0
+printf 't\n.func f(x) {f(x)}\n.param a={f(1)}\nR1 x 0 {a}\n' > "$tmp/recur.cir"
+run parts "$tmp/recur.cir"
+check "a recursive .func stops at the default expression depth, located" bash -c "test $rc -eq 2 && grep -q 'recur.cir:.*error: expression nests deeper than 1000 levels' '$tmp/err'"
+python3 -c "print('t'); print('.param a = {' + '-('*12000 + '1' + ')'*12000 + '}'); print('R1 x 0 1')" > "$tmp/deepexpr.cir"
+run parts "$tmp/deepexpr.cir"
+check "12000 nested parentheses: a located error, not out-of-memory" bash -c "test $rc -eq 2 && grep -q 'deepexpr.cir:2:[0-9]*: error: nesting too deep for the parser' '$tmp/err' && ! grep -q 'out of memory' '$tmp/err'"
+printf 't\n.if (1)\n.if (1)\n.if (1)\nR1 a 0 1\n.endif\n.endif\n.endif\n' > "$tmp/if.cir"
+run parts --max-if-depth 2 "$tmp/if.cir"
+check "--max-if-depth 2: the third .if is a located error" bash -c "test $rc -eq 2 && grep -q 'if.cir:4:1: error: .if blocks nest deeper than 2 levels' '$tmp/err'"
+run parts --max-if-depth 3 "$tmp/if.cir"
+check "--max-if-depth 3: the same file reads" test $rc -eq 0
+python3 -c "print('t'); [print('.if (1)') for i in range(70)]; print('R1 a 0 1'); [print('.endif') for i in range(70)]" > "$tmp/if70.cir"
+run parts "$tmp/if70.cir"
+check "70 nested .if: the default 64 is a located error, said once" bash -c "test $rc -eq 2 && test \$(grep -c ': error:' '$tmp/err') -eq 1 && grep -q 'if70.cir:66:1: error' '$tmp/err'"
+run parts --max-nodes 2 "$tmp/short.cir"
+check "--max-nodes 2: the third node is a located error" bash -c "test $rc -eq 2 && grep -q 'short.cir:3:1: error: the circuit grows past 2 nodes' '$tmp/err'"
+run parts --max-nodes 3 "$tmp/short.cir"
+check "--max-nodes 3: the same file reads" test $rc -eq 0
+printf 't\nV1 a 0 pwl(0 0 1u 1 2u 0)\nR1 a 0 1k\n' > "$tmp/pwl.cir"
+run parts --max-pwl 2 "$tmp/pwl.cir"
+check "--max-pwl 2: a 3-point PWL is a located error" bash -c "test $rc -eq 2 && grep -q 'pwl.cir:2:8: error: waveform has more than 4 values (2 points' '$tmp/err'"
+run parts --max-pwl 3 "$tmp/pwl.cir"
+check "--max-pwl 3: the same file reads" test $rc -eq 0
 run parts --max-line 99999999999 "$tmp/short.cir"
 check "a limit past its range is a usage error" test $rc -eq 2
 

@@ -6,6 +6,7 @@
 #include "testutil.h"
 
 #include <math.h>
+#include <unistd.h>
 
 static void assert_close(double a, double b)
 {
@@ -272,6 +273,54 @@ static void test_include_count_cap(void **state)
 	arena_destroy(ar);
 }
 
+/* A file that changes while it is read: opening the include appends to the
+ * top file, which is still open, so the change is certain to happen between
+ * the start and the end of its read. */
+static FILE *grow_open(void *ud, const char *path)
+{
+	const char *top = ud;
+	if (strstr(path, "inc.cir")) {
+		FILE *f = fopen(top, "ab");
+		assert_non_null(f);
+		fputs("R9 z 0 1\n", f);
+		fclose(f);
+	}
+	return fopen(path, "rb");
+}
+
+static void test_file_changed_while_read(void **state)
+{
+	(void)state;
+	char dir[] = "/tmp/hr_grow_XXXXXX";
+	assert_non_null(mkdtemp(dir));
+	char top[64], inc[64];
+	snprintf(top, sizeof top, "%s/top.cir", dir);
+	snprintf(inc, sizeof inc, "%s/inc.cir", dir);
+	FILE *f = fopen(top, "wb");
+	fputs("t\n.include inc.cir\nR1 a 0 1\n", f);
+	fclose(f);
+	f = fopen(inc, "wb");
+	fputs("R2 b 0 1\n", f);
+	fclose(f);
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	struct elab_opts o = {0};
+	o.open = grow_open;
+	o.open_ud = top;
+	struct elab_result res;
+	assert_int_equal(elab_file(top, &o, &h, d, &res), ELAB_ERRORS);
+	char *txt = render_headers(d);
+	assert_non_null(strstr(txt, "top.cir: error: the file changed while it was read (28 bytes, now 37)"));
+	free(txt);
+	nl_destroy(res.circuit);
+	diag_destroy(d);
+	arena_destroy(ar);
+	remove(inc);
+	remove(top);
+	rmdir(dir);
+}
+
 /* Adjacency: every pin of every part appears under its node. */
 static void test_adjacency(void **state)
 {
@@ -307,6 +356,7 @@ int main(void)
 		cmocka_unit_test(test_expansion_cap),
 		cmocka_unit_test(test_include_count_cap),
 		cmocka_unit_test(test_adjacency),
+		cmocka_unit_test(test_file_changed_while_read),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

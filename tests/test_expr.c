@@ -81,7 +81,7 @@ static double eval_text(struct arena *ar, const char *text, enum expr_status *st
 		*st = EXPR_BAD_CALL;
 		return NAN;
 	}
-	struct expr_env env = {var, func, &twice};
+	struct expr_env env = {var, func, &twice, 0};
 	double v = NAN;
 	*st = expr_eval(e, &env, &v, err);
 	return v;
@@ -134,7 +134,7 @@ static void test_recursion(void **state)
 	(void)state;
 	struct run r;
 	run_text(&r, "t\n.func f(x) = f(x)+1\nR1 a 0 {f(1)}\n");
-	assert_string_equal(r.diags, "top.cir:2:14: error: expression nests deeper than 1000 levels [expression]\n");
+	assert_string_equal(r.diags, "top.cir:2:14: error: expression nests deeper than 1000 levels (--max-expr-depth) [expression]\n");
 	run_free(&r);
 }
 
