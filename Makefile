@@ -10,13 +10,14 @@ WARN    := -Wall -Wextra -Wpedantic -Werror -Wshadow -Wconversion \
            -Wstrict-prototypes -Wmissing-prototypes
 OPT     ?= -O2 -g
 SAN     ?=
-CPPFLAGS := -Iinclude -Igrammar -I$(BUILD) -D_XOPEN_SOURCE=700
+CPPFLAGS := -Iinclude -Igrammar -I$(BUILD) -I/usr/include/suitesparse -D_XOPEN_SOURCE=700
 CFLAGS  := $(CSTD) $(OPT) $(SAN)
-LDLIBS  := -lm -lpthread
+LDLIBS  := -lklu -lm -lpthread
 # Generated scanner/parser code gets the exemptions flex output needs.
 GENWARN := -Wall -Wno-unused-function -Wno-sign-compare -Wno-unused-parameter
 
-LIB_SRC := $(filter-out src/main.c,$(wildcard src/*.c))
+LIB_SRC := $(filter-out src/main.c src/cli_%.c,$(wildcard src/*.c))
+CLI_OBJ := $(BUILD)/obj/main.o $(patsubst src/%.c,$(BUILD)/obj/%.o,$(wildcard src/cli_*.c))
 LIB_OBJ := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIB_SRC)) \
            $(BUILD)/obj/spice.tab.o $(BUILD)/obj/spice.lex.o
 TESTS   := $(patsubst tests/%.c,$(BUILD)/%,$(wildcard tests/test_*.c))
@@ -51,7 +52,7 @@ $(BUILD)/obj/%.o: src/%.c $(BUILD)/spice.lex.h $(wildcard include/*.h grammar/*.
 $(BUILD)/libheadroom.a: $(LIB_OBJ)
 	ar rcs $@ $^
 
-$(BUILD)/headroom: $(BUILD)/obj/main.o $(BUILD)/libheadroom.a
+$(BUILD)/headroom: $(CLI_OBJ) $(BUILD)/libheadroom.a
 	$(CC) $(CFLAGS) -o $@ $^ $(LDLIBS)
 
 $(BUILD)/test_%: tests/test_%.c tests/testutil.h $(BUILD)/libheadroom.a
@@ -108,6 +109,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_sim.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py

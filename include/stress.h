@@ -31,6 +31,9 @@ struct stress {
 	double discharge_s;     /* time to fall below the hazard voltage */
 	/* surge: the series resistance that limits it (0: nothing) */
 	double series_r;
+	/* --verify: the same quantity in the steady-state simulation at the
+	   +tol corner, NaN when not simulated (verify.h) */
+	double sim_worst;
 };
 
 /* Per structure: figures that need the whole structure. */
@@ -55,6 +58,23 @@ struct stress_result {
 	const char *corners[8];
 	size_t ncorners;
 	const struct prop_result *runs;   /* one propagation per corner */
+	const struct stress_verify *verify; /* --verify's run, or NULL */
+};
+
+/* Index in runs of the corner with amplitudes and offsets at +tol. */
+#define STRESS_CORNER_HIGH 1
+
+/* What --verify did for a file (filled by verify_run). */
+struct stress_verify {
+	int simulated;          /* the solver ran to the end */
+	const char *why;        /* when not: the reason (static or in the arena) */
+	unsigned periods;       /* periods run before the recorded one */
+	int settled;            /* steady state reached within the cap */
+	double period;          /* s */
+	size_t started;         /* capacitors started at their analytic voltage */
+	size_t confirmed, gaps; /* stresses within / above their bound */
+	unsigned long points, newton;
+	size_t unknowns;
 };
 
 /* Computes the stresses for audit a (analysed) with ratings r and profile

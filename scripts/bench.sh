@@ -139,3 +139,61 @@ if [ $have_ngspice -eq 1 ]; then
 	echo "bench: ngspice load / full check = $(awk -v a="$tn" -v b="$cb" 'BEGIN{printf "%.2f", (b>0)?a/b:0}')x (target >= 40x)"
 fi
 echo "bench: check growth 10x parts -> $(awk -v a="$cb" -v b="$ca" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
+
+# ---- the transient cross-check (docs/solver.md) ----
+# An N-stage Cockcroft-Walton ladder with a resistive load and a diode model
+# with series resistance, junction capacitance and transit time.
+cw_deck() {
+	awk -v n="$1" 'BEGIN {
+		print "loaded Cockcroft-Walton benchmark"
+		print "V1 in 0 sin(0 100 20k)"
+		print ".model dhv d is=5n n=1.6 rs=1 cjo=8p tt=50n bv=2000"
+		for (k = 1; k <= n; k++) {
+			pa = k == 1 ? "in" : "a" (k - 1); pd = k == 1 ? "0" : "d" (k - 1)
+			printf "CA%d %s a%d 100n\nDC%d %s a%d dhv\nDP%d a%d d%d dhv\nCD%d %s d%d 100n\n", k, pa, k, k, pd, k, k, k, k, k, pd, k
+		}
+		printf "RL d%d 0 %dmeg\n", n, 2 * n
+		print ".end" }'
+}
+
+# ngspice's transient of file over tstop with the same largest step, and
+# the largest |v(node)| over its last period (period p).
+ngspice_tran() { # file tstop tmax node p out
+	sed -e 's/^\.end$//' "$1" > "$work/ng.cir"
+	printf '.tran %s %s 0 %s uic\n.control\nrun\nwrdata %s v(%s)\n.endc\n.end\n' \
+		"$3" "$2" "$3" "$work/ng.txt" "$4" >> "$work/ng.cir"
+	read -r tn _ < <(BENCH_RUNS=1 measure ngspice -b "$work/ng.cir")
+	awk -v t0="$(awk -v a="$2" -v b="$5" 'BEGIN{print a-b}')" \
+		'$1 >= t0 { v = $2 < 0 ? -$2 : $2; if (v > m) m = v } END { print m }' "$work/ng.txt" > "$6"
+	echo "$tn"
+}
+
+if [ $have_ngspice -eq 1 ]; then
+	echo "bench: transient cross-check, best of $runs runs (ngspice: 1 run)"
+	for n in 4 20; do
+		cw_deck "$n" > "$work/cw$n.cir"
+		per=5e-05
+		# --verify: analysis, then steady state from the analytic capacitor voltages
+		"$bin" check --verify --format json --fail-on never "$work/cw$n.cir" > "$work/v.json"
+		p=$(python3 -c "import json,sys; print(json.load(open(sys.argv[1]))['files'][0]['verify']['periods'])" "$work/v.json")
+		read -r tv mv < <(measure "$bin" check --verify --format json --fail-on never "$work/cw$n.cir")
+		tstop=$(awk -v p="$p" -v t="$per" 'BEGIN{print (p+1)*t}')
+		tn=$(ngspice_tran "$work/cw$n.cir" "$tstop" "$(awk -v t="$per" 'BEGIN{print t/200}')" "d$n" "$per" "$work/ngpk")
+		printf 'ladder-%-2d-stages       check --verify %6.3f s %6d KB: steady after %d periods from the analytic start;\n' \
+			"$n" "$tv" "$mv" "$p"
+		printf '                       ngspice over the same %g s from zero: %.3f s; ngspice / headroom = %.2fx (goal >= 1)\n' \
+			"$tstop" "$tn" "$(awk -v a="$tn" -v b="$tv" 'BEGIN{print (b>0)?a/b:0}')"
+		# the solver alone, both from zero over the same time and step
+		T=$(awk -v t="$per" 'BEGIN{print 200*t}')
+		read -r ts _ < <(measure "$bin" sim "$work/cw$n.cir" --node "d$n" --until "$T")
+		"$bin" sim "$work/cw$n.cir" --node "d$n" --until "$T" 2>/dev/null |
+			awk -F, -v t0="$(awk -v a="$T" -v b="$per" 'BEGIN{print a-b}')" \
+			'NR > 1 && $1 >= t0 { v = $2 < 0 ? -$2 : $2; if (v > m) m = v } END { print m }' > "$work/ourpk"
+		tn2=$(ngspice_tran "$work/cw$n.cir" "$T" "$(awk -v t="$per" 'BEGIN{print t/200}')" "d$n" "$per" "$work/ngpk2")
+		printf '                       sim from zero to %g s: headroom %.3f s, ngspice %.3f s, ngspice / headroom = %.2fx;\n' \
+			"$T" "$ts" "$tn2" "$(awk -v a="$tn2" -v b="$ts" 'BEGIN{print (b>0)?a/b:0}')"
+		printf '                       output peak over the last period: headroom %.4g V, ngspice %.4g V (%+.3f %%, goal within 1 %%)\n' \
+			"$(cat "$work/ourpk")" "$(cat "$work/ngpk2")" \
+			"$(awk -v a="$(cat "$work/ourpk")" -v b="$(cat "$work/ngpk2")" 'BEGIN{print (b!=0)?100*(a-b)/b:0}')"
+	done
+fi

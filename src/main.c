@@ -16,11 +16,13 @@
 #include "diag.h"
 #include "elab.h"
 #include "audit.h"
+#include "cli_sim.h"
 #include "report_parts.h"
 #include "report_check.h"
 #include "report_topo.h"
 #include "rules.h"
 #include "stress.h"
+#include "verify.h"
 #include "waiver.h"
 #include <dirent.h>
 #include <sys/stat.h>
@@ -41,6 +43,7 @@ struct cli {
 	const char *waivers, *baseline, *write_baseline, *today, *out_path;
 	size_t jobs;           /* -j; 0: one per processor */
 	int quiet;
+	int verify;            /* --verify: simulate each file too */
 	const char *parts;     /* parts table */
 	int fail_on;           /* DIAG_* level, or -1 for never */
 	const char *argv0;
@@ -60,6 +63,8 @@ static void usage(FILE *out)
 	      "  check FILE|DIR...    worst-case stresses against ratings and the\n"
 	      "                       derating profile; findings and a stress table\n"
 	      "  rules                the rules and the profile's limits\n"
+	      "  sim FILE --node N... waveforms of nodes over one steady-state period\n"
+	      "                       (or 0 to --until T) as CSV; see headroom(1)\n"
 	      "\n"
 	      "options:\n"
 	      "  --format FMT         parts: text (default), csv, json, count\n"
@@ -78,6 +83,9 @@ static void usage(FILE *out)
 	      "  --baseline FILE      report only findings not in this earlier JSON report\n"
 	      "  --write-baseline FILE  also write the JSON report to FILE\n"
 	      "  --today YYYY-MM-DD   the date waiver expiry is judged against\n"
+	      "  --verify             check: also simulate each netlist to its periodic\n"
+	      "                       steady state at the worst corner and set each\n"
+	      "                       simulated stress beside its analytic bound\n"
 	      "  -q, --quiet          findings only: no structures, tables, summary or\n"
 	      "                       progress bar\n"
 	      "  --max-parts N        stop expanding a netlist past N parts\n"
@@ -279,6 +287,8 @@ static int parse_args(struct cli *c, int argc, char **argv)
 			i++;
 		} else if (strcmp(a, "--quiet") == 0 || strcmp(a, "-q") == 0) {
 			c->quiet = 1;
+		} else if (strcmp(a, "--verify") == 0) {
+			c->verify = 1;
 		} else if (a[0] == '-' && a[1] != '\0') {
 			fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", a);
 			return 0;
@@ -522,7 +532,8 @@ static int check_one(const struct batch *b, const char *path, int first,
 	if (st == AUDIT_OK) {
 		const struct rating_table *tab = c->parts ? rating_table_load(c->parts, a.ar, d) : NULL;
 		f.ratings = rating_resolve(a.er.circuit, tab, a.annots, a.nannots, a.ar, d);
-		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) || !rules_run(&a, f.ratings, p, &sr, &rr) ||
+		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) ||
+		    (c->verify && !verify_run(&a, p, &sr)) || !rules_run(&a, f.ratings, p, &sr, &rr) ||
 		    !waiver_apply(&a, b->waivers, b->today, &rr))
 			st = AUDIT_OOM;
 		else {
@@ -901,6 +912,8 @@ int main(int argc, char **argv)
 			return 0;
 		}
 	}
+	if (argc > 1 && strcmp(argv[1], "sim") == 0)
+		return cli_sim(argc - 1, argv + 1);
 	int ok = parse_args(&c, argc, argv);
 	int rc = EXIT_USAGE;
 	if (!ok) {

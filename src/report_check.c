@@ -8,6 +8,7 @@
 #include <string.h>
 
 #include "num.h"
+#include "verify.h"
 #include "report_parts.h"
 #include "report_topo.h"
 #include "version.h"
@@ -65,6 +66,23 @@ static const char *qty_unit(const struct stress *s)
 	return s->qty == SQ_SURGE ? "A" : "V";
 }
 
+/* The --verify line: how the simulation ran, or why it did not. */
+static void text_verify(FILE *out, const struct stress_verify *v)
+{
+	if (!v)
+		return;
+	if (!v->simulated) {
+		fprintf(out, "  not simulated (--verify): %s\n", v->why ? v->why : "?");
+		return;
+	}
+	char per[24];
+	num_format_eng(v->period, "s", per, sizeof per);
+	fprintf(out, "  simulated (--verify): %s after %u periods of %s, %zu capacitors started "
+		     "at their analytic voltages; %zu stresses confirmed, %zu above their bounds\n",
+		v->settled ? "steady" : "NOT steady (cap reached)", v->periods, per, v->started,
+		v->confirmed, v->gaps);
+}
+
 static void text_table(FILE *out, const struct check_file *f)
 {
 	const struct stress_result *sr = f->stress;
@@ -76,8 +94,10 @@ static void text_table(FILE *out, const struct check_file *f)
 		size_t l = strlen(nl_part_at(c, sr->s[i].part)->path);
 		w = l > w ? l : w;
 	}
-	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s\n", (int)w, "part", "in",
-		"stress", "role", "worst", "best", "rating", "ratio");
+	int sim = sr->verify && sr->verify->simulated;
+	text_verify(out, sr->verify);
+	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s%s\n", (int)w, "part", "in",
+		"stress", "role", "worst", "best", "rating", "ratio", sim ? "   simulated" : "");
 	for (size_t i = 0; i < sr->n; i++) {
 		const struct stress *s = &sr->s[i];
 		const struct nl_part *p = nl_part_at(c, s->part);
@@ -94,9 +114,15 @@ static void text_table(FILE *out, const struct check_file *f)
 			num_format_eng(rated, qty_unit(s), rv, sizeof rv);
 		if (!isnan(rated) && s->bounded && isfinite(s->worst))
 			snprintf(ratio, sizeof ratio, "%.0f%%", 100 * s->worst / rated);
-		fprintf(out, "  %-*s  %-4s %-7s %-38.38s %11s %11s %10s %6s\n", (int)w, p->path, st,
+		char sv[24] = "-";
+		if (isfinite(s->sim_worst))
+			num_format_eng(s->sim_worst, qty_unit(s), sv, sizeof sv);
+		fprintf(out, "  %-*s  %-4s %-7s %-38.38s %11s %11s %10s %6s", (int)w, p->path, st,
 			s->qty == SQ_SURGE ? "surge" : p->kind == NL_D ? "reverse" : "voltage",
 			s->role[0] ? s->role : "-", wv, bv, rv, ratio);
+		if (sim)
+			fprintf(out, " %11s%s", sv, verify_gap(s) ? " GAP" : "");
+		fputc('\n', out);
 	}
 }
 
@@ -204,6 +230,11 @@ static void json_stress(FILE *out, const struct check_file *f,
 		fputs(", \"energy\": ", out);
 		jnum(out, s->energy_j);
 	}
+	if (f->stress->verify) {
+		fputs(", \"simulated\": ", out);
+		jnum(out, s->sim_worst);
+		fprintf(out, ", \"analysis_gap\": %s", verify_gap(s) ? "true" : "false");
+	}
 	fputc('}', out);
 }
 
@@ -259,6 +290,18 @@ static void json_file(FILE *out, const struct check_file *f)
 	json_errors(out, f);
 	fputs(",\n      ", out);
 	report_topo_json_structures(out, f->a, f->d);
+	const struct stress_verify *v = f->a->analysed ? f->stress->verify : NULL;
+	if (v) {
+		fprintf(out, ",\n      \"verify\": {\"simulated\": %s, \"reason\": ",
+			v->simulated ? "true" : "false");
+		jstr(out, v->simulated ? NULL : v->why);
+		fprintf(out, ", \"settled\": %s, \"periods\": %u, \"period\": ",
+			v->settled ? "true" : "false", v->periods);
+		jnum(out, v->period);
+		fprintf(out, ", \"started_from_analysis\": %zu, \"confirmed\": %zu, "
+			     "\"gaps\": %zu, \"points\": %lu, \"unknowns\": %zu}",
+			v->started, v->confirmed, v->gaps, v->points, v->unknowns);
+	}
 	fputs(",\n      \"stresses\": [", out);
 	size_t n = f->a->analysed ? f->stress->n : 0;
 	for (size_t i = 0; i < n; i++) {

@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "num.h"
+#include "verify.h"
 
 const struct rule_info rules_table[] = {
 	{"cap-overvoltage", DIAG_ERROR, "a capacitor sees more than its rated voltage"},
@@ -24,6 +25,7 @@ const struct rule_info rules_table[] = {
 	{"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
 	{"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
 	{"stress-unsettled", DIAG_NOTE, "a part's stress could not be bounded"},
+	{"analysis-gap", DIAG_ERROR, "the simulation (--verify) exceeds a part's analytic worst case"},
 	{"waiver-expired", DIAG_WARNING, "a waiver's date has passed: what it covered is reported again"},
 	{"waiver-unused", DIAG_NOTE, "a waiver matches no finding"},
 };
@@ -146,6 +148,16 @@ static const char *where(struct ctx *x, const struct stress *s)
 	return str(x, "%s in S%d (%s)", s->role, s->structure + 1, topo_kind_name(t->kind));
 }
 
+/* "; simulated 287.6 V: confirmed by simulation", or "" */
+static const char *simulation(struct ctx *x, const struct stress *s)
+{
+	if (!isfinite(s->sim_worst))
+		return "";
+	return str(x, "; simulated %s: %s", v(x, s->sim_worst, "V"),
+		   verify_gap(s) ? "ABOVE the analytic bound (analysis-gap)"
+				 : "confirmed by simulation");
+}
+
 static const char *computation(struct ctx *x, const struct stress *s)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
@@ -155,11 +167,30 @@ static const char *computation(struct ctx *x, const struct stress *s)
 	if (s->qty == SQ_SURGE)
 		return str(x, "%s: power-up surge = peak drive %s / series %s (%s)", where(x, s),
 			   v(x, s->worst * s->series_r, "V"), v(x, s->series_r, "ohm"), s->corner);
+	const char *simulated = simulation(x, s);
 	if (p->kind == NL_D)
-		return str(x, "%s: reverse = max v(%s) - v(%s) over a period = %s (%s); best case %s",
-			   where(x, s), n1, n0, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"));
-	return str(x, "%s: |V| = max |v(%s) - v(%s)| over a period = %s (%s); best case %s",
-		   where(x, s), n0, n1, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"));
+		return str(x, "%s: reverse = max v(%s) - v(%s) over a period = %s (%s); best case %s%s",
+			   where(x, s), n1, n0, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"),
+			   simulated);
+	return str(x, "%s: |V| = max |v(%s) - v(%s)| over a period = %s (%s); best case %s%s",
+		   where(x, s), n0, n1, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"),
+		   simulated);
+}
+
+static void gap(struct ctx *x, const struct stress *s)
+{
+	struct finding *f = add(x, "analysis-gap", s->part, s->structure);
+	if (!f)
+		return;
+	int diode = nl_part_at(x->a->er.circuit, s->part)->kind == NL_D;
+	f->message = str(x, "the simulation puts %s %s on %s, above its analytic worst case %s: "
+			    "that bound is not sound here",
+			 v(x, s->sim_worst, "V"), diode ? "reverse" : "across", f->subject,
+			 v(x, s->worst, "V"));
+	f->worst = s->sim_worst;
+	f->computation = computation(x, s);
+	f->fix = "report the netlist: the analysis missed a mechanism; until then judge the part "
+		 "by the simulated value";
 }
 
 static const char *fix_rating(struct ctx *x, double worst, double factor,
@@ -366,6 +397,8 @@ static void part_rules(struct ctx *x, const struct stress *s)
 					 f->subject, where(x, s));
 		return;
 	}
+	if (verify_gap(s))
+		gap(x, s);
 	if (isnan(x->r[s->part].v_rated.value)) {
 		if (s->structure >= 0)
 			missing(x, s, cls);

@@ -87,6 +87,7 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 {
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, i);
 	memset(s, 0, sizeof *s);
+	s->sim_worst = NAN;
 	s->part = i;
 	s->structure = x->struct_of[i] == UINT32_MAX ? -1 : (int32_t)x->struct_of[i];
 	s->role = x->role_of[i] ? x->role_of[i] : "";
@@ -336,6 +337,7 @@ static void surge(struct ctx *x, size_t si, uint32_t part, struct stress *s)
 	const uint32_t *q = nl_pins(x->a->er.circuit, p);
 	double v = 0, lo, hi;
 	memset(s, 0, sizeof *s);
+	s->sim_worst = NAN;
 	s->part = part;
 	s->structure = (int32_t)si;
 	s->role = x->role_of[part] ? x->role_of[part] : "";

@@ -1,0 +1,82 @@
+/* sim.h: the transient solver. It reads the flat circuit and nothing of
+ * the analysis it is there to check: modified nodal analysis of R, C, L,
+ * K, D, V, I, E, F, G, H; Newton-Raphson with junction limiting;
+ * trapezoidal integration with backward Euler on the first step and after
+ * every source corner; step size from a local truncation error estimate;
+ * SuiteSparse KLU for the linear solves. docs/solver.md has the equations
+ * and the limits. */
+#ifndef HEADROOM_SIM_H
+#define HEADROOM_SIM_H
+
+#include <stddef.h>
+
+#include "arena.h"
+#include "nl.h"
+
+struct sim_opts {
+	double stop;       /* SPICE's TSTOP, for waveform defaults only */
+	double step;       /* SPICE's TSTEP, for pulse edges (0: stop/1000) */
+	double max_step;   /* largest time step; 0: 1/200 of the shortest
+			      source period, else stop/200 */
+	double reltol;     /* 0: 1e-3 */
+	double vntol;      /* V; 0: 1e-6 */
+	double abstol;     /* A; 0: 1e-12 */
+	/* per part (NULL: none): an independent source's waveform about its
+	   mean is multiplied by ac_scale[i], its mean by dc_scale[i], or the
+	   mean replaced by dc_set[i] when that is not NaN */
+	const double *ac_scale, *dc_scale, *dc_set;
+	const double *cap_v0; /* per part: a capacitor's voltage at t = 0
+				 (NaN: its ic=, else 0); NULL: ic= or 0 */
+};
+
+struct sim;
+
+/* Why a circuit cannot be simulated: the part and a sentence. */
+struct sim_refusal {
+	uint32_t part;     /* NL_NONE when no one part is to blame */
+	char why[160];
+};
+
+enum sim_status { SIM_OK, SIM_REFUSED, SIM_NO_CONVERGENCE, SIM_SINGULAR,
+		  SIM_OOM };
+
+/* Builds the solver for circuit c (borrowed; must outlive the solver). On
+ * SIM_REFUSED *ref says why (an opaque or behavioural part, a diode
+ * without a usable model). */
+enum sim_status sim_create(const struct nl_circuit *c, const struct sim_opts *o,
+			   const struct hr_alloc *h, struct sim **out,
+			   struct sim_refusal *ref);
+/* Frees the solver. NULL is a no-op. */
+void sim_destroy(struct sim *s);
+
+/* Called at every accepted time point after the start with the node voltages
+ * (indexed by node id; v[0] = 0). Return non-zero to stop the run. */
+typedef int (*sim_point_fn)(void *ud, double t, const double *v);
+
+/* Runs from the current time to t_end. */
+enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud);
+
+/* The longest repetition period among the sources (0 if none repeats). */
+double sim_period(const struct sim *s);
+/* The time reached. */
+double sim_time(const struct sim *s);
+/* Node voltages at the time reached, indexed by node id (v[0] = 0). */
+const double *sim_voltages(const struct sim *s);
+
+/* Periodic steady state: runs whole periods until the node voltages at
+ * the start of successive periods agree within tol (relative to the
+ * largest) and the decay seen so far leaves less than tol to come, or
+ * max_periods have run. *periods gets the number run; the return is SIM_OK
+ * with *settled 0 when the cap was hit. */
+enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
+			   double tol, unsigned *periods, int *settled);
+
+struct sim_stats {
+	unsigned long points, rejected, newton, fresh_lu, refactor_lu;
+	size_t unknowns;
+};
+void sim_stats(const struct sim *s, struct sim_stats *out);
+
+const char *sim_status_text(enum sim_status st);
+
+#endif

@@ -1,0 +1,67 @@
+/* simdev.h: the solver's devices: their unknowns, their matrix positions,
+ * and their linearised stamps at one Newton iterate. Used by sim.c only;
+ * the device equations are in docs/solver.md. */
+#ifndef HEADROOM_SIMDEV_H
+#define HEADROOM_SIMDEV_H
+
+#include <stdint.h>
+
+#include "nl.h"
+#include "simmat.h"
+
+enum simdev_kind { SD_R, SD_C, SD_L, SD_K, SD_V, SD_I, SD_E, SD_G, SD_F,
+		   SD_H, SD_D };
+
+/* Diode parameters after area scaling (SPICE level 1 names). */
+struct simdev_diode {
+	double is, n, rs, cjo, vj, m, tt, fc, bv, ibv;
+	double nvt, vcrit, xbv;  /* derived */
+};
+
+struct simdev {
+	uint8_t kind;
+	uint32_t part;        /* index in the circuit */
+	long a, b, c, d;      /* unknown of each pin, -1 for ground */
+	long br;              /* branch current unknown, or -1 */
+	long br2;             /* K: second inductor's branch; F, H: control */
+	long p;               /* diode: junction anode (internal node if rs) */
+	double val;           /* conductance, C, L, M (for K), gain */
+	const struct nl_source *src;
+	double mean;          /* source: mean of its waveform */
+	double ac_k, dc_v;    /* source: waveform about the mean times ac_k,
+				 plus dc_v (the corner's mean) */
+	struct simdev_diode *dm;
+	long h[8];            /* matrix handles */
+	/* integration state: charge (C, D) or flux (L) and the element's
+	 * current (C, D) or voltage (L) at the last accepted point, and the
+	 * same at the iterate */
+	double q0, f0, q, f;
+	double vd;            /* diode: junction voltage of the linearisation */
+	double qh[3], th[3];  /* charge history for the error estimate */
+};
+
+/* What a stamp needs to know about the step. */
+struct simdev_step {
+	double t;             /* time of the point being solved */
+	double a;             /* 2/h (trapezoidal) or 1/h (backward Euler) */
+	double b;             /* 1 (trapezoidal) or 0 */
+	const void *span;     /* struct simsrc_span */
+	double gmin;
+};
+
+/* Registers the matrix positions of d. Returns 0 on out-of-memory. */
+int simdev_need(struct simdev *d, struct simmat *m);
+
+/* Stamps d linearised at iterate x (x[-1] is never read: ground is 0).
+ * Sets *limited when a diode's junction voltage was limited. */
+void simdev_stamp(struct simdev *d, const struct simdev_step *st,
+		  struct simmat *m, const double *x, int *limited);
+
+/* Charge (or flux) and its current (or voltage) at iterate x, into q, f. */
+void simdev_update(struct simdev *d, const struct simdev_step *st,
+		   const double *x);
+
+/* Fills the derived diode parameters. */
+void simdev_diode_init(struct simdev_diode *m);
+
+#endif

@@ -1,0 +1,48 @@
+/* simrun.h: what the commands ask of the solver: `headroom sim` (node
+ * waveforms as CSV, over a set time or over one period of the steady
+ * state) and `check --verify` (each part's extreme voltages over one
+ * steady-state period at a chosen source corner). */
+#ifndef HEADROOM_SIMRUN_H
+#define HEADROOM_SIMRUN_H
+
+#include <stdio.h>
+
+#include "sim.h"
+
+struct simrun_opts {
+	double until;          /* > 0: plain run from 0 to here; 0: steady state */
+	double from;           /* first time written (plain run) */
+	double max_step;       /* 0: the solver's default */
+	unsigned max_periods;  /* steady state: cap (0: 2000) */
+	double settle_tol;     /* steady state: relative (0: 1e-4) */
+	const double *ac_scale, *dc_scale, *dc_set; /* source corner (sim.h) */
+	const double *cap_v0;  /* capacitor start voltages per part, or NULL */
+};
+
+struct simrun_result {
+	enum sim_status status;
+	struct sim_refusal refusal;
+	unsigned periods;
+	int settled;           /* steady state reached within the cap */
+	double period;         /* s; 0 when no source repeats */
+	double t_end;          /* time reached */
+	struct sim_stats stats;
+};
+
+/* Writes the voltages of nodes names[0..n) (node names; "a,b" is the
+ * difference v(a) - v(b)) as CSV rows "time,v(a),..." to out. A name that
+ * is not a node is reported in *bad (the name) with a 0 return; otherwise
+ * returns 1 and fills *r (whose status may still be a failure). */
+int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
+	       size_t n, const struct simrun_opts *o, const struct hr_alloc *h,
+	       struct simrun_result *r, const char **bad);
+
+/* Steady state at the corner in o, then one more period recorded: vmin
+ * and vmax (arrays of one entry per part) get the extremes of each
+ * two-pin part's voltage pin 0 minus pin 1 over that period; node_min and
+ * node_max (one per node, may be NULL) the extremes of each node. */
+void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
+		  const struct hr_alloc *h, double *vmin, double *vmax,
+		  double *node_min, double *node_max, struct simrun_result *r);
+
+#endif

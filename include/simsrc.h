@@ -1,0 +1,28 @@
+/* simsrc.h: an independent source's value over time in a transient run,
+ * as SPICE defines it (ngspice manual, "Independent sources": SIN, PULSE,
+ * PWL with r= and td=, EXP, SFFM), and the corners (breakpoints) where the
+ * waveform's slope jumps, so the solver can land on them. */
+#ifndef HEADROOM_SIMSRC_H
+#define HEADROOM_SIMSRC_H
+
+#include "nl.h"
+
+/* Defaults SPICE takes from the .tran card: step for rise and fall times,
+ * stop for pulse width, period and SIN frequency. */
+struct simsrc_span {
+	double step, stop;
+};
+
+/* Value of src at time t >= 0. */
+double simsrc_value(const struct nl_source *src, const struct simsrc_span *sp,
+		    double t);
+
+/* The first corner of src strictly after t (+ a small margin), or INFINITY. */
+double simsrc_next_corner(const struct nl_source *src,
+			  const struct simsrc_span *sp, double t);
+
+/* The repetition period of src (SIN, PULSE, repeating PWL, SFFM carrier),
+ * or 0 when it does not repeat. */
+double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp);
+
+#endif

@@ -1,0 +1,30 @@
+/* verify.h: `check --verify`: a second, independent opinion on every
+ * analytic stress. The whole circuit (each structure with its own sources,
+ * series impedances and loads, as drawn) is simulated by the transient
+ * solver (sim.h) to periodic steady state at the corner where the analysis
+ * found the worst: every source's amplitude and offset at +tol, a slowly
+ * moving rail at the top of its range; capacitors start from the voltages
+ * the analysis predicts. Each stress then carries its simulated value. */
+#ifndef HEADROOM_VERIFY_H
+#define HEADROOM_VERIFY_H
+
+#include "audit.h"
+#include "profile.h"
+#include "stress.h"
+
+/* A simulated stress above its analytic bound by more than this (relative,
+ * plus VERIFY_GAP_ABS volts) is an analysis gap: the solver's own accuracy
+ * (reltol 1e-3) is not mistaken for one. */
+#define VERIFY_GAP_REL 2e-3
+#define VERIFY_GAP_ABS 0.01
+
+/* Simulates a's circuit and fills sim_worst of every voltage and reverse
+ * stress in sr, and sr->verify. A circuit the solver cannot take (an
+ * opaque part, no repeating source) is reported in sr->verify->why, not as
+ * an error. Allocates in a->ar. Returns 0 on out-of-memory. */
+int verify_run(struct audit *a, const struct profile *p, struct stress_result *sr);
+
+/* True when stress s was simulated above its bound (see VERIFY_GAP_*). */
+int verify_gap(const struct stress *s);
+
+#endif

@@ -1,0 +1,558 @@
+/* sim.c: see sim.h. Setup (unknowns and devices from the flat circuit),
+ * the Newton loop at one time point, the time loop with step control and
+ * source corners, and the periodic steady-state search. */
+#include "sim.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "simdev.h"
+#include "simmat.h"
+#include "simsrc.h"
+#include "sig.h"
+
+#define SIM_MAX_NEWTON 100
+#define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
+#define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
+
+struct sim {
+	struct hr_alloc h;
+	struct arena *ar;
+	const struct nl_circuit *c;
+	struct sim_opts o;
+	struct simsrc_span span;
+	size_t nnodes, n;        /* circuit nodes; unknowns */
+	struct simdev *dev;
+	size_t ndev;
+	struct simmat *m;
+	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
+	double t, hstep;
+	int after_corner;        /* next step is backward Euler */
+	unsigned nhist;          /* accepted points in the error history */
+	double period;
+	struct sim_stats st;
+};
+
+/* ---- setup ---- */
+
+static double model_param(const struct nl_model *m, const char *const *keys,
+			  double dflt)
+{
+	if (!m)
+		return dflt;
+	for (int k = 0; keys[k]; k++)
+		for (uint32_t i = 0; i < m->nparams; i++)
+			if (strcmp(m->keys[i], keys[k]) == 0 && isfinite(m->values[i]))
+				return m->values[i];
+	return dflt;
+}
+
+static struct simdev_diode *diode_model(struct sim *s, const struct nl_part *p)
+{
+	struct simdev_diode *d = arena_zalloc(s->ar, sizeof *d);
+	if (!d)
+		return NULL;
+	const struct nl_model *m = p->model;
+	double area = p->value > 0 ? p->value : 1;
+	d->is = model_param(m, (const char *const[]){"is", "js", NULL}, 1e-14) * area;
+	d->n = model_param(m, (const char *const[]){"n", NULL}, 1);
+	d->rs = model_param(m, (const char *const[]){"rs", NULL}, 0) / area;
+	d->cjo = model_param(m, (const char *const[]){"cjo", "cj0", "cj", NULL}, 0) * area;
+	d->vj = model_param(m, (const char *const[]){"vj", "pb", NULL}, 1);
+	d->m = model_param(m, (const char *const[]){"m", "mj", NULL}, 0.5);
+	d->tt = model_param(m, (const char *const[]){"tt", NULL}, 0);
+	d->fc = model_param(m, (const char *const[]){"fc", NULL}, 0.5);
+	d->bv = model_param(m, (const char *const[]){"bv", NULL}, INFINITY);
+	d->ibv = model_param(m, (const char *const[]){"ibv", NULL}, 1e-3) * area;
+	if (d->bv <= 0)
+		d->bv = INFINITY;
+	simdev_diode_init(d);
+	return d;
+}
+
+static long unknown_of(uint32_t node)
+{
+	return node == NL_GROUND ? -1 : (long)node - 1;
+}
+
+static int refuse(struct sim_refusal *ref, uint32_t part, const char *why)
+{
+	ref->part = part;
+	snprintf(ref->why, sizeof ref->why, "%s", why);
+	return 0;
+}
+
+/* Which solver device a part becomes; 0 with *ref filled when none. */
+static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
+		       struct sim_refusal *ref)
+{
+	static const uint8_t map[] = {[NL_R] = SD_R, [NL_C] = SD_C, [NL_L] = SD_L,
+				      [NL_K] = SD_K, [NL_D] = SD_D, [NL_V] = SD_V,
+				      [NL_I] = SD_I, [NL_E] = SD_E, [NL_F] = SD_F,
+				      [NL_G] = SD_G, [NL_H] = SD_H};
+	if (p->kind > NL_H || p->kind == NL_X_UNUSED)
+		return refuse(ref, i, "the solver has no model for this kind of part");
+	if (p->ext && p->ext->behavioural)
+		return refuse(ref, i, "behavioural sources (value=, poly, table) are not simulated");
+	if (p->kind == NL_D && p->model && strcmp(p->model->type, "d") != 0)
+		return refuse(ref, i, "the diode's model is not of type D");
+	if ((p->kind == NL_R || p->kind == NL_L) && !(p->value != 0 && isfinite(p->value)))
+		return refuse(ref, i, "a zero or missing value");
+	*kind = map[p->kind];
+	return 1;
+}
+
+/* Unknowns: nodes but ground, then diode internal nodes, then branches. */
+static int count_unknowns(struct sim *s, struct sim_refusal *ref)
+{
+	size_t np = nl_part_count(s->c);
+	s->n = s->nnodes - 1;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(s->c, i);
+		uint8_t k;
+		if (!device_kind(p, (uint32_t)i, &k, ref))
+			return 0;
+		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H)
+			s->n++;
+		if (k == SD_D && model_param(p->model, (const char *const[]){"rs", NULL}, 0) > 0)
+			s->n++;
+	}
+	return 1;
+}
+
+static long branch_of(const struct sim *s, uint32_t part)
+{
+	for (size_t i = 0; i < s->ndev; i++)
+		if (s->dev[i].part == part)
+			return s->dev[i].br;
+	return -1;
+}
+
+static double cap_start(const struct sim *s, const struct nl_part *p, size_t i)
+{
+	double v = s->o.cap_v0 ? s->o.cap_v0[i] : NAN;
+	if (!isfinite(v) && p->ext && isfinite(p->ext->ic))
+		v = p->ext->ic;
+	return isfinite(v) ? v : 0;
+}
+
+static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
+{
+	const struct nl_part *p = nl_part_at(s->c, i);
+	const uint32_t *pin = nl_pins(s->c, p);
+	struct sim_refusal ignore;
+	memset(d, 0, sizeof *d);
+	device_kind(p, (uint32_t)i, &d->kind, &ignore);
+	d->part = (uint32_t)i;
+	d->a = p->npins > 0 ? unknown_of(pin[0]) : -1;
+	d->b = p->npins > 1 ? unknown_of(pin[1]) : -1;
+	d->c = p->npins > 3 ? unknown_of(pin[2]) : -1;
+	d->d = p->npins > 3 ? unknown_of(pin[3]) : -1;
+	d->br = d->br2 = -1;
+	d->p = d->a;
+	double mult = p->ext && isfinite(p->ext->mult) && p->ext->mult > 0 ? p->ext->mult : 1;
+	d->val = p->value;
+	if (d->kind == SD_R)
+		d->val = mult / p->value;
+	else if (d->kind == SD_C)
+		d->val = p->value * mult;
+	else if (d->kind == SD_L)
+		d->val = p->value / mult;
+	if (d->kind == SD_V || d->kind == SD_L || d->kind == SD_E || d->kind == SD_H)
+		d->br = (*next)++;
+	if (d->kind == SD_D) {
+		d->dm = diode_model(s, p);
+		if (!d->dm)
+			return 0;
+		if (mult != 1) {
+			d->dm->is *= mult, d->dm->cjo *= mult, d->dm->ibv *= mult;
+			d->dm->rs /= mult;
+			simdev_diode_init(d->dm);
+		}
+		if (d->dm->rs > 0)
+			d->p = (*next)++;
+	}
+	if (d->kind == SD_V || d->kind == SD_I) {
+		d->src = p->ext ? p->ext->src : NULL;
+		struct sig sg;
+		if (!d->src || !sig_from_source(d->src, s->ar, &sg))
+			return d->src ? 0 : 1;
+		d->mean = sg.mean;
+		d->ac_k = s->o.ac_scale ? s->o.ac_scale[i] : 1;
+		d->dc_v = d->mean * (s->o.dc_scale ? s->o.dc_scale[i] : 1);
+		if (s->o.dc_set && isfinite(s->o.dc_set[i]))
+			d->dc_v = s->o.dc_set[i];
+	}
+	if (d->kind == SD_C)
+		d->q0 = d->val * cap_start(s, p, i);
+	return 1;
+}
+
+/* Second pass: K needs its inductors' branches, F and H their sources'. */
+static int link_controls(struct sim *s, struct sim_refusal *ref)
+{
+	for (size_t i = 0; i < s->ndev; i++) {
+		struct simdev *d = &s->dev[i];
+		const struct nl_part *p = nl_part_at(s->c, d->part);
+		if (d->kind != SD_K && d->kind != SD_F && d->kind != SD_H)
+			continue;
+		uint32_t c0 = p->ext ? p->ext->ctrl_part[0] : NL_NONE;
+		uint32_t c1 = p->ext ? p->ext->ctrl_part[1] : NL_NONE;
+		if (d->kind == SD_K) {
+			if (c0 == NL_NONE || c1 == NL_NONE)
+				return refuse(ref, d->part, "the coupled inductors are not both known");
+			const struct nl_part *l1 = nl_part_at(s->c, c0), *l2 = nl_part_at(s->c, c1);
+			d->br = branch_of(s, c0);
+			d->br2 = branch_of(s, c1);
+			d->val = p->value * sqrt(fabs(l1->value * l2->value));
+		} else {
+			d->br2 = c0 == NL_NONE ? -1 : branch_of(s, c0);
+			if (d->br2 < 0)
+				return refuse(ref, d->part, "the controlling voltage source is not known");
+		}
+	}
+	return 1;
+}
+
+static double shortest_period(struct sim *s, double *longest)
+{
+	double lo = INFINITY;
+	*longest = 0;
+	for (size_t i = 0; i < s->ndev; i++) {
+		if (!s->dev[i].src)
+			continue;
+		double per = simsrc_period(s->dev[i].src, &s->span);
+		if (per > 0) {
+			lo = fmin(lo, per);
+			*longest = fmax(*longest, per);
+		}
+	}
+	return lo;
+}
+
+static void defaults(struct sim *s)
+{
+	struct sim_opts *o = &s->o;
+	if (o->reltol <= 0)
+		o->reltol = 1e-3;
+	if (o->vntol <= 0)
+		o->vntol = 1e-6;
+	if (o->abstol <= 0)
+		o->abstol = 1e-12;
+	s->span.stop = o->stop;
+	s->span.step = o->step > 0 ? o->step : o->stop / 1000;
+}
+
+static enum sim_status build(struct sim *s, struct sim_refusal *ref)
+{
+	if (!count_unknowns(s, ref))
+		return SIM_REFUSED;
+	s->ndev = nl_part_count(s->c);
+	s->dev = arena_alloc(s->ar, (s->ndev + 1) * sizeof *s->dev);
+	size_t bytes = (s->n + 1) * sizeof(double);
+	s->x = arena_zalloc(s->ar, bytes);
+	s->xprev = arena_zalloc(s->ar, bytes);
+	s->v = arena_zalloc(s->ar, (s->nnodes + 1) * sizeof(double));
+	s->m = simmat_create(s->n, &s->h);
+	if (!s->dev || !s->x || !s->xprev || !s->v || !s->m)
+		return SIM_OOM;
+	long next = (long)s->nnodes - 1;
+	for (size_t i = 0; i < s->ndev; i++)
+		if (!fill_device(s, &s->dev[i], i, &next))
+			return SIM_OOM;
+	if (!link_controls(s, ref))
+		return SIM_REFUSED;
+	for (size_t i = 0; i < s->ndev; i++)
+		if (!simdev_need(&s->dev[i], s->m))
+			return SIM_OOM;
+	if (!simmat_freeze(s->m))
+		return SIM_OOM;
+	double shortest = shortest_period(s, &s->period);
+	if (s->o.max_step <= 0)
+		s->o.max_step = isfinite(shortest) ? shortest / 200 : s->o.stop / 200;
+	if (!(s->o.max_step > 0))
+		s->o.max_step = 1e-6;
+	return SIM_OK;
+}
+
+enum sim_status sim_create(const struct nl_circuit *c, const struct sim_opts *o,
+			   const struct hr_alloc *h, struct sim **out,
+			   struct sim_refusal *ref)
+{
+	*out = NULL;
+	ref->part = NL_NONE;
+	ref->why[0] = '\0';
+	struct arena *ar = arena_create(h);
+	struct sim *s = ar ? arena_zalloc(ar, sizeof *s) : NULL;
+	if (!s) {
+		arena_destroy(ar);
+		return SIM_OOM;
+	}
+	s->h = *h;
+	s->ar = ar;
+	s->c = c;
+	s->o = *o;
+	s->nnodes = nl_node_count(c);
+	s->after_corner = 1;
+	defaults(s);
+	enum sim_status st = build(s, ref);
+	if (st != SIM_OK) {
+		sim_destroy(s);
+		return st;
+	}
+	s->st.unknowns = s->n;
+	*out = s;
+	return SIM_OK;
+}
+
+void sim_destroy(struct sim *s)
+{
+	if (!s)
+		return;
+	simmat_destroy(s->m);
+	arena_destroy(s->ar);
+}
+
+/* ---- one time point ---- */
+
+static void node_voltages(struct sim *s)
+{
+	s->v[0] = 0;
+	for (size_t k = 1; k < s->nnodes; k++)
+		s->v[k] = s->x[k - 1];
+}
+
+static int converged(const struct sim *s, const double *xn)
+{
+	for (size_t k = 0; k < s->n; k++) {
+		double tol = s->o.reltol * fmax(fabs(xn[k]), fabs(s->x[k])) +
+			     (k + 1 < s->nnodes ? s->o.vntol : s->o.abstol);
+		if (fabs(xn[k] - s->x[k]) > tol)
+			return 0;
+	}
+	return 1;
+}
+
+/* Newton at st->t from the iterate in s->x; SIM_OK leaves the solution in
+ * s->x and the devices' charges updated. */
+static enum sim_status newton(struct sim *s, const struct simdev_step *st)
+{
+	for (int it = 0; it < SIM_MAX_NEWTON; it++) {
+		int limited = 0;
+		simmat_clear(s->m);
+		for (size_t i = 0; i < s->ndev; i++)
+			simdev_stamp(&s->dev[i], st, s->m, s->x, &limited);
+		const double *xn = simmat_solve(s->m);
+		s->st.newton++;
+		if (!xn)
+			return SIM_SINGULAR;
+		int done = it > 0 && !limited && converged(s, xn);
+		memcpy(s->x, xn, s->n * sizeof *s->x);
+		if (done) {
+			for (size_t i = 0; i < s->ndev; i++)
+				simdev_update(&s->dev[i], st, s->x);
+			return SIM_OK;
+		}
+	}
+	return SIM_NO_CONVERGENCE;
+}
+
+/* Local truncation error of the trapezoidal step, as a ratio to what is
+ * allowed (<= 1 accepts): the third divided difference of each charge and
+ * flux over the last four points estimates q''' (the trapezoidal error is
+ * h^3 q''' / 12). */
+static double error_ratio(const struct sim *s, double h)
+{
+	double worst = 0;
+	for (size_t i = 0; i < s->ndev; i++) {
+		const struct simdev *d = &s->dev[i];
+		if (d->kind != SD_C && d->kind != SD_D && d->kind != SD_L)
+			continue;
+		double t0 = s->t + h, t1 = d->th[0], t2 = d->th[1], t3 = d->th[2];
+		double d01 = (d->q - d->qh[0]) / (t0 - t1);
+		double d12 = (d->qh[0] - d->qh[1]) / (t1 - t2);
+		double d23 = (d->qh[1] - d->qh[2]) / (t2 - t3);
+		double dd2a = (d01 - d12) / (t0 - t2), dd2b = (d12 - d23) / (t1 - t3);
+		double dd3 = (dd2a - dd2b) / (t0 - t3);
+		double lte = fabs(h * h * h * dd3 / 2); /* h^3/12 * 6 dd3 */
+		double tol = s->o.reltol * fmax(fmax(fabs(d->q), fabs(d->qh[0])), SIM_CHGTOL) +
+			     (d->kind == SD_L ? 0 : SIM_CHGTOL);
+		worst = fmax(worst, lte / (SIM_TRTOL * tol));
+	}
+	return worst;
+}
+
+static void accept(struct sim *s, double h)
+{
+	s->t += h;
+	for (size_t i = 0; i < s->ndev; i++) {
+		struct simdev *d = &s->dev[i];
+		d->qh[2] = d->qh[1], d->th[2] = d->th[1];
+		d->qh[1] = d->qh[0], d->th[1] = d->th[0];
+		d->qh[0] = d->q, d->th[0] = s->t;
+		d->q0 = d->q;
+		d->f0 = d->f;
+	}
+	memcpy(s->xprev, s->x, s->n * sizeof *s->x);
+	node_voltages(s);
+	s->st.points++;
+	s->nhist++;
+}
+
+static void reject(struct sim *s)
+{
+	memcpy(s->x, s->xprev, s->n * sizeof *s->x);
+	s->st.rejected++;
+}
+
+static double next_corner(const struct sim *s)
+{
+	double t = INFINITY;
+	for (size_t i = 0; i < s->ndev; i++)
+		if (s->dev[i].src)
+			t = fmin(t, simsrc_next_corner(s->dev[i].src, &s->span, s->t));
+	return t;
+}
+
+/* One accepted step towards t_end (shorter when rejected and retried). */
+static enum sim_status step(struct sim *s, double t_end)
+{
+	double hmin = s->o.max_step * 1e-9;
+	for (;;) {
+		double corner = next_corner(s);
+		double h = fmin(fmin(s->hstep, s->o.max_step), t_end - s->t);
+		int hits = corner < s->t + h * 1.000001;
+		if (hits)
+			h = corner - s->t;
+		int be = s->after_corner || s->nhist < 1;
+		struct simdev_step st = {s->t + h, be ? 1 / h : 2 / h, be ? 0 : 1,
+					 &s->span, 1e-12};
+		enum sim_status r = newton(s, &st);
+		double ratio = r == SIM_OK && s->nhist >= 3 && !be ? error_ratio(s, h) : 0;
+		if (r == SIM_OK && ratio <= 1) {
+			accept(s, h);
+			s->after_corner = hits;
+			if (hits)
+				s->nhist = 0;
+			double grow = ratio > 0 ? 0.9 * pow(ratio, -1.0 / 3) : 2;
+			s->hstep = h * fmin(2, fmax(0.5, grow));
+			if (hits)
+				s->hstep = fmin(s->hstep, s->o.max_step / 10);
+			return SIM_OK;
+		}
+		reject(s);
+		if (r == SIM_SINGULAR || r == SIM_OOM)
+			return r;
+		s->hstep = r == SIM_OK ? h * fmax(0.25, 0.9 * pow(ratio, -1.0 / 3)) : h / 8;
+		if (s->hstep < hmin)
+			return SIM_NO_CONVERGENCE;
+	}
+}
+
+enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud)
+{
+	if (s->st.points == 0) {
+		node_voltages(s);
+		s->hstep = s->o.max_step / 10;
+		s->st.points = 1;
+	}
+	double eps = s->o.max_step * 1e-9;
+	while (s->t < t_end - eps) {
+		enum sim_status r = step(s, t_end);
+		if (r != SIM_OK)
+			return r;
+		if (fn && fn(ud, s->t, s->v))
+			return SIM_OK;
+	}
+	return SIM_OK;
+}
+
+double sim_period(const struct sim *s)
+{
+	return s->period;
+}
+
+double sim_time(const struct sim *s)
+{
+	return s->t;
+}
+
+const double *sim_voltages(const struct sim *s)
+{
+	return s->v;
+}
+
+/* ---- periodic steady state ---- */
+
+/* The circuit's state: each capacitor's voltage and each inductor's
+ * current (node voltages would do badly: a node on a fast edge at the
+ * period boundary moves with the step placement, not with the state). */
+static void state_of(const struct sim *s, double *st)
+{
+	for (size_t i = 0; i < s->ndev; i++) {
+		const struct simdev *d = &s->dev[i];
+		st[i] = d->kind == SD_C ? d->q0 / d->val : d->kind == SD_L ? d->q0 / d->val : 0;
+	}
+}
+
+/* Largest change of the state since prev, relative to the largest value
+ * of its kind (capacitor voltages, inductor currents). */
+static double state_change(const struct sim *s, const double *now, const double *prev)
+{
+	double scale[2] = {1e-3, 1e-9}, change[2] = {0, 0};
+	for (size_t i = 0; i < s->ndev; i++) {
+		int k = s->dev[i].kind == SD_L;
+		scale[k] = fmax(scale[k], fabs(now[i]));
+		change[k] = fmax(change[k], fabs(now[i] - prev[i]));
+	}
+	return fmax(change[0] / scale[0], change[1] / scale[1]);
+}
+
+enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
+			   double tol, unsigned *periods, int *settled)
+{
+	double *prev = arena_alloc(s->ar, (s->ndev + 1) * sizeof *prev);
+	double *now = arena_alloc(s->ar, (s->ndev + 1) * sizeof *now);
+	if (!prev || !now)
+		return SIM_OOM;
+	*settled = 0;
+	*periods = 0;
+	enum sim_status r = sim_run(s, s->t, NULL, NULL);
+	double last_change = INFINITY;
+	state_of(s, now);
+	while (r == SIM_OK && *periods < max_periods) {
+		memcpy(prev, now, s->ndev * sizeof *prev);
+		r = sim_run(s, s->t + period, NULL, NULL);
+		++*periods;
+		state_of(s, now);
+		double change = state_change(s, now, prev);
+		double ratio = change / last_change;
+		/* geometric decay: what is still to come is change r/(1-r) */
+		double to_come = ratio < 0.98 ? change * ratio / (1 - ratio) : INFINITY;
+		last_change = change;
+		if (r == SIM_OK && *periods >= 2 && change < tol &&
+		    (to_come < tol || change < tol / 10)) {
+			*settled = 1;
+			break;
+		}
+	}
+	return r;
+}
+
+void sim_stats(const struct sim *s, struct sim_stats *out)
+{
+	*out = s->st;
+	simmat_counts(s->m, &out->fresh_lu, &out->refactor_lu);
+}
+
+const char *sim_status_text(enum sim_status st)
+{
+	switch (st) {
+	case SIM_OK: return "ok";
+	case SIM_REFUSED: return "the circuit cannot be simulated";
+	case SIM_NO_CONVERGENCE: return "the solver did not converge (time step too small)";
+	case SIM_SINGULAR: return "the circuit matrix is singular (a floating node or a loop of voltage sources)";
+	default: return "out of memory";
+	}
+}

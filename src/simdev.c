@@ -1,0 +1,323 @@
+/* simdev.c: see simdev.h. Stamps follow modified nodal analysis (Ho,
+ * Ruehli and Brennan, IEEE Trans. Circuits Syst. 22(6), 1975): a current
+ * leaving node k through a part adds to row k; a voltage-defined part has
+ * a branch-current unknown and a row of its own. Charge-storing parts use
+ * the companion model of their integration formula:
+ *   i_n = a (q_n - q_{n-1}) - b i_{n-1}
+ * (trapezoidal a = 2/h, b = 1; backward Euler a = 1/h, b = 0). The diode
+ * is SPICE's level-1 junction (Nagel, "SPICE2", UCB/ERL M520, 1975, ch. 4;
+ * from memory, checked against ngspice by tests/ngspice_sim.py). */
+#include "simdev.h"
+
+#include <math.h>
+
+#include "simsrc.h"
+
+static long need(struct simmat *m, long r, long c, int *ok)
+{
+	long h = simmat_need(m, r, c);
+	if (h == -2)
+		*ok = 0;
+	return h;
+}
+
+/* The four positions of a two-terminal conductance between u and v. */
+static void need_g(struct simdev *d, struct simmat *m, long u, long v, int k,
+		   int *ok)
+{
+	d->h[k] = need(m, u, u, ok);
+	d->h[k + 1] = need(m, v, v, ok);
+	d->h[k + 2] = need(m, u, v, ok);
+	d->h[k + 3] = need(m, v, u, ok);
+}
+
+/* The four positions tying branch unknown br to nodes u (+) and v (-). */
+static void need_branch(struct simdev *d, struct simmat *m, long u, long v,
+			long br, int k, int *ok)
+{
+	d->h[k] = need(m, u, br, ok);
+	d->h[k + 1] = need(m, v, br, ok);
+	d->h[k + 2] = need(m, br, u, ok);
+	d->h[k + 3] = need(m, br, v, ok);
+}
+
+int simdev_need(struct simdev *d, struct simmat *m)
+{
+	int ok = 1;
+	for (int k = 0; k < 8; k++)
+		d->h[k] = -1;
+	switch (d->kind) {
+	case SD_R: case SD_C:
+		need_g(d, m, d->a, d->b, 0, &ok);
+		break;
+	case SD_D:
+		need_g(d, m, d->p, d->b, 0, &ok);
+		if (d->p != d->a)
+			need_g(d, m, d->a, d->p, 4, &ok);
+		break;
+	case SD_G:
+		d->h[0] = need(m, d->a, d->c, &ok);
+		d->h[1] = need(m, d->b, d->d, &ok);
+		d->h[2] = need(m, d->a, d->d, &ok);
+		d->h[3] = need(m, d->b, d->c, &ok);
+		break;
+	case SD_F:
+		d->h[0] = need(m, d->a, d->br2, &ok);
+		d->h[1] = need(m, d->b, d->br2, &ok);
+		break;
+	case SD_K:
+		d->h[0] = need(m, d->br, d->br2, &ok);
+		d->h[1] = need(m, d->br2, d->br, &ok);
+		break;
+	case SD_V: case SD_L: case SD_E: case SD_H:
+		need_branch(d, m, d->a, d->b, d->br, 0, &ok);
+		d->h[4] = need(m, d->br, d->br, &ok);
+		if (d->kind == SD_E) {
+			d->h[5] = need(m, d->br, d->c, &ok);
+			d->h[6] = need(m, d->br, d->d, &ok);
+		} else if (d->kind == SD_H) {
+			d->h[5] = need(m, d->br, d->br2, &ok);
+		}
+		break;
+	default:
+		break;
+	}
+	return ok;
+}
+
+static double at(const double *x, long k)
+{
+	return k < 0 ? 0 : x[k];
+}
+
+static void stamp_g(struct simmat *m, const long *h, double g)
+{
+	simmat_add(m, h[0], g);
+	simmat_add(m, h[1], g);
+	simmat_add(m, h[2], -g);
+	simmat_add(m, h[3], -g);
+}
+
+/* A current ieq leaving u and entering v. */
+static void stamp_i(struct simmat *m, long u, long v, double ieq)
+{
+	simmat_rhs(m, u, -ieq);
+	simmat_rhs(m, v, ieq);
+}
+
+static void stamp_branch(struct simmat *m, const long *h)
+{
+	simmat_add(m, h[0], 1);
+	simmat_add(m, h[1], -1);
+	simmat_add(m, h[2], 1);
+	simmat_add(m, h[3], -1);
+}
+
+static double source_at(const struct simdev *d, const struct simdev_step *st)
+{
+	if (!d->src)
+		return 0;
+	double v = simsrc_value(d->src, st->span, st->t);
+	return d->dc_v + (v - d->mean) * d->ac_k;
+}
+
+/* ---- the diode ---- */
+
+void simdev_diode_init(struct simdev_diode *m)
+{
+	const double vt = 0.0258648; /* kT/q at 300.15 K (27 C, SPICE's TNOM) */
+	m->nvt = m->n * vt;
+	m->vcrit = m->nvt * log(m->nvt / (sqrt(2.0) * m->is));
+	/* breakdown voltage moved so the current at -bv is ibv (as SPICE) */
+	m->xbv = isfinite(m->bv) ? m->bv - m->nvt * log(1 + m->ibv / m->is) : INFINITY;
+}
+
+/* SPICE's junction limiting: a step past vcrit is taken logarithmically. */
+static double pnjlim(double vnew, double vold, double nvt, double vcrit, int *lim)
+{
+	if (vnew > vcrit && fabs(vnew - vold) > 2 * nvt) {
+		*lim = 1;
+		if (vold > 0) {
+			double arg = 1 + (vnew - vold) / nvt;
+			return arg > 0 ? vold + nvt * log(arg) : vcrit;
+		}
+		return nvt * log(vnew / nvt);
+	}
+	return vnew;
+}
+
+static double limit_junction(const struct simdev_diode *m, double vnew,
+			     double vold, int *lim)
+{
+	if (isfinite(m->xbv) && vnew < -m->xbv + 10 * m->nvt) {
+		/* mirrored around the breakdown knee */
+		double v = pnjlim(-(vnew + m->xbv), -(vold + m->xbv), m->nvt, m->vcrit, lim);
+		return -(v + m->xbv);
+	}
+	return pnjlim(vnew, vold, m->nvt, m->vcrit, lim);
+}
+
+/* Static current and its slope at junction voltage v. */
+static void junction(const struct simdev_diode *m, double v, double *id, double *gd)
+{
+	if (v >= -3 * m->nvt) {
+		double e = exp(v / m->nvt);
+		*id = m->is * (e - 1);
+		*gd = m->is * e / m->nvt;
+	} else if (!isfinite(m->xbv) || v >= -m->xbv) {
+		double arg = 3 * m->nvt / (v * M_E);
+		arg = arg * arg * arg;
+		*id = -m->is * (1 + arg);
+		*gd = m->is * 3 * arg / v;
+	} else {
+		double e = exp(-(m->xbv + v) / m->nvt);
+		*id = -m->is * e;
+		*gd = m->is * e / m->nvt;
+	}
+}
+
+/* Depletion charge and capacitance (with SPICE's linear extension past
+ * fc*vj), plus the diffusion charge tt*id. */
+static void junction_charge(const struct simdev_diode *m, double v, double id,
+			    double gd, double *q, double *c)
+{
+	*q = m->tt * id;
+	*c = m->tt * gd;
+	if (m->cjo <= 0)
+		return;
+	double vj = m->vj, mm = m->m, fc = m->fc;
+	if (v < fc * vj) {
+		double s = 1 - v / vj;
+		*q += vj * m->cjo * (1 - pow(s, 1 - mm)) / (1 - mm);
+		*c += m->cjo * pow(s, -mm);
+	} else {
+		double f1 = vj * (1 - pow(1 - fc, 1 - mm)) / (1 - mm);
+		double f2 = pow(1 - fc, 1 + mm), f3 = 1 - fc * (1 + mm);
+		double w = v - fc * vj;
+		*q += m->cjo * (f1 + (f3 * w + mm / (2 * vj) * (v * v - fc * vj * fc * vj)) / f2);
+		*c += m->cjo / f2 * (f3 + mm * v / vj);
+	}
+}
+
+static void stamp_diode(struct simdev *d, const struct simdev_step *st,
+			struct simmat *m, const double *x, int *limited)
+{
+	const struct simdev_diode *dm = d->dm;
+	double v = limit_junction(dm, at(x, d->p) - at(x, d->b), d->vd, limited);
+	d->vd = v;
+	double id, gd, q, c;
+	junction(dm, v, &id, &gd);
+	junction_charge(dm, v, id, gd, &q, &c);
+	double ic = st->a * (q - d->q0) - st->b * d->f0;
+	double g = gd + st->gmin + st->a * c;
+	double i = id + st->gmin * v + ic;
+	stamp_g(m, d->h, g);
+	stamp_i(m, d->p, d->b, i - g * v);
+	if (d->p != d->a)
+		stamp_g(m, d->h + 4, 1 / dm->rs);
+}
+
+/* ---- the rest ---- */
+
+static void stamp_linear(struct simdev *d, const struct simdev_step *st,
+			 struct simmat *m)
+{
+	switch (d->kind) {
+	case SD_R:
+		stamp_g(m, d->h, d->val);
+		break;
+	case SD_C: {
+		double g = st->a * d->val;
+		stamp_g(m, d->h, g);
+		stamp_i(m, d->a, d->b, -st->a * d->q0 - st->b * d->f0);
+		break;
+	}
+	case SD_L:
+		stamp_branch(m, d->h);
+		simmat_add(m, d->h[4], -st->a * d->val);
+		simmat_rhs(m, d->br, -st->a * d->q0 - st->b * d->f0);
+		break;
+	case SD_K:
+		simmat_add(m, d->h[0], -st->a * d->val);
+		simmat_add(m, d->h[1], -st->a * d->val);
+		simmat_rhs(m, d->br, -st->a * d->val * d->f0);
+		simmat_rhs(m, d->br2, -st->a * d->val * d->q0);
+		break;
+	case SD_V:
+		stamp_branch(m, d->h);
+		simmat_rhs(m, d->br, source_at(d, st));
+		break;
+	case SD_I:
+		stamp_i(m, d->a, d->b, source_at(d, st));
+		break;
+	default:
+		break;
+	}
+}
+
+static void stamp_controlled(struct simdev *d, struct simmat *m)
+{
+	switch (d->kind) {
+	case SD_E:
+		stamp_branch(m, d->h);
+		simmat_add(m, d->h[5], -d->val);
+		simmat_add(m, d->h[6], d->val);
+		break;
+	case SD_H:
+		stamp_branch(m, d->h);
+		simmat_add(m, d->h[5], -d->val);
+		break;
+	case SD_G:
+		simmat_add(m, d->h[0], d->val);
+		simmat_add(m, d->h[1], d->val);
+		simmat_add(m, d->h[2], -d->val);
+		simmat_add(m, d->h[3], -d->val);
+		break;
+	case SD_F:
+		simmat_add(m, d->h[0], d->val);
+		simmat_add(m, d->h[1], -d->val);
+		break;
+	default:
+		break;
+	}
+}
+
+void simdev_stamp(struct simdev *d, const struct simdev_step *st,
+		  struct simmat *m, const double *x, int *limited)
+{
+	if (d->kind == SD_D)
+		stamp_diode(d, st, m, x, limited);
+	else if (d->kind == SD_E || d->kind == SD_H || d->kind == SD_G || d->kind == SD_F)
+		stamp_controlled(d, m);
+	else
+		stamp_linear(d, st, m);
+}
+
+void simdev_update(struct simdev *d, const struct simdev_step *st,
+		   const double *x)
+{
+	double v = at(x, d->a) - at(x, d->b);
+	switch (d->kind) {
+	case SD_C:
+		d->q = d->val * v;
+		d->f = st->a * (d->q - d->q0) - st->b * d->f0;
+		break;
+	case SD_L:
+		d->q = d->val * at(x, d->br);
+		d->f = v;
+		break;
+	case SD_K:
+		d->q = at(x, d->br);
+		d->f = at(x, d->br2);
+		break;
+	case SD_D: {
+		double vj = at(x, d->p) - at(x, d->b), id, gd, c;
+		junction(d->dm, vj, &id, &gd);
+		junction_charge(d->dm, vj, id, gd, &d->q, &c);
+		d->f = st->a * (d->q - d->q0) - st->b * d->f0;
+		break;
+	}
+	default:
+		break;
+	}
+}

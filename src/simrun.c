@@ -1,0 +1,153 @@
+/* simrun.c: see simrun.h. */
+#include "simrun.h"
+
+#include <math.h>
+#include <string.h>
+
+#define SIMRUN_PERIODS 2000
+#define SIMRUN_TOL 1e-4
+
+struct probe {
+	uint32_t pos, neg;   /* node ids (neg NL_GROUND for a plain node) */
+};
+
+struct writer {
+	FILE *out;
+	const struct probe *p;
+	size_t n;
+	double from;
+};
+
+static int write_row(void *ud, double t, const double *v)
+{
+	const struct writer *w = ud;
+	if (t < w->from)
+		return 0;
+	fprintf(w->out, "%.9g", t);
+	for (size_t i = 0; i < w->n; i++)
+		fprintf(w->out, ",%.9g", v[w->p[i].pos] - v[w->p[i].neg]);
+	fputc('\n', w->out);
+	return 0;
+}
+
+static int find_probe(const struct nl_circuit *c, const char *name, struct probe *p)
+{
+	const char *comma = strchr(name, ',');
+	size_t n1 = comma ? (size_t)(comma - name) : strlen(name);
+	p->pos = nl_node_find(c, name, n1);
+	p->neg = comma ? nl_node_find(c, comma + 1, strlen(comma + 1)) : NL_GROUND;
+	return p->pos != NL_NONE && p->neg != NL_NONE;
+}
+
+static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *so)
+{
+	memset(so, 0, sizeof *so);
+	so->stop = stop;
+	so->max_step = o->max_step;
+	so->ac_scale = o->ac_scale;
+	so->dc_scale = o->dc_scale;
+	so->dc_set = o->dc_set;
+	so->cap_v0 = o->cap_v0;
+}
+
+/* Creates the solver and, for the steady state, runs to it. */
+static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o,
+			 const struct hr_alloc *h, struct simrun_result *r)
+{
+	struct sim_opts so;
+	struct sim *s;
+	memset(r, 0, sizeof *r);
+	opts_of(o, o->until, &so);
+	r->status = sim_create(c, &so, h, &s, &r->refusal);
+	if (r->status != SIM_OK)
+		return NULL;
+	r->period = sim_period(s);
+	if (o->until > 0 || r->period <= 0)
+		return s;
+	r->status = sim_settle(s, r->period, o->max_periods ? o->max_periods : SIMRUN_PERIODS,
+			       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
+			       &r->periods, &r->settled);
+	return s;
+}
+
+static void finish(struct sim *s, struct simrun_result *r)
+{
+	if (s) {
+		r->t_end = sim_time(s);
+		sim_stats(s, &r->stats);
+	}
+	sim_destroy(s);
+}
+
+int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
+	       size_t n, const struct simrun_opts *o, const struct hr_alloc *h,
+	       struct simrun_result *r, const char **bad)
+{
+	struct probe p[64];
+	if (n > 64)
+		n = 64;
+	for (size_t i = 0; i < n; i++)
+		if (!find_probe(c, names[i], &p[i])) {
+			*bad = names[i];
+			return 0;
+		}
+	struct sim *s = start(c, o, h, r);
+	if (s && r->status == SIM_OK) {
+		fputs("time", out);
+		for (size_t i = 0; i < n; i++)
+			fprintf(out, ",v(%s)", names[i]);
+		fputc('\n', out);
+		double from = o->until > 0 ? o->from : sim_time(s);
+		double end = o->until > 0 ? o->until : sim_time(s) + r->period;
+		struct writer w = {out, p, n, from};
+		write_row(&w, sim_time(s), sim_voltages(s));
+		r->status = sim_run(s, end, write_row, &w);
+	}
+	finish(s, r);
+	return 1;
+}
+
+struct extremes {
+	const struct nl_circuit *c;
+	double *vmin, *vmax, *nmin, *nmax;
+};
+
+static int track(void *ud, double t, const double *v)
+{
+	struct extremes *e = ud;
+	(void)t;
+	size_t np = nl_part_count(e->c), nn = nl_node_count(e->c);
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(e->c, i);
+		if (p->npins < 2)
+			continue;
+		const uint32_t *pin = nl_pins(e->c, p);
+		double x = v[pin[0]] - v[pin[1]];
+		e->vmin[i] = fmin(e->vmin[i], x);
+		e->vmax[i] = fmax(e->vmax[i], x);
+	}
+	for (size_t k = 0; e->nmin && k < nn; k++) {
+		e->nmin[k] = fmin(e->nmin[k], v[k]);
+		e->nmax[k] = fmax(e->nmax[k], v[k]);
+	}
+	return 0;
+}
+
+void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
+		  const struct hr_alloc *h, double *vmin, double *vmax,
+		  double *node_min, double *node_max, struct simrun_result *r)
+{
+	size_t np = nl_part_count(c), nn = nl_node_count(c);
+	for (size_t i = 0; i < np; i++)
+		vmin[i] = INFINITY, vmax[i] = -INFINITY;
+	for (size_t k = 0; node_min && k < nn; k++)
+		node_min[k] = INFINITY, node_max[k] = -INFINITY;
+	struct sim *s = start(c, o, h, r);
+	if (s && r->status == SIM_OK) {
+		struct extremes e = {c, vmin, vmax, node_min, node_max};
+		double span = r->period > 0 ? r->period : o->until;
+		track(&e, sim_time(s), sim_voltages(s));
+		r->status = sim_run(s, sim_time(s) + span, track, &e);
+	}
+	finish(s, r);
+}

@@ -1,0 +1,126 @@
+/* verify.c: see verify.h. */
+#include "verify.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "simrun.h"
+
+int verify_gap(const struct stress *s)
+{
+	return s->bounded && isfinite(s->sim_worst) &&
+	       s->sim_worst > s->worst * (1 + VERIFY_GAP_REL) + VERIFY_GAP_ABS;
+}
+
+/* The DC part of v(pin 0) - v(pin 1) in the +tol corner's propagation, NaN
+ * when either node is not settled there. */
+static double analytic_dc(const struct audit *a, const struct stress_result *sr,
+			  const struct nl_part *p)
+{
+	const struct prop_result *r = &sr->runs[STRESS_CORNER_HIGH];
+	const uint32_t *q = nl_pins(a->er.circuit, p);
+	const struct prop_node *n0 = &r->nodes[q[0]], *n1 = &r->nodes[q[1]];
+	if (n0->state != PS_RESOLVED || n1->state != PS_RESOLVED || n0->conflict || n1->conflict)
+		return NAN;
+	const struct form *d = form_lin((struct form_ctx *)&r->fc, 1, n0->f, -1, n1->f);
+	if (!d)
+		return NAN;
+	double lo, hi, alo, ahi;
+	int exact;
+	form_range(&r->fc, d, &lo, &hi, &exact);
+	form_ac_range(&r->fc, d, &alo, &ahi, &exact);
+	return (lo + hi) / 2 - (alo + ahi) / 2;
+}
+
+/* The corner: per part source scales and capacitor start voltages. */
+static int corner(struct audit *a, const struct profile *p,
+		  const struct stress_result *sr, struct simrun_opts *o,
+		  size_t *started)
+{
+	const struct nl_circuit *c = a->er.circuit;
+	size_t np = nl_part_count(c);
+	double *k = arena_alloc(a->ar, (np + 1) * sizeof *k);
+	double *set = arena_alloc(a->ar, (np + 1) * sizeof *set);
+	double *v0 = arena_alloc(a->ar, (np + 1) * sizeof *v0);
+	if (!k || !set || !v0)
+		return 0;
+	*started = 0;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		k[i] = pt->kind == NL_V ? 1 + stress_tolerance(a, p, (uint32_t)i) : 1;
+		set[i] = pt->kind == NL_V ? a->sources[i].max : NAN;
+		v0[i] = pt->kind == NL_C && pt->npins == 2 ? analytic_dc(a, sr, pt) : NAN;
+		*started += isfinite(v0[i]);
+	}
+	memset(o, 0, sizeof *o);
+	o->ac_scale = k;
+	o->dc_scale = k;
+	o->dc_set = set;
+	o->cap_v0 = v0;
+	return 1;
+}
+
+static void record(struct stress_result *sr, const double *vmin, const double *vmax,
+		   const struct nl_circuit *c, struct stress_verify *v)
+{
+	for (size_t i = 0; i < sr->n; i++) {
+		struct stress *s = &sr->s[i];
+		if (s->qty == SQ_SURGE || !isfinite(vmin[s->part]))
+			continue;
+		int diode = nl_part_at(c, s->part)->kind == NL_D;
+		s->sim_worst = diode ? fmax(-vmin[s->part], 0)
+				     : fmax(vmax[s->part], -vmin[s->part]);
+		if (!s->bounded)
+			continue;
+		if (verify_gap(s))
+			v->gaps++;
+		else
+			v->confirmed++;
+	}
+}
+
+int verify_run(struct audit *a, const struct profile *p, struct stress_result *sr)
+{
+	struct stress_verify *v = arena_zalloc(a->ar, sizeof *v);
+	if (!v)
+		return 0;
+	sr->verify = v;
+	const struct nl_circuit *c = a->er.circuit;
+	size_t np = nl_part_count(c);
+	struct simrun_opts o;
+	double *vmin = arena_alloc(a->ar, (np + 1) * sizeof *vmin);
+	double *vmax = arena_alloc(a->ar, (np + 1) * sizeof *vmax);
+	if (!vmin || !vmax || !corner(a, p, sr, &o, &v->started))
+		return 0;
+	struct hr_alloc h = hr_alloc_default();
+	struct simrun_result r;
+	simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
+	v->periods = r.periods;
+	v->settled = r.settled;
+	v->period = r.period;
+	v->points = r.stats.points;
+	v->newton = r.stats.newton;
+	v->unknowns = r.stats.unknowns;
+	if (r.status == SIM_OOM)
+		return 0;
+	if (r.status == SIM_REFUSED) {
+		char buf[300];
+		snprintf(buf, sizeof buf, "%s: %s",
+			 r.refusal.part == NL_NONE ? "the circuit" : nl_part_at(c, r.refusal.part)->path,
+			 r.refusal.why);
+		v->why = arena_strdup(a->ar, buf);
+		return v->why != NULL;
+	}
+	if (r.status != SIM_OK) {
+		v->why = sim_status_text(r.status);
+		return 1;
+	}
+	if (r.period <= 0) {
+		v->why = "no source repeats: there is no steady state to simulate";
+		return 1;
+	}
+	v->simulated = 1;
+	record(sr, vmin, vmax, c, v);
+	return 1;
+}
