@@ -358,13 +358,16 @@ static enum sim_status newton(struct sim *s, const struct simdev_step *st)
 	return SIM_NO_CONVERGENCE;
 }
 
-/* Local truncation error of the trapezoidal step, as a ratio to what is
- * allowed (<= 1 accepts): the third divided difference of each charge and
- * flux over the last four points estimates q''' (the trapezoidal error is
- * h^3 q''' / 12). */
-static double error_ratio(const struct sim *s, double h)
+/* The step the local truncation error allows after a trapezoidal step of
+ * h, the smallest over charges (capacitors, diodes) and fluxes (inductors).
+ * The error measure is SPICE's (Nagel, UCB/ERL M520, ch. 5; as ngspice
+ * does it): the third divided difference of the charge over the last four
+ * points times 1/12, against a tolerance that is the larger of a current
+ * (abstol + reltol |i|) and a charge per step (reltol |q| / h), with the
+ * allowance TRTOL; the step is sqrt(TRTOL tol / error). */
+static double lte_step(const struct sim *s, double h)
 {
-	double worst = 0;
+	double best = INFINITY;
 	for (size_t i = 0; i < s->ndev; i++) {
 		const struct simdev *d = &s->dev[i];
 		if (d->kind != SD_C && d->kind != SD_D && d->kind != SD_L)
@@ -373,14 +376,15 @@ static double error_ratio(const struct sim *s, double h)
 		double d01 = (d->q - d->qh[0]) / (t0 - t1);
 		double d12 = (d->qh[0] - d->qh[1]) / (t1 - t2);
 		double d23 = (d->qh[1] - d->qh[2]) / (t2 - t3);
-		double dd2a = (d01 - d12) / (t0 - t2), dd2b = (d12 - d23) / (t1 - t3);
-		double dd3 = (dd2a - dd2b) / (t0 - t3);
-		double lte = fabs(h * h * h * dd3 / 2); /* h^3/12 * 6 dd3 */
-		double tol = s->o.reltol * fmax(fmax(fabs(d->q), fabs(d->qh[0])), SIM_CHGTOL) +
-			     (d->kind == SD_L ? 0 : SIM_CHGTOL);
-		worst = fmax(worst, lte / (SIM_TRTOL * tol));
+		double dd3 = ((d01 - d12) / (t0 - t2) - (d12 - d23) / (t1 - t3)) / (t0 - t3);
+		double itol = s->o.abstol + s->o.reltol * fmax(fabs(d->f), fabs(d->f0));
+		double qtol = s->o.reltol * fmax(fmax(fabs(d->q), fabs(d->qh[0])), SIM_CHGTOL) / h;
+		if (d->kind == SD_L)
+			itol = s->o.reltol * fmax(fabs(d->f), fabs(d->f0)) + s->o.vntol;
+		double err = fmax(s->o.abstol, fabs(dd3) / 12);
+		best = fmin(best, sqrt(SIM_TRTOL * fmax(itol, qtol) / err));
 	}
-	return worst;
+	return best;
 }
 
 static void accept(struct sim *s, double h)
@@ -422,6 +426,9 @@ static enum sim_status step(struct sim *s, double t_end)
 	for (;;) {
 		double corner = next_corner(s);
 		double h = fmin(fmin(s->hstep, s->o.max_step), t_end - s->t);
+		/* no sliver of a step left before the end */
+		if (t_end - s->t - h < 1e-3 * h)
+			h = t_end - s->t;
 		int hits = corner < s->t + h * 1.000001;
 		if (hits)
 			h = corner - s->t;
@@ -429,14 +436,13 @@ static enum sim_status step(struct sim *s, double t_end)
 		struct simdev_step st = {s->t + h, be ? 1 / h : 2 / h, be ? 0 : 1,
 					 &s->span, 1e-12};
 		enum sim_status r = newton(s, &st);
-		double ratio = r == SIM_OK && s->nhist >= 3 && !be ? error_ratio(s, h) : 0;
-		if (r == SIM_OK && ratio <= 1) {
+		double allowed = r == SIM_OK && s->nhist >= 3 && !be ? lte_step(s, h) : 2 * h;
+		if (r == SIM_OK && allowed >= 0.9 * h) {
 			accept(s, h);
 			s->after_corner = hits;
 			if (hits)
 				s->nhist = 0;
-			double grow = ratio > 0 ? 0.9 * pow(ratio, -1.0 / 3) : 2;
-			s->hstep = h * fmin(2, fmax(0.5, grow));
+			s->hstep = fmin(2 * h, allowed);
 			if (hits)
 				s->hstep = fmin(s->hstep, s->o.max_step / 10);
 			return SIM_OK;
@@ -444,7 +450,7 @@ static enum sim_status step(struct sim *s, double t_end)
 		reject(s);
 		if (r == SIM_SINGULAR || r == SIM_OOM)
 			return r;
-		s->hstep = r == SIM_OK ? h * fmax(0.25, 0.9 * pow(ratio, -1.0 / 3)) : h / 8;
+		s->hstep = r == SIM_OK ? fmax(allowed, h / 4) : h / 8;
 		if (s->hstep < hmin)
 			return SIM_NO_CONVERGENCE;
 	}
@@ -457,7 +463,8 @@ enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud)
 		s->hstep = s->o.max_step / 10;
 		s->st.points = 1;
 	}
-	double eps = s->o.max_step * 1e-9;
+	/* the end counts as reached within rounding of the time itself */
+	double eps = fmax(s->o.max_step * 1e-9, fabs(t_end) * 1e-12);
 	while (s->t < t_end - eps) {
 		enum sim_status r = step(s, t_end);
 		if (r != SIM_OK)

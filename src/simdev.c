@@ -188,8 +188,9 @@ static void junction_charge(const struct simdev_diode *m, double v, double id,
 	double vj = m->vj, mm = m->m, fc = m->fc;
 	if (v < fc * vj) {
 		double s = 1 - v / vj;
-		*q += vj * m->cjo * (1 - pow(s, 1 - mm)) / (1 - mm);
-		*c += m->cjo * pow(s, -mm);
+		double sm = mm == 0.5 ? 1 / sqrt(s) : pow(s, -mm);
+		*q += vj * m->cjo * (1 - s * sm) / (1 - mm);
+		*c += m->cjo * sm;
 	} else {
 		double f1 = vj * (1 - pow(1 - fc, 1 - mm)) / (1 - mm);
 		double f2 = pow(1 - fc, 1 + mm), f3 = 1 - fc * (1 + mm);
@@ -209,6 +210,8 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 	junction(dm, v, &id, &gd);
 	junction_charge(dm, v, id, gd, &q, &c);
 	double ic = st->a * (q - d->q0) - st->b * d->f0;
+	d->q = q; /* the charge and its current where the last stamp was made */
+	d->f = ic;
 	double g = gd + st->gmin + st->a * c;
 	double i = id + st->gmin * v + ic;
 	stamp_g(m, d->h, g);
@@ -310,14 +313,7 @@ void simdev_update(struct simdev *d, const struct simdev_step *st,
 		d->q = at(x, d->br);
 		d->f = at(x, d->br2);
 		break;
-	case SD_D: {
-		double vj = at(x, d->p) - at(x, d->b), id, gd, c;
-		junction(d->dm, vj, &id, &gd);
-		junction_charge(d->dm, vj, id, gd, &d->q, &c);
-		d->f = st->a * (d->q - d->q0) - st->b * d->f0;
-		break;
-	}
-	default:
+	default: /* diodes: set by the last stamp, as SPICE keeps them */
 		break;
 	}
 }

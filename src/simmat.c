@@ -38,6 +38,7 @@ struct simmat *simmat_create(size_t n, const struct hr_alloc *h)
 	m->h = *h;
 	m->n = n;
 	klu_defaults(&m->common);
+	m->common.scale = 0; /* no row scaling (as SPICE): it cost a tenth of the run */
 	return m;
 }
 
