@@ -87,7 +87,10 @@ static void text_table(FILE *out, const struct check_file *f)
 {
 	const struct stress_result *sr = f->stress;
 	const struct nl_circuit *c = f->a->er.circuit;
-	if (!sr || sr->n == 0)
+	if (!sr)
+		return;
+	text_verify(out, sr->verify);
+	if (sr->n == 0)
 		return;
 	size_t w = 4;
 	for (size_t i = 0; i < sr->n; i++) {
@@ -95,7 +98,6 @@ static void text_table(FILE *out, const struct check_file *f)
 		w = l > w ? l : w;
 	}
 	int sim = sr->verify && sr->verify->simulated;
-	text_verify(out, sr->verify);
 	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s%s\n", (int)w, "part", "in",
 		"stress", "role", "worst", "best", "rating", "ratio", sim ? "   simulated" : "");
 	for (size_t i = 0; i < sr->n; i++) {

@@ -230,5 +230,40 @@ check "--max-pwl 3: the same file reads" test $rc -eq 0
 run parts --max-line 99999999999 "$tmp/short.cir"
 check "a limit past its range is a usage error" test $rc -eq 2
 
+# ---- sim and check --verify (docs/solver.md) ----
+simdeck=$here/data/sim/detector_pos.cir
+run sim "$simdeck"
+check "sim without --node is a usage error" bash -c "test $rc -eq 2 && grep -q 'usage: headroom sim' '$tmp/err'"
+run sim "$simdeck" --node nowhere
+check "sim with an unknown node names it" bash -c "test $rc -eq 2 && grep -q \"no node named 'nowhere'\" '$tmp/err'"
+printf 't\nV1 a 0 sin(0 1 1k)\nQ1 a b 0 qn\nR1 b 0 1k\n.model qn npn\n' > "$tmp/bjt.cir"
+run sim "$tmp/bjt.cir" --node b
+check "sim refuses a transistor, naming it" bash -c "test $rc -eq 2 && grep -q 'Q1: the solver has no model' '$tmp/err'"
+run sim "$simdeck" --node out --node a,out --until 3m --from 2m
+check "sim --until: CSV header and rows from --from to --until" bash -c "test $rc -eq 0 && head -1 '$tmp/out' | grep -qx 'time,v(out),v(a,out)' && awk -F, 'NR==2 && \$1 < 0.002 {exit 1} END {if (\$1 != 0.003) exit 1}' '$tmp/out'"
+run sim "$simdeck" --node out -o "$tmp/wave.csv"
+check "sim -o: one steady-state period written, summary on stderr" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err' && python3 -c '
+import sys
+rows=[list(map(float,l.split(\",\"))) for l in open(sys.argv[1]).read().split()[1:]]
+assert abs((rows[-1][0]-rows[0][0]) - 1e-3) < 1e-9, rows[-1][0]-rows[0][0]
+assert 8.4 < max(r[1] for r in rows) < 8.7
+' '$tmp/wave.csv'"
+run check --verify --format json --fail-on never "$here/../examples"
+check "check --verify: every voltage and reverse stress of the examples is simulated and confirmed" bash -c "test $rc -eq 0 && python3 -c '
+import json,sys
+r=json.load(open(sys.argv[1])); n=0
+for f in r[\"files\"]:
+    assert f[\"verify\"][\"simulated\"] and f[\"verify\"][\"settled\"], f[\"path\"]
+    for s in f[\"stresses\"]:
+        if s[\"quantity\"] != \"surge_current\" and s[\"bounded\"]:
+            assert s[\"simulated\"] is not None and not s[\"analysis_gap\"], s
+            assert s[\"simulated\"] <= s[\"worst\"] * 1.002 + 0.01, s
+            n += 1
+assert n >= 40, n
+' '$tmp/out'"
+printf 't\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nQ1 b c 0 qn\nR1 c 0 1k\n.model dm d\n.model qn npn\n' > "$tmp/bjt2.cir"
+run check --verify "$tmp/bjt2.cir"
+check "check --verify on a circuit the solver cannot take says why" grep -q 'not simulated (--verify): Q1: the solver has no model' "$tmp/out"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
