@@ -57,7 +57,8 @@ int simdev_need(struct simdev *d, struct simmat *m);
 void simdev_stamp(struct simdev *d, const struct simdev_step *st,
 		  struct simmat *m, const double *x, int *limited);
 
-/* Charge (or flux) and its current (or voltage) at iterate x, into q, f. */
+/* Charge (or flux) and its current (or voltage) at iterate x, into q, f
+ * (a diode's are those of its last stamp, at the converged iterate). */
 void simdev_update(struct simdev *d, const struct simdev_step *st,
 		   const double *x);
 

@@ -17,6 +17,13 @@ struct simrun_opts {
 	double settle_tol;     /* steady state: relative (0: 1e-4) */
 	const double *ac_scale, *dc_scale, *dc_set; /* source corner (sim.h) */
 	const double *cap_v0;  /* capacitor start voltages per part, or NULL */
+	/* simrun_peaks: parts whose voltage (pin 0 minus pin 1) is sampled at
+	   trace_points even times over the recorded period (first and last
+	   included) into trace[k * trace_points + j] */
+	size_t ntrace;
+	const uint32_t *trace_parts;
+	unsigned trace_points;
+	double *trace;
 };
 
 struct simrun_result {

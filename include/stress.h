@@ -34,6 +34,9 @@ struct stress {
 	/* --verify: the same quantity in the steady-state simulation at the
 	   +tol corner, NaN when not simulated (verify.h) */
 	double sim_worst;
+	/* --verify: pin 0 minus pin 1 over the simulated period at
+	   VERIFY_TRACE_POINTS even times, or NULL */
+	const double *sim_wave;
 };
 
 /* Per structure: figures that need the whole structure. */

@@ -18,6 +18,9 @@
 #define VERIFY_GAP_REL 2e-3
 #define VERIFY_GAP_ABS 0.01
 
+/* Samples kept of each stressed part's simulated waveform (for plots). */
+#define VERIFY_TRACE_POINTS 240
+
 /* Simulates a's circuit and fills sim_worst of every voltage and reverse
  * stress in sr, and sr->verify. A circuit the solver cannot take (an
  * opaque part, no repeating source) is reported in sr->verify->why, not as

@@ -5,12 +5,14 @@
  * drawn against the rating and the profile's limit. */
 #include "report_formats.h"
 
+#include "verify.h"
+
 #include <math.h>
 #include <string.h>
 
 #include "num.h"
 
-#define PLOT_POINTS 240
+#define PLOT_POINTS VERIFY_TRACE_POINTS
 #define PLOTS_PER_STRUCT 8
 
 static void x(FILE *out, const char *s)
@@ -146,9 +148,14 @@ static void plot(FILE *out, const struct check_file *f, const struct profile *p,
 	if (!waveform(f, pt, period, v))
 		return;
 	double rating = f->ratings[s->part].v_rated.value, limit = report_limit(f, p, s);
+	/* the simulated waveform (--verify), the same sense as v */
+	double sv[PLOT_POINTS];
+	int sim = s->sim_wave != NULL;
+	for (int i = 0; sim && i < PLOT_POINTS; i++)
+		sv[i] = pt->kind == NL_D ? -s->sim_wave[i] : s->sim_wave[i];
 	for (int i = 0; i < PLOT_POINTS; i++) {
-		lo = fmin(lo, v[i]);
-		hi = fmax(hi, v[i]);
+		lo = fmin(fmin(lo, v[i]), sim ? sv[i] : lo);
+		hi = fmax(fmax(hi, v[i]), sim ? sv[i] : hi);
 	}
 	if (!isnan(rating))
 		hi = fmax(hi, rating), lo = fmin(lo, pt->kind == NL_C ? -0.05 * rating : lo);
@@ -172,6 +179,13 @@ static void plot(FILE *out, const struct check_file *f, const struct profile *p,
 	for (int i = 0; i < PLOT_POINTS; i++)
 		fprintf(out, "%.1f,%.1f ", 40 + 260.0 * i / (PLOT_POINTS - 1), Y(v[i]));
 	fputs("\"/>", out);
+	if (sim) {
+		fputs("<polyline class=\"sim\" fill=\"none\" stroke=\"#2f5fb3\" stroke-width=\"1.5\" "
+		      "stroke-dasharray=\"3 2\" points=\"", out);
+		for (int i = 0; i < PLOT_POINTS; i++)
+			fprintf(out, "%.1f,%.1f ", 40 + 260.0 * i / (PLOT_POINTS - 1), Y(sv[i]));
+		fputs("\"/>", out);
+	}
 	num_format_eng(period, "s", a, sizeof a);
 	fprintf(out, "<text x=\"170\" y=\"168\" font-size=\"9\" text-anchor=\"middle\">one period (%s)</text></svg>", a);
 #undef Y
@@ -180,7 +194,12 @@ static void plot(FILE *out, const struct check_file *f, const struct profile *p,
 	fputs(" (", out);
 	x(out, s->role);
 	num_format_eng(s->worst, "V", a, sizeof a);
-	fprintf(out, "): %s %s worst</figcaption></figure>\n", pt->kind == NL_D ? "reverse" : "|V|", a);
+	fprintf(out, "): %s %s worst", pt->kind == NL_D ? "reverse" : "|V|", a);
+	if (sim) {
+		num_format_eng(s->sim_worst, "V", a, sizeof a);
+		fprintf(out, "; simulated %s (dashed blue)", a);
+	}
+	fputs("</figcaption></figure>\n", out);
 }
 
 static int by_ratio(const struct check_file *f, const struct stress *a,
@@ -234,6 +253,24 @@ static void structure(FILE *out, const struct check_file *f, const struct profil
 	fputs("</div>\n", out);
 }
 
+static void verify_line(FILE *out, const struct stress_verify *v)
+{
+	if (!v)
+		return;
+	if (!v->simulated) {
+		fputs("<p>Not simulated (--verify): ", out);
+		x(out, v->why ? v->why : "?");
+		fputs(".</p>\n", out);
+		return;
+	}
+	char per[24];
+	num_format_eng(v->period, "s", per, sizeof per);
+	fprintf(out, "<p>Simulated (--verify): %s after %u periods of %s; %zu stresses confirmed, "
+		     "%zu above their bounds. Plots show the simulation dashed in blue.</p>\n",
+		v->settled ? "steady" : "not steady (cap reached)", v->periods, per,
+		v->confirmed, v->gaps);
+}
+
 void report_html_file(FILE *out, const struct check_file *f,
 		      const struct profile *p, int first)
 {
@@ -245,6 +282,7 @@ void report_html_file(FILE *out, const struct check_file *f,
 	if (!f->a->analysed) {
 		fputs("<p class=\"error\">Not checked: the netlist has errors.</p>\n", out);
 	} else {
+		verify_line(out, f->stress->verify);
 		findings(out, f);
 		for (size_t i = 0; i < f->a->topo.n; i++)
 			structure(out, f, p, i);

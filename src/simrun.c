@@ -110,12 +110,44 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 struct extremes {
 	const struct nl_circuit *c;
 	double *vmin, *vmax, *nmin, *nmax;
+	const struct simrun_opts *o;
+	double t0, span, tprev;
+	double *vprev;          /* node voltages at tprev */
+	unsigned next;          /* next trace sample */
 };
+
+static double across(const struct nl_circuit *c, uint32_t part, const double *v)
+{
+	const uint32_t *pin = nl_pins(c, nl_part_at(c, part));
+	return v[pin[0]] - v[pin[1]];
+}
+
+/* Trace samples between the last point and this one, linearly. */
+static void sample(struct extremes *e, double t, const double *v)
+{
+	const struct simrun_opts *o = e->o;
+	while (e->next < o->trace_points) {
+		double ts = e->t0 + e->span * e->next / (o->trace_points - 1);
+		if (ts > t + 1e-12 * e->span)
+			break;
+		double w = t > e->tprev ? (ts - e->tprev) / (t - e->tprev) : 1;
+		w = fmin(fmax(w, 0), 1);
+		for (size_t k = 0; k < o->ntrace; k++) {
+			double a = across(e->c, o->trace_parts[k], e->vprev);
+			double b = across(e->c, o->trace_parts[k], v);
+			o->trace[k * o->trace_points + e->next] = a + w * (b - a);
+		}
+		e->next++;
+	}
+	memcpy(e->vprev, v, nl_node_count(e->c) * sizeof *v);
+	e->tprev = t;
+}
 
 static int track(void *ud, double t, const double *v)
 {
 	struct extremes *e = ud;
-	(void)t;
+	if (e->o->ntrace && e->vprev)
+		sample(e, t, v);
 	size_t np = nl_part_count(e->c), nn = nl_node_count(e->c);
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(e->c, i);
@@ -143,11 +175,16 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 	for (size_t k = 0; node_min && k < nn; k++)
 		node_min[k] = INFINITY, node_max[k] = -INFINITY;
 	struct sim *s = start(c, o, h, r);
+	double *vprev = o->ntrace ? hr_malloc(h, (nn + 1) * sizeof *vprev) : NULL;
 	if (s && r->status == SIM_OK) {
-		struct extremes e = {c, vmin, vmax, node_min, node_max};
 		double span = r->period > 0 ? r->period : o->until;
+		struct extremes e = {c, vmin, vmax, node_min, node_max, o, sim_time(s), span,
+				     sim_time(s), vprev, 0};
+		if (vprev)
+			memcpy(vprev, sim_voltages(s), nn * sizeof *vprev);
 		track(&e, sim_time(s), sim_voltages(s));
 		r->status = sim_run(s, sim_time(s) + span, track, &e);
 	}
+	hr_free(h, vprev);
 	finish(s, r);
 }

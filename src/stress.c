@@ -88,6 +88,7 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, i);
 	memset(s, 0, sizeof *s);
 	s->sim_worst = NAN;
+	s->sim_wave = NULL;
 	s->part = i;
 	s->structure = x->struct_of[i] == UINT32_MAX ? -1 : (int32_t)x->struct_of[i];
 	s->role = x->role_of[i] ? x->role_of[i] : "";

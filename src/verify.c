@@ -61,13 +61,41 @@ static int corner(struct audit *a, const struct profile *p,
 	return 1;
 }
 
-static void record(struct stress_result *sr, const double *vmin, const double *vmax,
-		   const struct nl_circuit *c, struct stress_verify *v)
+/* Every stressed part's waveform is traced (one per part, not per stress). */
+static int traces(struct audit *a, struct stress_result *sr, struct simrun_opts *o)
 {
-	for (size_t i = 0; i < sr->n; i++) {
+	uint32_t *parts = arena_alloc(a->ar, (sr->n + 1) * sizeof *parts);
+	size_t n = 0;
+	if (!parts)
+		return 0;
+	for (size_t i = 0; i < sr->n; i++)
+		if (sr->s[i].qty != SQ_SURGE)
+			parts[n++] = sr->s[i].part;
+	double *tr = arena_alloc(a->ar, (n * VERIFY_TRACE_POINTS + 1) * sizeof *tr);
+	if (!tr)
+		return 0;
+	for (size_t k = 0; k < n * VERIFY_TRACE_POINTS; k++)
+		tr[k] = NAN;
+	o->ntrace = n;
+	o->trace_parts = parts;
+	o->trace_points = VERIFY_TRACE_POINTS;
+	o->trace = tr;
+	return 1;
+}
+
+static void record(struct stress_result *sr, const double *vmin, const double *vmax,
+		   const struct nl_circuit *c, const struct simrun_opts *o,
+		   struct stress_verify *v)
+{
+	for (size_t i = 0, k = 0; i < sr->n; i++) {
 		struct stress *s = &sr->s[i];
-		if (s->qty == SQ_SURGE || !isfinite(vmin[s->part]))
+		if (s->qty == SQ_SURGE)
 			continue;
+		const double *w = o->trace + k++ * VERIFY_TRACE_POINTS;
+		if (!isfinite(vmin[s->part]))
+			continue;
+		if (isfinite(w[0]) && isfinite(w[VERIFY_TRACE_POINTS - 1]))
+			s->sim_wave = w;
 		int diode = nl_part_at(c, s->part)->kind == NL_D;
 		s->sim_worst = diode ? fmax(-vmin[s->part], 0)
 				     : fmax(vmax[s->part], -vmin[s->part]);
@@ -91,7 +119,7 @@ int verify_run(struct audit *a, const struct profile *p, struct stress_result *s
 	struct simrun_opts o;
 	double *vmin = arena_alloc(a->ar, (np + 1) * sizeof *vmin);
 	double *vmax = arena_alloc(a->ar, (np + 1) * sizeof *vmax);
-	if (!vmin || !vmax || !corner(a, p, sr, &o, &v->started))
+	if (!vmin || !vmax || !corner(a, p, sr, &o, &v->started) || !traces(a, sr, &o))
 		return 0;
 	struct hr_alloc h = hr_alloc_default();
 	struct simrun_result r;
@@ -121,6 +149,6 @@ int verify_run(struct audit *a, const struct profile *p, struct stress_result *s
 		return 1;
 	}
 	v->simulated = 1;
-	record(sr, vmin, vmax, c, v);
+	record(sr, vmin, vmax, c, &o, v);
 	return 1;
 }

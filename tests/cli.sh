@@ -261,6 +261,8 @@ for f in r[\"files\"]:
             n += 1
 assert n >= 40, n
 ' '$tmp/out'"
+run check --verify --format html -o "$tmp/verify.html" --fail-on never "$here/../examples"
+check "check --verify --format html: every plot carries its simulated waveform, all finite" bash -c "test $rc -eq 0 && test \$(grep -o '<polyline class=\"wave\"' '$tmp/verify.html' | wc -l) -eq \$(grep -o '<polyline class=\"sim\"' '$tmp/verify.html' | wc -l) && test \$(grep -o '<polyline class=\"sim\"' '$tmp/verify.html' | wc -l) -ge 20 && ! grep -qiE '[ ,\"]-?nan[ ,\"]' '$tmp/verify.html'"
 printf 't\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nQ1 b c 0 qn\nR1 c 0 1k\n.model dm d\n.model qn npn\n' > "$tmp/bjt2.cir"
 run check --verify "$tmp/bjt2.cir"
 check "check --verify on a circuit the solver cannot take says why" grep -q 'not simulated (--verify): Q1: the solver has no model' "$tmp/out"
