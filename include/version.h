@@ -2,6 +2,6 @@
 #ifndef HEADROOM_VERSION_H
 #define HEADROOM_VERSION_H
 
-#define HEADROOM_VERSION "0.2.0"
+#define HEADROOM_VERSION "0.3.0"
 
 #endif
