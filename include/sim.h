@@ -27,6 +27,10 @@ struct sim_opts {
 	const double *ac_scale, *dc_scale, *dc_set;
 	const double *cap_v0; /* per part: a capacitor's voltage at t = 0
 				 (NaN: its ic=, else 0); NULL: ic= or 0 */
+	const unsigned char *leave_out; /* per part: non-zero leaves it out
+					   (open); NULL: none */
+	double gshunt;     /* S from every node to ground (0: none), so that a
+			      node left floating by leave_out stays defined */
 };
 
 struct sim;
@@ -46,6 +50,9 @@ enum sim_status { SIM_OK, SIM_REFUSED, SIM_NO_CONVERGENCE, SIM_SINGULAR,
 enum sim_status sim_create(const struct nl_circuit *c, const struct sim_opts *o,
 			   const struct hr_alloc *h, struct sim **out,
 			   struct sim_refusal *ref);
+/* 1 when the solver has a model for part i of c; else 0 with *ref set. */
+int sim_part_supported(const struct nl_circuit *c, size_t i, struct sim_refusal *ref);
+
 /* Frees the solver. NULL is a no-op. */
 void sim_destroy(struct sim *s);
 

@@ -78,6 +78,8 @@ struct stress_verify {
 	size_t confirmed, gaps; /* stresses within / above their bound */
 	unsigned long points, newton;
 	size_t unknowns;
+	size_t left_out;        /* parts the solver has no model for, left open */
+	const char *left_out_names; /* the first few, comma-separated */
 };
 
 /* Computes the stresses for audit a (analysed) with ratings r and profile

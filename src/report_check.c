@@ -81,6 +81,9 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 		     "at their analytic voltages; %zu stresses confirmed, %zu above their bounds\n",
 		v->settled ? "steady" : "NOT steady (cap reached)", v->periods, per, v->started,
 		v->confirmed, v->gaps);
+	if (v->left_out)
+		fprintf(out, "  left open in the simulation (no solver model; the analysis ignores "
+			     "them too): %s\n", v->left_out_names);
 }
 
 static void text_table(FILE *out, const struct check_file *f)
@@ -301,8 +304,11 @@ static void json_file(FILE *out, const struct check_file *f)
 			v->settled ? "true" : "false", v->periods);
 		jnum(out, v->period);
 		fprintf(out, ", \"started_from_analysis\": %zu, \"confirmed\": %zu, "
-			     "\"gaps\": %zu, \"points\": %lu, \"unknowns\": %zu}",
-			v->started, v->confirmed, v->gaps, v->points, v->unknowns);
+			     "\"gaps\": %zu, \"points\": %lu, \"unknowns\": %zu, \"left_out\": %zu, "
+			     "\"left_out_names\": ",
+			v->started, v->confirmed, v->gaps, v->points, v->unknowns, v->left_out);
+		jstr(out, v->left_out ? v->left_out_names : NULL);
+		fputc('}', out);
 	}
 	fputs(",\n      \"stresses\": [", out);
 	size_t n = f->a->analysed ? f->stress->n : 0;

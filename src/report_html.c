@@ -269,6 +269,11 @@ static void verify_line(FILE *out, const struct stress_verify *v)
 		     "%zu above their bounds. Plots show the simulation dashed in blue.</p>\n",
 		v->settled ? "steady" : "not steady (cap reached)", v->periods, per,
 		v->confirmed, v->gaps);
+	if (v->left_out) {
+		fputs("<p>Left open in the simulation (no solver model; the analysis ignores them too): ", out);
+		x(out, v->left_out_names);
+		fputs(".</p>\n", out);
+	}
 }
 
 void report_html_file(FILE *out, const struct check_file *f,

@@ -27,6 +27,7 @@ struct sim {
 	size_t ndev;
 	struct simmat *m;
 	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
+	long *shunt;             /* matrix handle of each node's diagonal */
 	double t, hstep;
 	int after_corner;        /* next step is backward Euler */
 	unsigned nhist;          /* accepted points in the error history */
@@ -103,16 +104,26 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 	return 1;
 }
 
+int sim_part_supported(const struct nl_circuit *c, size_t i, struct sim_refusal *ref)
+{
+	uint8_t k;
+	return device_kind(nl_part_at(c, i), (uint32_t)i, &k, ref);
+}
+
 /* Unknowns: nodes but ground, then diode internal nodes, then branches. */
 static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 {
 	size_t np = nl_part_count(s->c);
 	s->n = s->nnodes - 1;
+	s->ndev = 0;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(s->c, i);
 		uint8_t k;
+		if (s->o.leave_out && s->o.leave_out[i])
+			continue;
 		if (!device_kind(p, (uint32_t)i, &k, ref))
 			return 0;
+		s->ndev++;
 		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H)
 			s->n++;
 		if (k == SD_D && model_param(p->model, (const char *const[]){"rs", NULL}, 0) > 0)
@@ -248,23 +259,27 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 {
 	if (!count_unknowns(s, ref))
 		return SIM_REFUSED;
-	s->ndev = nl_part_count(s->c);
 	s->dev = arena_alloc(s->ar, (s->ndev + 1) * sizeof *s->dev);
+	s->shunt = arena_alloc(s->ar, s->nnodes * sizeof *s->shunt);
 	size_t bytes = (s->n + 1) * sizeof(double);
 	s->x = arena_zalloc(s->ar, bytes);
 	s->xprev = arena_zalloc(s->ar, bytes);
 	s->v = arena_zalloc(s->ar, (s->nnodes + 1) * sizeof(double));
 	s->m = simmat_create(s->n, &s->h);
-	if (!s->dev || !s->x || !s->xprev || !s->v || !s->m)
+	if (!s->dev || !s->shunt || !s->x || !s->xprev || !s->v || !s->m)
 		return SIM_OOM;
 	long next = (long)s->nnodes - 1;
-	for (size_t i = 0; i < s->ndev; i++)
-		if (!fill_device(s, &s->dev[i], i, &next))
+	for (size_t i = 0, k = 0; i < nl_part_count(s->c); i++)
+		if (!(s->o.leave_out && s->o.leave_out[i]) &&
+		    !fill_device(s, &s->dev[k++], i, &next))
 			return SIM_OOM;
 	if (!link_controls(s, ref))
 		return SIM_REFUSED;
 	for (size_t i = 0; i < s->ndev; i++)
 		if (!simdev_need(&s->dev[i], s->m))
+			return SIM_OOM;
+	for (size_t k = 0; k + 1 < s->nnodes; k++)
+		if ((s->shunt[k] = simmat_need(s->m, (long)k, (long)k)) == -2)
 			return SIM_OOM;
 	if (!simmat_freeze(s->m))
 		return SIM_OOM;
@@ -343,6 +358,8 @@ static enum sim_status newton(struct sim *s, const struct simdev_step *st)
 		simmat_clear(s->m);
 		for (size_t i = 0; i < s->ndev; i++)
 			simdev_stamp(&s->dev[i], st, s->m, s->x, &limited);
+		for (size_t k = 0; s->o.gshunt > 0 && k + 1 < s->nnodes; k++)
+			simmat_add(s->m, s->shunt[k], s->o.gshunt);
 		const double *xn = simmat_solve(s->m);
 		s->st.newton++;
 		if (!xn)

@@ -48,6 +48,8 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 	so->dc_scale = o->dc_scale;
 	so->dc_set = o->dc_set;
 	so->cap_v0 = o->cap_v0;
+	so->leave_out = o->leave_out;
+	so->gshunt = o->gshunt;
 }
 
 /* Creates the solver and, for the steady state, runs to it. */

@@ -108,6 +108,36 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 	}
 }
 
+/* Parts the solver has no model for are left out (open) and named; a
+ * small shunt from every node to ground keeps what they leave floating
+ * defined. The analysis ignores such parts too, so both judge the same
+ * circuit. Returns 0 on out-of-memory. */
+static int leave_out(struct audit *a, struct simrun_opts *o, struct stress_verify *v)
+{
+	const struct nl_circuit *c = a->er.circuit;
+	size_t np = nl_part_count(c);
+	unsigned char *mask = arena_zalloc(a->ar, np + 1);
+	char names[200] = "";
+	size_t len = 0;
+	if (!mask)
+		return 0;
+	for (size_t i = 0; i < np; i++) {
+		struct sim_refusal ref;
+		if (sim_part_supported(c, i, &ref))
+			continue;
+		mask[i] = 1;
+		if (v->left_out++ < 4 && len < sizeof names)
+			len += (size_t)snprintf(names + len, sizeof names - len, "%s%s",
+						len ? ", " : "", nl_part_at(c, i)->path);
+	}
+	if (v->left_out > 4 && len < sizeof names)
+		snprintf(names + len, sizeof names - len, " and %zu more", v->left_out - 4);
+	v->left_out_names = arena_strdup(a->ar, names);
+	o->leave_out = mask;
+	o->gshunt = VERIFY_GSHUNT;
+	return v->left_out_names != NULL;
+}
+
 int verify_run(struct audit *a, const struct profile *p, struct stress_result *sr)
 {
 	struct stress_verify *v = arena_zalloc(a->ar, sizeof *v);
@@ -124,6 +154,11 @@ int verify_run(struct audit *a, const struct profile *p, struct stress_result *s
 	struct hr_alloc h = hr_alloc_default();
 	struct simrun_result r;
 	simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
+	if (r.status == SIM_REFUSED && r.refusal.part != NL_NONE) {
+		if (!leave_out(a, &o, v))
+			return 0;
+		simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
+	}
 	v->periods = r.periods;
 	v->settled = r.settled;
 	v->period = r.period;
