@@ -1,0 +1,227 @@
+/* test_sim.c: the transient solver against closed-form results.
+ * - RC charging from a step: v(t) = V (1 - e^{-t/RC}) (the first-order
+ *   response of any circuits textbook, e.g. Horowitz & Hill, The Art of
+ *   Electronics, 3rd ed., §1.4.2; from memory);
+ * - a diode and resistor from a DC source settle where the resistor's
+ *   current equals the Shockley current I = IS (e^{V/(N Vt)} - 1) (SPICE
+ *   level-1 equation; Vt = kT/q at 300.15 K);
+ * - an LC tank rings at f = 1 / (2 pi sqrt(LC)) with no loss beyond the
+ *   trapezoidal rule's (which keeps the amplitude);
+ * - coupled inductors with k = 1 and a light load: the secondary follows
+ *   the primary by sqrt(Ls/Lp) (ideal transformer);
+ * - source waveforms: PULSE, PWL with repeat, SIN with delay and damping,
+ *   against their definitions in the ngspice manual, and their corners;
+ * - a loop of voltage sources is a singular matrix, reported as such;
+ *   a transistor is refused with its name. */
+#include "testutil.h"
+
+#include <math.h>
+
+#include "sim.h"
+#include "simsrc.h"
+
+static void near(double got, double want, double eps, int line)
+{
+	if (!(fabs(got - want) <= eps))
+		fail_msg("line %d: %.12g, want %.12g (+- %g)", line, got, want, eps);
+}
+#define assert_near(got, want, eps) near((got), (want), (eps), __LINE__)
+
+struct simrun_case {
+	struct run r;
+	struct sim *s;
+	double t, v[8];      /* last point seen */
+	uint32_t node[8];
+	int nnode;
+	double vmax, vmin;   /* of node[0] */
+};
+
+static int seen(void *ud, double t, const double *v)
+{
+	struct simrun_case *c = ud;
+	c->t = t;
+	for (int i = 0; i < c->nnode; i++)
+		c->v[i] = v[c->node[i]];
+	c->vmax = fmax(c->vmax, v[c->node[0]]);
+	c->vmin = fmin(c->vmin, v[c->node[0]]);
+	return 0;
+}
+
+static void start(struct simrun_case *c, const char *deck, const char *nodes[], int n,
+		  double max_step)
+{
+	memset(c, 0, sizeof *c);
+	run_text(&c->r, deck);
+	assert_string_equal(c->r.diags, "");
+	c->nnode = n;
+	for (int i = 0; i < n; i++) {
+		c->node[i] = nl_node_find(c->r.r.circuit, nodes[i], strlen(nodes[i]));
+		assert_true(c->node[i] != NL_NONE);
+	}
+	struct sim_opts o = {0};
+	o.max_step = max_step;
+	struct sim_refusal ref;
+	struct hr_alloc h = hr_alloc_default();
+	assert_int_equal(sim_create(c->r.r.circuit, &o, &h, &c->s, &ref), SIM_OK);
+	c->vmax = -INFINITY;
+	c->vmin = INFINITY;
+}
+
+static void finish(struct simrun_case *c)
+{
+	sim_destroy(c->s);
+	run_free(&c->r);
+}
+
+static void test_rc_step(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"out"};
+	/* 1 k, 1 uF: tau = 1 ms; a 10 V step with a 1 ns edge at t = 0 */
+	start(&c, "rc\nV1 in 0 pwl(0 0 1n 10)\nR1 in out 1k\nC1 out 0 1u\n", nodes, 1, 10e-6);
+	double taus[] = {0.5, 1, 2, 5};
+	for (int i = 0; i < 4; i++) {
+		assert_int_equal(sim_run(c.s, taus[i] * 1e-3, seen, &c), SIM_OK);
+		double want = 10 * (1 - exp(-(c.t - 1e-9) / 1e-3));
+		if (fabs(c.v[0] - want) > 1e-3 * 10)
+			fail_msg("t = %g: %g, want %g", c.t, c.v[0], want);
+	}
+	finish(&c);
+}
+
+static void test_diode_operating_point(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"a"};
+	start(&c, "dc\nV1 in 0 5\nR1 in a 1k\nD1 a 0 dm\n.model dm d is=1e-14 n=1.5\n",
+	      nodes, 1, 1e-6);
+	assert_int_equal(sim_run(c.s, 20e-6, seen, &c), SIM_OK);
+	double vd = c.v[0], ir = (5 - vd) / 1e3;
+	double id = 1e-14 * (exp(vd / (1.5 * 0.0258648)) - 1);
+	if (fabs(ir - id) > 1e-3 * ir)
+		fail_msg("resistor %g A, diode %g A at %g V", ir, id, vd);
+	/* about 4 mA: 1.5 x 25.86 mV x ln(4e-3 / 1e-14) = 1.04 V */
+	assert_true(vd > 1.0 && vd < 1.08);
+	finish(&c);
+}
+
+static void test_lc_tank(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"t"};
+	/* 10 uH, 100 nF: f = 1/(2 pi sqrt(1e-12)) = 159.155 kHz; C starts at
+	 * 1 V (ic=), no drive */
+	start(&c, "lc\nL1 t 0 10u\nC1 t 0 100n ic=1\n", nodes, 1, 20e-9);
+	double f = 1 / (2 * M_PI * sqrt(10e-6 * 100e-9)), per = 1 / f;
+	/* the voltage crosses zero going down at T/4, then every T/2 */
+	double prev = 1, tprev = 0, first = NAN, last = NAN;
+	int crossings = 0;
+	while (sim_time(c.s) < 20 * per) {
+		assert_int_equal(sim_run(c.s, sim_time(c.s) + per / 400, seen, &c), SIM_OK);
+		if ((prev > 0) != (c.v[0] > 0)) {
+			double tz = tprev + (c.t - tprev) * prev / (prev - c.v[0]);
+			if (crossings == 0)
+				first = tz;
+			last = tz;
+			crossings++;
+		}
+		prev = c.v[0];
+		tprev = c.t;
+	}
+	double measured = (last - first) / (crossings - 1) * 2;
+	if (fabs(measured - per) > 2e-3 * per)
+		fail_msg("period %g, want %g", measured, per);
+	assert_true(c.vmax > 0.99 && c.vmax < 1.01); /* no loss, no gain */
+	finish(&c);
+}
+
+static void test_transformer(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"s"};
+	/* Ls/Lp = 4: the secondary swings sqrt(4) = 2 times the primary */
+	start(&c, "xf\nV1 p 0 sin(0 5 10k)\nL1 p 0 1m\nL2 s 0 4m\nK1 L1 L2 1\nRL s 0 1meg\n",
+	      nodes, 1, 0);
+	assert_int_equal(sim_run(c.s, 1e-3, seen, &c), SIM_OK);
+	if (fabs(c.vmax - 10) > 0.01 || fabs(c.vmin + 10) > 0.01)
+		fail_msg("secondary swings %g to %g, want +-10", c.vmin, c.vmax);
+	finish(&c);
+}
+
+static void test_sources(void **state)
+{
+	(void)state;
+	struct simsrc_span sp = {1e-9, 1e-3};
+	double pulse[] = {0, 5, 1e-6, 10e-9, 20e-9, 490e-9, 1e-6};
+	struct nl_source p = {0};
+	p.wave = NL_WAVE_PULSE;
+	p.nargs = 7;
+	p.args = pulse;
+	assert_near(simsrc_value(&p, &sp, 0.5e-6), 0, 1e-12);
+	assert_near(simsrc_value(&p, &sp, 1e-6 + 5e-9), 2.5, 1e-9);
+	assert_near(simsrc_value(&p, &sp, 1.3e-6), 5, 1e-12);
+	assert_near(simsrc_value(&p, &sp, 2e-6 + 10e-9 + 490e-9 + 10e-9), 2.5, 1e-9);
+	assert_near(simsrc_next_corner(&p, &sp, 1.2e-6), 1e-6 + 500e-9, 1e-15);
+	assert_near(simsrc_next_corner(&p, &sp, 1.6e-6), 2e-6, 1e-15);
+	assert_near(simsrc_period(&p, &sp), 1e-6, 1e-18);
+
+	double pwl[] = {0, 0, 1e-3, 1, 2e-3, -1};
+	struct nl_source w = {0};
+	w.wave = NL_WAVE_PWL;
+	w.nargs = 6;
+	w.args = pwl;
+	w.pwl_repeat = 0;
+	assert_near(simsrc_value(&w, &sp, 0.5e-3), 0.5, 1e-12);
+	assert_near(simsrc_value(&w, &sp, 1.5e-3), 0, 1e-12);
+	assert_near(simsrc_value(&w, &sp, 2.5e-3), 0.5, 1e-9);  /* repeated */
+	assert_near(simsrc_period(&w, &sp), 2e-3, 1e-15);
+	assert_near(simsrc_next_corner(&w, &sp, 2.2e-3), 3e-3, 1e-12);
+
+	double sine[] = {1, 2, 1e3, 1e-3, 100, 90};
+	struct nl_source s = {0};
+	s.wave = NL_WAVE_SIN;
+	s.nargs = 6;
+	s.args = sine;
+	/* before TD: VO + VA sin(PHASE) = 1 + 2 = 3 */
+	assert_near(simsrc_value(&s, &sp, 0.5e-3), 3, 1e-12);
+	/* a quarter period after TD: 1 + 2 e^{-100 x 0.25e-3} sin(pi/2 + pi/2) */
+	assert_near(simsrc_value(&s, &sp, 1.25e-3), 1 + 2 * exp(-0.025) * sin(M_PI), 1e-9);
+	assert_near(simsrc_next_corner(&s, &sp, 0), 1e-3, 1e-15);
+}
+
+static void test_refusals(void **state)
+{
+	(void)state;
+	struct run r;
+	struct sim *s = NULL;
+	struct sim_refusal ref;
+	struct hr_alloc h = hr_alloc_default();
+	struct sim_opts o = {0};
+	run_text(&r, "loop\nV1 a 0 1\nV2 a 0 2\nR1 a 0 1k\n");
+	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_OK);
+	assert_int_equal(sim_run(s, 1e-6, NULL, NULL), SIM_SINGULAR);
+	sim_destroy(s);
+	run_free(&r);
+	run_text(&r, "bjt\nV1 a 0 1\nQ1 a b 0 qn\nR1 b 0 1k\n.model qn npn\n");
+	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
+	assert_null(s);
+	assert_string_equal(nl_part_at(r.r.circuit, ref.part)->path, "Q1");
+	run_free(&r);
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_rc_step),
+		cmocka_unit_test(test_diode_operating_point),
+		cmocka_unit_test(test_lc_tank),
+		cmocka_unit_test(test_transformer),
+		cmocka_unit_test(test_sources),
+		cmocka_unit_test(test_refusals),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
