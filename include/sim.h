@@ -31,6 +31,8 @@ struct sim_opts {
 					   (open); NULL: none */
 	double gshunt;     /* S from every node to ground (0: none), so that a
 			      node left floating by leave_out stays defined */
+	unsigned long max_points; /* time points, accepted or not, over the
+				     solver's life; 0: 5,000,000 */
 };
 
 struct sim;
@@ -42,7 +44,7 @@ struct sim_refusal {
 };
 
 enum sim_status { SIM_OK, SIM_REFUSED, SIM_NO_CONVERGENCE, SIM_SINGULAR,
-		  SIM_OOM };
+		  SIM_BUDGET, SIM_OOM };
 
 /* Builds the solver for circuit c (borrowed; must outlive the solver). On
  * SIM_REFUSED *ref says why (an opaque or behavioural part, a diode

@@ -64,8 +64,10 @@ struct stress_result {
 	const struct stress_verify *verify; /* --verify's run, or NULL */
 };
 
-/* Index in runs of the corner with amplitudes and offsets at +tol. */
+/* Index in runs of the corner with amplitudes and offsets at +tol, and of
+ * the best case (everything at -tol, diode forward drops). */
 #define STRESS_CORNER_HIGH 1
+#define STRESS_CORNER_LOW 3
 
 /* What --verify did for a file (filled by verify_run). */
 struct stress_verify {
@@ -74,7 +76,7 @@ struct stress_verify {
 	unsigned periods;       /* periods run before the recorded one */
 	int settled;            /* steady state reached within the cap */
 	double period;          /* s */
-	size_t started;         /* capacitors started at their analytic voltage */
+	size_t started;         /* capacitors started at the best-case analytic DC */
 	size_t confirmed, gaps; /* stresses within / above their bound */
 	unsigned long points, newton;
 	size_t unknowns;

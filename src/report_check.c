@@ -78,7 +78,7 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 	char per[24];
 	num_format_eng(v->period, "s", per, sizeof per);
 	fprintf(out, "  simulated (--verify): %s after %u periods of %s, %zu capacitors started "
-		     "at their analytic voltages; %zu stresses confirmed, %zu above their bounds\n",
+		     "at the analysis's best-case voltages; %zu stresses confirmed, %zu above their bounds\n",
 		v->settled ? "steady" : "NOT steady (cap reached)", v->periods, per, v->started,
 		v->confirmed, v->gaps);
 	if (v->left_out)

@@ -13,6 +13,7 @@
 #include "sig.h"
 
 #define SIM_MAX_NEWTON 100
+#define SIM_MAX_POINTS 5000000ul
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
 
@@ -247,6 +248,8 @@ static void defaults(struct sim *s)
 	struct sim_opts *o = &s->o;
 	if (o->reltol <= 0)
 		o->reltol = 1e-3;
+	if (o->max_points == 0)
+		o->max_points = SIM_MAX_POINTS;
 	if (o->vntol <= 0)
 		o->vntol = 1e-6;
 	if (o->abstol <= 0)
@@ -441,6 +444,8 @@ static enum sim_status step(struct sim *s, double t_end)
 {
 	double hmin = s->o.max_step * 1e-9;
 	for (;;) {
+		if (s->st.points + s->st.rejected > s->o.max_points)
+			return SIM_BUDGET;
 		double corner = next_corner(s);
 		double h = fmin(fmin(s->hstep, s->o.max_step), t_end - s->t);
 		/* no sliver of a step left before the end */
@@ -555,7 +560,8 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 		/* geometric decay: what is still to come is change r/(1-r) */
 		double to_come = ratio < 0.98 ? change * ratio / (1 - ratio) : INFINITY;
 		last_change = change;
-		if (r == SIM_OK && *periods >= 2 && change < tol &&
+		/* a decay needs two changes to be seen: three periods at least */
+		if (r == SIM_OK && *periods >= 3 && change < tol &&
 		    (to_come < tol || change < tol / 10)) {
 			*settled = 1;
 			break;
@@ -577,6 +583,7 @@ const char *sim_status_text(enum sim_status st)
 	case SIM_REFUSED: return "the circuit cannot be simulated";
 	case SIM_NO_CONVERGENCE: return "the solver did not converge (time step too small)";
 	case SIM_SINGULAR: return "the circuit matrix is singular (a floating node or a loop of voltage sources)";
+	case SIM_BUDGET: return "the run needs more time points than allowed (sources of very different periods, or a very slow circuit)";
 	default: return "out of memory";
 	}
 }
