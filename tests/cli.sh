@@ -265,7 +265,7 @@ run check --verify --format html -o "$tmp/verify.html" --fail-on never "$here/..
 check "check --verify --format html: every plot carries its simulated waveform, all finite" bash -c "test $rc -eq 0 && test \$(grep -o '<polyline class=\"wave\"' '$tmp/verify.html' | wc -l) -eq \$(grep -o '<polyline class=\"sim\"' '$tmp/verify.html' | wc -l) && test \$(grep -o '<polyline class=\"sim\"' '$tmp/verify.html' | wc -l) -ge 20 && ! grep -qiE '[ ,\"]-?nan[ ,\"]' '$tmp/verify.html'"
 printf 't\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nQ1 b c 0 qn\nR1 c 0 1k\n.model dm d\n.model qn npn\n' > "$tmp/bjt2.cir"
 run check --verify "$tmp/bjt2.cir"
-check "check --verify leaves a transistor open and says so" bash -c "grep -q 'simulated (--verify): steady' '$tmp/out' && grep -q 'left open in the simulation (no solver model; the analysis ignores them too): Q1' '$tmp/out' && grep -q 'simulated 11 V: confirmed' '$tmp/out'"
+check "check --verify leaves a transistor open and says so" bash -c "grep -q 'simulated (--verify): steady' '$tmp/out' && grep -q 'left open in the simulation (no solver model; the analysis ignores them too): Q1' '$tmp/out' && grep -q 'reverse = max v(b) - v(0) over a period = 11 V.*simulated 10\.[0-9]* V: confirmed' '$tmp/out'"
 printf 't\nV1 a 0 pwl(0 0 1m 5)\nC1 a b 1u\nD1 0 b dm\n.model dm d\n' > "$tmp/once.cir"
 run check --verify "$tmp/once.cir"
 check "check --verify on a circuit with nothing periodic says why it did not simulate" grep -q 'not simulated (--verify): no source repeats' "$tmp/out"
