@@ -2,7 +2,8 @@
 # Thread safety of batch mode: the ThreadSanitizer build of headroom checks
 # the tests' decks, the examples and the third-party corpus with -j 4, in
 # every report format, with a waiver file and a baseline shared by all
-# workers. Any ThreadSanitizer report fails the run (halt_on_error).
+# workers, and once with --verify over the decks the solver can take. Any
+# ThreadSanitizer report fails the run (halt_on_error).
 # Usage: scripts/tsan.sh BUILD/headroom
 set -u
 bin=$1
@@ -35,5 +36,15 @@ for fmt in text csv junit sarif html; do
 		fail=1
 	fi
 done
+# --verify: the solver (and KLU) on four threads at once
+"$bin" check -j 4 --verify --format json --fail-on never "$root/examples" "$root/tests/data/sim" \
+	"$root/tests/data/topo" > /dev/null 2> "$tmp/err"
+rc=$?
+runs=$((runs + 1))
+if [ $rc -eq 66 ] || grep -q ThreadSanitizer "$tmp/err"; then
+	echo "tsan: FAIL --verify"
+	grep -A30 'WARNING: ThreadSanitizer' "$tmp/err" | head -60
+	fail=1
+fi
 echo "tsan: $runs batch runs with -j 4 over ${#inputs[@]} input trees: $([ $fail = 0 ] && echo 'no reports' || echo 'REPORTS FOUND')"
 exit $fail

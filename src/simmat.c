@@ -125,6 +125,8 @@ int simmat_freeze(struct simmat *m)
 	hr_free(&m->h, m->ent);
 	m->ent = NULL;
 	m->nent = nz;
+	if (m->n == 0)
+		return 1;
 	m->sym = klu_analyze((int)m->n, m->ap, m->ai, &m->common);
 	return m->sym != NULL;
 }
