@@ -37,6 +37,9 @@ struct stress {
 	/* --verify: pin 0 minus pin 1 over the simulated period at
 	   VERIFY_TRACE_POINTS even times, or NULL */
 	const double *sim_wave;
+	/* --verify: a pin shares a node with a part the solver left open, so
+	   the simulated value is shown but not compared with the bound */
+	int sim_near_open;
 };
 
 /* Per structure: figures that need the whole structure. */
@@ -78,6 +81,7 @@ struct stress_verify {
 	double period;          /* s */
 	size_t started;         /* capacitors started at the best-case analytic DC */
 	size_t confirmed, gaps; /* stresses within / above their bound */
+	size_t uncompared;      /* simulated beside a part left open */
 	unsigned long points, newton;
 	size_t unknowns;
 	size_t left_out;        /* parts the solver has no model for, left open */

@@ -82,8 +82,8 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 		v->settled ? "steady" : "NOT steady (cap reached)", v->periods, per, v->started,
 		v->confirmed, v->gaps);
 	if (v->left_out)
-		fprintf(out, "  left open in the simulation (no solver model; the analysis ignores "
-			     "them too): %s\n", v->left_out_names);
+		fprintf(out, "  left open in the simulation (no solver model): %s; %zu stresses "
+			     "beside them not compared\n", v->left_out_names, v->uncompared);
 }
 
 static void text_table(FILE *out, const struct check_file *f)
@@ -126,7 +126,7 @@ static void text_table(FILE *out, const struct check_file *f)
 			s->qty == SQ_SURGE ? "surge" : p->kind == NL_D ? "reverse" : "voltage",
 			s->role[0] ? s->role : "-", wv, bv, rv, ratio);
 		if (sim)
-			fprintf(out, " %11s%s", sv, verify_gap(s) ? " GAP" : "");
+			fprintf(out, " %11s%s", sv, verify_gap(s) ? " GAP" : s->sim_near_open ? " n/c" : "");
 		fputc('\n', out);
 	}
 }
@@ -238,7 +238,8 @@ static void json_stress(FILE *out, const struct check_file *f,
 	if (f->stress->verify) {
 		fputs(", \"simulated\": ", out);
 		jnum(out, s->sim_worst);
-		fprintf(out, ", \"analysis_gap\": %s", verify_gap(s) ? "true" : "false");
+		fprintf(out, ", \"analysis_gap\": %s, \"compared\": %s", verify_gap(s) ? "true" : "false",
+			isfinite(s->sim_worst) && !s->sim_near_open ? "true" : "false");
 	}
 	fputc('}', out);
 }
@@ -304,9 +305,10 @@ static void json_file(FILE *out, const struct check_file *f)
 			v->settled ? "true" : "false", v->periods);
 		jnum(out, v->period);
 		fprintf(out, ", \"started_from_analysis\": %zu, \"confirmed\": %zu, "
-			     "\"gaps\": %zu, \"points\": %lu, \"unknowns\": %zu, \"left_out\": %zu, "
-			     "\"left_out_names\": ",
-			v->started, v->confirmed, v->gaps, v->points, v->unknowns, v->left_out);
+			     "\"gaps\": %zu, \"uncompared\": %zu, \"points\": %lu, \"unknowns\": %zu, "
+			     "\"left_out\": %zu, \"left_out_names\": ",
+			v->started, v->confirmed, v->gaps, v->uncompared, v->points, v->unknowns,
+			v->left_out);
 		jstr(out, v->left_out ? v->left_out_names : NULL);
 		fputc('}', out);
 	}

@@ -270,9 +270,9 @@ static void verify_line(FILE *out, const struct stress_verify *v)
 		v->settled ? "steady" : "not steady (cap reached)", v->periods, per,
 		v->confirmed, v->gaps);
 	if (v->left_out) {
-		fputs("<p>Left open in the simulation (no solver model; the analysis ignores them too): ", out);
+		fputs("<p>Left open in the simulation (no solver model): ", out);
 		x(out, v->left_out_names);
-		fputs(".</p>\n", out);
+		fprintf(out, "; %zu stresses beside them not compared.</p>\n", v->uncompared);
 	}
 }
 

@@ -87,7 +87,7 @@ static int from_pulse(const struct nl_source *s, struct arena *ar,
 	double v1 = arg(s, 0, 0), v2 = arg(s, 1, 0), td = arg(s, 2, 0);
 	double tr = arg(s, 3, 0), tf = arg(s, 4, 0), per = arg(s, 6, 0);
 	double pw = arg(s, 5, per > 0 ? per / 2 : 0);
-	if (per <= 0 || tr + pw + tf > per * (1 + 1e-12)) {
+	if (per <= 0) {
 		set_dc(o, v1, "single pulse: it settles to its initial value");
 		return 1;
 	}
@@ -95,7 +95,19 @@ static int from_pulse(const struct nl_source *s, struct arena *ar,
 	o->kind = SIG_PULSE;
 	double t[5] = {0, tr, tr + pw, tr + pw + tf, per};
 	double v[5] = {v1, v2, v2, v1, v1};
-	return set_points(o, ar, t, v, 5, td);
+	if (tr + pw + tf <= per * (1 + 1e-12))
+		return set_points(o, ar, t, v, 5, td);
+	/* rise, width and fall overrun the period: as SPICE does (time taken
+	 * modulo the period), the shape is cut at the period and the next one
+	 * starts again from v1 */
+	size_t n = 1;
+	for (size_t i = 1; i < 4 && t[i] < per; i++, n++)
+		;
+	double u = per, at_per = u < tr ? v1 + (v2 - v1) * u / tr
+			   : u < tr + pw ? v2 : v2 + (v1 - v2) * (u - tr - pw) / tf;
+	t[n] = per;
+	v[n] = at_per;
+	return set_points(o, ar, t, v, n + 1, td);
 }
 
 /* The PWL of a card at time t (before the first point: its first value). */

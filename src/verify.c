@@ -9,7 +9,7 @@
 
 int verify_gap(const struct stress *s)
 {
-	return s->bounded && isfinite(s->sim_worst) &&
+	return s->bounded && isfinite(s->sim_worst) && !s->sim_near_open &&
 	       s->sim_worst > s->worst * (1 + VERIFY_GAP_REL) + VERIFY_GAP_ABS;
 }
 
@@ -87,9 +87,16 @@ static int traces(struct audit *a, struct stress_result *sr, struct simrun_opts 
 	return 1;
 }
 
+static int near_open(const struct nl_circuit *c, uint32_t part,
+		     const unsigned char *open_node)
+{
+	const uint32_t *pin = nl_pins(c, nl_part_at(c, part));
+	return open_node && (open_node[pin[0]] || open_node[pin[1]]);
+}
+
 static void record(struct stress_result *sr, const double *vmin, const double *vmax,
 		   const struct nl_circuit *c, const struct simrun_opts *o,
-		   struct stress_verify *v)
+		   const unsigned char *open_node, struct stress_verify *v)
 {
 	for (size_t i = 0, k = 0; i < sr->n; i++) {
 		struct stress *s = &sr->s[i];
@@ -103,9 +110,12 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 		int diode = nl_part_at(c, s->part)->kind == NL_D;
 		s->sim_worst = diode ? fmax(-vmin[s->part], 0)
 				     : fmax(vmax[s->part], -vmin[s->part]);
+		s->sim_near_open = near_open(c, s->part, open_node);
 		if (!s->bounded)
 			continue;
-		if (verify_gap(s))
+		if (s->sim_near_open)
+			v->uncompared++;
+		else if (verify_gap(s))
 			v->gaps++;
 		else
 			v->confirmed++;
@@ -116,20 +126,28 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
  * small shunt from every node to ground keeps what they leave floating
  * defined. The analysis ignores such parts too, so both judge the same
  * circuit. Returns 0 on out-of-memory. */
-static int leave_out(struct audit *a, struct simrun_opts *o, struct stress_verify *v)
+static int leave_out(struct audit *a, struct simrun_opts *o, struct stress_verify *v,
+		     unsigned char **open_node)
 {
 	const struct nl_circuit *c = a->er.circuit;
 	size_t np = nl_part_count(c);
 	unsigned char *mask = arena_zalloc(a->ar, np + 1);
+	unsigned char *nodes = arena_zalloc(a->ar, nl_node_count(c) + 1);
 	char names[200] = "";
 	size_t len = 0;
-	if (!mask)
+	if (!mask || !nodes)
 		return 0;
+	*open_node = nodes;
 	for (size_t i = 0; i < np; i++) {
 		struct sim_refusal ref;
 		if (sim_part_supported(c, i, &ref))
 			continue;
 		mask[i] = 1;
+		const struct nl_part *pt = nl_part_at(c, i);
+		const uint32_t *pin = nl_pins(c, pt);
+		for (uint8_t k = 0; k < pt->npins; k++)
+			if (pin[k] != NL_GROUND)
+				nodes[pin[k]] = 1;
 		if (v->left_out++ < 4 && len < sizeof names)
 			len += (size_t)snprintf(names + len, sizeof names - len, "%s%s",
 						len ? ", " : "", nl_part_at(c, i)->path);
@@ -158,8 +176,9 @@ int verify_run(struct audit *a, const struct profile *p, struct stress_result *s
 	struct hr_alloc h = hr_alloc_default();
 	struct simrun_result r;
 	simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
+	unsigned char *open_node = NULL;
 	if (r.status == SIM_REFUSED && r.refusal.part != NL_NONE) {
-		if (!leave_out(a, &o, v))
+		if (!leave_out(a, &o, v, &open_node))
 			return 0;
 		simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
 	}
@@ -188,6 +207,6 @@ int verify_run(struct audit *a, const struct profile *p, struct stress_result *s
 		return 1;
 	}
 	v->simulated = 1;
-	record(sr, vmin, vmax, c, &o, v);
+	record(sr, vmin, vmax, c, &o, open_node, v);
 	return 1;
 }

@@ -164,6 +164,20 @@ static void test_signals(void **state)
 	assert_true(sig_from_source(&src, ar, &w));
 	assert_int_equal(w.kind, SIG_DC);
 	assert_true(w.mean == 10 && w.note != NULL);
+	/* rise + width + fall longer than the period: SPICE takes time modulo
+	 * the period, so PULSE(0 5 1u 1u 1u 1 1) is high nearly all the time
+	 * (found by --verify on a third-party netlist, where this was once
+	 * read as a single pulse settling at 0 V) */
+	double over[7] = {0, 5, 1e-6, 1e-6, 1e-6, 1, 1};
+	memset(&src, 0, sizeof src);
+	src.wave = NL_WAVE_PULSE;
+	src.nargs = 7;
+	src.args = over;
+	assert_true(sig_from_source(&src, ar, &w));
+	assert_int_equal(w.kind, SIG_PULSE);
+	assert_true(fabs(w.period - 1) < 1e-12);
+	assert_true(fabs(w.mean + w.ac_max - 5) < 1e-9);  /* reaches 5 V */
+	assert_true(fabs(w.mean - 5) < 1e-5);            /* and stays there */
 	arena_destroy(ar);
 }
 
