@@ -168,9 +168,11 @@ head -c 3000000 /dev/zero | tr '\0' '1' > "$tmp/digits"
 { printf 'long line\nR1 a 0 '; cat "$tmp/digits"; printf '\nR2 a 0 1\n'; } > "$tmp/long.cir"
 run parts "$tmp/long.cir"
 check "a 3 MB line stops at the default 1 MiB limit, located" bash -c "test $rc -eq 2 && grep -q 'long.cir:2:1048577: error: line longer than 1048576 bytes' '$tmp/err'"
-if [ -x /usr/bin/time ]; then
+if [ -x /usr/bin/time ] && head -c 4 "$bin" | grep -q ELF; then
 	/usr/bin/time -f '%M' -o "$tmp/rss" "$bin" parts "$tmp/long.cir" > /dev/null 2>&1
 	check "the long line is streamed, not held whole (peak RSS under 32 MB)" test "$(tail -1 "$tmp/rss")" -lt 32768
+else
+	echo "cli: note: headroom runs through a wrapper (valgrind?): the peak-memory check is left to the plain run"
 fi
 printf 't\nR1 a 0 1k\nR2 a b 2k\n' > "$tmp/short.cir"
 run parts --max-line 8 "$tmp/short.cir"
