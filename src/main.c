@@ -682,9 +682,28 @@ static void emit(struct check_totals *t, struct check_totals *tj, struct job *j,
 	report_totals_merge(tj, &j->tj);
 }
 
+/* One file: its report is streamed to out, not held in memory first (the
+ * JSON report of a 600k-part deck is half a gigabyte). */
+static int run_single(const struct batch *b, const char *path, FILE *out, FILE *json,
+		      struct check_totals *t, struct check_totals *tj)
+{
+	struct job j;
+	memset(&j, 0, sizeof j);
+	j.t.color = j.tj.color = b->color;
+	j.t.quiet = b->quiet;
+	j.t.docs_uri = j.tj.docs_uri = b->docs;
+	int rc = check_one(b, path, 1, out, stderr, json, &j.t, &j.tj);
+	t->emitted += j.t.emitted;
+	report_totals_merge(t, &j.t);
+	report_totals_merge(tj, &j.tj);
+	return rc;
+}
+
 static int run_batch(const struct batch *b, char **files, size_t n, FILE *out,
 		     FILE *json, struct check_totals *t, struct check_totals *tj)
 {
+	if (n == 1)
+		return run_single(b, files[0], out, json, t, tj);
 	struct pool pl = {b, calloc(n ? n : 1, sizeof *pl.jobs), n, 0,
 			  PTHREAD_MUTEX_INITIALIZER, PTHREAD_COND_INITIALIZER};
 	if (!pl.jobs)
