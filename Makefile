@@ -136,7 +136,7 @@ bench: deps $(BUILD)/headroom
 	bash scripts/bench.sh $(BUILD)/headroom
 
 demo: deps $(BUILD)/headroom
-	-$(BUILD)/headroom check --parts examples/parts.csv examples/
+	-$(BUILD)/headroom check --verify --parts examples/parts.csv examples/
 
 # Rewrites tests/expected/ from the current build: review the diff.
 expected: $(BUILD)/headroom
