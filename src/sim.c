@@ -13,6 +13,7 @@
 #include "sig.h"
 
 #define SIM_MAX_NEWTON 100
+#define SIM_RMIN 1e-3      /* ohm: the smallest resistance (SPICE's, from memory) */
 #define SIM_MAX_POINTS 5000000ul
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
@@ -50,6 +51,30 @@ static double model_param(const struct nl_model *m, const char *const *keys,
 	return dflt;
 }
 
+/* Parameters outside their physical range would divide by zero in the
+ * junction equations: each is brought back to its SPICE default or limit. */
+static void diode_sane(struct simdev_diode *d)
+{
+	if (!(d->is > 0))
+		d->is = 1e-14;
+	if (!(d->n > 0))
+		d->n = 1;
+	if (!(d->rs >= 0))
+		d->rs = 0;
+	if (!(d->cjo >= 0))
+		d->cjo = 0;
+	if (!(d->vj > 0))
+		d->vj = 1;
+	if (!(d->m >= 0 && d->m <= 0.9))
+		d->m = d->m > 0.9 ? 0.9 : 0.5;
+	if (!(d->fc >= 0 && d->fc <= 0.95))
+		d->fc = d->fc > 0.95 ? 0.95 : 0.5;
+	if (!(d->tt >= 0))
+		d->tt = 0;
+	if (!(d->ibv > 0))
+		d->ibv = 1e-3;
+}
+
 static struct simdev_diode *diode_model(struct sim *s, const struct nl_part *p)
 {
 	struct simdev_diode *d = arena_zalloc(s->ar, sizeof *d);
@@ -69,6 +94,7 @@ static struct simdev_diode *diode_model(struct sim *s, const struct nl_part *p)
 	d->ibv = model_param(m, (const char *const[]){"ibv", NULL}, 1e-3) * area;
 	if (d->bv <= 0)
 		d->bv = INFINITY;
+	diode_sane(d);
 	simdev_diode_init(d);
 	return d;
 }
@@ -99,8 +125,10 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 		return refuse(ref, i, "behavioural sources (value=, poly, table) are not simulated");
 	if (p->kind == NL_D && p->model && strcmp(p->model->type, "d") != 0)
 		return refuse(ref, i, "the diode's model is not of type D");
-	if ((p->kind == NL_R || p->kind == NL_L) && !(p->value != 0 && isfinite(p->value)))
-		return refuse(ref, i, "a zero or missing value");
+	if (p->kind == NL_L && !(p->value != 0 && isfinite(p->value)))
+		return refuse(ref, i, "an inductor with a zero or missing value");
+	if (!isfinite(p->value) && (p->kind == NL_R || p->kind == NL_C))
+		return refuse(ref, i, "a missing value");
 	*kind = map[p->kind];
 	return 1;
 }
@@ -165,8 +193,8 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 	d->p = d->a;
 	double mult = p->ext && isfinite(p->ext->mult) && p->ext->mult > 0 ? p->ext->mult : 1;
 	d->val = p->value;
-	if (d->kind == SD_R)
-		d->val = mult / p->value;
+	if (d->kind == SD_R) /* a 0-ohm short is taken as 1 mOhm, as SPICE does */
+		d->val = mult / (fabs(p->value) < SIM_RMIN ? SIM_RMIN : p->value);
 	else if (d->kind == SD_C)
 		d->val = p->value * mult;
 	else if (d->kind == SD_L)
@@ -521,7 +549,7 @@ static void state_of(const struct sim *s, double *st)
 {
 	for (size_t i = 0; i < s->ndev; i++) {
 		const struct simdev *d = &s->dev[i];
-		st[i] = d->kind == SD_C ? d->q0 / d->val : d->kind == SD_L ? d->q0 / d->val : 0;
+		st[i] = (d->kind == SD_C || d->kind == SD_L) && d->val != 0 ? d->q0 / d->val : 0;
 	}
 }
 

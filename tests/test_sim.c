@@ -12,7 +12,8 @@
  * - source waveforms: PULSE, PWL with repeat, SIN with delay and damping,
  *   against their definitions in the ngspice manual, and their corners;
  * - a loop of voltage sources is a singular matrix, reported as such;
- *   a transistor is refused with its name. */
+ *   a transistor is refused with its name; a 0-ohm resistor is 1 mOhm and
+ *   out-of-range diode parameters fall back to defaults. */
 #include "testutil.h"
 
 #include <math.h>
@@ -213,6 +214,23 @@ static void test_refusals(void **state)
 	run_free(&r);
 }
 
+/* A 0-ohm resistor is a short (1 mOhm, as SPICE takes it); diode
+ * parameters outside their range (IS = 0, N = 0, VJ = 0, M = 1, FC = 1)
+ * fall back to defaults instead of dividing by zero. */
+static void test_degenerate_values(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"b", "d"};
+	start(&c, "odd\nV1 a 0 1\nR0 a b 0\nR1 b 0 1k\nV2 x 0 sin(0 5 1k)\nC1 x d 1u\n"
+		  "D1 0 d dz\nRL d 0 10k\n.model dz d is=0 n=0 vj=0 m=1 fc=1 cjo=1p\n",
+	      nodes, 2, 0);
+	assert_int_equal(sim_run(c.s, 3e-3, seen, &c), SIM_OK);
+	assert_near(c.v[0], 1000 / 1000.001, 1e-9);
+	assert_true(isfinite(c.v[1]) && fabs(c.v[1]) < 6);
+	finish(&c);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -222,6 +240,7 @@ int main(void)
 		cmocka_unit_test(test_transformer),
 		cmocka_unit_test(test_sources),
 		cmocka_unit_test(test_refusals),
+		cmocka_unit_test(test_degenerate_values),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
