@@ -26,11 +26,20 @@
 /* Samples kept of each stressed part's simulated waveform (for plots). */
 #define VERIFY_TRACE_POINTS 240
 
+/* Bounds on one file's simulation; 0 takes the solver's defaults (2000
+ * periods, 5,000,000 time points). */
+struct verify_limits {
+	unsigned max_periods;
+	unsigned long max_points;
+};
+
 /* Simulates a's circuit and fills sim_worst of every voltage and reverse
- * stress in sr, and sr->verify. A circuit the solver cannot take (an
- * opaque part, no repeating source) is reported in sr->verify->why, not as
- * an error. Allocates in a->ar. Returns 0 on out-of-memory. */
-int verify_run(struct audit *a, const struct profile *p, struct stress_result *sr);
+ * stress in sr, and sr->verify. A circuit the solver cannot take (no
+ * repeating source, no convergence, past the limits) is reported in
+ * sr->verify->why, not as an error. lim may be NULL. Allocates in a->ar.
+ * Returns 0 on out-of-memory. */
+int verify_run(struct audit *a, const struct profile *p, const struct verify_limits *lim,
+	       struct stress_result *sr);
 
 /* True when stress s was simulated above its bound (see VERIFY_GAP_*). */
 int verify_gap(const struct stress *s);

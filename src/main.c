@@ -533,7 +533,7 @@ static int check_one(const struct batch *b, const char *path, int first,
 		const struct rating_table *tab = c->parts ? rating_table_load(c->parts, a.ar, d) : NULL;
 		f.ratings = rating_resolve(a.er.circuit, tab, a.annots, a.nannots, a.ar, d);
 		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) ||
-		    (c->verify && !verify_run(&a, p, &sr)) || !rules_run(&a, f.ratings, p, &sr, &rr) ||
+		    (c->verify && !verify_run(&a, p, NULL, &sr)) || !rules_run(&a, f.ratings, p, &sr, &rr) ||
 		    !waiver_apply(&a, b->waivers, b->today, &rr))
 			st = AUDIT_OOM;
 		else {

@@ -160,7 +160,8 @@ static int leave_out(struct audit *a, struct simrun_opts *o, struct stress_verif
 	return v->left_out_names != NULL;
 }
 
-int verify_run(struct audit *a, const struct profile *p, struct stress_result *sr)
+int verify_run(struct audit *a, const struct profile *p, const struct verify_limits *lim,
+	       struct stress_result *sr)
 {
 	struct stress_verify *v = arena_zalloc(a->ar, sizeof *v);
 	if (!v)
@@ -173,6 +174,10 @@ int verify_run(struct audit *a, const struct profile *p, struct stress_result *s
 	double *vmax = arena_alloc(a->ar, (np + 1) * sizeof *vmax);
 	if (!vmin || !vmax || !corner(a, p, sr, &o, &v->started) || !traces(a, sr, &o))
 		return 0;
+	if (lim) {
+		o.max_periods = lim->max_periods;
+		o.max_points = lim->max_points;
+	}
 	struct hr_alloc h = hr_alloc_default();
 	struct simrun_result r;
 	simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);

@@ -304,7 +304,7 @@ static void test_verify(void **state)
 	(void)state;
 	struct checked c;
 	check_text(&c, CLAMP("50", "100") "RL x 0 10k\n", "industrial", 0.10);
-	assert_true(verify_run(&c.a, &c.p, &c.s));
+	assert_true(verify_run(&c.a, &c.p, NULL, &c.s));
 	assert_non_null(c.s.verify);
 	assert_true(c.s.verify->simulated);
 	assert_true(c.s.verify->settled);

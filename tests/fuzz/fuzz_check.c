@@ -1,6 +1,7 @@
 /* End to end: netlist -> elaboration, annotations, propagation and
- * structures (audit) -> ratings -> stresses -> rules -> waivers -> the JSON
- * and HTML reports (written to /dev/null). Includes are refused, so the
+ * structures (audit) -> ratings -> stresses -> the transient solver
+ * (--verify, held to 20 periods and 20,000 time points) -> rules -> waivers
+ * -> the JSON and HTML reports (written to /dev/null). Includes are refused, so the
  * input alone decides what is read. Profile: rules/industrial.profile. */
 #include "fuzz.h"
 
@@ -15,6 +16,7 @@
 #include "report_check.h"
 #include "rules.h"
 #include "stress.h"
+#include "verify.h"
 #include "waiver.h"
 
 #ifndef FUZZ_RULES
@@ -53,7 +55,9 @@ static void check(const char *path, struct profile *p, FILE *sink)
 	struct check_file f = {path, &a, d, NULL, &sr, &rr};
 	if (st == AUDIT_OK) {
 		f.ratings = rating_resolve(a.er.circuit, NULL, a.annots, a.nannots, a.ar, d);
+		struct verify_limits lim = {20, 20000};
 		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) ||
+		    !verify_run(&a, p, &lim, &sr) ||
 		    !rules_run(&a, f.ratings, p, &sr, &rr) ||
 		    !waiver_apply(&a, NULL, "2026-12-01", &rr))
 			st = AUDIT_OOM;
