@@ -31,8 +31,9 @@ struct sim_opts {
 					   (open); NULL: none */
 	double gshunt;     /* S from every node to ground (0: none), so that a
 			      node left floating by leave_out stays defined */
-	unsigned long max_points; /* time points, accepted or not, over the
-				     solver's life; 0: 5,000,000 */
+	unsigned long max_work; /* Newton iterations over the solver's life
+				   (each one a factorisation and solve);
+				   0: 20,000,000 */
 };
 
 struct sim;

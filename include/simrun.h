@@ -14,7 +14,7 @@ struct simrun_opts {
 	double from;           /* first time written (plain run) */
 	double max_step;       /* 0: the solver's default */
 	unsigned max_periods;  /* steady state: cap (0: 2000) */
-	unsigned long max_points; /* time points in all (0: the solver's) */
+	unsigned long max_work; /* Newton iterations in all (0: the solver's) */
 	double settle_tol;     /* steady state: relative (0: 1e-4) */
 	const double *ac_scale, *dc_scale, *dc_set; /* source corner (sim.h) */
 	const double *cap_v0;  /* capacitor start voltages per part, or NULL */

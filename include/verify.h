@@ -27,10 +27,10 @@
 #define VERIFY_TRACE_POINTS 240
 
 /* Bounds on one file's simulation; 0 takes the solver's defaults (2000
- * periods, 5,000,000 time points). */
+ * periods, 20,000,000 Newton iterations). */
 struct verify_limits {
 	unsigned max_periods;
-	unsigned long max_points;
+	unsigned long max_work;   /* Newton iterations */
 };
 
 /* Simulates a's circuit and fills sim_worst of every voltage and reverse

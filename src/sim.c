@@ -12,9 +12,9 @@
 #include "simsrc.h"
 #include "sig.h"
 
-#define SIM_MAX_NEWTON 100
+#define SIM_MAX_NEWTON 20 /* per time point, then the step is cut (SPICE: ITL4 = 10) */
 #define SIM_RMIN 1e-3      /* ohm: the smallest resistance (SPICE's, from memory) */
-#define SIM_MAX_POINTS 5000000ul
+#define SIM_MAX_WORK 20000000ul /* Newton iterations: some 5 M time points */
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
 
@@ -276,8 +276,8 @@ static void defaults(struct sim *s)
 	struct sim_opts *o = &s->o;
 	if (o->reltol <= 0)
 		o->reltol = 1e-3;
-	if (o->max_points == 0)
-		o->max_points = SIM_MAX_POINTS;
+	if (o->max_work == 0)
+		o->max_work = SIM_MAX_WORK;
 	if (o->vntol <= 0)
 		o->vntol = 1e-6;
 	if (o->abstol <= 0)
@@ -472,7 +472,7 @@ static enum sim_status step(struct sim *s, double t_end)
 {
 	double hmin = s->o.max_step * 1e-9;
 	for (;;) {
-		if (s->st.points + s->st.rejected > s->o.max_points)
+		if (s->st.newton > s->o.max_work)
 			return SIM_BUDGET;
 		double corner = next_corner(s);
 		double h = fmin(fmin(s->hstep, s->o.max_step), t_end - s->t);
@@ -611,7 +611,7 @@ const char *sim_status_text(enum sim_status st)
 	case SIM_REFUSED: return "the circuit cannot be simulated";
 	case SIM_NO_CONVERGENCE: return "the solver did not converge (time step too small)";
 	case SIM_SINGULAR: return "the circuit matrix is singular (a floating node or a loop of voltage sources)";
-	case SIM_BUDGET: return "the run needs more time points than allowed (sources of very different periods, or a very slow circuit)";
+	case SIM_BUDGET: return "the run needs more work than allowed (sources of very different periods, or a very slow circuit)";
 	default: return "out of memory";
 	}
 }

@@ -107,7 +107,8 @@ int simmat_freeze(struct simmat *m)
 	m->b = hr_malloc(&m->h, (m->n + 1) * sizeof *m->b);
 	if (!m->slot || !m->ap || !m->ai || !m->ax || !m->b)
 		return 0;
-	qsort(m->ent, m->nent, sizeof *m->ent, by_position);
+	if (m->nent)
+		qsort(m->ent, m->nent, sizeof *m->ent, by_position);
 	size_t nz = 0;
 	memset(m->ap, 0, (m->n + 1) * sizeof *m->ap);
 	for (size_t i = 0; i < m->nent; i++) {

@@ -50,7 +50,7 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 	so->cap_v0 = o->cap_v0;
 	so->leave_out = o->leave_out;
 	so->gshunt = o->gshunt;
-	so->max_points = o->max_points;
+	so->max_work = o->max_work;
 }
 
 /* Creates the solver and, for the steady state, runs to it. */

@@ -55,7 +55,8 @@ static int corner(struct audit *a, const struct profile *p,
 		k[i] = pt->kind == NL_V ? 1 + stress_tolerance(a, p, (uint32_t)i) : 1;
 		set[i] = pt->kind == NL_V ? a->sources[i].max : NAN;
 		v0[i] = pt->kind == NL_C && pt->npins == 2 ? analytic_dc(a, sr, pt) : NAN;
-		*started += isfinite(v0[i]);
+		if (isfinite(v0[i]))
+			(*started)++;
 	}
 	memset(o, 0, sizeof *o);
 	o->ac_scale = k;
@@ -176,7 +177,7 @@ int verify_run(struct audit *a, const struct profile *p, const struct verify_lim
 		return 0;
 	if (lim) {
 		o.max_periods = lim->max_periods;
-		o.max_points = lim->max_points;
+		o.max_work = lim->max_work;
 	}
 	struct hr_alloc h = hr_alloc_default();
 	struct simrun_result r;

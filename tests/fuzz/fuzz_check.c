@@ -1,6 +1,7 @@
 /* End to end: netlist -> elaboration, annotations, propagation and
  * structures (audit) -> ratings -> stresses -> the transient solver
- * (--verify, held to 20 periods and 20,000 time points) -> rules -> waivers
+ * (--verify on circuits of up to 200 parts, held to 20 periods and 4,000
+ * Newton iterations) -> rules -> waivers
  * -> the JSON and HTML reports (written to /dev/null). Includes are refused, so the
  * input alone decides what is read. Profile: rules/industrial.profile. */
 #include "fuzz.h"
@@ -55,9 +56,11 @@ static void check(const char *path, struct profile *p, FILE *sink)
 	struct check_file f = {path, &a, d, NULL, &sr, &rr};
 	if (st == AUDIT_OK) {
 		f.ratings = rating_resolve(a.er.circuit, NULL, a.annots, a.nannots, a.ar, d);
-		struct verify_limits lim = {20, 20000};
+		struct verify_limits lim = {20, 4000};
+		/* the solver's time grows with the circuit: small ones only */
+		int small = nl_part_count(a.er.circuit) <= 200;
 		if (!f.ratings || !stress_run(&a, f.ratings, p, &sr) ||
-		    !verify_run(&a, p, &lim, &sr) ||
+		    (small && !verify_run(&a, p, &lim, &sr)) ||
 		    !rules_run(&a, f.ratings, p, &sr, &rr) ||
 		    !waiver_apply(&a, NULL, "2026-12-01", &rr))
 			st = AUDIT_OOM;
