@@ -70,7 +70,7 @@ seeds_parts    := examples/parts.csv tests/fuzz/seeds/parts
 seeds_profile  := rules tests/fuzz/seeds/profile
 seeds_waiver   := tests/fuzz/seeds/waiver
 seeds_baseline := tests/expected/examples.json tests/fuzz/seeds/baseline
-seeds_check    := examples tests/data/topo tests/fuzz/seeds/netlist
+seeds_check    := examples tests/data/topo tests/data/sim tests/fuzz/seeds/netlist
 
 $(BUILD)/fuzz_replay_%: tests/fuzz/fuzz_%.c tests/fuzz/replay.c tests/fuzz/fuzz.h $(BUILD)/libheadroom.a
 	$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -Wno-missing-prototypes $(FUZZ_DEF) -o $@ \
