@@ -15,36 +15,28 @@ export TSAN_OPTIONS="halt_on_error=1 exitcode=66 second_deadlock_stack=1"
 inputs=("$root/examples" "$root/tests/data")
 [ -d "$corpus" ] && inputs+=("$corpus")
 printf '*@waive * X* reason="shared by every worker"\n*@waive cap-derating C* reason="shared too" until=2020-01-01\n' > "$tmp/w.txt"
-"$bin" check -j 4 --format json --fail-on never --parts "$root/examples/parts.csv" \
-	--write-baseline "$tmp/base.json" "${inputs[@]}" > /dev/null 2> "$tmp/err" 
-rc=$?
+runs=0
 fail=0
-if [ $rc -eq 66 ] || grep -q ThreadSanitizer "$tmp/err"; then
-	grep -A30 'WARNING: ThreadSanitizer' "$tmp/err" | head -60
-	fail=1
-fi
-runs=1
-for fmt in text csv junit sarif html; do
-	"$bin" check -j 4 --format $fmt --fail-on never --parts "$root/examples/parts.csv" \
-		--waivers "$tmp/w.txt" --baseline "$tmp/base.json" --today 2026-12-01 \
-		"${inputs[@]}" > /dev/null 2> "$tmp/err"
-	rc=$?
+# One batch run of headroom check (arguments as given); a report fails it.
+tsan_run() { # label, arguments...
+	local label=$1
+	shift
+	"$bin" check -j 4 --fail-on never "$@" > /dev/null 2> "$tmp/err"
+	local rc=$?
 	runs=$((runs + 1))
 	if [ $rc -eq 66 ] || grep -q ThreadSanitizer "$tmp/err"; then
-		echo "tsan: FAIL --format $fmt"
+		echo "tsan: FAIL $label"
 		grep -A30 'WARNING: ThreadSanitizer' "$tmp/err" | head -60
 		fail=1
 	fi
+}
+tsan_run "--write-baseline" --format json --parts "$root/examples/parts.csv" \
+	--write-baseline "$tmp/base.json" "${inputs[@]}"
+for fmt in text csv junit sarif html; do
+	tsan_run "--format $fmt" --format $fmt --parts "$root/examples/parts.csv" \
+		--waivers "$tmp/w.txt" --baseline "$tmp/base.json" --today 2026-12-01 "${inputs[@]}"
 done
 # --verify: the solver (and KLU) on four threads at once
-"$bin" check -j 4 --verify --format json --fail-on never "$root/examples" "$root/tests/data/sim" \
-	"$root/tests/data/topo" > /dev/null 2> "$tmp/err"
-rc=$?
-runs=$((runs + 1))
-if [ $rc -eq 66 ] || grep -q ThreadSanitizer "$tmp/err"; then
-	echo "tsan: FAIL --verify"
-	grep -A30 'WARNING: ThreadSanitizer' "$tmp/err" | head -60
-	fail=1
-fi
+tsan_run "--verify" --verify --format json "$root/examples" "$root/tests/data/sim" "$root/tests/data/topo"
 echo "tsan: $runs batch runs with -j 4 over ${#inputs[@]} input trees: $([ $fail = 0 ] && echo 'no reports' || echo 'REPORTS FOUND')"
 exit $fail

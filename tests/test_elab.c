@@ -217,6 +217,27 @@ static void test_elements(void **state)
 	run_free(&r);
 }
 
+/* Elaborates top with options o, expects ELAB_ERRORS and diagnostics that
+ * are want (exact) or contain it; returns the part count of what was built. */
+static size_t expect_elab_error(const char *top, const struct elab_opts *o,
+				const char *want, int exact)
+{
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	struct elab_result res;
+	assert_int_equal(elab_file(top, o, &h, d, &res), ELAB_ERRORS);
+	char *txt = render_headers(d);
+	if (exact ? strcmp(txt, want) != 0 : !strstr(txt, want))
+		fail_msg("no '%s' in:\n%s", want, txt);
+	size_t n = nl_part_count(res.circuit);
+	free(txt);
+	nl_destroy(res.circuit);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return n;
+}
+
 static void test_expansion_cap(void **state)
 {
 	(void)state;
@@ -226,22 +247,12 @@ static void test_expansion_cap(void **state)
 		     ".subckt b p\nX1 p a\nX2 p a\nX3 p a\n.ends\n"
 		     ".subckt c p\nX1 p b\nX2 p b\nX3 p b\n.ends\nXbig n c\n";
 	fs.n = 1;
-	struct hr_alloc h = hr_alloc_default();
-	struct arena *ar = arena_create(&h);
-	struct diag_sink *d = diag_create(ar, 50);
 	struct elab_opts o = {0};
 	o.open = memfs_open;
 	o.open_ud = &fs;
 	o.max_parts = 10;
-	struct elab_result res;
-	assert_int_equal(elab_file("top.cir", &o, &h, d, &res), ELAB_ERRORS);
-	char *txt = render_headers(d);
-	assert_string_equal(txt, "top.cir:16:1: error: the circuit grows past 10 parts (the limit; see --max-parts) [expansion]\n");
-	assert_int_equal(nl_part_count(res.circuit), 10);
-	free(txt);
-	nl_destroy(res.circuit);
-	diag_destroy(d);
-	arena_destroy(ar);
+	assert_int_equal(expect_elab_error("top.cir", &o,
+		"top.cir:16:1: error: the circuit grows past 10 parts (the limit; see --max-parts) [expansion]\n", 1), 10);
 }
 
 /* Includes that repeat without a cycle stop at the file count cap. */
@@ -256,21 +267,12 @@ static void test_include_count_cap(void **state)
 	fs.name[2] = "b.inc";
 	fs.text[2] = "R1 x 0 1\n";
 	fs.n = 3;
-	struct hr_alloc h = hr_alloc_default();
-	struct arena *ar = arena_create(&h);
-	struct diag_sink *d = diag_create(ar, 50);
 	struct elab_opts o = {0};
 	o.open = memfs_open;
 	o.open_ud = &fs;
 	o.max_includes = 5; /* a.inc, b.inc, b.inc, a.inc, b.inc; the 6th is refused */
-	struct elab_result res;
-	assert_int_equal(elab_file("top.cir", &o, &h, d, &res), ELAB_ERRORS);
-	char *txt = render_headers(d);
-	assert_non_null(strstr(txt, "a.inc:2:1: error: more than 5 files read by .include and .lib for one netlist [include]"));
-	free(txt);
-	nl_destroy(res.circuit);
-	diag_destroy(d);
-	arena_destroy(ar);
+	expect_elab_error("top.cir", &o,
+		"a.inc:2:1: error: more than 5 files read by .include and .lib for one netlist [include]", 0);
 }
 
 /* A file that changes while it is read: opening the include appends to the
@@ -302,20 +304,10 @@ static void test_file_changed_while_read(void **state)
 	f = fopen(inc, "wb");
 	fputs("R2 b 0 1\n", f);
 	fclose(f);
-	struct hr_alloc h = hr_alloc_default();
-	struct arena *ar = arena_create(&h);
-	struct diag_sink *d = diag_create(ar, 50);
 	struct elab_opts o = {0};
 	o.open = grow_open;
 	o.open_ud = top;
-	struct elab_result res;
-	assert_int_equal(elab_file(top, &o, &h, d, &res), ELAB_ERRORS);
-	char *txt = render_headers(d);
-	assert_non_null(strstr(txt, "top.cir: error: the file changed while it was read (28 bytes, now 37)"));
-	free(txt);
-	nl_destroy(res.circuit);
-	diag_destroy(d);
-	arena_destroy(ar);
+	expect_elab_error(top, &o, "top.cir: error: the file changed while it was read (28 bytes, now 37)", 0);
 	remove(inc);
 	remove(top);
 	rmdir(dir);
