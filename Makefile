@@ -10,7 +10,7 @@ WARN    := -Wall -Wextra -Wpedantic -Werror -Wshadow -Wconversion \
            -Wstrict-prototypes -Wmissing-prototypes
 OPT     ?= -O2 -g
 SAN     ?=
-CPPFLAGS := -Iinclude -Igrammar -I$(BUILD) -I/usr/include/suitesparse -D_XOPEN_SOURCE=700
+CPPFLAGS := -Iinclude -Isrc -Igrammar -I$(BUILD) -I/usr/include/suitesparse -D_XOPEN_SOURCE=700
 CFLAGS  := $(CSTD) $(OPT) $(SAN)
 LDLIBS  := -lklu -lm -lpthread
 # Generated scanner/parser code gets the exemptions flex output needs.
@@ -39,12 +39,12 @@ $(BUILD)/spice.tab.c $(BUILD)/spice.tab.h: grammar/spice.y | $(DEPS_STAMP)
 $(BUILD)/spice.lex.c $(BUILD)/spice.lex.h: grammar/spice.l $(BUILD)/spice.tab.h
 	flex --header-file=$(BUILD)/spice.lex.h -o $(BUILD)/spice.lex.c $<
 
-$(BUILD)/obj/spice.%.o: $(BUILD)/spice.%.c $(BUILD)/spice.tab.h $(wildcard include/*.h grammar/*.h)
+$(BUILD)/obj/spice.%.o: $(BUILD)/spice.%.c $(BUILD)/spice.tab.h $(wildcard include/*.h src/*.h grammar/*.h)
 	@mkdir -p $(BUILD)/obj
 	@echo "  CC      $<"
 	@$(CC) $(CPPFLAGS) $(CFLAGS) $(GENWARN) -c $< -o $@
 
-$(BUILD)/obj/%.o: src/%.c $(BUILD)/spice.lex.h $(wildcard include/*.h grammar/*.h)
+$(BUILD)/obj/%.o: src/%.c $(BUILD)/spice.lex.h $(wildcard include/*.h src/*.h grammar/*.h)
 	@mkdir -p $(BUILD)/obj
 	@echo "  CC      $<"
 	@$(CC) $(CPPFLAGS) $(CFLAGS) $(WARN) -c $< -o $@
@@ -102,6 +102,8 @@ fuzz: deps
 
 # Runs every unit test, then the command-line and corpus checks.
 test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
+	@bash scripts/layers.sh --self-test
+	@bash scripts/layers.sh $(BUILD)/obj && echo "layers: every module calls and includes only its own or lower layers"
 	@set -e; for t in $(TESTS); do echo "== $$t"; \
 		HEADROOM=$(BUILD)/headroom $$t; done
 	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh

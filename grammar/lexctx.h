@@ -10,7 +10,6 @@
 #include "arena.h"
 #include "deck.h"
 #include "diag.h"
-#include "parse.h"
 
 struct lex_ctx {
 	uint32_t file;
@@ -40,7 +39,7 @@ struct lex_ctx {
 	struct lex_block *blocks;    /* flex's live allocations, freed after a fatal error */
 	jmp_buf fatal;               /* where flex's fatal errors return to */
 	/* parser side */
-	parse_card_fn fn;
+	deck_card_fn fn;
 	void *ud;
 	int stop;
 	int oom;

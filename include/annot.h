@@ -1,4 +1,4 @@
-/* annot.h: the *@ design annotations of DESIGN §4 (part ratings, source
+/* annot.h: the *@ design annotations of docs/design.md §4 (part ratings, source
  * tolerances and ranges, waivers, intent, profile), parsed from the lines
  * elaboration kept. A malformed directive is an error with its location,
  * never ignored. Applying them is for the modules that use them. */

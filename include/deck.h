@@ -66,4 +66,8 @@ struct deck_card *deck_card_clone(struct arena *ar, const struct deck_card *c);
 /* True if field f is an atom spelling word (any case). */
 int deck_atom_is(const struct deck_field *f, const char *word);
 
+/* Called once per well-formed card, in order. Return 0 to go on, non-zero
+ * to stop reading (e.g. out of memory). */
+typedef int (*deck_card_fn)(void *ud, const struct deck_card *card);
+
 #endif

@@ -28,21 +28,22 @@ struct form {
 struct form_ctx {
 	const struct sig *sigs;
 	size_t nsigs;
-	struct arena *ar;
+	struct arena *ar;    /* where the owner of the context builds forms */
 };
 
-/* Constructors; NULL on out-of-memory. */
-struct form *form_const(struct form_ctx *fc, double lo, double hi);
-/* mean + AC part of source i, times c */
-struct form *form_source(struct form_ctx *fc, uint32_t i, double c);
+/* Constructors: the new form is allocated in ar; NULL on out-of-memory. */
+struct form *form_const(struct arena *ar, double lo, double hi);
+/* mean + AC part of source i of fc, times c */
+struct form *form_source(const struct form_ctx *fc, struct arena *ar, uint32_t i,
+			 double c);
 /* a*x + b*y (constant intervals combine by interval arithmetic) */
-struct form *form_lin(struct form_ctx *fc, double a, const struct form *x,
+struct form *form_lin(struct arena *ar, double a, const struct form *x,
 		      double b, const struct form *y);
 /* x with its constant part replaced by [lo, hi] */
-struct form *form_with_const(struct form_ctx *fc, const struct form *x,
+struct form *form_with_const(struct arena *ar, const struct form *x,
 			     double lo, double hi);
 /* x's time-varying part only (constant 0) */
-struct form *form_ac(struct form_ctx *fc, const struct form *x);
+struct form *form_ac(struct arena *ar, const struct form *x);
 
 /* True if x has no time-varying part. */
 int form_is_dc(const struct form *x);

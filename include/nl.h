@@ -20,7 +20,7 @@ enum nl_kind {
 };
 
 enum nl_wave { NL_WAVE_NONE, NL_WAVE_SIN, NL_WAVE_PULSE, NL_WAVE_PWL,
-	       NL_WAVE_EXP, NL_WAVE_SFFM };
+	       NL_WAVE_EXP, NL_WAVE_SFFM, NL_WAVE_COUNT };
 
 /* An independent source's description, as written (SI units). */
 struct nl_source {
@@ -75,6 +75,8 @@ struct nl_part {
 	uint8_t npins;
 	uint8_t spare;
 };
+_Static_assert(sizeof(void *) != 8 || sizeof(struct nl_part) == 48,
+	       "the part record is 48 bytes on 64-bit machines");
 
 struct nl_node {
 	const char *name;            /* as first written, hierarchical */

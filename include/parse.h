@@ -11,10 +11,10 @@
 #include "deck.h"
 #include "diag.h"
 
-/* Called once per well-formed card. The card and everything it points to
- * live in scratch memory that is reused when the next card starts. Return 0
- * to go on, non-zero to stop the parse (e.g. out of memory). */
-typedef int (*parse_card_fn)(void *ud, const struct deck_card *card);
+/* The consumer of cards (deck_card_fn, deck.h). The card and everything it
+ * points to live in scratch memory that is reused when the next card
+ * starts. */
+typedef deck_card_fn parse_card_fn;
 
 struct parse_opts {
 	uint32_t file;          /* diag file id of this stream */

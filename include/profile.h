@@ -1,4 +1,4 @@
-/* profile.h: derating profiles, data files in rules/ (DESIGN §8). A small
+/* profile.h: derating profiles, data files in rules/ (docs/design.md §8). A small
  * "key = value   # source" format: the reader checks every key and value
  * and reports problems with file:line:col. Lookups fall back from a part
  * kind to the "default" kind of its class. */
@@ -26,7 +26,7 @@ struct profile {
 	size_t n;
 };
 
-/* Capacitor and diode kinds of DESIGN §4; NULL-terminated. */
+/* Capacitor and diode kinds of docs/design.md §4; NULL-terminated. */
 extern const char *const profile_cap_kinds[];
 extern const char *const profile_diode_kinds[];
 /* True for the polarised capacitor kinds. */
@@ -52,7 +52,7 @@ double profile_kind_key(const struct profile *p, const char *cls,
 			const char *kind, const char *field, const char **note,
 			const char **key_used);
 
-/* The hazard voltage, 60 V when the profile does not set it (DESIGN §7). */
+/* The hazard voltage, 60 V when the profile does not set it (docs/design.md §7). */
 double profile_hazard(const struct profile *p);
 
 /* A top-level value ("hazard_voltage"); NaN when missing. */

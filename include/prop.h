@@ -1,5 +1,5 @@
 /* prop.h: steady-state waveform propagation with ideal diodes and no load
- * (DESIGN §6). Every node that can be settled gets an affine form: nodes
+ * (docs/design.md §6). Every node that can be settled gets an affine form: nodes
  * held by sources (through chains of sources, series resistors or inductors,
  * controlled sources and ideal transformers), then the AC shape of nodes
  * reached through capacitors, then the DC that diodes pin those nodes at.
@@ -14,7 +14,7 @@
 #include "nl.h"
 #include "sig.h"
 
-enum prop_class { PC_UNKNOWN, PC_GROUND, PC_FIXED, PC_DRIVEN, PC_FREE };
+enum prop_class { PC_UNKNOWN, PC_GROUND, PC_FIXED, PC_DRIVEN, PC_FREE, PC_COUNT };
 
 enum prop_how {
 	PH_NONE,
@@ -25,7 +25,8 @@ enum prop_how {
 	PH_SERIES,   /* through a series resistor or inductor, no current */
 	PH_PIN,      /* AC shape from capacitors, DC pinned by a diode */
 	PH_DIVIDER,  /* a node between capacitors only: charge balance */
-	PH_BLEED     /* AC shape from capacitors, DC through a resistor */
+	PH_BLEED,    /* AC shape from capacitors, DC through a resistor */
+	PH_COUNT
 };
 
 enum prop_state { PS_UNKNOWN, PS_SHAPED, PS_RESOLVED };

@@ -1,4 +1,4 @@
-/* rating.h: part ratings from the three places of DESIGN §4, later ones
+/* rating.h: part ratings from the three places of docs/design.md §4, later ones
  * overriding earlier ones field by field: a diode model's BV, the parts
  * table (--parts FILE.csv, rows matched by path or glob), and *@part
  * annotations. Each field remembers where it came from. */
@@ -45,8 +45,5 @@ struct rating *rating_resolve(const struct nl_circuit *c,
  * ln(1 + I/(IS*area)) + RS*I, Vt at 27 C), else by kind (silicon 0.7 V,
  * Schottky 0.3 V). */
 double rating_vf(const struct nl_part *d, const char *kind);
-
-/* A diode model parameter by lower-case name, NaN when absent. */
-double rating_model_param(const struct nl_part *p, const char *key);
 
 #endif

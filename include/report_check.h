@@ -7,24 +7,12 @@
 
 #include <stdio.h>
 
-#include "audit.h"
+#include "check.h"
 #include "profile.h"
-#include "rating.h"
-#include "rules.h"
-#include "stress.h"
-
-/* Everything known about one checked file. */
-struct check_file {
-	const char *path;
-	const struct audit *a;          /* analysed or not (netlist errors) */
-	const struct diag_sink *d;
-	const struct rating *ratings;   /* NULL when not analysed */
-	const struct stress_result *stress;
-	const struct rules_result *rules;
-};
 
 /* The most stressed parts of a run, by ratio to their rating. */
 #define TOTALS_RULES 32
+_Static_assert(RULE_COUNT <= TOTALS_RULES, "per_rule holds a count per rule");
 #define TOTALS_TOP 5
 struct totals_part {
 	char file[160], part[96]; /* truncated when longer */
@@ -60,8 +48,5 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 /* Closes the report: totals, the safety caution when due. */
 void report_check_end(FILE *out, enum report_check_format fmt,
 		      const struct profile *p, const struct check_totals *t);
-
-/* The safety caution of DESIGN §14, one paragraph. */
-extern const char report_caution[];
 
 #endif

@@ -1,4 +1,4 @@
-/* rules.h: the rules of DESIGN §7 applied to the stresses, ratings and
+/* rules.h: the rules of docs/design.md §7 applied to the stresses, ratings and
  * profile limits; each finding carries its numbers, the computation that
  * led to them, the rating and limit with their sources, and a suggested
  * fix. A part whose stress could not be bounded gets a note, never a
@@ -15,15 +15,37 @@
 #include "rating.h"
 #include "stress.h"
 
+/* Every rule, in the order reports list them [rules-list]. */
+enum rule_id {
+	RULE_CAP_OVERVOLTAGE,
+	RULE_CAP_DERATING,
+	RULE_CAP_REVERSE_BIAS,
+	RULE_DIODE_OVERVOLTAGE,
+	RULE_DIODE_DERATING,
+	RULE_SURGE_CURRENT,
+	RULE_SURGE_UNBOUNDED,
+	RULE_STORED_CHARGE,
+	RULE_CLAMP_DROOP,
+	RULE_SLOW_RECOVERY,
+	RULE_RATING_MISSING,
+	RULE_INTENT_MISS,
+	RULE_STRESS_UNSETTLED,
+	RULE_ANALYSIS_GAP,
+	RULE_WAIVER_EXPIRED,
+	RULE_WAIVER_UNUSED,
+	RULE_COUNT
+};
+
 struct rule_info {
-	const char *id;
+	const char *id;      /* the rule's name in reports and waivers */
 	enum diag_severity severity;
 	const char *summary;
 };
 
-/* Every rule, in the order reports list them [rules-list]. */
-extern const struct rule_info rules_table[];
+/* Indexed by enum rule_id [rules-list]. */
+extern const struct rule_info rules_table[RULE_COUNT];
 extern const size_t rules_count;
+/* The rule named id (as a user writes it in a waiver), or NULL. */
 const struct rule_info *rules_find(const char *id);
 
 struct finding {
@@ -48,13 +70,13 @@ struct rules_result {
 };
 
 /* Appends an empty finding of rule id to rr (allocating in ar); NULL on
- * out-of-memory or an unknown id. */
+ * out-of-memory. */
 struct finding *rules_add(struct rules_result *rr, struct arena *ar,
-			  const char *id);
+			  enum rule_id id);
 
-/* Applies every rule. Allocates in a->ar. Returns 0 on out-of-memory. */
-int rules_run(struct audit *a, const struct rating *r, const struct profile *p,
-	      const struct stress_result *s, struct rules_result *out);
+/* Applies every rule. Allocates in ar. Returns 0 on out-of-memory. */
+int rules_run(const struct audit *a, const struct rating *r, const struct profile *p,
+	      const struct stress_result *s, struct arena *ar, struct rules_result *out);
 
 /* The smallest standard voltage step at or above v (capacitor or diode
  * steps); NaN above the largest. */

@@ -10,7 +10,7 @@
 
 #include "nl.h"
 
-enum sig_kind { SIG_DC, SIG_SIN, SIG_PULSE, SIG_PWL, SIG_SFFM };
+enum sig_kind { SIG_DC, SIG_SIN, SIG_PULSE, SIG_PWL, SIG_SFFM, SIG_COUNT };
 
 struct sig {
 	enum sig_kind kind;

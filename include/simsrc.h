@@ -25,4 +25,9 @@ double simsrc_next_corner(const struct nl_source *src,
  * or 0 when it does not repeat. */
 double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp);
 
+/* The steady-state mean of src: the time average over one period of a
+ * repeating source (SIN and SFFM: their offset), else the value it settles
+ * at. Corner runs scale a source's mean and its variation apart. */
+double simsrc_mean(const struct nl_source *src, const struct simsrc_span *sp);
+
 #endif

@@ -1,4 +1,4 @@
-/* stress.h: worst-case stresses (DESIGN §6). The propagation is run at the
+/* stress.h: worst-case stresses (docs/design.md §6). The propagation is run at the
  * corners of the source tolerances (every amplitude and every offset at one
  * end of its band) with ideal diodes, and once more with every source at
  * its low end and each diode at its forward drop; a part's stress is the
@@ -19,7 +19,8 @@ enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE };
 struct stress {
 	uint32_t part;
 	int32_t structure;      /* index in the audit's topo result, -1 if none */
-	const char *role;       /* role in that structure, or "" */
+	const char *role;       /* role in that structure (display text), or "" */
+	enum topo_role role_kind;/* TR_COUNT when not in a structure */
 	enum stress_qty qty;
 	double best, worst;     /* V (capacitor |V|, diode reverse) or A */
 	const char *corner;     /* where the worst came from */
@@ -35,12 +36,21 @@ struct stress {
 	   +tol corner, NaN when not simulated (verify.h) */
 	double sim_worst;
 	/* --verify: pin 0 minus pin 1 over the simulated period at
-	   VERIFY_TRACE_POINTS even times, or NULL */
+	   STRESS_TRACE_POINTS even times, or NULL */
 	const double *sim_wave;
 	/* --verify: a pin shares a node with a part the solver left open, so
 	   the simulated value is shown but not compared with the bound */
 	int sim_near_open;
 };
+
+/* A simulated stress above its analytic bound by more than this (relative,
+ * plus STRESS_GAP_ABS volts) is an analysis gap: the solver's own accuracy
+ * (reltol 1e-3) is not mistaken for one. */
+#define STRESS_GAP_REL 2e-3
+#define STRESS_GAP_ABS 0.01
+
+/* Samples kept of each stressed part's simulated waveform (for plots). */
+#define STRESS_TRACE_POINTS 240
 
 /* Per structure: figures that need the whole structure. */
 struct stress_struct {
@@ -89,12 +99,16 @@ struct stress_verify {
 };
 
 /* Computes the stresses for audit a (analysed) with ratings r and profile
- * p. Allocates in a->ar. Returns 0 on out-of-memory. */
-int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
-	       struct stress_result *out);
+ * p. Allocates in ar. Returns 0 on out-of-memory. */
+int stress_run(const struct audit *a, const struct rating *r, const struct profile *p,
+	       struct arena *ar, struct stress_result *out);
 
 /* Source tolerance used for part (annotation, --source-tol, profile). */
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part);
+
+/* True when stress s was simulated above its bound (see STRESS_GAP_*):
+ * the analysis-gap rule. */
+int stress_gap(const struct stress *s);
 
 #endif

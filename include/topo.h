@@ -1,4 +1,4 @@
-/* topo.h: recognition of the diode-capacitor structures of DESIGN §5 from
+/* topo.h: recognition of the diode-capacitor structures of docs/design.md §5 from
  * the propagation result: clamps (floor, ceiling, biased), detectors, half-
  * and full-wave doublers, ladders of any length (odd ones in half-stages),
  * charge pumps, bridge rectifiers, and the networks that fit none of these.
@@ -22,12 +22,28 @@ enum topo_kind {
 	TK_LADDER,
 	TK_PUMP,
 	TK_RECTIFIER,
-	TK_NETWORK
+	TK_NETWORK,
+	TK_COUNT
 };
+
+/* What a part does in its structure [topo-roles]. */
+enum topo_role {
+	TR_COUPLING_CAP, TR_CLAMP_DIODE, TR_RESERVOIR_CAP, TR_DETECTOR_DIODE,
+	TR_LADDER_COUPLING, TR_LADDER_SMOOTHING, TR_LADDER_CLAMP_DIODE,
+	TR_LADDER_DETECTOR_DIODE, TR_PUMP_CAP, TR_PUMP_DIODE, TR_OUTPUT_CAP,
+	TR_OUTPUT_DIODE, TR_HIGH_CAP, TR_HIGH_DIODE, TR_LOW_CAP, TR_LOW_DIODE,
+	TR_BRIDGE_DIODE, TR_NETWORK_CAP, TR_NETWORK_DIODE,
+	TR_COUNT
+};
+
+/* Display text of a role; staged roles take the stage number through a
+ * "%u" [topo-roles]. */
+extern const char *const topo_role_text[TR_COUNT];
 
 struct topo_part {
 	uint32_t part;
-	const char *role;     /* e.g. "stage 2 smoothing column cap" */
+	enum topo_role kind;
+	const char *role;     /* display text, stage filled in */
 	uint32_t stage;       /* 1-based; 0 when not staged */
 };
 

@@ -14,17 +14,8 @@
 #include "profile.h"
 #include "stress.h"
 
-/* A simulated stress above its analytic bound by more than this (relative,
- * plus VERIFY_GAP_ABS volts) is an analysis gap: the solver's own accuracy
- * (reltol 1e-3) is not mistaken for one. */
-#define VERIFY_GAP_REL 2e-3
-#define VERIFY_GAP_ABS 0.01
-
 /* Conductance from every node to ground when parts are left out. */
 #define VERIFY_GSHUNT 1e-12
-
-/* Samples kept of each stressed part's simulated waveform (for plots). */
-#define VERIFY_TRACE_POINTS 240
 
 /* Bounds on one file's simulation; 0 takes the solver's defaults (2000
  * periods, 20,000,000 Newton iterations). */
@@ -36,12 +27,9 @@ struct verify_limits {
 /* Simulates a's circuit and fills sim_worst of every voltage and reverse
  * stress in sr, and sr->verify. A circuit the solver cannot take (no
  * repeating source, no convergence, past the limits) is reported in
- * sr->verify->why, not as an error. lim may be NULL. Allocates in a->ar.
+ * sr->verify->why, not as an error. lim may be NULL. Allocates in ar.
  * Returns 0 on out-of-memory. */
-int verify_run(struct audit *a, const struct profile *p, const struct verify_limits *lim,
-	       struct stress_result *sr);
-
-/* True when stress s was simulated above its bound (see VERIFY_GAP_*). */
-int verify_gap(const struct stress *s);
+int verify_run(const struct audit *a, const struct profile *p, const struct verify_limits *lim,
+	       struct arena *ar, struct stress_result *sr);
 
 #endif

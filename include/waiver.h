@@ -30,9 +30,9 @@ struct waiver_file *waiver_load(const char *path, struct arena *ar,
 
 /* Applies inline waivers (a->annots) and file waivers to the findings of
  * one netlist; today is "YYYY-MM-DD". Adds waiver-expired and
- * waiver-unused findings. Returns 0 on out-of-memory. */
-int waiver_apply(struct audit *a, const struct waiver_file *wf,
-		 const char *today, struct rules_result *rr);
+ * waiver-unused findings, allocated in ar. Returns 0 on out-of-memory. */
+int waiver_apply(const struct audit *a, const struct waiver_file *wf,
+		 const char *today, struct arena *ar, struct rules_result *rr);
 
 /* Notes, once after a batch, the file waivers that matched nothing. */
 void waiver_unused(const struct waiver_file *wf, struct diag_sink *d);

@@ -7,7 +7,7 @@
 #include <stdint.h>
 
 #include "deck.h"
-#include "device.h"
+#include "devval.h"
 #include "nl.h"
 
 /* Reads fields [start..) of card into a new source in ar. Problems are

@@ -3,6 +3,7 @@
  * than a block gets a block of its own. */
 #include "arena.h"
 
+#include <assert.h>
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
@@ -130,6 +131,7 @@ static struct block *new_block(struct arena *ar, size_t n)
 
 void *arena_alloc_aligned(struct arena *ar, size_t n, size_t align)
 {
+	assert(align && align <= ARENA_ALIGN && (align & (align - 1)) == 0);
 	if (n > SIZE_MAX - ARENA_ALIGN)
 		return NULL;
 	if (n == 0)

@@ -8,6 +8,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "cli_out.h"
 #include "diag.h"
 #include "elab.h"
 #include "num.h"
@@ -106,27 +107,25 @@ static void summary(const struct sim_cli *c, const struct simrun_result *r)
 static int run(const struct sim_cli *c, struct nl_circuit *circ)
 {
 	const struct hr_alloc hook = hr_alloc_default();
-	FILE *out = c->out_path ? fopen(c->out_path, "w") : stdout;
-	if (!out) {
-		fprintf(stderr, "headroom: cannot write '%s'\n", c->out_path);
+	struct cli_out o = {0};
+	if (c->out_path && !cli_out_open(&o, c->out_path))
 		return EXIT_USAGE;
-	}
+	FILE *out = c->out_path ? o.f : stdout;
 	struct simrun_result r;
 	const char *bad = NULL;
 	int ok = simrun_csv(out, circ, c->nodes, c->nnodes, &c->o, &hook, &r, &bad);
-	if (out != stdout && fclose(out) != 0)
-		ok = 0;
-	if (!ok || r.status != SIM_OK) {
-		if (c->out_path)
-			remove(c->out_path);
+	int good = ok && r.status == SIM_OK;
+	if (c->out_path && !cli_out_close(&o, good))
+		good = ok = 0;
+	if (!good) {
 		if (bad)
 			fprintf(stderr, "%s: error: no node named '%s'\n", c->file, bad);
 		else if (r.status == SIM_REFUSED && r.refusal.part != NL_NONE)
 			fprintf(stderr, "%s: error: %s: %s\n", c->file,
 				nl_part_at(circ, r.refusal.part)->path, r.refusal.why);
-		else
+		else if (ok || r.status != SIM_OK)
 			fprintf(stderr, "%s: error: %s\n", c->file, sim_status_text(r.status));
-		return bad || r.status == SIM_REFUSED ? EXIT_USAGE : EXIT_SOLVER;
+		return bad || r.status == SIM_REFUSED || r.status == SIM_OK ? EXIT_USAGE : EXIT_SOLVER;
 	}
 	summary(c, &r);
 	return 0;

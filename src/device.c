@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "devval.h"
 #include "num.h"
 #include "wave.h"
 
@@ -50,85 +51,10 @@ static int is_numeric(const struct deck_field *f)
 	       (f->kind == FIELD_ATOM && num_looks_numeric(f->text, f->len));
 }
 
-/* Names that stand for the circuit's state rather than a constant. */
-static int is_state_name(const char *name)
-{
-	return strchr(name, '(') || num_ieq(name, strlen(name), "time") ||
-	       num_ieq(name, strlen(name), "temper") ||
-	       num_ieq(name, strlen(name), "hertz");
-}
-
-static enum dev_status eval_expr(const struct dev_scope *s,
-				 const struct expr *e, struct diag_sink *d,
-				 struct diag_loc l, double *out)
-{
-	struct expr_error err = {0};
-	enum expr_status st = s->eval(s->ud, e, out, &err);
-	if (st == EXPR_OK)
-		return DEV_OK;
-	if (st == EXPR_UNDEFINED && is_state_name(err.name))
-		return DEV_STATE;
-	if (st == EXPR_UNDEFINED && s->defer_undefined)
-		return DEV_DEFER;
-	char msg[200];
-	expr_error_text(&err, msg, sizeof msg);
-	if (err.line) {
-		l.line = err.line;
-		l.col = err.col;
-	}
-	diag_add(d, DIAG_ERROR, "expression", l, "%s", msg);
-	return DEV_ERROR;
-}
-
-/* An atom that is not a number: read it as an expression written without
- * braces, as SPICE readers do for parameter values. */
-static enum dev_status atom_as_expr(const struct dev_scope *s,
-				    const struct deck_field *f,
-				    struct diag_sink *d, struct diag_loc l,
-				    double *out)
-{
-	int oom = 0;
-	const struct expr *e = s->atom_expr ? s->atom_expr(s->ud, f, &oom) : NULL;
-	if (oom)
-		return DEV_OOM;
-	if (!e)
-		return DEV_ERROR;
-	return eval_expr(s, e, d, l, out);
-}
-
-enum dev_status dev_value(const struct dev_scope *s,
-			  const struct deck_field *f, struct diag_sink *d,
-			  uint32_t file, double *out)
-{
-	struct diag_loc l = {file, f->line, f->col};
-	if (f->kind == FIELD_EXPR)
-		return eval_expr(s, f->expr, d, l, out);
-	if (f->kind != FIELD_ATOM) {
-		diag_add(d, DIAG_ERROR, "value", l, "expected a value here");
-		return DEV_ERROR;
-	}
-	size_t bad = 0;
-	enum num_status st = num_parse(f->text, f->len, out, &bad);
-	if (st == NUM_OK)
-		return DEV_OK;
-	if (st == NUM_RKM) {
-		diag_add(d, DIAG_WARNING, "letter-code", l,
-			 "'%s' is read as the letter code for %g; plain SPICE readers take only the digits before the letter",
-			 f->text, *out);
-		return DEV_OK;
-	}
-	if (st == NUM_NOT_A_NUMBER || st == NUM_BAD_CHAR)
-		return atom_as_expr(s, f, d, l, out);
-	l.col += (uint32_t)bad;
-	diag_add(d, DIAG_ERROR, "value", l, "bad number '%s': %s", f->text,
-		 num_status_text(st));
-	return DEV_ERROR;
-}
-
 static enum dev_status value_of(struct build *b, const struct deck_field *f,
 				double *out)
 {
-	return dev_value(b->s, f, b->d, b->card->loc.file, out);
+	return devval_get(b->s, f, b->d, b->card->loc.file, out);
 }
 
 /* As value_of, where a value may not depend on the circuit's state. */

@@ -15,7 +15,7 @@
 #include "device.h"
 #include "num.h"
 #include "parse.h"
-#include "scope.h"
+#include "elab_state.h"
 
 /* Reading state of one file (a stack follows .include). */
 struct file_read {
@@ -38,30 +38,6 @@ static struct diag_loc loc0(uint32_t file)
 {
 	struct diag_loc l = {file, 0, 0};
 	return l;
-}
-
-static int push_ptr(struct elab *el, void ***arr, size_t *n, size_t *cap,
-		    void *p)
-{
-	if (*n == *cap) {
-		size_t ncap = *cap ? *cap * 2 : 16;
-		void **a = arena_alloc(el->ar, ncap * sizeof *a);
-		if (!a) {
-			oom(el);
-			return 0;
-		}
-		if (*n)
-			memcpy(a, *arr, *n * sizeof *a);
-		*arr = a;
-		*cap = ncap;
-	}
-	(*arr)[(*n)++] = p;
-	return 1;
-}
-
-void scope_add_annot(struct elab *el, struct elab_annot *a)
-{
-	push_ptr(el, &el->annots, &el->nannots, &el->capannots, a);
 }
 
 static void add_annot(struct elab *el, const char *text, const char *prefix,
@@ -433,7 +409,7 @@ static void defer(struct elab *el, const struct deck_card *c)
 		oom(el);
 		return;
 	}
-	push_ptr(el, &el->deferred, &el->ndeferred, &el->capdeferred, k);
+	scope_push(el, &el->deferred, &el->ndeferred, &el->capdeferred, k);
 }
 
 static void top_element(struct elab *el, const struct deck_card *c)
@@ -487,7 +463,7 @@ static void body_card(struct elab *el, const struct deck_card *c)
 		return;
 	}
 	struct deck_card *k = deck_card_clone(el->ar, c);
-	if (!k || !push_ptr(el, &def->body, &def->nbody,
+	if (!k || !scope_push(el, &def->body, &def->nbody,
 			    &def->capbody, k))
 		oom(el);
 }

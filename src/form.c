@@ -4,22 +4,23 @@
  * golden-section search; its accuracy is measured in tests/test_form.c. */
 #include "form.h"
 
+#include <assert.h>
 #include <math.h>
 #include <string.h>
 
 #define FORM_PI 3.14159265358979323846
 
-static struct form *alloc_form(struct form_ctx *fc, uint32_t n)
+static struct form *alloc_form(struct arena *ar, uint32_t n)
 {
-	struct form *f = arena_alloc(fc->ar, sizeof *f + n * sizeof f->t[0]);
+	struct form *f = arena_alloc(ar, sizeof *f + n * sizeof f->t[0]);
 	if (f)
 		f->n = n;
 	return f;
 }
 
-struct form *form_const(struct form_ctx *fc, double lo, double hi)
+struct form *form_const(struct arena *ar, double lo, double hi)
 {
-	struct form *f = alloc_form(fc, 0);
+	struct form *f = alloc_form(ar, 0);
 	if (f) {
 		f->lo = lo;
 		f->hi = hi;
@@ -27,11 +28,11 @@ struct form *form_const(struct form_ctx *fc, double lo, double hi)
 	return f;
 }
 
-struct form *form_source(struct form_ctx *fc, uint32_t i, double c)
+struct form *form_source(const struct form_ctx *fc, struct arena *ar, uint32_t i, double c)
 {
 	const struct sig *s = &fc->sigs[i];
 	int ac = s->kind != SIG_DC && c != 0;
-	struct form *f = alloc_form(fc, ac ? 1 : 0);
+	struct form *f = alloc_form(ar, ac ? 1 : 0);
 	if (!f)
 		return NULL;
 	f->lo = f->hi = c * s->mean;
@@ -53,10 +54,11 @@ static void add_const(double a, double lo, double hi, double *rlo, double *rhi)
 	}
 }
 
-struct form *form_lin(struct form_ctx *fc, double a, const struct form *x,
+struct form *form_lin(struct arena *ar, double a, const struct form *x,
 		      double b, const struct form *y)
 {
-	struct form *f = alloc_form(fc, x->n + y->n);
+	assert(x && y);
+	struct form *f = alloc_form(ar, x->n + y->n);
 	if (!f)
 		return NULL;
 	f->lo = f->hi = 0;
@@ -85,10 +87,10 @@ struct form *form_lin(struct form_ctx *fc, double a, const struct form *x,
 	return f;
 }
 
-struct form *form_with_const(struct form_ctx *fc, const struct form *x,
+struct form *form_with_const(struct arena *ar, const struct form *x,
 			     double lo, double hi)
 {
-	struct form *f = alloc_form(fc, x->n);
+	struct form *f = alloc_form(ar, x->n);
 	if (!f)
 		return NULL;
 	memcpy(f->t, x->t, x->n * sizeof x->t[0]);
@@ -97,9 +99,9 @@ struct form *form_with_const(struct form_ctx *fc, const struct form *x,
 	return f;
 }
 
-struct form *form_ac(struct form_ctx *fc, const struct form *x)
+struct form *form_ac(struct arena *ar, const struct form *x)
 {
-	return form_with_const(fc, x, 0, 0);
+	return form_with_const(ar, x, 0, 0);
 }
 
 int form_is_dc(const struct form *x)

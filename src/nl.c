@@ -4,6 +4,7 @@
  * small on decks of hundreds of thousands of parts. */
 #include "nl.h"
 
+#include <assert.h>
 #include <string.h>
 
 #include "smap.h"
@@ -251,11 +252,13 @@ size_t nl_node_count(const struct nl_circuit *c)
 
 const struct nl_part *nl_part_at(const struct nl_circuit *c, size_t i)
 {
+	assert(i < c->nparts);
 	return part_ref(c, i);
 }
 
 struct nl_part *nl_part_mut(struct nl_circuit *c, size_t i)
 {
+	assert(i < c->nparts);
 	return part_ref(c, i);
 }
 

@@ -1,4 +1,4 @@
-/* prop.c: the propagation of DESIGN §6. Order matters and is fixed:
+/* prop.c: the propagation of docs/design.md §6. Order matters and is fixed:
  *   1. sources, linear E sources, ideal transformers, and series R/L from
  *      a known node that is not ground into a node that is not both on a
  *      capacitor and on a diode (a load resistor never holds a node);
@@ -16,6 +16,7 @@
  * Each node is settled once; work is linear in the number of parts. */
 #include "prop.h"
 
+#include <assert.h>
 #include <math.h>
 #include <string.h>
 
@@ -100,13 +101,13 @@ static const struct form *source_form(struct run *u, uint32_t part)
 	uint32_t s = u->r->sig_of_part[part];
 	const struct prop_range *rg = u->ranges ? &u->ranges[part] : NULL;
 	if (rg && !isnan(rg->min))
-		return form_const(&u->r->fc, rg->min, rg->max);
+		return form_const(u->r->fc.ar, rg->min, rg->max);
 	const struct prop_corner *k = u->corner;
 	if (!k || !k->amp)
-		return form_source(&u->r->fc, s, 1.0);
-	const struct form *f = form_source(&u->r->fc, s, k->amp[part]);
+		return form_source(&u->r->fc, u->r->fc.ar, s, 1.0);
+	const struct form *f = form_source(&u->r->fc, u->r->fc.ar, s, k->amp[part]);
 	double a = u->r->sigs[s].mean * k->off_lo[part], b = u->r->sigs[s].mean * k->off_hi[part];
-	return f ? form_with_const(&u->r->fc, f, fmin(a, b), fmax(a, b)) : NULL;
+	return f ? form_with_const(u->r->fc.ar, f, fmin(a, b), fmax(a, b)) : NULL;
 }
 
 static void across_source(struct run *u, uint32_t id, uint32_t part)
@@ -122,7 +123,7 @@ static void across_source(struct run *u, uint32_t id, uint32_t part)
 	}
 	/* v(p0) - v(p1) = s */
 	double sign = p[0] == id ? -1.0 : 1.0;
-	settle(u, other, form_lin(&u->r->fc, 1.0, N(u, id)->f, sign, s),
+	settle(u, other, form_lin(u->r->fc.ar, 1.0, N(u, id)->f, sign, s),
 	       PH_SOURCE, part);
 	N(u, other)->zs = N(u, id)->zs;
 }
@@ -141,16 +142,16 @@ static void vcvs(struct run *u, uint32_t part)
 	if (!known(u, q[2]) || !known(u, q[3]) || known(u, q[0]) == known(u, q[1]))
 		return;
 	struct form_ctx *fc = &u->r->fc;
-	const struct form *ctl = form_lin(fc, p->value, N(u, q[2])->f, -p->value,
+	const struct form *ctl = form_lin(fc->ar, p->value, N(u, q[2])->f, -p->value,
 					  N(u, q[3])->f);
 	if (!ctl) {
 		u->oom = 1;
 		return;
 	}
 	if (known(u, q[1]))
-		settle(u, q[0], form_lin(fc, 1, N(u, q[1])->f, 1, ctl), PH_VCVS, part);
+		settle(u, q[0], form_lin(fc->ar, 1, N(u, q[1])->f, 1, ctl), PH_VCVS, part);
 	else
-		settle(u, q[1], form_lin(fc, 1, N(u, q[0])->f, -1, ctl), PH_VCVS, part);
+		settle(u, q[1], form_lin(fc->ar, 1, N(u, q[0])->f, -1, ctl), PH_VCVS, part);
 }
 
 /* Ideal transformer: the secondary takes n = k sqrt(L2/L1) times the AC
@@ -170,16 +171,16 @@ static void transformer(struct run *u, uint32_t kpart)
 			continue;
 		double n = k->value * sqrt(l2->value / l1->value);
 		struct form_ctx *fc = &u->r->fc;
-		const struct form *dv = form_lin(fc, n, N(u, a[0])->f, -n, N(u, a[1])->f);
-		const struct form *ac = dv ? form_ac(fc, dv) : NULL;
+		const struct form *dv = form_lin(fc->ar, n, N(u, a[0])->f, -n, N(u, a[1])->f);
+		const struct form *ac = dv ? form_ac(fc->ar, dv) : NULL;
 		if (!ac) {
 			u->oom = 1;
 			return;
 		}
 		if (known(u, b[1]))
-			settle(u, b[0], form_lin(fc, 1, N(u, b[1])->f, 1, ac), PH_XFMR, kpart);
+			settle(u, b[0], form_lin(fc->ar, 1, N(u, b[1])->f, 1, ac), PH_XFMR, kpart);
 		else
-			settle(u, b[1], form_lin(fc, 1, N(u, b[0])->f, -1, ac), PH_XFMR, kpart);
+			settle(u, b[1], form_lin(fc->ar, 1, N(u, b[0])->f, -1, ac), PH_XFMR, kpart);
 		return;
 	}
 }
@@ -311,13 +312,13 @@ static void shape_mean(struct run *u, struct shapes *sh, uint32_t id)
 	struct capn nb[CAPN_MAX];
 	uint32_t k = cap_neighbours(u, id, nb, CAPN_MAX), best = 0;
 	struct form_ctx *fc = &u->r->fc;
-	const struct form *sum = form_const(fc, 0, 0);
+	const struct form *sum = form_const(fc->ar, 0, 0);
 	double total = 0;
 	for (uint32_t i = 0; i < k && sum; i++) {
 		if (sh->pruned[nb[i].node] && sh->follows[nb[i].node] == id)
 			continue;
 		const struct form *f = N(u, nb[i].node)->f;
-		sum = form_lin(fc, 1, sum, nb[i].c, f);
+		sum = form_lin(fc->ar, 1, sum, nb[i].c, f);
 		total += nb[i].c;
 		if (nb[i].c > nb[best].c)
 			best = i;
@@ -326,8 +327,8 @@ static void shape_mean(struct run *u, struct shapes *sh, uint32_t id)
 		u->oom |= !sum;
 		return;
 	}
-	const struct form *mean = form_lin(fc, 1 / total, sum, 0, sum);
-	shape_set(u, sh, id, mean ? form_ac(fc, mean) : NULL, nb[best].node);
+	const struct form *mean = form_lin(fc->ar, 1 / total, sum, 0, sum);
+	shape_set(u, sh, id, mean ? form_ac(fc->ar, mean) : NULL, nb[best].node);
 }
 
 static void shape_set(struct run *u, struct shapes *sh, uint32_t id,
@@ -439,7 +440,7 @@ static void bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
 {
 	struct prop_node *n = N(u, x);
 	const uint32_t *q = pins(u, nl_part_at(u->c, part));
-	const struct form *d = form_lin(&u->r->fc, 1, N(u, r)->f, -1, n->f);
+	const struct form *d = form_lin(u->r->fc.ar, 1, N(u, r)->f, -1, n->f);
 	if (!d) {
 		u->oom = 1;
 		return;
@@ -490,7 +491,7 @@ static void check(struct run *u, uint32_t part)
 	struct prop_node *a = N(u, q[0]), *k = N(u, q[1]);
 	if (a->how != PH_PIN && k->how != PH_PIN)
 		return;
-	const struct form *d = form_lin(&u->r->fc, 1, a->f, -1, k->f);
+	const struct form *d = form_lin(u->r->fc.ar, 1, a->f, -1, k->f);
 	double lo, hi;
 	int exact;
 	if (!d) {
@@ -572,7 +573,7 @@ static void finalize(struct run *u, uint32_t x)
 		u->r->nconflicts++;
 		lo = hi = n->klo;
 	}
-	const struct form *f = form_with_const(&u->r->fc, n->f, lo, hi < lo ? lo : hi);
+	const struct form *f = form_with_const(u->r->fc.ar, n->f, lo, hi < lo ? lo : hi);
 	uint32_t by = n->has_lo ? n->lo_by : n->hi_by;
 	n->pin_upper = !n->has_lo;
 	settle(u, x, f, PH_PIN, by);
@@ -602,17 +603,17 @@ static void divider(struct run *u, uint32_t x)
 	struct capn nb[CAPN_MAX];
 	uint32_t k = cap_neighbours(u, x, nb, CAPN_MAX);
 	struct form_ctx *fc = &u->r->fc;
-	const struct form *sum = form_const(fc, 0, 0);
+	const struct form *sum = form_const(fc->ar, 0, 0);
 	double total = 0;
 	for (uint32_t i = 0; i < k && sum; i++) {
-		sum = form_lin(fc, 1, sum, nb[i].c, N(u, nb[i].node)->f);
+		sum = form_lin(fc->ar, 1, sum, nb[i].c, N(u, nb[i].node)->f);
 		total += nb[i].c;
 	}
 	if (!sum) {
 		u->oom = 1;
 		return;
 	}
-	settle(u, x, form_lin(fc, 1 / total, sum, 0, sum), PH_DIVIDER, NL_NONE);
+	settle(u, x, form_lin(fc->ar, 1 / total, sum, 0, sum), PH_DIVIDER, NL_NONE);
 }
 
 /* The DC that resistors and inductors alone give node x when every one of
@@ -624,7 +625,7 @@ static const struct form *resistive_mean(struct run *u, uint32_t x,
 	uint32_t n;
 	const uint32_t *adj = nl_adjacency(u->c, x, &n);
 	struct form_ctx *fc = &u->r->fc;
-	const struct form *sum = form_const(fc, 0, 0);
+	const struct form *sum = form_const(fc->ar, 0, 0);
 	double total = 0;
 	*count = 0;
 	for (uint32_t i = 0; i < n && sum; i++) {
@@ -639,7 +640,7 @@ static const struct form *resistive_mean(struct run *u, uint32_t x,
 			return NULL;
 		double g = p->kind == NL_L || p->value <= 0 ? 1e12 : 1 / p->value;
 		g *= p->ext ? p->ext->mult : 1.0;
-		sum = form_lin(fc, 1, sum, g, N(u, other)->f);
+		sum = form_lin(fc->ar, 1, sum, g, N(u, other)->f);
 		total += g;
 		*via = adj[i];
 		(*count)++;
@@ -648,7 +649,7 @@ static const struct form *resistive_mean(struct run *u, uint32_t x,
 		u->oom = 1;
 		return NULL;
 	}
-	return *count ? form_lin(fc, 1 / total, sum, 0, sum) : NULL;
+	return *count ? form_lin(fc->ar, 1 / total, sum, 0, sum) : NULL;
 }
 
 /* The difference v(a) - v(b) when a voltage source or the secondary of a
@@ -666,7 +667,7 @@ static const struct form *floating_difference(struct run *u, uint32_t a,
 		double sign = q[0] == a ? 1.0 : -1.0;
 		if (p->kind == NL_V) {
 			const struct form *s = source_form(u, adj[i]);
-			return s ? form_lin(&u->r->fc, sign, s, 0, s) : NULL;
+			return s ? form_lin(u->r->fc.ar, sign, s, 0, s) : NULL;
 		}
 		uint32_t k = p->kind == NL_L ? u->k_of_l[adj[i]] : NL_NONE;
 		if (k == NL_NONE)
@@ -679,8 +680,8 @@ static const struct form *floating_difference(struct run *u, uint32_t a,
 		if (!known(u, r[0]) || !known(u, r[1]) || l1->value <= 0)
 			continue;
 		double t = sign * kp->value * sqrt(p->value / l1->value);
-		const struct form *d = form_lin(&u->r->fc, t, N(u, r[0])->f, -t, N(u, r[1])->f);
-		return d ? form_ac(&u->r->fc, d) : NULL;
+		const struct form *d = form_lin(u->r->fc.ar, t, N(u, r[0])->f, -t, N(u, r[1])->f);
+		return d ? form_ac(u->r->fc.ar, d) : NULL;
 	}
 	return NULL;
 }
@@ -717,7 +718,7 @@ static int bridge(struct run *u, uint32_t x)
 		form_range(&u->r->fc, d, &lo, &hi, &exact);
 		double peak = fmax(hi, -lo);
 		const struct form *base = N(u, m)->f;
-		settle(u, x, form_const(&u->r->fc, base->lo + peak, base->hi + peak), PH_PIN, dio);
+		settle(u, x, form_const(u->r->fc.ar, base->lo + peak, base->hi + peak), PH_PIN, dio);
 		return 1;
 	}
 	return 0;
@@ -762,7 +763,7 @@ static void fallback(struct run *u, uint32_t x)
 			lo = fmax(lo, n->slo), hi = fmax(hi, n->slo);
 		if (n->has_shi)
 			lo = fmin(lo, n->shi), hi = fmin(hi, n->shi);
-		s = form_with_const(&u->r->fc, s, lo, hi);
+		s = form_with_const(u->r->fc.ar, s, lo, hi);
 		if (!s) {
 			u->oom = 1;
 			return;
@@ -770,7 +771,7 @@ static void fallback(struct run *u, uint32_t x)
 	}
 	if (n->state == PS_SHAPED) {
 		/* no DC flows through the capacitors: resistors set the mean */
-		settle(u, x, form_with_const(&u->r->fc, n->f, s->lo, s->hi), PH_BLEED,
+		settle(u, x, form_with_const(u->r->fc.ar, n->f, s->lo, s->hi), PH_BLEED,
 		       count == 1 ? via : NL_NONE);
 	} else {
 		settle(u, x, s, PH_SERIES, count == 1 ? via : NL_NONE);
@@ -884,7 +885,7 @@ int prop_run(const struct nl_circuit *c, const struct prop_range *ranges,
 		out->nodes[i].by = out->nodes[i].anchor = NL_NONE;
 		out->nodes[i].lo_by = out->nodes[i].hi_by = NL_NONE;
 	}
-	settle(&u, NL_GROUND, form_const(&out->fc, 0, 0), PH_GROUND, NL_NONE);
+	settle(&u, NL_GROUND, form_const(out->fc.ar, 0, 0), PH_GROUND, NL_NONE);
 	out->nodes[NL_GROUND].cls = PC_GROUND;
 	/* step 1 alone first: shapes need every source-held node */
 	uint32_t x;
@@ -902,6 +903,8 @@ int prop_run(const struct nl_circuit *c, const struct prop_range *ranges,
 const char *prop_class_name(enum prop_class k)
 {
 	static const char *const names[] = {"unknown", "ground", "fixed", "driven", "free"};
+	_Static_assert(sizeof names / sizeof names[0] == PC_COUNT, "one name per class");
+	assert(k < PC_COUNT);
 	return names[k];
 }
 
@@ -909,5 +912,7 @@ const char *prop_how_name(enum prop_how h)
 {
 	static const char *const names[] = {"", "ground", "source", "controlled source",
 		"transformer", "series", "diode pin", "capacitive divider", "resistor"};
+	_Static_assert(sizeof names / sizeof names[0] == PH_COUNT, "one name per way");
+	assert(h < PH_COUNT);
 	return names[h];
 }

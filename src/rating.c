@@ -2,6 +2,8 @@
  * header row then one row per part or pattern; columns ref, kind, v_rated,
  * i_surge, i_avg, trr, tol, note in any order and case; others ignored. */
 #include "rating.h"
+
+#include "dmodel.h"
 #include "infile.h"
 
 #include <errno.h>
@@ -251,12 +253,12 @@ static void set_kind(struct rating *r, const struct nl_part *p, const char *text
 
 static void from_model(struct rating *r, const struct nl_part *p)
 {
-	double bv = p->kind == NL_D ? rating_model_param(p, "bv") : NAN;
+	double bv = p->kind == NL_D ? dmodel_given(p->model, DM_BV) : NAN;
 	if (!isnan(bv) && bv > 0) {
 		r->v_rated.value = bv;
 		r->v_rated.from = "model BV";
 	}
-	double tt = p->kind == NL_D ? rating_model_param(p, "tt") : NAN;
+	double tt = p->kind == NL_D ? dmodel_given(p->model, DM_TT) : NAN;
 	if (!isnan(tt) && tt > 0) {
 		r->trr.value = tt;
 		r->trr.from = "model TT";
@@ -356,21 +358,11 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 	return out;
 }
 
-double rating_model_param(const struct nl_part *p, const char *key)
-{
-	if (!p->model)
-		return NAN;
-	for (uint32_t i = 0; i < p->model->nparams; i++)
-		if (strcmp(p->model->keys[i], key) == 0)
-			return p->model->values[i];
-	return NAN;
-}
-
 double rating_vf(const struct nl_part *d, const char *kind)
 {
 	const double vt = 0.025852; /* kT/q at 300.15 K */
-	double is = rating_model_param(d, "is"), n = rating_model_param(d, "n");
-	double rs = rating_model_param(d, "rs"), area = d->value > 0 ? d->value : 1;
+	double is = dmodel_given(d->model, DM_IS), n = dmodel_given(d->model, DM_N);
+	double rs = dmodel_given(d->model, DM_RS), area = d->value > 0 ? d->value : 1;
 	if (!isnan(is) && is > 0) {
 		if (isnan(n) || n <= 0)
 			n = 1;

@@ -1,6 +1,6 @@
 /* report_check.c: check reports. Text: one block per finding (location,
  * severity, message, rule id; then where the number comes from, the rating
- * and limit, the fix), a stress table, a summary. JSON: DESIGN §10 shape. */
+ * and limit, the fix), a stress table, a summary. JSON: docs/design.md §10 shape. */
 #include "report_check.h"
 #include "report_formats.h"
 
@@ -8,16 +8,9 @@
 #include <string.h>
 
 #include "num.h"
-#include "verify.h"
 #include "report_parts.h"
 #include "report_topo.h"
 #include "version.h"
-
-const char report_caution[] =
-	"caution: this design involves voltages above the hazard level. Stored charge "
-	"can injure or kill, also after power is removed. These findings are an aid to "
-	"review, not a certification: follow the applicable safety standard, local codes "
-	"and licensed practice.";
 
 static const char *sev_name(enum diag_severity s)
 {
@@ -126,7 +119,7 @@ static void text_table(FILE *out, const struct check_file *f)
 			s->qty == SQ_SURGE ? "surge" : p->kind == NL_D ? "reverse" : "voltage",
 			s->role[0] ? s->role : "-", wv, bv, rv, ratio);
 		if (sim)
-			fprintf(out, " %11s%s", sv, verify_gap(s) ? " GAP" : s->sim_near_open ? " n/c" : "");
+			fprintf(out, " %11s%s", sv, stress_gap(s) ? " GAP" : s->sim_near_open ? " n/c" : "");
 		fputc('\n', out);
 	}
 }
@@ -238,7 +231,7 @@ static void json_stress(FILE *out, const struct check_file *f,
 	if (f->stress->verify) {
 		fputs(", \"simulated\": ", out);
 		jnum(out, s->sim_worst);
-		fprintf(out, ", \"analysis_gap\": %s, \"compared\": %s", verify_gap(s) ? "true" : "false",
+		fprintf(out, ", \"analysis_gap\": %s, \"compared\": %s", stress_gap(s) ? "true" : "false",
 			isfinite(s->sim_worst) && !s->sim_near_open ? "true" : "false");
 	}
 	fputc('}', out);
@@ -472,7 +465,7 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 	}
 	if (fmt == RC_TEXT && t->quiet) {
 		if (hazard)
-			fprintf(out, "%s\n", report_caution);
+			fprintf(out, "%s\n", check_caution);
 		return;
 	}
 	if (fmt == RC_TEXT) {
@@ -483,7 +476,7 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 		if (t->files > 1)
 			text_batch(out, t);
 		if (hazard)
-			fprintf(out, "\n%s\n", report_caution);
+			fprintf(out, "\n%s\n", check_caution);
 		return;
 	}
 	if (t->files == 0)
@@ -492,7 +485,7 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 		t->files, t->errors, t->warnings, t->notes, t->netlist_errors);
 	jnum(out, t->max_voltage);
 	fputs(", \"caution\": ", out);
-	jstr(out, hazard ? report_caution : NULL);
+	jstr(out, hazard ? check_caution : NULL);
 	fputs(",\n    \"per_rule\": {", out);
 	for (size_t i = 0, n = 0; i < rules_count && i < TOTALS_RULES; i++)
 		if (t->per_rule[i])

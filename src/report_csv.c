@@ -1,5 +1,5 @@
 /* report_csv.c: one row per capacitor and diode that is stressed or rated,
- * RFC 4180 quoting, a header row; the columns of DESIGN §10 plus the file
+ * RFC 4180 quoting, a header row; the columns of docs/design.md §10 plus the file
  * and the quantity. */
 #include "report_formats.h"
 

@@ -5,14 +5,13 @@
  * drawn against the rating and the profile's limit. */
 #include "report_formats.h"
 
-#include "verify.h"
 
 #include <math.h>
 #include <string.h>
 
 #include "num.h"
 
-#define PLOT_POINTS VERIFY_TRACE_POINTS
+#define PLOT_POINTS STRESS_TRACE_POINTS
 #define PLOTS_PER_STRUCT 8
 
 static void x(FILE *out, const char *s)
@@ -123,13 +122,16 @@ static int waveform(const struct check_file *f, const struct nl_part *p,
 	const struct prop_node *a = &r->nodes[q[0]], *b = &r->nodes[q[1]];
 	if (a->state != PS_RESOLVED || b->state != PS_RESOLVED)
 		return 0;
-	const struct form *d = form_lin((struct form_ctx *)&r->fc, p->kind == NL_D ? -1 : 1, a->f,
-					p->kind == NL_D ? 1 : -1, b->f);
-	if (!d)
-		return 0;
-	double c = p->kind == NL_D ? d->hi : (fabs(d->hi) > fabs(d->lo) ? d->hi : d->lo);
-	for (int i = 0; i < PLOT_POINTS; i++)
-		v[i] = c + form_ac_at(&r->fc, d, period * i / (PLOT_POINTS - 1));
+	/* v(pin 0) - v(pin 1), negated for a diode's reverse voltage; the
+	 * constant at its largest magnitude (interval arithmetic) */
+	double sgn = p->kind == NL_D ? -1 : 1;
+	double hi = sgn > 0 ? a->f->hi - b->f->lo : b->f->hi - a->f->lo;
+	double lo = sgn > 0 ? a->f->lo - b->f->hi : b->f->lo - a->f->hi;
+	double c = p->kind == NL_D ? hi : (fabs(hi) > fabs(lo) ? hi : lo);
+	for (int i = 0; i < PLOT_POINTS; i++) {
+		double t = period * i / (PLOT_POINTS - 1);
+		v[i] = c + sgn * (form_ac_at(&r->fc, a->f, t) - form_ac_at(&r->fc, b->f, t));
+	}
 	return 1;
 }
 
@@ -326,7 +328,7 @@ void report_html_end(FILE *out, const struct profile *p,
 		fputs("</p>\n", out);
 	if (t->max_voltage > profile_hazard(p)) {
 		fputs("<p class=\"caution\"><strong>Caution.</strong> ", out);
-		x(out, report_caution + strlen("caution: "));
+		x(out, check_caution + strlen("caution: "));
 		fputs("</p>\n", out);
 	}
 	fputs("</section>\n</body></html>\n", out);

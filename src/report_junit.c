@@ -2,8 +2,8 @@
  * rule and part it applies to: a finding at error or warning is a
  * <failure>, a part that could not be checked (no rating, stress not
  * bounded) a <skipped>; a netlist that does not read is an <error>.
- * Element and attribute names follow the common JUnit schema (REFERENCES.md
- * 10b). */
+ * Element and attribute names follow the common JUnit schema (docs/sources.md
+ * §10b). */
 #include "report_formats.h"
 
 #include <math.h>

@@ -3,33 +3,36 @@
  * `headroom rules` show, and docs/rules/ID.md explains each [rules-list]. */
 #include "rules.h"
 
+#include <assert.h>
 #include <math.h>
 #include <stdarg.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "num.h"
-#include "verify.h"
 
-const struct rule_info rules_table[] = {
-	{"cap-overvoltage", DIAG_ERROR, "a capacitor sees more than its rated voltage"},
-	{"cap-derating", DIAG_WARNING, "a capacitor is above the profile's share of its rating"},
-	{"cap-reverse-bias", DIAG_ERROR, "a polarised capacitor is reverse-biased past its limit"},
-	{"diode-overvoltage", DIAG_ERROR, "a diode's reverse voltage is above its rating"},
-	{"diode-derating", DIAG_WARNING, "a diode's reverse voltage is above the profile's share of its rating"},
-	{"surge-current", DIAG_WARNING, "the power-up surge through a diode is above its surge rating"},
-	{"surge-unbounded", DIAG_WARNING, "nothing limits the power-up surge through a diode"},
-	{"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
-	{"clamp-droop", DIAG_WARNING, "the load makes a clamp's capacitor droop too much each period"},
-	{"slow-recovery", DIAG_WARNING, "a diode recovers too slowly for the drive frequency"},
-	{"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
-	{"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
-	{"stress-unsettled", DIAG_NOTE, "a part's stress could not be bounded"},
-	{"analysis-gap", DIAG_ERROR, "the simulation (--verify) exceeds a part's analytic worst case"},
-	{"waiver-expired", DIAG_WARNING, "a waiver's date has passed: what it covered is reported again"},
-	{"waiver-unused", DIAG_NOTE, "a waiver matches no finding"},
+/* Designated initialisers tie each row to its enum constant [rules-list]. */
+const struct rule_info rules_table[RULE_COUNT] = {
+	[RULE_CAP_OVERVOLTAGE] = {"cap-overvoltage", DIAG_ERROR, "a capacitor sees more than its rated voltage"},
+	[RULE_CAP_DERATING] = {"cap-derating", DIAG_WARNING, "a capacitor is above the profile's share of its rating"},
+	[RULE_CAP_REVERSE_BIAS] = {"cap-reverse-bias", DIAG_ERROR, "a polarised capacitor is reverse-biased past its limit"},
+	[RULE_DIODE_OVERVOLTAGE] = {"diode-overvoltage", DIAG_ERROR, "a diode's reverse voltage is above its rating"},
+	[RULE_DIODE_DERATING] = {"diode-derating", DIAG_WARNING, "a diode's reverse voltage is above the profile's share of its rating"},
+	[RULE_SURGE_CURRENT] = {"surge-current", DIAG_WARNING, "the power-up surge through a diode is above its surge rating"},
+	[RULE_SURGE_UNBOUNDED] = {"surge-unbounded", DIAG_WARNING, "nothing limits the power-up surge through a diode"},
+	[RULE_STORED_CHARGE] = {"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
+	[RULE_CLAMP_DROOP] = {"clamp-droop", DIAG_WARNING, "the load makes a clamp's capacitor droop too much each period"},
+	[RULE_SLOW_RECOVERY] = {"slow-recovery", DIAG_WARNING, "a diode recovers too slowly for the drive frequency"},
+	[RULE_RATING_MISSING] = {"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
+	[RULE_INTENT_MISS] = {"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
+	[RULE_STRESS_UNSETTLED] = {"stress-unsettled", DIAG_NOTE, "a part's stress could not be bounded"},
+	[RULE_ANALYSIS_GAP] = {"analysis-gap", DIAG_ERROR, "the simulation (--verify) exceeds a part's analytic worst case"},
+	[RULE_WAIVER_EXPIRED] = {"waiver-expired", DIAG_WARNING, "a waiver's date has passed: what it covered is reported again"},
+	[RULE_WAIVER_UNUSED] = {"waiver-unused", DIAG_NOTE, "a waiver matches no finding"},
 };
-const size_t rules_count = sizeof rules_table / sizeof rules_table[0];
+_Static_assert(sizeof rules_table / sizeof rules_table[0] == RULE_COUNT,
+	       "one row per rule");
+const size_t rules_count = RULE_COUNT;
 
 const struct rule_info *rules_find(const char *id)
 {
@@ -61,12 +64,12 @@ double rules_standard_rating(double v, int diode)
 }
 
 struct ctx {
-	struct audit *a;
+	const struct audit *a;
+	struct arena *ar;        /* the stage's memory */
 	const struct rating *r;
 	const struct profile *p;
 	const struct stress_result *s;
 	struct rules_result *out;
-	size_t cap;
 	int oom;
 };
 
@@ -80,18 +83,17 @@ static const char *str(struct ctx *x, const char *fmt, ...)
 	va_start(ap, fmt);
 	vsnprintf(buf, sizeof buf, fmt, ap);
 	va_end(ap);
-	const char *c = arena_strdup(x->a->ar, buf);
+	const char *c = arena_strdup(x->ar, buf);
 	if (!c)
 		x->oom = 1;
 	return c ? c : "";
 }
 
 struct finding *rules_add(struct rules_result *rr, struct arena *ar,
-			  const char *id)
+			  enum rule_id id)
 {
-	const struct rule_info *r = rules_find(id);
-	if (!r)
-		return NULL;
+	assert(id < RULE_COUNT);
+	const struct rule_info *r = &rules_table[id];
 	if (rr->n == rr->cap) {
 		size_t ncap = rr->cap ? rr->cap * 2 : 32;
 		struct finding *v = arena_alloc(ar, ncap * sizeof *v);
@@ -112,10 +114,10 @@ struct finding *rules_add(struct rules_result *rr, struct arena *ar,
 	return f;
 }
 
-static struct finding *add(struct ctx *x, const char *rule, uint32_t part,
+static struct finding *add(struct ctx *x, enum rule_id rule, uint32_t part,
 			   int32_t st)
 {
-	struct finding *f = rules_add(x->out, x->a->ar, rule);
+	struct finding *f = rules_add(x->out, x->ar, rule);
 	if (!f) {
 		x->oom = 1;
 		return NULL;
@@ -155,7 +157,7 @@ static const char *simulation(struct ctx *x, const struct stress *s)
 		return "";
 	return str(x, "; simulated %s: %s", v(x, s->sim_worst, "V"),
 		   s->sim_near_open ? "not compared (beside a part the solver left open)"
-		   : verify_gap(s) ? "ABOVE the analytic bound (analysis-gap)"
+		   : stress_gap(s) ? "ABOVE the analytic bound (analysis-gap)"
 				   : "confirmed by simulation");
 }
 
@@ -180,7 +182,7 @@ static const char *computation(struct ctx *x, const struct stress *s)
 
 static void gap(struct ctx *x, const struct stress *s)
 {
-	struct finding *f = add(x, "analysis-gap", s->part, s->structure);
+	struct finding *f = add(x, RULE_ANALYSIS_GAP, s->part, s->structure);
 	if (!f)
 		return;
 	int diode = nl_part_at(x->a->er.circuit, s->part)->kind == NL_D;
@@ -227,12 +229,12 @@ static void overvoltage(struct ctx *x, const struct stress *s, const char *cls)
 	const char *what = diode ? "reverse" : "across it";
 	struct finding *f = NULL;
 	if (s->worst > r->v_rated.value) {
-		f = add(x, diode ? "diode-overvoltage" : "cap-overvoltage", s->part, s->structure);
+		f = add(x, diode ? RULE_DIODE_OVERVOLTAGE : RULE_CAP_OVERVOLTAGE, s->part, s->structure);
 		if (f)
 			f->message = str(x, "%s sees %s %s worst case, above its %s rating",
 					 f->subject, v(x, s->worst, "V"), what, v(x, r->v_rated.value, "V"));
 	} else if (s->worst > r->v_rated.value * factor) {
-		f = add(x, diode ? "diode-derating" : "cap-derating", s->part, s->structure);
+		f = add(x, diode ? RULE_DIODE_DERATING : RULE_CAP_DERATING, s->part, s->structure);
 		if (f)
 			f->message = str(x, "%s sees %s %s worst case, %.0f%% of its %s rating (limit %.0f%%)",
 					 f->subject, v(x, s->worst, "V"), what,
@@ -264,7 +266,7 @@ static void reverse_bias(struct ctx *x, const struct stress *s)
 		lim = 0;
 	if (s->rev_min >= -lim - 1e-9)
 		return;
-	struct finding *f = add(x, "cap-reverse-bias", s->part, s->structure);
+	struct finding *f = add(x, RULE_CAP_REVERSE_BIAS, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = -s->rev_min;
@@ -283,7 +285,7 @@ static void missing(struct ctx *x, const struct stress *s, const char *cls)
 {
 	const char *note;
 	double factor = profile_kind(x->p, cls, x->r[s->part].kind, "voltage", &note);
-	struct finding *f = add(x, "rating-missing", s->part, s->structure);
+	struct finding *f = add(x, RULE_RATING_MISSING, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = s->worst;
@@ -302,7 +304,7 @@ static void stored_charge(struct ctx *x, const struct stress *s)
 	double tmax = profile_value(x->p, "discharge_time", &n2);
 	if (isnan(hz) || !(s->worst > hz) || (!isinf(s->discharge_r) && !(s->discharge_s > tmax)))
 		return;
-	struct finding *f = add(x, "stored-charge", s->part, s->structure);
+	struct finding *f = add(x, RULE_STORED_CHARGE, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = s->worst;
@@ -334,7 +336,7 @@ static void recovery(struct ctx *x, const struct stress *s)
 	double T = period_of(x, s->structure), trr = r->trr.value;
 	if (isnan(trr) || isnan(frac) || !(T > 0) || !(trr > frac * T))
 		return;
-	struct finding *f = add(x, "slow-recovery", s->part, s->structure);
+	struct finding *f = add(x, RULE_SLOW_RECOVERY, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = trr;
@@ -353,7 +355,7 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	if (!s->bounded)
 		return;
 	if (s->series_r <= 0) {
-		struct finding *f = add(x, "surge-unbounded", s->part, s->structure);
+		struct finding *f = add(x, RULE_SURGE_UNBOUNDED, s->part, s->structure);
 		if (!f)
 			return;
 		f->unit = "A";
@@ -367,7 +369,7 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	double factor = profile_kind_key(x->p, "diode", r->kind, "surge", &note, &key);
 	if (isnan(r->i_surge.value) || isnan(factor) || !(s->worst > r->i_surge.value * factor))
 		return;
-	struct finding *f = add(x, "surge-current", s->part, s->structure);
+	struct finding *f = add(x, RULE_SURGE_CURRENT, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = s->worst;
@@ -392,13 +394,13 @@ static void part_rules(struct ctx *x, const struct stress *s)
 		return;
 	}
 	if (!s->bounded) {
-		struct finding *f = add(x, "stress-unsettled", s->part, s->structure);
+		struct finding *f = add(x, RULE_STRESS_UNSETTLED, s->part, s->structure);
 		if (f)
 			f->message = str(x, "the stress on %s could not be bounded (%s): no rule is applied to it",
 					 f->subject, where(x, s));
 		return;
 	}
-	if (verify_gap(s))
+	if (stress_gap(s))
 		gap(x, s);
 	if (isnan(x->r[s->part].v_rated.value)) {
 		if (s->structure >= 0)
@@ -424,9 +426,9 @@ static void droop(struct ctx *x, size_t si)
 	const struct topo_struct *t = &x->a->topo.s[si];
 	uint32_t part = NL_NONE;
 	for (uint32_t k = 0; k < t->nparts && part == NL_NONE; k++)
-		if (strncmp(t->parts[k].role, "coupling", 8) == 0)
+		if (t->parts[k].kind == TR_COUPLING_CAP)
 			part = t->parts[k].part;
-	struct finding *f = add(x, "clamp-droop", part, (int32_t)si);
+	struct finding *f = add(x, RULE_CLAMP_DROOP, part, (int32_t)si);
 	if (!f)
 		return;
 	f->worst = f0->droop_v;
@@ -458,7 +460,7 @@ static void intent(struct ctx *x, const struct annot *an)
 	}
 	double want_lo = mn ? mn->num : -INFINITY, want_hi = mx ? mx->num : INFINITY;
 	if (lo == INFINITY) {
-		struct finding *g = add(x, "stress-unsettled", NL_NONE, -1);
+		struct finding *g = add(x, RULE_STRESS_UNSETTLED, NL_NONE, -1);
 		if (g) {
 			g->loc = an->loc;
 			g->subject = an->target;
@@ -469,7 +471,7 @@ static void intent(struct ctx *x, const struct annot *an)
 	}
 	if (lo >= want_lo && hi <= want_hi)
 		return;
-	struct finding *f = add(x, "intent-miss", NL_NONE, -1);
+	struct finding *f = add(x, RULE_INTENT_MISS, NL_NONE, -1);
 	if (!f)
 		return;
 	f->loc = an->loc;
@@ -483,11 +485,10 @@ static void intent(struct ctx *x, const struct annot *an)
 	f->fix = "change the design or the *@expect line";
 }
 
-int rules_run(struct audit *a, const struct rating *r, const struct profile *p,
-	      const struct stress_result *s, struct rules_result *out)
+int rules_run(const struct audit *a, const struct rating *r, const struct profile *p,
+	      const struct stress_result *s, struct arena *ar, struct rules_result *out)
 {
-	struct ctx x = {a, r, p, s, out, 0, 0};
-	(void)x.cap;
+	struct ctx x = {a, ar, r, p, s, out, 0};
 	memset(out, 0, sizeof *out);
 	for (size_t i = 0; i < s->n && !x.oom; i++)
 		part_rules(&x, &s->s[i]);

@@ -3,7 +3,7 @@
  * .param table; nodes inside an instance are renamed "X1.n5" unless they are
  * ports, ground or .global; models are looked up from the definition the
  * card sits in outwards (lexically). */
-#include "scope.h"
+#include "elab_state.h"
 
 #include <math.h>
 #include <string.h>
@@ -441,7 +441,7 @@ static int instance_params(struct elab *el, struct scope *ns,
 				 "expected name=value after the subcircuit name");
 			return 0;
 		}
-		if (dev_value(&ds, f->value, el->d, c->loc.file, &v) != DEV_OK)
+		if (devval_get(&ds, f->value, el->d, c->loc.file, &v) != DEV_OK)
 			return 0;
 		int declared = 0;
 		for (uint32_t j = 0; j < ns->def->ndefaults; j++)
@@ -466,7 +466,7 @@ static int default_params(struct elab *el, struct scope *ns,
 		double v;
 		if (f->kind != FIELD_ASSIGN || smap_get(ns->params, f->text, f->len))
 			continue;
-		if (dev_value(&ds, f->value, el->d, ns->def->loc.file, &v) != DEV_OK)
+		if (devval_get(&ds, f->value, el->d, ns->def->loc.file, &v) != DEV_OK)
 			return 0;
 		set_param(el, ns, f->text, f->len, v);
 	}
@@ -661,4 +661,28 @@ void scope_link_controls(struct elab *el)
 		if (p->ext && p->ext->ctrl[0] && !p->ext->behavioural)
 			link_part(el, paths, p);
 	}
+}
+
+int scope_push(struct elab *el, void ***arr, size_t *n, size_t *cap,
+		    void *p)
+{
+	if (*n == *cap) {
+		size_t ncap = *cap ? *cap * 2 : 16;
+		void **a = arena_alloc(el->ar, ncap * sizeof *a);
+		if (!a) {
+			el->oom = 1;
+			return 0;
+		}
+		if (*n)
+			memcpy(a, *arr, *n * sizeof *a);
+		*arr = a;
+		*cap = ncap;
+	}
+	(*arr)[(*n)++] = p;
+	return 1;
+}
+
+void scope_add_annot(struct elab *el, struct elab_annot *a)
+{
+	scope_push(el, &el->annots, &el->nannots, &el->capannots, a);
 }

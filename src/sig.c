@@ -11,6 +11,7 @@
 #define SIG_PI 3.14159265358979323846
 
 static const char *const kind_names[] = {"dc", "sin", "pulse", "pwl", "sffm"};
+_Static_assert(sizeof kind_names / sizeof kind_names[0] == SIG_COUNT, "one name per kind");
 
 const char *sig_kind_name(enum sig_kind k)
 {

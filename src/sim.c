@@ -7,10 +7,10 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "dmodel.h"
 #include "simdev.h"
 #include "simmat.h"
 #include "simsrc.h"
-#include "sig.h"
 
 #define SIM_MAX_NEWTON 20 /* per time point, then the step is cut (SPICE: ITL4 = 10) */
 #define SIM_RMIN 1e-3      /* ohm: the smallest resistance (SPICE's, from memory) */
@@ -38,18 +38,6 @@ struct sim {
 };
 
 /* ---- setup ---- */
-
-static double model_param(const struct nl_model *m, const char *const *keys,
-			  double dflt)
-{
-	if (!m)
-		return dflt;
-	for (int k = 0; keys[k]; k++)
-		for (uint32_t i = 0; i < m->nparams; i++)
-			if (strcmp(m->keys[i], keys[k]) == 0 && isfinite(m->values[i]))
-				return m->values[i];
-	return dflt;
-}
 
 /* Parameters outside their physical range would divide by zero in the
  * junction equations: each is brought back to its SPICE default or limit. */
@@ -82,16 +70,16 @@ static struct simdev_diode *diode_model(struct sim *s, const struct nl_part *p)
 		return NULL;
 	const struct nl_model *m = p->model;
 	double area = p->value > 0 ? p->value : 1;
-	d->is = model_param(m, (const char *const[]){"is", "js", NULL}, 1e-14) * area;
-	d->n = model_param(m, (const char *const[]){"n", NULL}, 1);
-	d->rs = model_param(m, (const char *const[]){"rs", NULL}, 0) / area;
-	d->cjo = model_param(m, (const char *const[]){"cjo", "cj0", "cj", NULL}, 0) * area;
-	d->vj = model_param(m, (const char *const[]){"vj", "pb", NULL}, 1);
-	d->m = model_param(m, (const char *const[]){"m", "mj", NULL}, 0.5);
-	d->tt = model_param(m, (const char *const[]){"tt", NULL}, 0);
-	d->fc = model_param(m, (const char *const[]){"fc", NULL}, 0.5);
-	d->bv = model_param(m, (const char *const[]){"bv", NULL}, INFINITY);
-	d->ibv = model_param(m, (const char *const[]){"ibv", NULL}, 1e-3) * area;
+	d->is = dmodel_value(m, DM_IS) * area;
+	d->n = dmodel_value(m, DM_N);
+	d->rs = dmodel_value(m, DM_RS) / area;
+	d->cjo = dmodel_value(m, DM_CJO) * area;
+	d->vj = dmodel_value(m, DM_VJ);
+	d->m = dmodel_value(m, DM_M);
+	d->tt = dmodel_value(m, DM_TT);
+	d->fc = dmodel_value(m, DM_FC);
+	d->bv = dmodel_value(m, DM_BV);
+	d->ibv = dmodel_value(m, DM_IBV) * area;
 	if (d->bv <= 0)
 		d->bv = INFINITY;
 	diode_sane(d);
@@ -155,7 +143,7 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 		s->ndev++;
 		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H)
 			s->n++;
-		if (k == SD_D && model_param(p->model, (const char *const[]){"rs", NULL}, 0) > 0)
+		if (k == SD_D && dmodel_value(p->model, DM_RS) > 0)
 			s->n++;
 	}
 	return 1;
@@ -215,10 +203,9 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 	}
 	if (d->kind == SD_V || d->kind == SD_I) {
 		d->src = p->ext ? p->ext->src : NULL;
-		struct sig sg;
-		if (!d->src || !sig_from_source(d->src, s->ar, &sg))
-			return d->src ? 0 : 1;
-		d->mean = sg.mean;
+		if (!d->src)
+			return 1;
+		d->mean = simsrc_mean(d->src, &s->span);
 		d->ac_k = s->o.ac_scale ? s->o.ac_scale[i] : 1;
 		d->dc_v = d->mean * (s->o.dc_scale ? s->o.dc_scale[i] : 1);
 		if (s->o.dc_set && isfinite(s->o.dc_set[i]))

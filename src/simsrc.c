@@ -236,3 +236,43 @@ double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp)
 		return 0;
 	}
 }
+
+/* Mean of a waveform that is linear between its corners, over one period
+ * from t0 (trapezoids between corners, each taken just inside its ends so
+ * that a jump at a corner counts on the right side). */
+static double piecewise_mean(const struct nl_source *src,
+			     const struct simsrc_span *sp, double t0, double per)
+{
+	double sum = 0, a = t0, end = t0 + per;
+	for (unsigned guard = 0; a < end && guard < 4000000u; guard++) {
+		double b = fmin(simsrc_next_corner(src, sp, a), end);
+		double e = 1e-9 * (b - a);
+		sum += 0.5 * (simsrc_value(src, sp, a + e) + simsrc_value(src, sp, b - e)) * (b - a);
+		a = b;
+	}
+	return sum / per;
+}
+
+double simsrc_mean(const struct nl_source *src, const struct simsrc_span *sp)
+{
+	double per = simsrc_period(src, sp);
+	switch (src->wave) {
+	case NL_WAVE_SIN:
+	case NL_WAVE_SFFM:
+		return arg(src, 0, 0);
+	case NL_WAVE_PULSE:
+		return per > 0 ? piecewise_mean(src, sp, arg(src, 2, 0), per) : arg(src, 0, 0);
+	case NL_WAVE_PWL: {
+		uint32_t n = src->nargs / 2;
+		double d = src->pwl_delay > 0 ? src->pwl_delay : 0;
+		if (n == 0)
+			return src->dc;
+		return per > 0 ? piecewise_mean(src, sp, d + src->args[2 * (n - 1)], per)
+			       : src->args[2 * n - 1];
+	}
+	case NL_WAVE_EXP:
+		return arg(src, 0, 0); /* both edges done, it is back at V1 */
+	default:
+		return src->dc;
+	}
+}

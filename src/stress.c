@@ -4,12 +4,14 @@
  *    dV = I/(fC) (2N^3/3 + N^2/2 - N/6), ripple dv = I/(fC) N(N+1)/2, optimum
  *    N = sqrt(Vp f C / I): Kuffel, Zaengl & Kuffel, High Voltage Engineering
  *    Fundamentals, 2nd ed., section 2.2 (from memory; the same formulas are
- *    seen in secondary sources, REFERENCES.md section 3);
- *  - clamp droop per period with load R: dV = Vcap T / (R C) (DESIGN §6);
- *  - surge: I = Vpeak / R_series (DESIGN §6);
+ *    seen in secondary sources, docs/sources.md §3);
+ *  - clamp droop per period with load R: dV = Vcap T / (R C) (docs/design.md §6);
+ *  - surge: I = Vpeak / R_series (docs/design.md §6);
  *  - stored energy E = C V^2 / 2; RC discharge to the hazard voltage
  *    t = R C ln(V / Vhaz). */
 #include "stress.h"
+
+#include "dmodel.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -35,22 +37,23 @@ double stress_tolerance(const struct audit *a, const struct profile *p,
 }
 
 struct ctx {
-	struct audit *a;
+	const struct audit *a;
+	struct arena *ar;        /* the stage's memory */
 	const struct rating *r;
 	const struct profile *p;
 	struct prop_result runs[NCORNER];
 	uint32_t *struct_of;     /* part -> structure index or UINT32_MAX */
-	const char **role_of;
+	const struct topo_part **tpart_of; /* per part, NULL outside structures */
 };
 
 static int run_corner(struct ctx *x, int k)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
 	size_t np = nl_part_count(c);
-	double *amp = arena_alloc(x->a->ar, (np + 1) * sizeof *amp);
-	double *olo = arena_alloc(x->a->ar, (np + 1) * sizeof *olo);
-	double *ohi = arena_alloc(x->a->ar, (np + 1) * sizeof *ohi);
-	double *vf = k == C_VF ? arena_alloc(x->a->ar, (np + 1) * sizeof *vf) : NULL;
+	double *amp = arena_alloc(x->ar, (np + 1) * sizeof *amp);
+	double *olo = arena_alloc(x->ar, (np + 1) * sizeof *olo);
+	double *ohi = arena_alloc(x->ar, (np + 1) * sizeof *ohi);
+	double *vf = k == C_VF ? arena_alloc(x->ar, (np + 1) * sizeof *vf) : NULL;
 	if (!amp || !olo || !ohi || (k == C_VF && !vf))
 		return 0;
 	for (size_t i = 0; i < np; i++) {
@@ -63,7 +66,7 @@ static int run_corner(struct ctx *x, int k)
 			vf[i] = p->kind == NL_D ? rating_vf(p, x->r[i].kind) : 0;
 	}
 	struct prop_corner corner = {amp, olo, ohi, vf};
-	return prop_run(c, x->a->ranges, &corner, x->a->ar, &x->runs[k]);
+	return prop_run(c, x->a->ranges, &corner, x->ar, &x->runs[k]);
 }
 
 /* v(p0) - v(p1) extremes at corner k; 0 when a node is not settled. */
@@ -75,12 +78,19 @@ static int across(const struct ctx *x, int k, const struct nl_part *p,
 	const struct prop_node *a = &r->nodes[q[0]], *b = &r->nodes[q[1]];
 	if (a->state != PS_RESOLVED || b->state != PS_RESOLVED || a->conflict || b->conflict)
 		return 0;
-	const struct form *d = form_lin((struct form_ctx *)&r->fc, 1, a->f, -1, b->f);
+	const struct form *d = form_lin(x->ar, 1, a->f, -1, b->f);
 	if (!d)
 		return 0;
 	int exact;
 	form_range(&r->fc, d, lo, hi, &exact);
 	return 1;
+}
+
+static void set_role(const struct ctx *x, uint32_t part, struct stress *s)
+{
+	const struct topo_part *tp = x->tpart_of[part];
+	s->role = tp ? tp->role : "";
+	s->role_kind = tp ? tp->kind : TR_COUNT;
 }
 
 static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
@@ -91,7 +101,7 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 	s->sim_wave = NULL;
 	s->part = i;
 	s->structure = x->struct_of[i] == UINT32_MAX ? -1 : (int32_t)x->struct_of[i];
-	s->role = x->role_of[i] ? x->role_of[i] : "";
+	set_role(x, i, s);
 	s->qty = p->kind == NL_D ? SQ_REVERSE : SQ_VOLTAGE;
 	s->best = INFINITY;
 	s->worst = -INFINITY;
@@ -188,7 +198,7 @@ static void energy(struct ctx *x, struct stress *s)
 
 /* ---- structures ---- */
 
-static double node_extreme(const struct prop_result *r, uint32_t a, uint32_t b,
+static double node_extreme(struct arena *ar, const struct prop_result *r, uint32_t a, uint32_t b,
 			   double *lo, double *hi)
 {
 	*lo = *hi = NAN;
@@ -197,7 +207,7 @@ static double node_extreme(const struct prop_result *r, uint32_t a, uint32_t b,
 	const struct prop_node *na = &r->nodes[a], *nb = &r->nodes[b];
 	if (na->state != PS_RESOLVED || nb->state != PS_RESOLVED)
 		return NAN;
-	const struct form *d = form_lin((struct form_ctx *)&r->fc, 1, na->f, -1, nb->f);
+	const struct form *d = form_lin(ar, 1, na->f, -1, nb->f);
 	int exact;
 	if (!d)
 		return NAN;
@@ -224,7 +234,7 @@ static double load_at(const struct ctx *x, uint32_t node, double *current)
 		/* a resistor to a node that only it holds carries no DC */
 		if (r->nodes[other].by == adj[i] || r->nodes[other].state != PS_RESOLVED)
 			continue;
-		double lo, hi, v = node_extreme(r, node, other, &lo, &hi);
+		double lo, hi, v = node_extreme(x->ar, r, node, other, &lo, &hi);
 		double gi = (p->ext ? p->ext->mult : 1.0) / p->value;
 		g += gi;
 		if (!isnan(v))
@@ -242,12 +252,12 @@ static double drive_period(const struct ctx *x, const struct topo_struct *t)
 }
 
 static double struct_caps(const struct ctx *x, const struct topo_struct *t,
-			  const char *role_prefix, int smallest)
+			  int smallest)
 {
 	double total = 0, min = INFINITY;
 	for (uint32_t i = 0; i < t->nparts; i++) {
 		const struct nl_part *p = nl_part_at(x->a->er.circuit, t->parts[i].part);
-		if (p->kind != NL_C || (role_prefix && strncmp(t->parts[i].role, role_prefix, strlen(role_prefix))))
+		if (p->kind != NL_C)
 			continue;
 		double c = p->value * (p->ext ? p->ext->mult : 1.0);
 		total += c;
@@ -266,7 +276,7 @@ static double coupling_c(const struct ctx *x, const struct topo_struct *t)
 	int ng = 0;
 	for (uint32_t i = 0; i < t->nparts; i++) {
 		const struct nl_part *p = nl_part_at(x->a->er.circuit, t->parts[i].part);
-		if (p->kind != NL_C || strncmp(t->parts[i].role, "coupling", 8) != 0)
+		if (t->parts[i].kind != TR_COUPLING_CAP)
 			continue;
 		const uint32_t *q = nl_pins(x->a->er.circuit, p);
 		int g = 0;
@@ -295,7 +305,7 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 	f->period = drive_period(x, t);
 	f->swing = 0;
 	for (int k = 0; k < NCORNER; k++)
-		if (!isnan(node_extreme(&x->runs[k], t->drive, NL_GROUND, &lo, &hi)))
+		if (!isnan(node_extreme(x->ar, &x->runs[k], t->drive, NL_GROUND, &lo, &hi)))
 			f->swing = fmax(f->swing, hi - lo);
 	double g = t->output != NL_NONE ? load_at(x, t->output, &cur) : 0;
 	f->load_r = g > 0 ? 1 / g : INFINITY;
@@ -305,7 +315,7 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 		 * drive and the clamp node */
 		double c = coupling_c(x, t), vcap = 0;
 		for (int k = 0; k < NCORNER; k++)
-			if (!isnan(node_extreme(&x->runs[k], t->output, t->drive, &lo, &hi)))
+			if (!isnan(node_extreme(x->ar, &x->runs[k], t->output, t->drive, &lo, &hi)))
 				vcap = fmax(vcap, fmax(fabs(lo), fabs(hi)));
 		(void)coupling;
 		f->droop_v = vcap * f->period / (f->load_r * c);
@@ -314,7 +324,7 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 	if (t->kind == TK_LADDER && g > 0 && f->period > 0) {
 		double n = floor(t->stages), fq = 1 / f->period;
 		f->ladder_i = fabs(cur);
-		f->ladder_c = struct_caps(x, t, NULL, 1);
+		f->ladder_c = struct_caps(x, t, 1);
 		double k = f->ladder_i / (fq * f->ladder_c);
 		f->ladder_drop = k * (2 * n * n * n / 3 + n * n / 2 - n / 6);
 		f->ladder_ripple = k * n * (n + 1) / 2;
@@ -341,17 +351,17 @@ static void surge(struct ctx *x, size_t si, uint32_t part, struct stress *s)
 	s->sim_worst = NAN;
 	s->part = part;
 	s->structure = (int32_t)si;
-	s->role = x->role_of[part] ? x->role_of[part] : "";
+	set_role(x, part, s);
 	s->qty = SQ_SURGE;
 	uint32_t an = at_power_up(&x->runs[C_NOM], q[0]), ka = at_power_up(&x->runs[C_NOM], q[1]);
 	for (int k = C_NOM; k < C_VF; k++) {
-		double e = node_extreme(&x->runs[k], an, ka, &lo, &hi);
+		double e = node_extreme(x->ar, &x->runs[k], an, ka, &lo, &hi);
 		if (!isnan(e) && hi > v) {
 			v = hi;
 			s->corner = corner_names[k];
 		}
 	}
-	double rs = rating_model_param(p, "rs");
+	double rs = dmodel_given(p->model, DM_RS);
 	const struct prop_node *na = &x->runs[C_NOM].nodes[an], *nk = &x->runs[C_NOM].nodes[ka];
 	s->series_r = na->zs + nk->zs + (isnan(rs) ? 0 : rs / (p->value > 0 ? p->value : 1));
 	s->bounded = v > 0;
@@ -363,9 +373,9 @@ static void surge(struct ctx *x, size_t si, uint32_t part, struct stress *s)
 static int membership(struct ctx *x)
 {
 	size_t np = nl_part_count(x->a->er.circuit);
-	x->struct_of = arena_alloc(x->a->ar, (np + 1) * sizeof *x->struct_of);
-	x->role_of = arena_zalloc(x->a->ar, (np + 1) * sizeof *x->role_of);
-	if (!x->struct_of || !x->role_of)
+	x->struct_of = arena_alloc(x->ar, (np + 1) * sizeof *x->struct_of);
+	x->tpart_of = arena_zalloc(x->ar, (np + 1) * sizeof *x->tpart_of);
+	if (!x->struct_of || !x->tpart_of)
 		return 0;
 	for (size_t i = 0; i < np; i++)
 		x->struct_of[i] = UINT32_MAX;
@@ -373,7 +383,7 @@ static int membership(struct ctx *x)
 		for (uint32_t k = 0; k < x->a->topo.s[s].nparts; k++) {
 			const struct topo_part *tp = &x->a->topo.s[s].parts[k];
 			x->struct_of[tp->part] = (uint32_t)s;
-			x->role_of[tp->part] = tp->role;
+			x->tpart_of[tp->part] = tp;
 		}
 	return 1;
 }
@@ -395,7 +405,7 @@ static int push(struct ctx *x, struct stress_result *out, size_t *cap,
 {
 	if (out->n == *cap) {
 		size_t ncap = *cap ? *cap * 2 : 64;
-		struct stress *v = arena_alloc(x->a->ar, ncap * sizeof *v);
+		struct stress *v = arena_alloc(x->ar, ncap * sizeof *v);
 		if (!v)
 			return 0;
 		if (out->n)
@@ -407,13 +417,14 @@ static int push(struct ctx *x, struct stress_result *out, size_t *cap,
 	return 1;
 }
 
-int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
-	       struct stress_result *out)
+int stress_run(const struct audit *a, const struct rating *r, const struct profile *p,
+	       struct arena *ar, struct stress_result *out)
 {
 	struct ctx x;
 	memset(&x, 0, sizeof x);
 	memset(out, 0, sizeof *out);
 	x.a = a;
+	x.ar = ar;
 	x.r = r;
 	x.p = p;
 	for (int k = 0; k < NCORNER; k++)
@@ -423,7 +434,7 @@ int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
 		return 0;
 	const struct nl_circuit *c = a->er.circuit;
 	size_t cap = 0, np = nl_part_count(c);
-	const struct stress **coupling = arena_zalloc(a->ar, (a->topo.n + 1) * sizeof *coupling);
+	const struct stress **coupling = arena_zalloc(ar, (a->topo.n + 1) * sizeof *coupling);
 	if (!coupling)
 		return 0;
 	for (uint32_t i = 0; i < np; i++) {
@@ -449,9 +460,9 @@ int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
 	}
 	for (size_t i = 0; i < out->n; i++)
 		if (out->s[i].structure >= 0 && nl_part_at(c, out->s[i].part)->kind == NL_C &&
-		    strncmp(out->s[i].role, "coupling", 8) == 0 && out->s[i].bounded)
+		    out->s[i].role_kind == TR_COUPLING_CAP && out->s[i].bounded)
 			coupling[out->s[i].structure] = &out->s[i];
-	out->st = arena_zalloc(a->ar, (a->topo.n + 1) * sizeof *out->st);
+	out->st = arena_zalloc(ar, (a->topo.n + 1) * sizeof *out->st);
 	if (!out->st)
 		return 0;
 	for (size_t s = 0; s < a->topo.n; s++)
@@ -475,10 +486,16 @@ int stress_run(struct audit *a, const struct rating *r, const struct profile *p,
 	}
 	for (int k = 0; k < NCORNER; k++)
 		out->corners[out->ncorners++] = corner_names[k];
-	struct prop_result *runs = arena_alloc(a->ar, sizeof x.runs);
+	struct prop_result *runs = arena_alloc(ar, sizeof x.runs);
 	if (!runs)
 		return 0;
 	memcpy(runs, x.runs, sizeof x.runs);
 	out->runs = runs;
 	return 1;
+}
+
+int stress_gap(const struct stress *s)
+{
+	return s->bounded && isfinite(s->sim_worst) && !s->sim_near_open &&
+	       s->sim_worst > s->worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
 }

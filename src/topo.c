@@ -7,6 +7,8 @@
  * chain's length and kinds name the structure. */
 #include "topo.h"
 
+#include <assert.h>
+
 #include <stdio.h>
 #include <string.h>
 
@@ -30,9 +32,11 @@ static const char *const kind_names[] = {
 	"clamp-floor", "clamp-ceiling", "detector-high", "detector-low",
 	"doubler-half-wave", "doubler-full-wave", "ladder", "pump", "rectifier",
 	"network"};
+_Static_assert(sizeof kind_names / sizeof kind_names[0] == TK_COUNT, "one name per kind");
 
 const char *topo_kind_name(enum topo_kind k)
 {
+	assert(k < TK_COUNT);
 	return kind_names[k];
 }
 
@@ -62,8 +66,34 @@ struct plist {
 	uint32_t nn, capn;
 };
 
+const char *const topo_role_text[TR_COUNT] = {
+	[TR_COUPLING_CAP] = "coupling cap",
+	[TR_CLAMP_DIODE] = "clamp diode",
+	[TR_RESERVOIR_CAP] = "reservoir cap",
+	[TR_DETECTOR_DIODE] = "detector diode",
+	[TR_LADDER_COUPLING] = "ladder stage %u, coupling column",
+	[TR_LADDER_SMOOTHING] = "ladder stage %u, smoothing column",
+	[TR_LADDER_CLAMP_DIODE] = "ladder stage %u, clamp diode",
+	[TR_LADDER_DETECTOR_DIODE] = "ladder stage %u, detector diode",
+	[TR_PUMP_CAP] = "pump stage %u, pump cap",
+	[TR_PUMP_DIODE] = "pump stage %u, transfer diode",
+	[TR_OUTPUT_CAP] = "output cap",
+	[TR_OUTPUT_DIODE] = "output diode",
+	[TR_HIGH_CAP] = "high-side cap",
+	[TR_HIGH_DIODE] = "high-side diode",
+	[TR_LOW_CAP] = "low-side cap",
+	[TR_LOW_DIODE] = "low-side diode",
+	[TR_BRIDGE_DIODE] = "bridge diode",
+	[TR_NETWORK_CAP] = "network cap",
+	[TR_NETWORK_DIODE] = "network diode",
+};
+_Static_assert(sizeof topo_role_text / sizeof topo_role_text[0] == TR_COUNT,
+	       "one text per role");
+
+static const char *role(struct ctx *x, enum topo_role r, uint32_t stage);
+
 static int pl_add(struct ctx *x, struct plist *l, uint32_t part,
-		  const char *role, uint32_t stage)
+		  enum topo_role kind, uint32_t stage)
 {
 	if (x->used[part])
 		return 1;
@@ -78,7 +108,8 @@ static int pl_add(struct ctx *x, struct plist *l, uint32_t part,
 		l->cap = ncap;
 	}
 	l->v[l->n].part = part;
-	l->v[l->n].role = role;
+	l->v[l->n].kind = kind;
+	l->v[l->n].role = role(x, kind, stage);
 	l->v[l->n++].stage = stage;
 	x->used[part] = 1;
 	return 1;
@@ -105,21 +136,25 @@ static int pl_node(struct ctx *x, struct plist *l, uint32_t node)
 	return 1;
 }
 
-static const char *role(struct ctx *x, const char *fmt, uint32_t stage)
+/* The display text of role r at stage (arena copy when staged). */
+static const char *role(struct ctx *x, enum topo_role r, uint32_t stage)
 {
 	char buf[96];
-	snprintf(buf, sizeof buf, fmt, stage);
-	const char *r = arena_strdup(x->ar, buf);
-	if (!r)
+	assert(r < TR_COUNT);
+	if (!strchr(topo_role_text[r], '%'))
+		return topo_role_text[r];
+	snprintf(buf, sizeof buf, topo_role_text[r], stage);
+	const char *out = arena_strdup(x->ar, buf);
+	if (!out)
 		x->oom = 1;
-	return r ? r : "";
+	return out ? out : "";
 }
 
 /* The capacitors between node and the node whose AC it follows; through a
  * node between capacitors only (a capacitor split in series) as well.
  * Returns the far end (the coupling source). */
 static uint32_t caps_of(struct ctx *x, struct plist *l, uint32_t node,
-			const char *r, uint32_t stage)
+			enum topo_role r, uint32_t stage)
 {
 	uint32_t anchor = P(x, node)->anchor;
 	for (int hop = 0; hop < 8 && anchor != NL_NONE; hop++) {
@@ -263,17 +298,17 @@ static uint32_t element_parts(struct ctx *x, struct plist *l, enum topo_kind k,
 {
 	uint32_t st = i / 2 + 1, diode = P(x, node)->by;
 	int det = x->el[node] == EL_DET;
-	const char *cr, *dr;
+	enum topo_role cr, dr;
 	if (k == TK_LADDER) {
-		cr = role(x, det ? "ladder stage %u, smoothing column" : "ladder stage %u, coupling column", st);
-		dr = role(x, det ? "ladder stage %u, detector diode" : "ladder stage %u, clamp diode", st);
+		cr = det ? TR_LADDER_SMOOTHING : TR_LADDER_COUPLING;
+		dr = det ? TR_LADDER_DETECTOR_DIODE : TR_LADDER_CLAMP_DIODE;
 	} else if (k == TK_PUMP) {
 		st = i + 1;
-		cr = i == last && det ? "output cap" : role(x, "pump stage %u, pump cap", st);
-		dr = i == last && det ? "output diode" : role(x, "pump stage %u, transfer diode", st);
+		cr = i == last && det ? TR_OUTPUT_CAP : TR_PUMP_CAP;
+		dr = i == last && det ? TR_OUTPUT_DIODE : TR_PUMP_DIODE;
 	} else {
-		cr = det ? "reservoir cap" : "coupling cap";
-		dr = det ? "detector diode" : "clamp diode";
+		cr = det ? TR_RESERVOIR_CAP : TR_COUPLING_CAP;
+		dr = det ? TR_DETECTOR_DIODE : TR_CLAMP_DIODE;
 		st = 0;
 	}
 	pl_node(x, l, node);
@@ -369,11 +404,13 @@ static void full_wave(struct ctx *x)
 			}
 			for (uint32_t k = 0; k < a->nparts; k++) {
 				v[k] = a->parts[k];
-				v[k].role = nl_part_at(x->c, v[k].part)->kind == NL_D ? "high-side diode" : "high-side cap";
+				v[k].kind = nl_part_at(x->c, v[k].part)->kind == NL_D ? TR_HIGH_DIODE : TR_HIGH_CAP;
+				v[k].role = topo_role_text[v[k].kind];
 			}
 			for (uint32_t k = 0; k < b->nparts; k++) {
 				v[a->nparts + k] = b->parts[k];
-				v[a->nparts + k].role = nl_part_at(x->c, b->parts[k].part)->kind == NL_D ? "low-side diode" : "low-side cap";
+				v[a->nparts + k].kind = nl_part_at(x->c, b->parts[k].part)->kind == NL_D ? TR_LOW_DIODE : TR_LOW_CAP;
+				v[a->nparts + k].role = topo_role_text[v[a->nparts + k].kind];
 			}
 			memcpy(nodes, a->nodes, a->nnodes * sizeof *nodes);
 			uint32_t nn = a->nnodes;
@@ -421,7 +458,7 @@ static const char *bridge_note(struct ctx *x, uint32_t a, uint32_t b)
 	const struct prop_node *na = P(x, a), *nb = P(x, b);
 	if (na->state != PS_RESOLVED || nb->state != PS_RESOLVED)
 		return "output across the reservoir is the peak of the AC between the bridge inputs; the inputs float, so it is not settled here";
-	const struct form *d = form_lin((struct form_ctx *)&x->p->fc, 1, na->f, -1, nb->f);
+	const struct form *d = form_lin(x->ar, 1, na->f, -1, nb->f);
 	if (!d) {
 		x->oom = 1;
 		return NULL;
@@ -473,15 +510,15 @@ static void bridge_at(struct ctx *x, uint32_t pnode)
 				t.output2 = nn;
 				t.drive_source = source_behind(x, a);
 				t.note = bridge_note(x, a, b);
-				pl_add(x, &l, adj[i], "bridge diode", 0);
-				pl_add(x, &l, adj[j], "bridge diode", 0);
-				pl_add(x, &l, aa[k], "bridge diode", 0);
-				pl_add(x, &l, d4, "bridge diode", 0);
+				pl_add(x, &l, adj[i], TR_BRIDGE_DIODE, 0);
+				pl_add(x, &l, adj[j], TR_BRIDGE_DIODE, 0);
+				pl_add(x, &l, aa[k], TR_BRIDGE_DIODE, 0);
+				pl_add(x, &l, d4, TR_BRIDGE_DIODE, 0);
 				uint32_t np;
 				const uint32_t *pa = nl_adjacency(x->c, pnode, &np);
 				for (uint32_t r = 0; r < np; r++)
 					if (nl_part_at(x->c, pa[r])->kind == NL_C && other_end(x, pa[r], pnode) == nn)
-						pl_add(x, &l, pa[r], "reservoir cap", 0);
+						pl_add(x, &l, pa[r], TR_RESERVOIR_CAP, 0);
 				pl_node(x, &l, a);
 				pl_node(x, &l, b);
 				pl_node(x, &l, pnode);
@@ -552,7 +589,7 @@ static void networks(struct ctx *x)
 			if ((p->kind != NL_C && p->kind != NL_D) || x->used[i] ||
 			    (!unsettled(x, q[0]) && !unsettled(x, q[1])) || dsu_find(up, q[0]) != root)
 				continue;
-			pl_add(x, &l, (uint32_t)i, p->kind == NL_C ? "network cap" : "network diode", 0);
+			pl_add(x, &l, (uint32_t)i, p->kind == NL_C ? TR_NETWORK_CAP : TR_NETWORK_DIODE, 0);
 			pl_node(x, &l, q[0]);
 			pl_node(x, &l, q[1]);
 		}

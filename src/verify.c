@@ -7,11 +7,6 @@
 
 #include "simrun.h"
 
-int verify_gap(const struct stress *s)
-{
-	return s->bounded && isfinite(s->sim_worst) && !s->sim_near_open &&
-	       s->sim_worst > s->worst * (1 + VERIFY_GAP_REL) + VERIFY_GAP_ABS;
-}
 
 /* The DC part of v(pin 0) - v(pin 1) in the best-case propagation (sources
  * at -tol, diode drops), NaN when either node is not settled there. The
@@ -19,7 +14,7 @@ int verify_gap(const struct stress *s)
  * take it: a circuit that charges slowly then approaches its steady state
  * from below, so a run stopped early underestimates the stress and never
  * makes up a gap. */
-static double analytic_dc(const struct audit *a, const struct stress_result *sr,
+static double analytic_dc(const struct audit *a, struct arena *ar, const struct stress_result *sr,
 			  const struct nl_part *p)
 {
 	const struct prop_result *r = &sr->runs[STRESS_CORNER_LOW];
@@ -27,7 +22,7 @@ static double analytic_dc(const struct audit *a, const struct stress_result *sr,
 	const struct prop_node *n0 = &r->nodes[q[0]], *n1 = &r->nodes[q[1]];
 	if (n0->state != PS_RESOLVED || n1->state != PS_RESOLVED || n0->conflict || n1->conflict)
 		return NAN;
-	const struct form *d = form_lin((struct form_ctx *)&r->fc, 1, n0->f, -1, n1->f);
+	const struct form *d = form_lin(ar, 1, n0->f, -1, n1->f);
 	if (!d)
 		return NAN;
 	double lo, hi, alo, ahi;
@@ -38,15 +33,15 @@ static double analytic_dc(const struct audit *a, const struct stress_result *sr,
 }
 
 /* The corner: per part source scales and capacitor start voltages. */
-static int corner(struct audit *a, const struct profile *p,
+static int corner(const struct audit *a, struct arena *ar, const struct profile *p,
 		  const struct stress_result *sr, struct simrun_opts *o,
 		  size_t *started)
 {
 	const struct nl_circuit *c = a->er.circuit;
 	size_t np = nl_part_count(c);
-	double *k = arena_alloc(a->ar, (np + 1) * sizeof *k);
-	double *set = arena_alloc(a->ar, (np + 1) * sizeof *set);
-	double *v0 = arena_alloc(a->ar, (np + 1) * sizeof *v0);
+	double *k = arena_alloc(ar, (np + 1) * sizeof *k);
+	double *set = arena_alloc(ar, (np + 1) * sizeof *set);
+	double *v0 = arena_alloc(ar, (np + 1) * sizeof *v0);
 	if (!k || !set || !v0)
 		return 0;
 	*started = 0;
@@ -54,7 +49,7 @@ static int corner(struct audit *a, const struct profile *p,
 		const struct nl_part *pt = nl_part_at(c, i);
 		k[i] = pt->kind == NL_V ? 1 + stress_tolerance(a, p, (uint32_t)i) : 1;
 		set[i] = pt->kind == NL_V ? a->sources[i].max : NAN;
-		v0[i] = pt->kind == NL_C && pt->npins == 2 ? analytic_dc(a, sr, pt) : NAN;
+		v0[i] = pt->kind == NL_C && pt->npins == 2 ? analytic_dc(a, ar, sr, pt) : NAN;
 		if (isfinite(v0[i]))
 			(*started)++;
 	}
@@ -67,23 +62,23 @@ static int corner(struct audit *a, const struct profile *p,
 }
 
 /* Every stressed part's waveform is traced (one per part, not per stress). */
-static int traces(struct audit *a, struct stress_result *sr, struct simrun_opts *o)
+static int traces(struct arena *ar, struct stress_result *sr, struct simrun_opts *o)
 {
-	uint32_t *parts = arena_alloc(a->ar, (sr->n + 1) * sizeof *parts);
+	uint32_t *parts = arena_alloc(ar, (sr->n + 1) * sizeof *parts);
 	size_t n = 0;
 	if (!parts)
 		return 0;
 	for (size_t i = 0; i < sr->n; i++)
 		if (sr->s[i].qty != SQ_SURGE)
 			parts[n++] = sr->s[i].part;
-	double *tr = arena_alloc(a->ar, (n * VERIFY_TRACE_POINTS + 1) * sizeof *tr);
+	double *tr = arena_alloc(ar, (n * STRESS_TRACE_POINTS + 1) * sizeof *tr);
 	if (!tr)
 		return 0;
-	for (size_t k = 0; k < n * VERIFY_TRACE_POINTS; k++)
+	for (size_t k = 0; k < n * STRESS_TRACE_POINTS; k++)
 		tr[k] = NAN;
 	o->ntrace = n;
 	o->trace_parts = parts;
-	o->trace_points = VERIFY_TRACE_POINTS;
+	o->trace_points = STRESS_TRACE_POINTS;
 	o->trace = tr;
 	return 1;
 }
@@ -103,10 +98,10 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 		struct stress *s = &sr->s[i];
 		if (s->qty == SQ_SURGE)
 			continue;
-		const double *w = o->trace + k++ * VERIFY_TRACE_POINTS;
+		const double *w = o->trace + k++ * STRESS_TRACE_POINTS;
 		if (!isfinite(vmin[s->part]))
 			continue;
-		if (isfinite(w[0]) && isfinite(w[VERIFY_TRACE_POINTS - 1]))
+		if (isfinite(w[0]) && isfinite(w[STRESS_TRACE_POINTS - 1]))
 			s->sim_wave = w;
 		int diode = nl_part_at(c, s->part)->kind == NL_D;
 		s->sim_worst = diode ? fmax(-vmin[s->part], 0)
@@ -116,7 +111,7 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 			continue;
 		if (s->sim_near_open)
 			v->uncompared++;
-		else if (verify_gap(s))
+		else if (stress_gap(s))
 			v->gaps++;
 		else
 			v->confirmed++;
@@ -127,13 +122,13 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
  * small shunt from every node to ground keeps what they leave floating
  * defined. The analysis ignores such parts too, so both judge the same
  * circuit. Returns 0 on out-of-memory. */
-static int leave_out(struct audit *a, struct simrun_opts *o, struct stress_verify *v,
+static int leave_out(const struct audit *a, struct arena *ar, struct simrun_opts *o, struct stress_verify *v,
 		     unsigned char **open_node)
 {
 	const struct nl_circuit *c = a->er.circuit;
 	size_t np = nl_part_count(c);
-	unsigned char *mask = arena_zalloc(a->ar, np + 1);
-	unsigned char *nodes = arena_zalloc(a->ar, nl_node_count(c) + 1);
+	unsigned char *mask = arena_zalloc(ar, np + 1);
+	unsigned char *nodes = arena_zalloc(ar, nl_node_count(c) + 1);
 	char names[200] = "";
 	size_t len = 0;
 	if (!mask || !nodes)
@@ -155,25 +150,26 @@ static int leave_out(struct audit *a, struct simrun_opts *o, struct stress_verif
 	}
 	if (v->left_out > 4 && len < sizeof names)
 		snprintf(names + len, sizeof names - len, " and %zu more", v->left_out - 4);
-	v->left_out_names = arena_strdup(a->ar, names);
+	v->left_out_names = arena_strdup(ar, names);
 	o->leave_out = mask;
 	o->gshunt = VERIFY_GSHUNT;
 	return v->left_out_names != NULL;
 }
 
-int verify_run(struct audit *a, const struct profile *p, const struct verify_limits *lim,
+int verify_run(const struct audit *a, const struct profile *p, const struct verify_limits *lim,
+	       struct arena *ar,
 	       struct stress_result *sr)
 {
-	struct stress_verify *v = arena_zalloc(a->ar, sizeof *v);
+	struct stress_verify *v = arena_zalloc(ar, sizeof *v);
 	if (!v)
 		return 0;
 	sr->verify = v;
 	const struct nl_circuit *c = a->er.circuit;
 	size_t np = nl_part_count(c);
 	struct simrun_opts o;
-	double *vmin = arena_alloc(a->ar, (np + 1) * sizeof *vmin);
-	double *vmax = arena_alloc(a->ar, (np + 1) * sizeof *vmax);
-	if (!vmin || !vmax || !corner(a, p, sr, &o, &v->started) || !traces(a, sr, &o))
+	double *vmin = arena_alloc(ar, (np + 1) * sizeof *vmin);
+	double *vmax = arena_alloc(ar, (np + 1) * sizeof *vmax);
+	if (!vmin || !vmax || !corner(a, ar, p, sr, &o, &v->started) || !traces(ar, sr, &o))
 		return 0;
 	if (lim) {
 		o.max_periods = lim->max_periods;
@@ -184,7 +180,7 @@ int verify_run(struct audit *a, const struct profile *p, const struct verify_lim
 	simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
 	unsigned char *open_node = NULL;
 	if (r.status == SIM_REFUSED && r.refusal.part != NL_NONE) {
-		if (!leave_out(a, &o, v, &open_node))
+		if (!leave_out(a, ar, &o, v, &open_node))
 			return 0;
 		simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &r);
 	}
@@ -201,7 +197,7 @@ int verify_run(struct audit *a, const struct profile *p, const struct verify_lim
 		snprintf(buf, sizeof buf, "%s: %s",
 			 r.refusal.part == NL_NONE ? "the circuit" : nl_part_at(c, r.refusal.part)->path,
 			 r.refusal.why);
-		v->why = arena_strdup(a->ar, buf);
+		v->why = arena_strdup(ar, buf);
 		return v->why != NULL;
 	}
 	if (r.status != SIM_OK) {

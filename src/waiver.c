@@ -102,15 +102,17 @@ static int expired(const struct annot *w, const char *today)
 	return u && today && strcmp(u->text, today) < 0;
 }
 
-static void note_expired(struct audit *a, const struct annot *w, struct rules_result *rr)
+/* Returns 0 on out-of-memory. */
+static int note_expired(struct arena *ar, const struct annot *w, struct rules_result *rr)
 {
-	struct finding *g = rules_add(rr, a->ar, "waiver-expired");
+	struct finding *g = rules_add(rr, ar, RULE_WAIVER_EXPIRED);
 	if (g) {
 		g->loc = w->loc;
 		g->subject = w->target;
 		g->message = "a waiver has expired: the findings it covered are reported again";
 		g->limits = annot_get(w, "until")->text;
 	}
+	return g != NULL;
 }
 
 /* Marks the findings w covers as waived (unless it has expired); returns
@@ -133,43 +135,45 @@ static int mark(const struct annot *w, const char *today, struct rules_result *r
 	return used;
 }
 
-static void apply_one(struct audit *a, const struct annot *w, const char *today,
-		      struct rules_result *rr)
+/* Returns 0 on out-of-memory. */
+static int apply_one(struct arena *ar, const struct annot *w, const char *today,
+		     struct rules_result *rr)
 {
 	int used = mark(w, today, rr);
-	if (expired(w, today) && used) {
-		note_expired(a, w, rr);
-	} else if (!used) {
-		struct finding *g = rules_add(rr, a->ar, "waiver-unused");
-		if (g) {
-			g->loc = w->loc;
-			g->subject = w->target;
-			g->message = "this waiver matches no finding: remove it or correct its rule and part";
-		}
+	if (expired(w, today) && used)
+		return note_expired(ar, w, rr);
+	if (used)
+		return 1;
+	struct finding *g = rules_add(rr, ar, RULE_WAIVER_UNUSED);
+	if (g) {
+		g->loc = w->loc;
+		g->subject = w->target;
+		g->message = "this waiver matches no finding: remove it or correct its rule and part";
 	}
+	return g != NULL;
 }
 
 /* A waiver from a file: matched findings are marked as for inline ones;
  * whether it was used anywhere is reported once, after the batch. */
-static void apply_file_one(struct audit *a, const struct waiver_file *wf,
-			   uint32_t i, const char *today, struct rules_result *rr)
+static int apply_file_one(struct arena *ar, const struct waiver_file *wf,
+			  uint32_t i, const char *today, struct rules_result *rr)
 {
 	const struct annot *w = &wf->w[i];
 	if (!mark(w, today, rr))
-		return;
+		return 1;
 	atomic_store(&wf->used[i], 1);
-	if (expired(w, today))
-		note_expired(a, w, rr);
+	return !expired(w, today) || note_expired(ar, w, rr);
 }
 
-int waiver_apply(struct audit *a, const struct waiver_file *wf,
-		 const char *today, struct rules_result *rr)
+int waiver_apply(const struct audit *a, const struct waiver_file *wf,
+		 const char *today, struct arena *ar, struct rules_result *rr)
 {
 	for (uint32_t i = 0; i < a->nannots; i++)
-		if (a->annots[i].kind == AN_WAIVE)
-			apply_one(a, &a->annots[i], today, rr);
+		if (a->annots[i].kind == AN_WAIVE && !apply_one(ar, &a->annots[i], today, rr))
+			return 0;
 	for (uint32_t i = 0; wf && i < wf->n; i++)
-		apply_file_one(a, wf, i, today, rr);
+		if (!apply_file_one(ar, wf, i, today, rr))
+			return 0;
 	return 1;
 }
 

@@ -21,6 +21,8 @@ struct wave_rd {
 
 static const char *const wave_names[] = {"dc", "sin", "pulse", "pwl", "exp",
 					 "sffm"};
+_Static_assert(sizeof wave_names / sizeof wave_names[0] == NL_WAVE_COUNT,
+	       "one name per waveform");
 
 const char *wave_name(enum nl_wave w)
 {
@@ -52,7 +54,7 @@ static enum dev_status err(struct wave_rd *r, const struct deck_field *f,
 static enum dev_status val(struct wave_rd *r, const struct deck_field *f,
 			   double *out)
 {
-	enum dev_status st = dev_value(r->s, f, r->d, r->card->loc.file, out);
+	enum dev_status st = devval_get(r->s, f, r->d, r->card->loc.file, out);
 	if (st == DEV_STATE)
 		return err(r, f, "a source value may not depend on circuit voltages, currents or time");
 	return st;

@@ -1,11 +1,11 @@
 /* test_check.c: ratings, profiles, stresses and rules.
  * - each rule fires on one small netlist and stays quiet on its fixed twin
- *   (this project's own scenarios, values worked out by hand: DESIGN §5/§6);
+ *   (this project's own scenarios, values worked out by hand: docs/design.md §5/§6);
  * - profile values against the tables they cite (NAVSEA SD-18 Table 1A,
- *   normal environment, quality level 2: seen, REFERENCES.md 1a; NASA
- *   EEE-INST-002: from memory, REFERENCES.md 1b; KEMET tantalum 50 %: seen;
+ *   normal environment, quality level 2: seen, docs/sources.md §1a; NASA
+ *   EEE-INST-002: from memory, docs/sources.md §1b; KEMET tantalum 50 %: seen;
  *   Nippon Chemi-Con 1 V reverse: seen);
- * - ladder regulation against the worked example E1 of REFERENCES.md §9
+ * - ladder regulation against the worked example E1 of docs/sources.md §9
  *   (N = 8, C = 0.05 uF, Vp = 125 kV, f = 150 Hz, I = 5 mA: drop 248.0 kV,
  *   ripple 24.0 kV, optimum 13.69 stages; seen in a textbook companion of the
  *   chapter "Generation of High Voltages", formulas of Kuffel, Zaengl &
@@ -15,6 +15,7 @@
 #include <math.h>
 
 #include "audit.h"
+#include "check.h"
 #include "profile.h"
 #include "rating.h"
 #include "rules.h"
@@ -22,57 +23,53 @@
 #include "verify.h"
 
 struct checked {
-	struct hr_alloc h;
-	struct arena *ar;
-	struct diag_sink *d;
-	struct audit a;
 	struct profile p;
-	const struct rating *r;
-	struct stress_result s;
-	struct rules_result rr;
+	struct check_run run;
 	char *diags;
 };
 
+/* One deck through the library's check (check.h), as the program runs it. */
 static void check_text(struct checked *c, const char *deck, const char *profile,
-		       double tol)
+		       double tol, int verify)
 {
 	static struct memfs fs;
 	memset(c, 0, sizeof *c);
 	fs.name[0] = "t.cir";
 	fs.text[0] = deck;
 	fs.n = 1;
-	c->h = hr_alloc_default();
-	c->ar = arena_create(&c->h);
-	c->d = diag_create(c->ar, 50);
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
 	char path[256];
 	assert_true(profile_find(profile, "build/headroom", path, sizeof path));
-	assert_true(profile_load(path, c->d, &c->p));
-	struct audit_opts o;
+	assert_true(profile_load(path, d, &c->p));
+	diag_destroy(d);
+	arena_destroy(ar);
+	struct check_opts o;
 	memset(&o, 0, sizeof o);
-	o.elab.open = memfs_open;
-	o.elab.open_ud = &fs;
-	o.source_tol = tol;
-	assert_int_equal(audit_file("t.cir", &o, &c->h, c->d, &c->a), AUDIT_OK);
-	c->r = rating_resolve(c->a.er.circuit, NULL, c->a.annots, c->a.nannots, c->a.ar, c->d);
-	assert_non_null(c->r);
-	assert_true(stress_run(&c->a, c->r, &c->p, &c->s));
-	assert_true(rules_run(&c->a, c->r, &c->p, &c->s, &c->rr));
-	c->diags = render_headers(c->d);
+	o.audit.elab.open = memfs_open;
+	o.audit.elab.open_ud = &fs;
+	o.audit.source_tol = tol;
+	o.profile = &c->p;
+	o.profile_fixed = 1;
+	o.today = "2026-12-01";
+	o.verify = verify;
+	assert_int_equal(check_file_run("t.cir", &o, &h, &c->run), CHECK_OK);
+	assert_non_null(c->run.f.ratings);
+	c->diags = render_headers(c->run.d);
 }
 
 static void checked_free(struct checked *c)
 {
-	audit_free(&c->a);
-	diag_destroy(c->d);
-	arena_destroy(c->ar);
+	check_free(&c->run);
 	free(c->diags);
 }
 
 static int fired(const struct checked *c, const char *rule, const char *part)
 {
-	for (size_t i = 0; i < c->rr.n; i++)
-		if (strcmp(c->rr.f[i].rule->id, rule) == 0 &&
-		    (!part || (c->rr.f[i].subject && strcmp(c->rr.f[i].subject, part) == 0)))
+	for (size_t i = 0; i < c->run.rr.n; i++)
+		if (strcmp(c->run.rr.f[i].rule->id, rule) == 0 &&
+		    (!part || (c->run.rr.f[i].subject && strcmp(c->run.rr.f[i].subject, part) == 0)))
 			return 1;
 	return 0;
 }
@@ -80,10 +77,10 @@ static int fired(const struct checked *c, const char *rule, const char *part)
 static const struct stress *stress_of(const struct checked *c, const char *part,
 				      enum stress_qty q)
 {
-	for (size_t i = 0; i < c->s.n; i++)
-		if (c->s.s[i].qty == q &&
-		    strcmp(nl_part_at(c->a.er.circuit, c->s.s[i].part)->path, part) == 0)
-			return &c->s.s[i];
+	for (size_t i = 0; i < c->run.sr.n; i++)
+		if (c->run.sr.s[i].qty == q &&
+		    strcmp(nl_part_at(c->run.a.er.circuit, c->run.sr.s[i].part)->path, part) == 0)
+			return &c->run.sr.s[i];
 	return NULL;
 }
 
@@ -149,25 +146,25 @@ static void test_each_rule(void **state)
 	(void)state;
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		struct checked c;
-		check_text(&c, cases[i].fires, "industrial", cases[i].tol);
+		check_text(&c, cases[i].fires, "industrial", cases[i].tol, 0);
 		if (!fired(&c, cases[i].rule, cases[i].part))
 			fail_msg("%s did not fire on %s", cases[i].rule, cases[i].part);
 		checked_free(&c);
-		check_text(&c, cases[i].quiet, "industrial", cases[i].tol);
+		check_text(&c, cases[i].quiet, "industrial", cases[i].tol, 0);
 		if (fired(&c, cases[i].rule, cases[i].part))
 			fail_msg("%s fired on the fixed %s", cases[i].rule, cases[i].part);
 		checked_free(&c);
 	}
 }
 
-/* Stresses of the plain clamp: DESIGN §5 (cap holds Vp, diode sees 2Vp),
+/* Stresses of the plain clamp: docs/design.md §5 (cap holds Vp, diode sees 2Vp),
  * 10 % tolerance: worst 11 V and 22 V; best with a forward drop below the
  * ideal values at -10 %. */
 static void test_clamp_stresses(void **state)
 {
 	(void)state;
 	struct checked c;
-	check_text(&c, CLAMP("25V", "100V"), "industrial", 0.10);
+	check_text(&c, CLAMP("25V", "100V"), "industrial", 0.10, 0);
 	const struct stress *cc = stress_of(&c, "CC", SQ_VOLTAGE), *dd = stress_of(&c, "DD", SQ_REVERSE);
 	assert_non_null(cc);
 	assert_non_null(dd);
@@ -188,12 +185,12 @@ static void test_rating_precedence(void **state)
 	(void)state;
 	struct checked c;
 	check_text(&c, "p\nV1 a 0 sin(0 10 1k)\nCC a x 1u\nDD 0 x dm\n.model dm d bv=75 tt=5n\n"
-		       "*@part DD kind=schottky\n", "industrial", 0);
+		       "*@part DD kind=schottky\n", "industrial", 0, 0);
 	const struct nl_part *dd = NULL;
-	for (size_t i = 0; i < nl_part_count(c.a.er.circuit); i++)
-		if (strcmp(nl_part_at(c.a.er.circuit, i)->path, "DD") == 0)
-			dd = nl_part_at(c.a.er.circuit, i);
-	const struct rating *r = &c.r[dd - nl_part_at(c.a.er.circuit, 0)];
+	for (size_t i = 0; i < nl_part_count(c.run.a.er.circuit); i++)
+		if (strcmp(nl_part_at(c.run.a.er.circuit, i)->path, "DD") == 0)
+			dd = nl_part_at(c.run.a.er.circuit, i);
+	const struct rating *r = &c.run.f.ratings[dd - nl_part_at(c.run.a.er.circuit, 0)];
 	assert_true(r->v_rated.value == 75);
 	assert_string_equal(r->v_rated.from, "model BV");
 	assert_true(fabs(r->trr.value - 5e-9) < 1e-21);
@@ -278,9 +275,9 @@ static void test_ladder_regulation(void **state)
 	}
 	snprintf(deck + k, sizeof deck - k, "RL d8 0 400meg\n");
 	struct checked c;
-	check_text(&c, deck, "industrial", 0);
-	assert_int_equal(c.a.topo.n, 1);
-	const struct stress_struct *f = &c.s.st[0];
+	check_text(&c, deck, "industrial", 0, 0);
+	assert_int_equal(c.run.a.topo.n, 1);
+	const struct stress_struct *f = &c.run.sr.st[0];
 	print_message("ladder E1: I %.6g A, drop %.6g V, ripple %.6g V, optimum %.4g stages\n",
 		      f->ladder_i, f->ladder_drop, f->ladder_ripple, f->ladder_nopt);
 	assert_true(fabs(f->ladder_i - 5e-3) < 1e-12);
@@ -303,27 +300,69 @@ static void test_verify(void **state)
 {
 	(void)state;
 	struct checked c;
-	check_text(&c, CLAMP("50", "100") "RL x 0 10k\n", "industrial", 0.10);
-	assert_true(verify_run(&c.a, &c.p, NULL, &c.s));
-	assert_non_null(c.s.verify);
-	assert_true(c.s.verify->simulated);
-	assert_true(c.s.verify->settled);
-	assert_int_equal(c.s.verify->gaps, 0);
-	assert_int_equal(c.s.verify->started, 1);
+	check_text(&c, CLAMP("50", "100") "RL x 0 10k\n", "industrial", 0.10, 1);
+	assert_non_null(c.run.sr.verify);
+	assert_true(c.run.sr.verify->simulated);
+	assert_true(c.run.sr.verify->settled);
+	assert_int_equal(c.run.sr.verify->gaps, 0);
+	assert_int_equal(c.run.sr.verify->started, 1);
 	struct stress *cc = (struct stress *)stress_of(&c, "CC", SQ_VOLTAGE);
 	struct stress *dd = (struct stress *)stress_of(&c, "DD", SQ_REVERSE);
 	assert_true(fabs(cc->worst - 11) < 1e-9 && fabs(dd->worst - 22) < 1e-9);
 	assert_true(cc->worst - cc->sim_worst > 0.6 && cc->worst - cc->sim_worst < 0.8);
 	assert_true(dd->worst - dd->sim_worst > 0.6 && dd->worst - dd->sim_worst < 1.8);
 	assert_true(isnan(stress_of(&c, "DD", SQ_SURGE)->sim_worst));
-	dd->sim_worst = dd->worst * (1 + VERIFY_GAP_REL) + VERIFY_GAP_ABS / 2;
-	assert_false(verify_gap(dd));
+	dd->sim_worst = dd->worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS / 2;
+	assert_false(stress_gap(dd));
 	cc->sim_worst = cc->worst * 1.05;
-	assert_true(verify_gap(cc));
-	assert_true(rules_run(&c.a, c.r, &c.p, &c.s, &c.rr));
+	assert_true(stress_gap(cc));
+	c.run.rr.n = 0;
+	assert_true(rules_run(&c.run.a, c.run.f.ratings, &c.p, &c.run.sr, c.run.a.ar, &c.run.rr));
 	assert_true(fired(&c, "analysis-gap", "CC"));
 	assert_false(fired(&c, "analysis-gap", "DD"));
 	checked_free(&c);
+}
+
+/* Every allocation of the whole check (analysis, ratings, stresses, the
+ * solver, rules, waivers) fails in turn: each run must end CHECK_OOM, or
+ * CHECK_OK once N is past the last allocation, never a crash or a leak
+ * (the sanitizer build checks leaks). */
+static void test_check_every_failure(void **state)
+{
+	(void)state;
+	static struct memfs fs;
+	fs.name[0] = "t.cir";
+	fs.text[0] = CLAMP("50", "100") "RL x 0 10k\n*@waive clamp-droop CC reason=\"test\"\n";
+	fs.n = 1;
+	struct checked c;
+	check_text(&c, fs.text[0], "industrial", 0.10, 1); /* loads c.p */
+	checked_free(&c);
+	long n = 1, oom_runs = 0;
+	for (;; n++) {
+		struct failing f = {0, n, 1};
+		struct hr_alloc h = {failing_resize, &f};
+		struct check_opts o;
+		struct check_run r;
+		memset(&o, 0, sizeof o);
+		o.audit.elab.open = memfs_open;
+		o.audit.elab.open_ud = &fs;
+		o.audit.source_tol = 0.1;
+		o.profile = &c.p;
+		o.today = "2026-12-01";
+		o.verify = 1;
+		enum check_status st = check_file_run("t.cir", &o, &h, &r);
+		int failed = f.calls >= n;
+		if (failed && st != CHECK_OOM)
+			fail_msg("allocation %ld failed but status was %d", n, st);
+		if (!failed)
+			assert_int_equal(st, CHECK_OK);
+		oom_runs += failed;
+		check_free(&r);
+		if (!failed)
+			break;
+	}
+	print_message("the check survived %ld failing allocations\n", oom_runs);
+	assert_true(oom_runs >= 20); /* arenas take big blocks: few calls */
 }
 
 int main(void)
@@ -336,6 +375,7 @@ int main(void)
 		cmocka_unit_test(test_profile_errors),
 		cmocka_unit_test(test_ladder_regulation),
 		cmocka_unit_test(test_verify),
+		cmocka_unit_test(test_check_every_failure),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

@@ -1,5 +1,5 @@
 /* test_expr.c: expression parsing and evaluation: precedence, functions
- * (the list of DESIGN §3 and the ngspice manual's expression section, from
+ * (the list of docs/design.md §3 and the ngspice manual's expression section, from
  * memory: log is the natural logarithm there), user functions, errors. */
 #include "testutil.h"
 

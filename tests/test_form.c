@@ -84,8 +84,8 @@ static void test_cases(void **state)
 	};
 	for (size_t i = 0; i < sizeof cases / sizeof cases[0]; i++) {
 		const struct form_case *c = &cases[i];
-		struct form *f = form_lin(&fc, c->ca, form_source(&fc, (uint32_t)c->a, 1),
-					  c->cb, form_source(&fc, (uint32_t)c->b, 1));
+		struct form *f = form_lin(fc.ar, c->ca, form_source(&fc, fc.ar, (uint32_t)c->a, 1),
+					  c->cb, form_source(&fc, fc.ar, (uint32_t)c->b, 1));
 		double lo, hi, blo, bhi;
 		int exact, pexact;
 		form_ac_range(&fc, f, &lo, &hi, &exact);
@@ -112,7 +112,7 @@ static void test_phasor_value(void **state)
 	struct arena *ar = arena_create(&h);
 	struct sig sigs[2] = {sine(10, 50, 0), sine(4, 50, 60)};
 	struct form_ctx fc = {sigs, 2, ar};
-	struct form *f = form_lin(&fc, 1, form_source(&fc, 0, 1), -1, form_source(&fc, 1, 1));
+	struct form *f = form_lin(fc.ar, 1, form_source(&fc, fc.ar, 0, 1), -1, form_source(&fc, fc.ar, 1, 1));
 	double lo, hi;
 	int exact;
 	form_ac_range(&fc, f, &lo, &hi, &exact);
@@ -129,7 +129,7 @@ static void test_incommensurate(void **state)
 	struct arena *ar = arena_create(&h);
 	struct sig sigs[2] = {sine(1, 1e3, 0), sine(1, 1.41421356e3, 0)};
 	struct form_ctx fc = {sigs, 2, ar};
-	struct form *f = form_lin(&fc, 1, form_source(&fc, 0, 1), 1, form_source(&fc, 1, 1));
+	struct form *f = form_lin(fc.ar, 1, form_source(&fc, fc.ar, 0, 1), 1, form_source(&fc, fc.ar, 1, 1));
 	double lo, hi;
 	int exact;
 	form_ac_range(&fc, f, &lo, &hi, &exact);

@@ -1,6 +1,6 @@
 /* test_topo.c: structure recognition and node ranges on the hand-written
  * netlists of tests/data/topo. Each file states its expectations in "*!"
- * lines, worked out by hand from DESIGN §5/§6 and the textbook results each
+ * lines, worked out by hand from docs/design.md §5/§6 and the textbook results each
  * file names in its header (ideal diodes, no load, steady state):
  *   *! structures N
  *   *! struct output=NODE kind=K stages=S polarity=P drive=NODE reference=NODE
@@ -195,7 +195,7 @@ static void test_hand_netlists(void **state)
 
 /* N-stage half-wave Cockcroft-Walton ladder, flat, driven by Vp = 10 V:
  * textbook (Kuffel, Zaengl & Kuffel, High Voltage Engineering
- * Fundamentals, 2nd ed., section 2.2, from memory; also REFERENCES.md §3):
+ * Fundamentals, 2nd ed., section 2.2, from memory; also docs/sources.md §3):
  * output 2N Vp unloaded; DC-column node k at 2k Vp; the first coupling cap
  * sees Vp, every other cap 2Vp; every diode 2Vp reverse. */
 static char *ladder_deck(int n)
@@ -222,7 +222,7 @@ static double stress(const struct audit *a, const char *path)
 		if (strcmp(p->path, path) != 0)
 			continue;
 		const uint32_t *q = nl_pins(c, p);
-		const struct form *d = form_lin((struct form_ctx *)&a->prop.fc, 1,
+		const struct form *d = form_lin(a->ar, 1,
 						a->prop.nodes[q[0]].f, -1, a->prop.nodes[q[1]].f);
 		double lo, hi;
 		int exact;

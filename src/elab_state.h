@@ -1,9 +1,10 @@
-/* scope.h: what elaboration keeps while it reads (struct elab), subcircuit
- * definitions, and the scopes that instances are expanded in: parameter
- * lookup, node renaming ("X1.n5"), model visibility, instance flattening.
- * Shared by elab.c (reading files) and scope.c (expanding). */
-#ifndef HEADROOM_SCOPE_H
-#define HEADROOM_SCOPE_H
+/* elab_state.h: elaboration's private state, one job in two files: what
+ * it keeps while it reads (struct elab), subcircuit definitions, and the
+ * scopes that instances are expanded in (parameter lookup, node renaming
+ * "X1.n5", model visibility, instance flattening). Shared by elab.c
+ * (reading files) and scope.c (expanding); nothing else sees it. */
+#ifndef HEADROOM_ELAB_STATE_H
+#define HEADROOM_ELAB_STATE_H
 
 #include <stddef.h>
 
@@ -113,6 +114,10 @@ void scope_link_controls(struct elab *el);
  * returns 0. */
 int scope_eval_global(struct elab *el, const struct expr *e,
 		      struct diag_loc at, double *v);
+
+/* Appends p to an arena-grown pointer array (*arr, *n, *cap). Returns 0
+ * (and sets el->oom) on out-of-memory. */
+int scope_push(struct elab *el, void ***arr, size_t *n, size_t *cap, void *p);
 
 /* Appends an annotation record. */
 void scope_add_annot(struct elab *el, struct elab_annot *a);

@@ -1,9 +1,8 @@
-/* device.h: turns one element card (any letter but X) into a circuit part:
- * which fields are nodes, which the value, which the model, how a source's
- * waveform is written. Scoping (parameters, node renaming inside instances,
- * model visibility) is supplied by the caller through struct dev_scope. */
-#ifndef HEADROOM_DEVICE_H
-#define HEADROOM_DEVICE_H
+/* devval.h: the scope element cards are read in (struct dev_scope) and
+ * the evaluation of one value field in it. Internal to the front end:
+ * used by device.c, wave.c and their callers in elaboration. */
+#ifndef HEADROOM_DEVVAL_H
+#define HEADROOM_DEVVAL_H
 
 #include <stddef.h>
 #include <stdint.h>
@@ -36,21 +35,10 @@ struct dev_scope {
  * is not an error for parts that may be behavioural. */
 enum dev_status { DEV_OK, DEV_ERROR, DEV_DEFER, DEV_OOM, DEV_STATE };
 
-/* Builds the part for card (an element card whose letter is not X) and adds
- * it to c. Problems become diagnostics in d (DEV_ERROR); the card is then
- * skipped. */
-enum dev_status dev_build(const struct dev_scope *s,
-			  const struct deck_card *card, struct nl_circuit *c,
-			  struct diag_sink *d);
-
 /* Evaluates a value field: a number with suffix, or an expression. Reports
  * problems to d unless the status is DEV_DEFER or DEV_STATE. */
-enum dev_status dev_value(const struct dev_scope *s,
-			  const struct deck_field *f, struct diag_sink *d,
-			  uint32_t file, double *out);
-
-/* True for letters whose node count depends on models that may be defined
- * later in the file: such cards wait until the whole file is read. */
-int dev_needs_models(char letter);
+enum dev_status devval_get(const struct dev_scope *s,
+			   const struct deck_field *f, struct diag_sink *d,
+			   uint32_t file, double *out);
 
 #endif

@@ -1,0 +1,101 @@
+/* check.c: one netlist file through the whole check (check.h). The order
+ * is fixed: analysis, the file's own profile, ratings, stresses, the
+ * optional simulation, rules, waivers, baseline. Printing and exit codes
+ * belong to the program. */
+#include "check.h"
+
+#include <assert.h>
+#include <string.h>
+
+const char check_caution[] =
+	"caution: this design involves voltages above the hazard level. Stored charge "
+	"can injure or kill, also after power is removed. These findings are an aid to "
+	"review, not a certification: follow the applicable safety standard, local codes "
+	"and licensed practice.";
+
+/* A *@profile line picks the profile for its own file, unless the command
+ * line named one. Returns 0 on out-of-memory; a profile that cannot be
+ * loaded is an error diagnostic and marks the run CHECK_ERRORS. */
+static int file_profile(const struct check_opts *o, struct check_run *r)
+{
+	const struct audit *a = &r->a;
+	for (uint32_t i = 0; i < a->nannots; i++) {
+		const struct annot *an = &a->annots[i];
+		if (an->kind != AN_PROFILE)
+			continue;
+		struct profile *own = arena_alloc(r->ar, sizeof *own);
+		char path[1024];
+		if (!own)
+			return 0;
+		if (!profile_find(an->target, o->argv0, path, sizeof path) ||
+		    !profile_load(path, r->d, own)) {
+			diag_add(r->d, DIAG_ERROR, "annotation", an->loc,
+				 "*@profile names '%s', which cannot be loaded", an->target);
+			r->status = CHECK_ERRORS;
+		} else {
+			r->profile = own;
+		}
+	}
+	return 1;
+}
+
+/* Ratings, stresses, simulation, rules, waivers: 0 on out-of-memory. */
+static int judge(const struct check_opts *o, struct check_run *r)
+{
+	const struct audit *a = &r->a;
+	const struct rating_table *tab =
+		o->parts_path ? rating_table_load(o->parts_path, a->ar, r->d) : NULL;
+	const struct rating *rt = rating_resolve(a->er.circuit, tab, a->annots,
+						 a->nannots, a->ar, r->d);
+	r->f.ratings = rt;
+	int sim = o->verify && (!o->verify_max_parts ||
+				nl_part_count(a->er.circuit) <= o->verify_max_parts);
+	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
+	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
+	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
+	       waiver_apply(a, o->waivers, o->today, a->ar, &r->rr);
+}
+
+enum check_status check_file_run(const char *path, const struct check_opts *o,
+				 const struct hr_alloc *hook, struct check_run *r)
+{
+	assert(o && o->profile && o->today);
+	memset(r, 0, sizeof *r);
+	r->profile = o->profile;
+	r->f = (struct check_file){path, &r->a, NULL, NULL, &r->sr, &r->rr};
+	r->ar = arena_create(hook);
+	r->d = r->ar ? diag_create(r->ar, o->max_errors ? o->max_errors : 50) : NULL;
+	if (!r->d)
+		return r->status = CHECK_OOM;
+	r->f.d = r->d;
+	enum audit_status st = audit_file(path, &o->audit, hook, r->d, &r->a);
+	r->status = st == AUDIT_OK ? CHECK_OK : st == AUDIT_OOM ? CHECK_OOM : CHECK_ERRORS;
+	if (r->status == CHECK_OK && !o->profile_fixed && !file_profile(o, r))
+		r->status = CHECK_OOM;
+	if (r->status == CHECK_OK && !judge(o, r))
+		r->status = CHECK_OOM;
+	if (r->status == CHECK_OK && o->baseline)
+		baseline_filter(o->baseline, path, &r->rr);
+	if (r->status == CHECK_ERRORS)
+		r->a.analysed = 0;
+	return r->status;
+}
+
+void check_free(struct check_run *r)
+{
+	if (r->d)
+		audit_free(&r->a);
+	diag_destroy(r->d);
+	arena_destroy(r->ar);
+	r->d = NULL;
+	r->ar = NULL;
+}
+
+int check_worst_level(const struct check_run *r)
+{
+	int level = -1;
+	for (size_t i = 0; i < r->rr.n; i++)
+		if (!r->rr.f[i].waived && (int)r->rr.f[i].rule->severity > level)
+			level = (int)r->rr.f[i].rule->severity;
+	return level;
+}

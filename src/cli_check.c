@@ -1,0 +1,249 @@
+/* cli_check.c: `headroom check`: loads what the batch shares (profile,
+ * waivers, baseline), runs each file through the library's check
+ * (check.h) on the batch runner, writes the reports in file order and
+ * picks the exit status. */
+#include "cli.h"
+
+#include <ctype.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+#include <unistd.h>
+
+#include "check.h"
+#include "cli_batch.h"
+#include "cli_out.h"
+#include "report_check.h"
+
+/* What every file's check shares: read-only once the batch starts. */
+struct batch {
+	const struct cli *c;
+	struct check_opts o;
+	enum report_check_format fmt;
+	const char *docs;
+	int color, quiet;
+	struct check_totals *t, *tj;   /* per job, by index (batch mode) */
+	struct check_totals sum, sumj; /* merged in file order */
+};
+
+static int load_profile(const struct cli *c, struct diag_sink *d, struct profile *p)
+{
+	char path[1024];
+	const char *name = c->profile ? c->profile : "industrial";
+	if (!profile_find(name, c->argv0, path, sizeof path)) {
+		fprintf(stderr, "headroom: no profile '%s' (basic, industrial, flight, or a file)\n", name);
+		return 0;
+	}
+	return profile_load(path, d, p);
+}
+
+static void totals_init(const struct batch *b, struct check_totals *t, struct check_totals *tj)
+{
+	memset(t, 0, sizeof *t);
+	memset(tj, 0, sizeof *tj);
+	t->color = tj->color = b->color;
+	t->quiet = b->quiet;
+	t->docs_uri = tj->docs_uri = b->docs;
+}
+
+/* One file: checks it, writes its reports, returns its exit-status part. */
+static int check_job(void *ud, const struct cli_job *j, FILE *out, FILE *err, FILE *json)
+{
+	struct batch *b = ud;
+	const struct cli *c = b->c;
+	struct check_totals *t = &b->t[j->index], *tj = &b->tj[j->index];
+	struct hr_alloc hook = hr_alloc_default();
+	struct check_run r;
+	int rc = 0;
+	totals_init(b, t, tj);
+	enum check_status st = check_file_run(j->path, &b->o, &hook, &r);
+	if (st == CHECK_OK && c->fail_on >= 0 && check_worst_level(&r) >= c->fail_on)
+		rc = 1;
+	if (st != CHECK_OK || diag_errors(r.d, UINT32_MAX))
+		rc = EXIT_USAGE;
+	if (st == CHECK_OOM) {
+		fprintf(err, "%s: error: out of memory\n", j->path);
+	} else {
+		report_check_file(out, b->fmt, &r.f, r.profile, j->index == 0, t);
+		if (json)
+			report_check_file(json, RC_JSON, &r.f, r.profile, j->index == 0, tj);
+	}
+	if (r.d)
+		diag_render(r.d, UINT32_MAX, err);
+	check_free(&r);
+	return rc;
+}
+
+/* Writes a job's buffered outputs in order; SARIF results of a file whose
+ * predecessors wrote none must not start with the separating comma. */
+static void check_emit(void *ud, const struct cli_job *j, FILE *out, FILE *json)
+{
+	struct batch *b = ud;
+	const struct check_totals *t = &b->t[j->index], *tj = &b->tj[j->index];
+	const char *o = j->out;
+	size_t on = j->outn;
+	if (b->fmt == RC_SARIF && j->index > 0 && b->sum.emitted == 0 && on && o[0] == ',') {
+		o++;
+		on--;
+	}
+	if (o)
+		fwrite(o, 1, on, out);
+	if (json && j->aux)
+		fwrite(j->aux, 1, j->auxn, json);
+	b->sum.emitted += t->emitted;
+	report_totals_merge(&b->sum, t);
+	report_totals_merge(&b->sumj, tj);
+}
+
+/* file:// URI of the documentation folder next to the program (the build
+ * tree's docs/, also from a sanitizer build one level deeper, or an
+ * installed share/doc/headroom/), percent-encoded. */
+static char *docs_uri(void)
+{
+	char exe[2048], dir[2100];
+	ssize_t k = readlink("/proc/self/exe", exe, sizeof exe - 1);
+	if (k <= 0)
+		return NULL;
+	exe[k] = '\0';
+	char *slash = strrchr(exe, '/');
+	if (slash)
+		*slash = '\0';
+	static const char *const rel[] = {"/../docs/", "/../../docs/", "/../share/doc/headroom/"};
+	for (size_t i = 0; i < sizeof rel / sizeof rel[0]; i++) {
+		snprintf(dir, sizeof dir, "%s%s", exe, rel[i]);
+		char *real = realpath(dir, NULL);
+		char *out = real ? malloc(strlen(real) * 3 + 16) : NULL;
+		if (out) {
+			char *w = out + sprintf(out, "file://");
+			for (const unsigned char *p = (const unsigned char *)real; *p; p++)
+				w += (isalnum(*p) || strchr("-._~/", *p)) ? sprintf(w, "%c", *p)
+									 : sprintf(w, "%%%02X", *p);
+			strcpy(w, "/");
+		}
+		free(real);
+		if (real)
+			return out;
+	}
+	return NULL;
+}
+
+static void today_of(char *buf, size_t n, const char *given)
+{
+	if (given) {
+		snprintf(buf, n, "%s", given);
+		return;
+	}
+	time_t now = time(NULL);
+	struct tm tm;
+	gmtime_r(&now, &tm);
+	strftime(buf, n, "%Y-%m-%d", &tm);
+}
+
+static int choose_format(const struct cli *c, enum report_check_format *fmt)
+{
+	static const struct {
+		const char *name;
+		enum report_check_format fmt;
+	} fmts[] = {{"text", RC_TEXT}, {"json", RC_JSON}, {"csv", RC_CSV},
+		    {"junit", RC_JUNIT}, {"sarif", RC_SARIF}, {"html", RC_HTML}};
+	*fmt = RC_TEXT;
+	for (size_t i = 0; c->fmt_name && i < sizeof fmts / sizeof fmts[0]; i++)
+		if (strcmp(c->fmt_name, fmts[i].name) == 0) {
+			*fmt = fmts[i].fmt;
+			return 1;
+		}
+	if (!c->fmt_name)
+		return 1;
+	fprintf(stderr, "headroom: check writes text, json, csv, junit, sarif or html, not '%s'\n", c->fmt_name);
+	return 0;
+}
+
+/* Loads what the batch shares; 0 on a usage error (reported). */
+static int prepare(const struct cli *c, struct batch *b, struct profile *p,
+		   struct arena *ar, struct diag_sink *d)
+{
+	struct check_opts *o = &b->o;
+	if (!choose_format(c, &b->fmt) || !load_profile(c, d, p))
+		return 0;
+	if (c->waivers && !(o->waivers = waiver_load(c->waivers, ar, d)))
+		return 0;
+	if (c->baseline && !(o->baseline = baseline_load(c->baseline, ar, d)))
+		return 0;
+	if (c->today && (strlen(c->today) != 10 || c->today[4] != '-' || c->today[7] != '-')) {
+		fprintf(stderr, "headroom: --today takes YYYY-MM-DD, not '%s'\n", c->today);
+		return 0;
+	}
+	o->audit.elab = c->eo;
+	o->audit.source_tol = c->source_tol;
+	o->max_errors = c->max_errors;
+	o->profile = p;
+	o->profile_fixed = c->profile != NULL;
+	o->argv0 = c->argv0;
+	o->parts_path = c->parts;
+	o->verify = c->verify;
+	return 1;
+}
+
+/* Runs the batch into the open outputs; returns the exit status. */
+static int run_files(struct batch *b, const struct cli_files *files, struct cli_out *out,
+		     struct cli_out *json, struct diag_sink *d)
+{
+	const struct cli *c = b->c;
+	struct cli_batch cb = {check_job, check_emit, b, c->jobs, json->f != NULL,
+			       !c->quiet && files->n > 1 && isatty(STDERR_FILENO)};
+	FILE *o = out->f ? out->f : stdout;
+	b->t = calloc(files->n ? files->n : 1, sizeof *b->t);
+	b->tj = calloc(files->n ? files->n : 1, sizeof *b->tj);
+	int rc = EXIT_USAGE;
+	if (b->t && b->tj) {
+		totals_init(b, &b->sum, &b->sumj);
+		rc = cli_batch_run(&cb, files->v, files->n, o, json->f);
+		report_check_end(o, b->fmt, b->o.profile, &b->sum);
+		if (json->f)
+			report_check_end(json->f, RC_JSON, b->o.profile, &b->sumj);
+		waiver_unused(b->o.waivers, d);
+	}
+	if (out->f && !cli_out_close(out, 1))
+		rc = EXIT_USAGE;
+	if (json->f && !cli_out_close(json, 1))
+		rc = EXIT_USAGE;
+	free(b->t);
+	free(b->tj);
+	return rc;
+}
+
+int cli_check(const struct cli *c)
+{
+	struct hr_alloc hook = hr_alloc_default();
+	struct arena *ar = arena_create(&hook);
+	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
+	struct profile *p = malloc(sizeof *p);
+	struct cli_files files = {0};
+	struct cli_out out = {0}, json = {0};
+	struct batch b;
+	char today[32];
+	int rc = EXIT_USAGE;
+	memset(&b, 0, sizeof b);
+	b.c = c;
+	b.docs = docs_uri();
+	b.quiet = c->quiet;
+	b.color = !c->out_path && isatty(STDOUT_FILENO) && !getenv("NO_COLOR");
+	today_of(today, sizeof today, c->today);
+	b.o.today = today;
+	if (d && p && prepare(c, &b, p, ar, d) &&
+	    cli_files_expand(&files, c->files, (size_t)c->nfiles) &&
+	    (!c->out_path || cli_out_open(&out, c->out_path)) &&
+	    (!c->write_baseline || cli_out_open(&json, c->write_baseline)))
+		rc = run_files(&b, &files, &out, &json, d);
+	else if (out.f)
+		cli_out_close(&out, 0);
+	if (d)
+		diag_render(d, UINT32_MAX, stderr);
+	cli_files_free(&files);
+	free((char *)b.docs);
+	free(p);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return rc;
+}

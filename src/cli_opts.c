@@ -1,0 +1,251 @@
+/* cli_opts.c: the command line's one option table: each option's name,
+ * what it sets and its help line live together, so parsing and --help
+ * cannot drift apart. Values are checked here; meaning is left to the
+ * commands. */
+#include "cli.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "diag.h"
+
+enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_FAIL };
+
+/* Options that take a positive whole number. */
+enum count_id { CO_PARTS, CO_NODES, CO_LINE, CO_TOKEN, CO_INCLUDE, CO_DEPTH,
+		CO_EXPR, CO_IF, CO_PWL, CO_ERRORS, CO_JOBS, CO_NONE };
+
+struct opt_def {
+	const char *name, *alias;
+	enum opt_kind kind;
+	size_t off;              /* OPT_STR, OPT_FLAG: field of struct cli */
+	enum count_id count;     /* OPT_COUNT */
+	size_t max;              /* OPT_COUNT: largest value */
+	const char *help;        /* "ARG  text", continuation lines with \n */
+};
+
+#define STR(field) OPT_STR, offsetof(struct cli, field), CO_NONE, 0
+#define FLAG(field) OPT_FLAG, offsetof(struct cli, field), CO_NONE, 0
+#define COUNT(id, max) OPT_COUNT, 0, id, max
+
+static const struct opt_def opts[] = {
+	{"--format", NULL, STR(fmt_name),
+	 "--format FMT         parts: text (default), csv, json, count\n"
+	 "topo: text (default), json, count\n"
+	 "check: text (default), json, csv, junit, sarif,\nhtml"},
+	{"--profile", NULL, STR(profile),
+	 "--profile NAME|FILE  derating profile: basic, industrial (default),\n"
+	 "flight, or a profile file"},
+	{"--parts", NULL, STR(parts), "--parts FILE         parts table (CSV) with ratings"},
+	{"--fail-on", NULL, OPT_FAIL, 0, CO_NONE, 0,
+	 "--fail-on LEVEL      exit 1 on findings at or above error (default),\n"
+	 "warning, note; never: always 0"},
+	{"-o", NULL, STR(out_path),
+	 "-o FILE              write the report to FILE (replaced only when the\n"
+	 "run succeeds)"},
+	{"-j", NULL, COUNT(CO_JOBS, 1024),
+	 "-j N                 check N files at once (default: one per processor)"},
+	{"--waivers", NULL, STR(waivers), "--waivers FILE       *@waive lines that apply to every file"},
+	{"--baseline", NULL, STR(baseline),
+	 "--baseline FILE      report only findings not in this earlier JSON report"},
+	{"--write-baseline", NULL, STR(write_baseline),
+	 "--write-baseline FILE  also write the JSON report to FILE"},
+	{"--today", NULL, STR(today), "--today YYYY-MM-DD   the date waiver expiry is judged against"},
+	{"--verify", NULL, FLAG(verify),
+	 "--verify             check: also simulate each netlist to its periodic\n"
+	 "steady state at the worst corner and set each\n"
+	 "simulated stress beside its analytic bound"},
+	{"--quiet", "-q", FLAG(quiet),
+	 "-q, --quiet          findings only: no structures, tables, summary or\n"
+	 "progress bar"},
+	{"--max-parts", NULL, COUNT(CO_PARTS, SIZE_MAX / 2),
+	 "--max-parts N        stop expanding a netlist past N parts\n(default 10000000)"},
+	{"--source-tol", NULL, OPT_TOL, 0, CO_NONE, 0,
+	 "--source-tol PCT     tolerance of every source's amplitude and offset\n"
+	 "unless *@source gives one (e.g. 10 or 10%)"},
+	{"--max-line", NULL, COUNT(CO_LINE, UINT32_MAX - 1),
+	 "--max-line N         longest physical line read, in bytes\n(default 1048576)"},
+	{"--max-token", NULL, COUNT(CO_TOKEN, UINT32_MAX - 1),
+	 "--max-token N        longest word or value on a card, in bytes\n(default 65536)"},
+	{"--max-include-depth", NULL, COUNT(CO_INCLUDE, 100000),
+	 "--max-include-depth N  .include/.lib nesting (default 32)"},
+	{"--max-depth", NULL, COUNT(CO_DEPTH, 100000),
+	 "--max-depth N        subcircuit nesting (default 256)"},
+	{"--max-expr-depth", NULL, COUNT(CO_EXPR, 100000),
+	 "--max-expr-depth N   expression and .func call nesting (default 1000)"},
+	{"--max-if-depth", NULL, COUNT(CO_IF, 1000000),
+	 "--max-if-depth N     .if nesting (default 64)"},
+	{"--max-nodes", NULL, COUNT(CO_NODES, UINT32_MAX - 2),
+	 "--max-nodes N        stop expanding past N nodes (default 10000000)"},
+	{"--max-pwl", NULL, COUNT(CO_PWL, UINT32_MAX / 2),
+	 "--max-pwl N          time-value pairs in one PWL source (default 100000)"},
+	{"--max-errors", NULL, COUNT(CO_ERRORS, UINT32_MAX),
+	 "--max-errors N       errors reported per file before giving up\n(default 50)"},
+};
+
+void cli_usage(FILE *out)
+{
+	fputs("usage: headroom COMMAND [options] FILE...\n"
+	      "\n"
+	      "Reads SPICE netlists and checks that every capacitor and diode in\n"
+	      "diode-capacitor networks is rated for its worst-case stress.\n"
+	      "\n"
+	      "commands:\n"
+	      "  parts FILE...        list the flattened parts of each netlist\n"
+	      "  topo FILE...         find clamps, detectors, doublers, ladders, pumps\n"
+	      "                       and rectifiers; print parts, roles, node ranges\n"
+	      "  check FILE|DIR...    worst-case stresses against ratings and the\n"
+	      "                       derating profile; findings and a stress table\n"
+	      "  rules                the rules and the profile's limits\n"
+	      "  sim FILE --node N... waveforms of nodes over one steady-state period\n"
+	      "                       (or 0 to --until T) as CSV; see headroom(1)\n"
+	      "\n"
+	      "options:\n", out);
+	for (size_t i = 0; i < sizeof opts / sizeof opts[0]; i++) {
+		fputs("  ", out);
+		for (const char *h = opts[i].help; *h; h++) {
+			fputc(*h, out);
+			if (*h == '\n')
+				fputs("                       ", out);
+		}
+		fputc('\n', out);
+	}
+	fputs("  --help               this text\n"
+	      "  --version            the version\n"
+	      "\n"
+	      "colour: on a terminal only, and never when NO_COLOR is set.\n"
+	      "exit status: 0 success; 1 findings at or above --fail-on (check);\n"
+	      "2 usage error or a netlist with errors\n",
+	      out);
+}
+
+static const struct opt_def *opt_find(const char *name)
+{
+	for (size_t i = 0; i < sizeof opts / sizeof opts[0]; i++)
+		if (strcmp(name, opts[i].name) == 0 ||
+		    (opts[i].alias && strcmp(name, opts[i].alias) == 0))
+			return &opts[i];
+	return NULL;
+}
+
+static int parse_count(const char *s, size_t *out)
+{
+	char *end;
+	errno = 0;
+	unsigned long long v = strtoull(s, &end, 10);
+	if (errno || *end || end == s || v == 0)
+		return 0;
+	*out = (size_t)v;
+	return 1;
+}
+
+/* --source-tol 10 or 10%: a percentage from 0 to 100. */
+static int set_tol(struct cli *c, const char *val)
+{
+	char *end;
+	errno = 0;
+	double v = strtod(val, &end);
+	if (*end == '%')
+		end++;
+	if (errno || *end || end == val || !(v >= 0 && v <= 100)) {
+		fprintf(stderr, "headroom: --source-tol takes a percentage from 0 to 100, not '%s'\n", val);
+		return 0;
+	}
+	c->source_tol = v / 100;
+	return 1;
+}
+
+static int set_fail_on(struct cli *c, const char *val)
+{
+	static const struct {
+		const char *name;
+		int level;
+	} tab[] = {{"error", DIAG_ERROR}, {"warning", DIAG_WARNING}, {"note", DIAG_NOTE}, {"never", -1}};
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		if (strcmp(val, tab[i].name) == 0) {
+			c->fail_on = tab[i].level;
+			return 1;
+		}
+	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'\n", val);
+	return 0;
+}
+
+static void set_count(struct cli *c, enum count_id id, size_t n)
+{
+	struct elab_opts *e = &c->eo;
+	switch (id) {
+	case CO_PARTS: e->max_parts = n; break;
+	case CO_NODES: e->max_nodes = n; break;
+	case CO_LINE: e->max_line_len = (uint32_t)n; break;
+	case CO_TOKEN: e->max_token_len = (uint32_t)n; break;
+	case CO_INCLUDE: e->max_include_depth = (unsigned)n; break;
+	case CO_DEPTH: e->max_inst_depth = (unsigned)n; break;
+	case CO_EXPR: e->max_expr_depth = (unsigned)n; break;
+	case CO_IF: e->max_cond_depth = (unsigned)n; break;
+	case CO_PWL: e->max_pwl_points = (uint32_t)n; break;
+	case CO_ERRORS: c->max_errors = (unsigned)n; break;
+	case CO_JOBS: c->jobs = n; break;
+	case CO_NONE: break;
+	}
+}
+
+/* An option with a value; returns 0 on a usage error (printed). */
+static int set_value(struct cli *c, const struct opt_def *o, const char *val)
+{
+	size_t n;
+	if (!val) {
+		fprintf(stderr, "headroom: %s needs a value\n", o->name);
+		return 0;
+	}
+	switch (o->kind) {
+	case OPT_STR:
+		*(const char **)(void *)((char *)c + o->off) = val;
+		return 1;
+	case OPT_TOL:
+		return set_tol(c, val);
+	case OPT_FAIL:
+		return set_fail_on(c, val);
+	default:
+		break;
+	}
+	if (!parse_count(val, &n)) {
+		fprintf(stderr, "headroom: %s takes a positive whole number, not '%s'\n",
+			o->name, val);
+		return 0;
+	}
+	if (n > o->max) {
+		fprintf(stderr, "headroom: %s is at most %zu, not '%s'\n", o->name, o->max, val);
+		return 0;
+	}
+	set_count(c, o->count, n);
+	return 1;
+}
+
+int cli_parse(struct cli *c, int argc, char **argv)
+{
+	c->files = calloc((size_t)argc, sizeof *c->files);
+	if (!c->files)
+		return 0;
+	for (int i = 1; i < argc; i++) {
+		const char *a = argv[i];
+		const struct opt_def *o = opt_find(a);
+		if (o && o->kind == OPT_FLAG) {
+			*(int *)(void *)((char *)c + o->off) = 1;
+		} else if (o) {
+			if (!set_value(c, o, i + 1 < argc ? argv[i + 1] : NULL))
+				return 0;
+			i++;
+		} else if (a[0] == '-' && a[1] != '\0') {
+			fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", a);
+			return 0;
+		} else if (!c->cmd) {
+			c->cmd = a;
+		} else {
+			c->files[c->nfiles++] = a;
+		}
+	}
+	return 1;
+}
