@@ -272,5 +272,24 @@ printf 't\nV1 a 0 pwl(0 0 1m 5)\nC1 a b 1u\nD1 0 b dm\n.model dm d\n' > "$tmp/on
 run check --verify "$tmp/once.cir"
 check "check --verify on a circuit with nothing periodic says why it did not simulate" grep -q 'not simulated (--verify): no source repeats' "$tmp/out"
 
+# The program's layers (cli_opts.c, cli_out.c): --max-errors reaches check;
+# output files of check and sim are replaced only on success; a device is
+# written through, never replaced by a regular file.
+run check --max-errors 2 "$tmp/errs.cir"
+check "check --max-errors 2: two errors, then a note that it stopped" bash -c "test $rc -eq 2 && test \$(grep -c ': error:' '$tmp/err') -eq 2 && grep -q 'note: stopped after 2 errors' '$tmp/err'"
+echo "old csv" > "$tmp/keep.csv"
+run sim "$data/sim/clamp_pos.cir" --node nowhere -o "$tmp/keep.csv"
+check "sim -o: a failed run leaves the old file and no temporary file" bash -c "test $rc -eq 2 && grep -qx 'old csv' '$tmp/keep.csv' && ! ls '$tmp' | grep -q 'keep.csv.tmp'"
+ln -s "$tmp/keep.csv" "$tmp/link.csv"
+run check -o "$tmp/link.csv" "$here/../examples/sensor_restorer.cir"
+check "check -o through a symbolic link replaces the target and keeps the link" bash -c "test -L '$tmp/link.csv' && grep -q 'sensor_restorer.cir' '$tmp/keep.csv'"
+if [ -w /dev/null ] && [ "$(id -u)" -eq 0 ]; then
+	mknod "$tmp/null" c 1 3
+	run check -o "$tmp/null" "$here/../examples/sensor_restorer.cir"
+	check "check -o onto a character device writes through it and leaves the device (root)" bash -c "test $rc -eq 0 && test -c '$tmp/null'"
+else
+	echo "cli: skipped the device-node test (needs root to make one)"
+fi
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

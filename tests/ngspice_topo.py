@@ -14,7 +14,7 @@ The examples, with real diodes, source resistance and loads, are compared
 with ngspice by the stress tests of the check command instead.
 A rail given as a slowly moving range (*@source NAME min= max=) is run at
 the top of its range: the capacitor charges to the highest level the rail
-reaches and keeps it (DESIGN §6), so that is the corner the range shows.
+reaches and keeps it (docs/design.md §6), so that is the corner the range shows.
 
 Fails, not skips, when CI is set and ngspice is missing."""
 import json
