@@ -1,19 +1,19 @@
 # headroom derating profile: flight -- the most conservative of the three,
 # for space and high-reliability work. Values follow NASA EEE-INST-002
 # (GSFC) derating as recalled: FROM MEMORY, the document was not available
-# to check (REFERENCES.md 1b). Confirm against the current edition before
+# to check (docs/sources.md §1b). Confirm against the current edition before
 # relying on them.
 name = flight
 description = NASA EEE-INST-002 style derating (from memory: confirm before relying on it)
 
 source_tol = 10%                 # common practice, no source
-hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, REFERENCES.md 6); DESIGN §7 default
+hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, docs/sources.md §6); docs/design.md §7 default
 discharge_time = 1s              # common practice, no source
 droop_limit = 2%                 # common practice, no source
 recovery_fraction = 2%           # common practice, no source
 
 cap.default.voltage = 50%        # common practice, no source: the strictest of the kinds below
-cap.ceramic-c0g.voltage = 60%    # EEE-INST-002 ceramic (CCR/CKR/CDR) 0.60 (M: REFERENCES.md 1b)
+cap.ceramic-c0g.voltage = 60%    # EEE-INST-002 ceramic (CCR/CKR/CDR) 0.60 (M: docs/sources.md §1b)
 cap.ceramic-x7r.voltage = 50%    # EEE-INST-002 ceramic 0.60 (M), lowered to the industrial 0.50 for class 2 DC-bias loss (common practice)
 cap.ceramic.voltage = 50%        # as ceramic-x7r above
 cap.glass.voltage = 50%          # EEE-INST-002 glass, mica 0.50 (M)
@@ -22,12 +22,12 @@ cap.film.voltage = 60%           # EEE-INST-002 plastic film 0.60 (M)
 cap.tantalum.voltage = 50%       # EEE-INST-002 solid tantalum (CSR/CWR) 0.50 (M)
 cap.tantalum.reverse_v = 0V      # EEE-INST-002: no reverse voltage on tantalum (M)
 cap.polymer.voltage = 50%        # common practice, no source: as solid tantalum
-cap.polymer.reverse_v = 0V       # treat as 0 V (M: REFERENCES.md 2)
+cap.polymer.reverse_v = 0V       # treat as 0 V (M: docs/sources.md §2)
 cap.alu-electrolytic.voltage = 50%   # not a preferred flight part; no number recalled: common practice, no source
 cap.alu-electrolytic.reverse_v = 0V  # common practice, no source
 cap.supercap.voltage = 50%       # common practice, no source
 cap.supercap.reverse_v = 0V      # common practice, no source
 
-diode.default.voltage = 70%      # EEE-INST-002 diode PIV 0.70 (M: REFERENCES.md 1b)
+diode.default.voltage = 70%      # EEE-INST-002 diode PIV 0.70 (M: docs/sources.md §1b)
 diode.default.surge = 50%        # EEE-INST-002 diode IFSM 0.50 (M)
 diode.schottky.voltage = 70%     # EEE-INST-002 Schottky PIV 0.70 (M)

@@ -1,14 +1,14 @@
 # headroom derating profile: industrial -- the default, between basic and
 # flight. Diode limits are NAVSEA SD-18 Table 1A, normal environment,
-# quality level 2 (seen, REFERENCES.md 1a; layout rebuilt from a flattened
+# quality level 2 (seen, docs/sources.md §1a; layout rebuilt from a flattened
 # page, confirm against the SD-18 PDF). Capacitor limits: common practice
 # and manufacturers' guidance, each line says which.
 name = industrial
 description = NAVSEA SD-18 Table 1A normal/L2 for diodes; manufacturer guidance for capacitors
 
-source_tol = 10%                 # IEC 60038 mains 230 V +-10 % (secondary source, REFERENCES.md 7); common practice for unregulated inputs
-hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, REFERENCES.md 6); DESIGN §7 default
-discharge_time = 2s              # IEC 62368-1 5.5.2.2: voltage measured 2 s after disconnection (seen in a test-report excerpt, REFERENCES.md 6)
+source_tol = 10%                 # IEC 60038 mains 230 V +-10 % (secondary source, docs/sources.md §8); common practice for unregulated inputs
+hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory, docs/sources.md §6); docs/design.md §7 default
+discharge_time = 2s              # IEC 62368-1 5.5.2.2: voltage measured 2 s after disconnection (seen in a test-report excerpt, docs/sources.md §6)
 droop_limit = 5%                 # common practice, no source
 recovery_fraction = 5%           # common practice, no source
 
@@ -19,13 +19,13 @@ cap.ceramic.voltage = 50%        # as X7R (common practice, no source)
 cap.film.voltage = 70%           # common practice, no source
 cap.mica.voltage = 60%           # common practice, no source
 cap.glass.voltage = 60%          # common practice, no source
-cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (V: Chemi-Con guide, REFERENCES.md 1f) with 20 % margin (common practice)
-cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (V: Nippon Chemi-Con; REFERENCES.md 2)
-cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (V: KEMET T491; REFERENCES.md 1f)
-cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (V2: REFERENCES.md 2)
+cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (V: Chemi-Con guide, docs/sources.md §1f) with 20 % margin (common practice)
+cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (V: Nippon Chemi-Con; docs/sources.md §2)
+cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (V: KEMET T491; docs/sources.md §1f)
+cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (V2: docs/sources.md §2)
 cap.tantalum.reverse_fraction = 3%   # same source as the line above
-cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating (V2: KEMET; REFERENCES.md 1f)
-cap.polymer.reverse_v = 0V       # treat as 0 V (M: REFERENCES.md 2)
+cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating (V2: KEMET; docs/sources.md §1f)
+cap.polymer.reverse_v = 0V       # treat as 0 V (M: docs/sources.md §2)
 cap.supercap.voltage = 80%       # common practice, no source
 cap.supercap.reverse_v = 0V      # common practice, no source
 
