@@ -15,6 +15,7 @@
 #include "profile.h"
 #include "rating.h"
 #include "rules.h"
+#include "simbound.h"
 #include "stress.h"
 #include "verify.h"
 #include "waiver.h"
@@ -33,6 +34,8 @@ struct check_opts {
 	int verify;                      /* simulate too */
 	struct verify_limits verify_lim; /* zeros: the solver's defaults */
 	size_t verify_max_parts;         /* simulate only up to this many parts (0: any) */
+	struct simbound_limits sim_lim;  /* simulated numbers for unproven stresses */
+	size_t sim_max_parts;            /* ... only up to this many parts (0: 20,000) */
 };
 
 enum check_status { CHECK_OK, CHECK_ERRORS, CHECK_OOM };

@@ -20,7 +20,7 @@ enum nl_kind {
 };
 
 enum nl_wave { NL_WAVE_NONE, NL_WAVE_SIN, NL_WAVE_PULSE, NL_WAVE_PWL,
-	       NL_WAVE_EXP, NL_WAVE_SFFM, NL_WAVE_COUNT };
+	       NL_WAVE_EXP, NL_WAVE_SFFM, NL_WAVE_AM, NL_WAVE_COUNT };
 
 /* An independent source's description, as written (SI units). */
 struct nl_source {
@@ -32,6 +32,8 @@ struct nl_source {
 	double *args;
 	double pwl_repeat;   /* PWL r= time, or -1 for none */
 	double pwl_delay;    /* PWL td= */
+	int unknown;         /* a waveform was given that is not understood:
+				the value is not known (only its DC was read) */
 };
 
 struct nl_model {

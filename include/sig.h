@@ -10,7 +10,7 @@
 
 #include "nl.h"
 
-enum sig_kind { SIG_DC, SIG_SIN, SIG_PULSE, SIG_PWL, SIG_SFFM, SIG_COUNT };
+enum sig_kind { SIG_DC, SIG_SIN, SIG_PULSE, SIG_PWL, SIG_SFFM, SIG_AM, SIG_COUNT };
 
 struct sig {
 	enum sig_kind kind;
@@ -27,6 +27,8 @@ struct sig {
 	double t0;            /* delay of the breakpoint waveform */
 	/* SFFM: amp * sin(wc t + mdi sin(ws t)) */
 	double wc, mdi, ws;
+	/* AM: amp * (am_vo + sin(ws t + phase)) * sin(wc t + phase) */
+	double am_vo;
 	const char *note;     /* why the steady state differs from the card, or NULL */
 };
 

@@ -34,7 +34,18 @@ struct sim_opts {
 	unsigned long max_work; /* Newton iterations over the solver's life
 				   (each one a factorisation and solve);
 				   0: 20,000,000 */
+	int ideal_diodes;  /* every diode nearly ideal (SIM_IDEAL_IS, _N) */
 };
+
+/* The nearly ideal diode: IS 1e-9 A per unit area, N 0.05 (about 27 mV
+ * at 1 mA), no RS, CJO or TT; BV and IBV as the model gives them. */
+#define SIM_IDEAL_IS 1e-9
+#define SIM_IDEAL_N 0.05
+
+/* The largest coupling coefficient the solver takes (sim.c). */
+#define SIM_K_MAX 0.9999
+/* From this coupling on, both windings are integrated by BDF2 (sim.c). */
+#define SIM_K_STIFF 0.99
 
 struct sim;
 

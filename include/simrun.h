@@ -20,6 +20,7 @@ struct simrun_opts {
 	const double *cap_v0;  /* capacitor start voltages per part, or NULL */
 	const unsigned char *leave_out; /* parts left out (open), or NULL */
 	double gshunt;         /* S from every node to ground (sim.h) */
+	int ideal_diodes;      /* nearly ideal diodes (sim.h) */
 	/* simrun_peaks: parts whose voltage (pin 0 minus pin 1) is sampled at
 	   trace_points even times over the recorded period (first and last
 	   included) into trace[k * trace_points + j] */

@@ -16,6 +16,17 @@
 
 enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE };
 
+/* Where a stress's number comes from [stress-basis]. */
+enum stress_basis {
+	SB_ANALYSIS,   /* the analysis proves it (docs/check.md) */
+	SB_SIMULATED,  /* the solver at the worst corners: simulated, not proven */
+	SB_NONE,       /* neither: no number */
+	SB_COUNT
+};
+
+/* Display names: "proven", "simulated", "none" [stress-basis]. */
+const char *stress_basis_name(enum stress_basis b);
+
 struct stress {
 	uint32_t part;
 	int32_t structure;      /* index in the audit's topo result, -1 if none */
@@ -25,7 +36,10 @@ struct stress {
 	double best, worst;     /* V (capacitor |V|, diode reverse) or A */
 	const char *corner;     /* where the worst came from */
 	double rev_min;         /* polarised capacitors: lowest V(+) - V(-) */
-	int bounded;            /* the analysis settled both nodes */
+	int bounded;            /* a number exists (basis is not SB_NONE) */
+	enum stress_basis basis;
+	const char *unproven;   /* why the analysis's proof does not hold, or NULL */
+	double analytic;        /* the analysis's own worst (NaN when none) */
 	/* capacitors: stored energy at the worst voltage and discharge */
 	double energy_j;
 	double discharge_r;     /* resistance across it, INFINITY when none */
@@ -75,12 +89,23 @@ struct stress_result {
 	size_t ncorners;
 	const struct prop_result *runs;   /* one propagation per corner */
 	const struct stress_verify *verify; /* --verify's run, or NULL */
+	const uint32_t *island;     /* per part: its island (proof.h) */
+	const struct stress_fallback *fallback; /* the simulation of unproven parts, or NULL */
 };
 
 /* Index in runs of the corner with amplitudes and offsets at +tol, and of
  * the best case (everything at -tol, diode forward drops). */
 #define STRESS_CORNER_HIGH 1
 #define STRESS_CORNER_LOW 3
+
+/* What the simulation of unproven stresses did for a file (simbound.h). */
+struct stress_fallback {
+	unsigned runs;          /* solver runs (corners, real and ideal diodes) */
+	unsigned unsettled;     /* runs that ended before their steady state */
+	size_t given;           /* stresses that got a simulated number */
+	size_t left;            /* unproven stresses left without a number */
+	const char *why;        /* why some could not be simulated, or NULL */
+};
 
 /* What --verify did for a file (filled by verify_run). */
 struct stress_verify {
@@ -106,6 +131,19 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 /* Source tolerance used for part (annotation, --source-tol, profile). */
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part);
+
+/* Sets a capacitor stress's stored energy and its discharge time to the
+ * hazard voltage from its worst voltage and discharge_r (cap_f farads). */
+void stress_set_energy(struct stress *s, double cap_f, double hazard_v);
+
+/* The DC part of capacitor p's voltage (pin 0 minus pin 1) in the
+ * best-case propagation (sources at -tol, diode drops), NaN where either
+ * node is not settled there. The simulations start each capacitor there,
+ * below where the worst corner will take it: a circuit that charges slowly
+ * then approaches its steady state from below, so a run stopped early
+ * underestimates rather than invents. Allocates scratch in ar. */
+double stress_low_dc(const struct audit *a, const struct stress_result *sr,
+		     struct arena *ar, const struct nl_part *p);
 
 /* True when stress s was simulated above its bound (see STRESS_GAP_*):
  * the analysis-gap rule. */

@@ -38,6 +38,7 @@ sig analysis
 form analysis
 prop analysis
 topo analysis
+proof analysis
 audit analysis
 sim solver
 simdev solver
@@ -51,6 +52,8 @@ verify check
 rules check
 waiver check
 check check
+simbound check
+defects check
 report_parts reports
 report_topo reports
 report_check reports

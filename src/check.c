@@ -1,11 +1,15 @@
 /* check.c: one netlist file through the whole check (check.h). The order
- * is fixed: analysis, the file's own profile, ratings, stresses, the
- * optional simulation, rules, waivers, baseline. Printing and exit codes
- * belong to the program. */
+ * is fixed: analysis, the file's own profile, ratings, stresses, simulated
+ * numbers for what the analysis cannot prove, the optional --verify, rules
+ * and circuit defects, waivers, baseline. Printing and exit codes belong to
+ * the program. */
 #include "check.h"
 
 #include <assert.h>
+#include <math.h>
 #include <string.h>
+
+#include "defects.h"
 
 const char check_caution[] =
 	"caution: this design involves voltages above the hazard level. Stored charge "
@@ -39,6 +43,25 @@ static int file_profile(const struct check_opts *o, struct check_run *r)
 	return 1;
 }
 
+/* The solver gives numbers where the analysis cannot prove one, in a
+ * circuit small enough to simulate. Returns 0 on out-of-memory. */
+static int simulate_unproven(const struct check_opts *o, struct check_run *r)
+{
+	size_t cap = o->sim_max_parts ? o->sim_max_parts : 20000;
+	size_t np = nl_part_count(r->a.er.circuit);
+	if (np <= cap)
+		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);
+	for (size_t i = 0; i < r->sr.n; i++) {
+		struct stress *s = &r->sr.s[i];
+		if (s->unproven && s->qty != SQ_SURGE) {
+			s->bounded = 0;
+			s->basis = SB_NONE;
+			s->worst = s->best = NAN;
+		}
+	}
+	return 1;
+}
+
 /* Ratings, stresses, simulation, rules, waivers: 0 on out-of-memory. */
 static int judge(const struct check_opts *o, struct check_run *r)
 {
@@ -51,8 +74,10 @@ static int judge(const struct check_opts *o, struct check_run *r)
 	int sim = o->verify && (!o->verify_max_parts ||
 				nl_part_count(a->er.circuit) <= o->verify_max_parts);
 	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
+	       simulate_unproven(o, r) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
 	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
+	       defects_run(a, rt, &r->sr, a->ar, &r->rr) &&
 	       waiver_apply(a, o->waivers, o->today, a->ar, &r->rr);
 }
 

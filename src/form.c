@@ -190,7 +190,8 @@ static double shortest_period(const struct form_ctx *fc, const struct form *x)
 	for (uint32_t i = 0; i < x->n; i++) {
 		const struct sig *s = &fc->sigs[x->t[i].src];
 		double q = s->kind == SIG_SFFM ? 2 * FORM_PI / (s->wc + fabs(s->mdi) * s->ws)
-					       : s->period;
+			 : s->kind == SIG_AM ? 2 * FORM_PI / (s->wc + s->ws)
+					     : s->period;
 		if (q > 0)
 			p = fmin(p, q);
 	}

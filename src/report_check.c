@@ -94,8 +94,9 @@ static void text_table(FILE *out, const struct check_file *f)
 		w = l > w ? l : w;
 	}
 	int sim = sr->verify && sr->verify->simulated;
-	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s%s\n", (int)w, "part", "in",
-		"stress", "role", "worst", "best", "rating", "ratio", sim ? "   simulated" : "");
+	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s %-9s%s\n", (int)w, "part", "in",
+		"stress", "role", "worst", "best", "rating", "ratio", "basis",
+		sim ? "   simulated" : "");
 	for (size_t i = 0; i < sr->n; i++) {
 		const struct stress *s = &sr->s[i];
 		const struct nl_part *p = nl_part_at(c, s->part);
@@ -115,9 +116,9 @@ static void text_table(FILE *out, const struct check_file *f)
 		char sv[24] = "-";
 		if (isfinite(s->sim_worst))
 			num_format_eng(s->sim_worst, qty_unit(s), sv, sizeof sv);
-		fprintf(out, "  %-*s  %-4s %-7s %-38.38s %11s %11s %10s %6s", (int)w, p->path, st,
+		fprintf(out, "  %-*s  %-4s %-7s %-38.38s %11s %11s %10s %6s %-9s", (int)w, p->path, st,
 			s->qty == SQ_SURGE ? "surge" : p->kind == NL_D ? "reverse" : "voltage",
-			s->role[0] ? s->role : "-", wv, bv, rv, ratio);
+			s->role[0] ? s->role : "-", wv, bv, rv, ratio, stress_basis_name(s->basis));
 		if (sim)
 			fprintf(out, " %11s%s", sv, stress_gap(s) ? " GAP" : s->sim_near_open ? " n/c" : "");
 		fputc('\n', out);
@@ -211,7 +212,11 @@ static void json_stress(FILE *out, const struct check_file *f,
 	fputs(", \"worst\": ", out);
 	jnum(out, s->bounded ? s->worst : NAN);
 	fprintf(out, ", \"unit\": \"%s\", \"corner\": ", s->qty == SQ_SURGE ? "A" : "V");
-	jstr(out, s->corner);
+	jstr(out, s->bounded ? s->corner : NULL);
+	fprintf(out, ", \"basis\": \"%s\", \"unproven\": ", stress_basis_name(s->basis));
+	jstr(out, s->unproven);
+	fputs(", \"analytic\": ", out);
+	jnum(out, s->analytic);
 	fputs(", \"kind\": ", out);
 	jstr(out, r->kind);
 	fputs(", \"rating\": ", out);
@@ -303,6 +308,13 @@ static void json_file(FILE *out, const struct check_file *f)
 			v->started, v->confirmed, v->gaps, v->uncompared, v->points, v->unknowns,
 			v->left_out);
 		jstr(out, v->left_out ? v->left_out_names : NULL);
+		fputc('}', out);
+	}
+	const struct stress_fallback *fb = f->a->analysed ? f->stress->fallback : NULL;
+	if (fb) {
+		fprintf(out, ",\n      \"fallback\": {\"runs\": %u, \"unsettled\": %u, \"given\": %zu, "
+			     "\"left\": %zu, \"why\": ", fb->runs, fb->unsettled, fb->given, fb->left);
+		jstr(out, fb->why);
 		fputc('}', out);
 	}
 	fputs(",\n      \"stresses\": [", out);

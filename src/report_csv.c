@@ -87,6 +87,8 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	num(out, worst / rf->value);
 	fputc(',', out);
 	num(out, limit - worst);
+	fprintf(out, ",%s,", stress_basis_name(s->basis));
+	report_csv_field(out, s->unproven ? s->unproven : "");
 	fputc('\n', out);
 }
 
@@ -95,7 +97,7 @@ void report_csv_file(FILE *out, const struct check_file *f,
 {
 	if (first)
 		fputs("file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"
-		      "rating,rating_from,limit,ratio,margin\n", out);
+		      "rating,rating_from,limit,ratio,margin,basis,unproven\n", out);
 	if (!f->a->analysed)
 		return;
 	for (size_t i = 0; i < f->stress->n; i++) {

@@ -9,6 +9,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "dmodel.h"
 #include "num.h"
 
 /* Designated initialisers tie each row to its enum constant [rules-list]. */
@@ -25,7 +26,10 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_SLOW_RECOVERY] = {"slow-recovery", DIAG_WARNING, "a diode recovers too slowly for the drive frequency"},
 	[RULE_RATING_MISSING] = {"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
 	[RULE_INTENT_MISS] = {"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
-	[RULE_STRESS_UNSETTLED] = {"stress-unsettled", DIAG_NOTE, "a part's stress could not be bounded"},
+	[RULE_STRESS_UNSETTLED] = {"stress-unsettled", DIAG_WARNING, "a part's stress could not be bounded"},
+	[RULE_DIODE_LOOP] = {"diode-loop", DIAG_ERROR, "a diode is driven forward straight from the sources with nothing to limit its current"},
+	[RULE_PART_TWIN] = {"part-twin", DIAG_NOTE, "two parts repeat each other on the same nodes inside a diode-capacitor network"},
+	[RULE_BREAKDOWN_WORK] = {"breakdown-work", DIAG_NOTE, "a zener works in reverse breakdown: its stress is power, not reverse voltage"},
 	[RULE_ANALYSIS_GAP] = {"analysis-gap", DIAG_ERROR, "the simulation (--verify) exceeds a part's analytic worst case"},
 	[RULE_WAIVER_EXPIRED] = {"waiver-expired", DIAG_WARNING, "a waiver's date has passed: what it covered is reported again"},
 	[RULE_WAIVER_UNUSED] = {"waiver-unused", DIAG_NOTE, "a waiver matches no finding"},
@@ -62,6 +66,10 @@ double rules_standard_rating(double v, int diode)
 			return s[i];
 	return NAN;
 }
+
+/* A diode rated by its model's BV that the circuit takes to this share of
+ * it is taken to work in breakdown (the knee: at IBV it sits at BV). */
+#define BREAKDOWN_SHARE 0.98
 
 struct ctx {
 	const struct audit *a;
@@ -171,6 +179,8 @@ static const char *computation(struct ctx *x, const struct stress *s)
 		return str(x, "%s: power-up surge = peak drive %s / series %s (%s)", where(x, s),
 			   v(x, s->worst * s->series_r, "V"), v(x, s->series_r, "ohm"), s->corner);
 	const char *simulated = simulation(x, s);
+	if (s->basis == SB_SIMULATED)
+		simulated = str(x, "%s; simulated, not proven: %s", simulated, s->unproven);
 	if (p->kind == NL_D)
 		return str(x, "%s: reverse = max v(%s) - v(%s) over a period = %s (%s); best case %s%s",
 			   where(x, s), n1, n0, v(x, s->worst, "V"), s->corner, v(x, s->best, "V"),
@@ -385,6 +395,38 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 		     v(x, s->worst * s->series_r / f->limit, "ohm"));
 }
 
+/* A diode driven into reverse breakdown on purpose: a zener (by kind), or
+ * a diode rated only by its model's BV that the circuit takes to that BV.
+ * Its reverse voltage is held at BV by the diode itself; what can hurt it
+ * is the power it then takes (Vz times its current), not the voltage. A
+ * rectifier given a reverse rating of its own keeps its voltage rules. */
+static int in_breakdown(const struct ctx *x, const struct stress *s)
+{
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
+	const struct rating *r = &x->r[s->part];
+	if (p->kind != NL_D || s->qty != SQ_REVERSE || !s->bounded)
+		return 0;
+	if (r->kind && strcmp(r->kind, "zener") == 0)
+		return s->worst >= 0.9 * r->v_rated.value || isnan(r->v_rated.value);
+	double bv = dmodel_given(p->model, DM_BV);
+	return r->v_rated.from && strcmp(r->v_rated.from, "model BV") == 0 && bv > 0 &&
+	       s->worst >= bv * BREAKDOWN_SHARE;
+}
+
+static void breakdown_note(struct ctx *x, const struct stress *s)
+{
+	struct finding *f = add(x, RULE_BREAKDOWN_WORK, s->part, s->structure);
+	if (!f)
+		return;
+	f->message = str(x, "%s works in reverse breakdown at about %s: its stress is the power it takes "
+			    "(Vz times its current), which this check does not compute yet",
+			 f->subject, v(x, s->worst, "V"));
+	f->worst = s->worst;
+	f->computation = computation(x, s);
+	f->fix = "check the zener's power against its rating at the highest input; give it kind=zener "
+		 "in the parts table to say the breakdown is intended";
+}
+
 static void part_rules(struct ctx *x, const struct stress *s)
 {
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
@@ -395,13 +437,21 @@ static void part_rules(struct ctx *x, const struct stress *s)
 	}
 	if (!s->bounded) {
 		struct finding *f = add(x, RULE_STRESS_UNSETTLED, s->part, s->structure);
-		if (f)
-			f->message = str(x, "the stress on %s could not be bounded (%s): no rule is applied to it",
+		if (f) {
+			f->message = str(x, "%s has no worst case: neither the analysis nor the solver could bound it (%s)",
 					 f->subject, where(x, s));
+			f->computation = str(x, "not proven: %s", s->unproven ? s->unproven : "unknown");
+			f->fix = "run the circuit in a simulator at its worst corners and rate the part from that, "
+				 "or waive this finding with the reason";
+		}
 		return;
 	}
 	if (stress_gap(s))
 		gap(x, s);
+	if (in_breakdown(x, s)) {
+		breakdown_note(x, s);
+		return;
+	}
 	if (isnan(x->r[s->part].v_rated.value)) {
 		if (s->structure >= 0)
 			missing(x, s, cls);
@@ -428,6 +478,11 @@ static void droop(struct ctx *x, size_t si)
 	for (uint32_t k = 0; k < t->nparts && part == NL_NONE; k++)
 		if (t->parts[k].kind == TR_COUPLING_CAP)
 			part = t->parts[k].part;
+	/* a load that drains more than the whole swing in a period leaves no DC
+	   on the capacitor: that is no clamp (an AC-coupled termination, a
+	   differentiator) and the droop formula means nothing there */
+	if (f0->droop_v > f0->swing)
+		return;
 	struct finding *f = add(x, RULE_CLAMP_DROOP, part, (int32_t)si);
 	if (!f)
 		return;

@@ -237,15 +237,23 @@ static void stamp_linear(struct simdev *d, const struct simdev_step *st,
 	}
 	case SD_L:
 		stamp_branch(m, d->h);
+		if (d->coupled) {
+			/* v = dphi/dt by BDF2 (or backward Euler): the trapezoidal
+			   rule rings on the leakage mode of a tight coupling */
+			double ga = st->gear ? st->ga : 1 / (st->t - d->th[0]);
+			simmat_add(m, d->h[4], -ga * d->val);
+			simmat_rhs(m, d->br, st->gear ? st->g1 * d->q0 + st->g2 * d->qh[1] : -ga * d->q0);
+			break;
+		}
 		simmat_add(m, d->h[4], -st->a * d->val);
 		simmat_rhs(m, d->br, -st->a * d->q0 - st->b * d->f0);
 		break;
-	case SD_K:
-		simmat_add(m, d->h[0], -st->a * d->val);
-		simmat_add(m, d->h[1], -st->a * d->val);
-		simmat_rhs(m, d->br, -st->a * d->val * d->f0);
-		simmat_rhs(m, d->br2, -st->a * d->val * d->q0);
+	case SD_K: { /* the mutual flux's history is in each inductor's q0 */
+		double ga = !d->coupled ? st->a : st->gear ? st->ga : 1 / (st->t - d->th[0]);
+		simmat_add(m, d->h[0], -ga * d->val);
+		simmat_add(m, d->h[1], -ga * d->val);
 		break;
+	}
 	case SD_V:
 		stamp_branch(m, d->h);
 		simmat_rhs(m, d->br, source_at(d, st));

@@ -20,6 +20,7 @@ struct simdev_diode {
 
 struct simdev {
 	uint8_t kind;
+	uint8_t coupled;      /* L: one of a K pair (integrated by BDF2) */
 	uint32_t part;        /* index in the circuit */
 	long a, b, c, d;      /* unknown of each pin, -1 for ground */
 	long br;              /* branch current unknown, or -1 */
@@ -47,6 +48,10 @@ struct simdev_step {
 	double b;             /* 1 (trapezoidal) or 0 */
 	const void *span;     /* struct simsrc_span */
 	double gmin;
+	/* BDF2 for coupled inductors: dq/dt = ga q_n + g1 q_{n-1} + g2 q_{n-2}
+	   (variable step); gear 0 means backward Euler for them this step */
+	int gear;
+	double ga, g1, g2;
 };
 
 /* Registers the matrix positions of d. Returns 0 on out-of-memory. */

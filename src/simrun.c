@@ -51,6 +51,7 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 	so->leave_out = o->leave_out;
 	so->gshunt = o->gshunt;
 	so->max_work = o->max_work;
+	so->ideal_diodes = o->ideal_diodes;
 }
 
 /* Creates the solver and, for the steady state, runs to it. */

@@ -6,7 +6,10 @@
  *   PULSE(V1 V2 TD TR TF PW PER), linear edges;
  *   PWL(t1 v1 t2 v2 ...) r=REPEAT td=DELAY, held at the ends;
  *   EXP(V1 V2 TD1 TAU1 TD2 TAU2);
- *   SFFM(VO VA FC MDI FS): VO + VA sin(2 pi FC t + MDI sin(2 pi FS t)). */
+ *   SFFM(VO VA FC MDI FS): VO + VA sin(2 pi FC t + MDI sin(2 pi FS t));
+ *   AM(VA VO MF FC TD .. PH): 0 before TD, then VA (VO + sin(2 pi MF u + PH))
+ *     sin(2 pi FC u + PH), u = t - TD, PH (degrees) the seventh value as
+ *     ngspice reads it (checked by simulation in ngspice). */
 #include "simsrc.h"
 
 #include <math.h>
@@ -127,6 +130,14 @@ double simsrc_value(const struct nl_source *src, const struct simsrc_span *sp,
 		return pwl_value(src, t);
 	case NL_WAVE_EXP:
 		return exp_value(src, sp, t);
+	case NL_WAVE_AM: {
+		double va = arg(src, 0, 0), vo = arg(src, 1, 0), mf = arg(src, 2, 0);
+		double fc = arg(src, 3, 0), td = arg(src, 4, 0);
+		double ph = arg(src, 6, 0) * SIMSRC_PI / 180, u = t - td;
+		if (u < 0)
+			return 0;
+		return va * (vo + sin(2 * SIMSRC_PI * mf * u + ph)) * sin(2 * SIMSRC_PI * fc * u + ph);
+	}
 	case NL_WAVE_SFFM: {
 		double vo = arg(src, 0, 0), va = arg(src, 1, 0);
 		double fc = arg(src, 2, sp->stop > 0 ? 1 / sp->stop : 0);
@@ -206,6 +217,10 @@ double simsrc_next_corner(const struct nl_source *src,
 		double td1 = arg(src, 2, 0), td2 = arg(src, 4, td1 + sp->step);
 		return td1 > t ? td1 : td2 > t ? td2 : INFINITY;
 	}
+	case NL_WAVE_AM: {
+		double td = arg(src, 4, 0);
+		return td > t ? td : INFINITY;
+	}
 	default:
 		return INFINITY;
 	}
@@ -231,6 +246,10 @@ double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp)
 	case NL_WAVE_SFFM: {
 		double fc = arg(src, 2, 0);
 		return fc > 0 ? 1 / fc : 0;
+	}
+	case NL_WAVE_AM: {
+		double mf = arg(src, 2, 0);
+		return mf > 0 && arg(src, 3, 0) > 0 ? 1 / mf : 0;
 	}
 	default:
 		return 0;
@@ -260,6 +279,8 @@ double simsrc_mean(const struct nl_source *src, const struct simsrc_span *sp)
 	case NL_WAVE_SIN:
 	case NL_WAVE_SFFM:
 		return arg(src, 0, 0);
+	case NL_WAVE_AM:
+		return 0; /* both sines average out */
 	case NL_WAVE_PULSE:
 		return per > 0 ? piecewise_mean(src, sp, arg(src, 2, 0), per) : arg(src, 0, 0);
 	case NL_WAVE_PWL: {

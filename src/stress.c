@@ -12,6 +12,7 @@
 #include "stress.h"
 
 #include "dmodel.h"
+#include "proof.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -23,8 +24,8 @@ enum { C_NOM, C_HI, C_LO, C_VF, NCORNER };
  * independently anywhere in its band, so rails that move apart are seen. */
 static const char *const corner_names[NCORNER] = {
 	"nominal sources, ideal diodes",
-	"amplitudes at +tol, each offset anywhere in its band, ideal diodes",
-	"amplitudes at -tol, each offset anywhere in its band, ideal diodes",
+	"amplitudes at +tol, each offset anywhere in its band (pulse and pwl scaled whole), ideal diodes",
+	"amplitudes at -tol, each offset anywhere in its band (pulse and pwl scaled whole), ideal diodes",
 	"amplitudes and offsets at -tol, diode forward drops"};
 
 double stress_tolerance(const struct audit *a, const struct profile *p,
@@ -46,6 +47,12 @@ struct ctx {
 	const struct topo_part **tpart_of; /* per part, NULL outside structures */
 };
 
+static int scales_whole(const struct nl_part *p)
+{
+	const struct nl_source *src = p->kind == NL_V && p->ext ? p->ext->src : NULL;
+	return src && (src->wave == NL_WAVE_PULSE || src->wave == NL_WAVE_PWL);
+}
+
 static int run_corner(struct ctx *x, int k)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
@@ -62,6 +69,10 @@ static int run_corner(struct ctx *x, int k)
 		amp[i] = k == C_HI ? 1 + t : k == C_LO || k == C_VF ? 1 - t : 1;
 		olo[i] = k == C_HI || k == C_LO ? 1 - t : k == C_VF ? 1 - t : 1;
 		ohi[i] = k == C_HI || k == C_LO ? 1 + t : k == C_VF ? 1 - t : 1;
+		/* a PULSE or PWL scales whole: its levels move together, so a
+		   level at 0 V stays at 0 V (the mean moves with the swing) */
+		if (scales_whole(p))
+			olo[i] = ohi[i] = amp[i];
 		if (vf)
 			vf[i] = p->kind == NL_D ? rating_vf(p, x->r[i].kind) : 0;
 	}
@@ -126,6 +137,89 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 		s->bounded = 0;
 		s->best = s->worst = s->rev_min = NAN;
 	}
+	s->basis = s->bounded ? SB_ANALYSIS : SB_NONE;
+	s->analytic = s->worst;
+}
+
+static const char *const basis_names[SB_COUNT] = {"proven", "simulated", "none"};
+
+const char *stress_basis_name(enum stress_basis b)
+{
+	return b < SB_COUNT ? basis_names[b] : "?";
+}
+
+/* Diodes the analysis drives past their BV: in breakdown, which the ideal
+ * analysis does not model (a zener doing its job, or an overstressed
+ * rectifier: the solver tells which). */
+static unsigned char *breakdown_of(const struct ctx *x, const struct stress_result *out)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	unsigned char *b = arena_zalloc(x->ar, nl_part_count(c) + 1);
+	for (size_t i = 0; b && i < out->n; i++) {
+		const struct stress *s = &out->s[i];
+		const struct nl_part *p = nl_part_at(c, s->part);
+		double bv = p->kind == NL_D ? dmodel_given(p->model, DM_BV) : NAN;
+		if (s->qty == SQ_REVERSE && s->bounded && bv > 0 && s->worst >= bv)
+			b[s->part] = 1;
+	}
+	return b;
+}
+
+static void energy(struct ctx *x, struct stress *s);
+static int push(struct ctx *x, struct stress_result *out, size_t *cap,
+		const struct stress *s);
+
+/* Capacitors and diodes left out so far (not in a structure, not
+ * bounded) that share an island with a diode: they are part of a
+ * diode-capacitor network too and get a stress of their own. */
+static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *cap,
+			    const uint32_t *island)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	size_t np = nl_part_count(c), nn = nl_node_count(c);
+	unsigned char *has_d = arena_zalloc(x->ar, nn + 1), *listed = arena_zalloc(x->ar, np + 1);
+	if (!has_d || !listed)
+		return 0;
+	for (size_t i = 0; i < out->n; i++)
+		listed[out->s[i].part] = 1;
+	for (size_t i = 0; i < np; i++)
+		if (nl_part_at(c, i)->kind == NL_D && island[i] != NL_NONE)
+			has_d[island[i]] = 1;
+	for (uint32_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		if ((pt->kind != NL_C && pt->kind != NL_D) || listed[i] ||
+		    island[i] == NL_NONE || !has_d[island[i]])
+			continue;
+		struct stress s;
+		part_stress(x, i, &s);
+		if (pt->kind == NL_C)
+			energy(x, &s);
+		if (!push(x, out, cap, &s))
+			return 0;
+	}
+	return 1;
+}
+
+/* Marks each stress whose island breaks an assumption of the analysis
+ * (proof.h), and each the analysis could not bound, as unproven. */
+static int judge_proofs(struct ctx *x, struct stress_result *out, size_t *cap)
+{
+	const char **why;
+	uint32_t *island;
+	unsigned char *bd = breakdown_of(x, out);
+	if (!bd || !proof_run(x->a->er.circuit, &x->runs[C_NOM], bd, x->ar, &why, &island) ||
+	    !add_island_parts(x, out, cap, island))
+		return 0;
+	out->island = island;
+	for (size_t i = 0; i < out->n; i++) {
+		struct stress *s = &out->s[i];
+		if (s->qty == SQ_SURGE)
+			continue;
+		s->unproven = why[s->part];
+		if (!s->bounded && !s->unproven)
+			s->unproven = "the analysis could not settle the voltage at its nodes";
+	}
+	return 1;
 }
 
 /* Resistance from node to ground through resistors alone (capacitors and
@@ -182,18 +276,21 @@ static double across_r(const struct ctx *x, const struct nl_part *p)
 	return g > 0 ? 1 / g : INFINITY;
 }
 
+void stress_set_energy(struct stress *s, double cap_f, double hazard_v)
+{
+	s->energy_j = s->bounded ? 0.5 * cap_f * s->worst * s->worst : NAN;
+	s->discharge_s = NAN;
+	if (s->bounded && !isnan(hazard_v) && s->worst > hazard_v)
+		s->discharge_s = isinf(s->discharge_r) ? INFINITY
+				: s->discharge_r * cap_f * log(s->worst / hazard_v);
+}
+
 static void energy(struct ctx *x, struct stress *s)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
 	const struct nl_part *p = nl_part_at(c, s->part);
-	double cap = p->value * (p->ext ? p->ext->mult : 1.0);
-	double hz = profile_hazard(x->p);
-	s->energy_j = 0.5 * cap * s->worst * s->worst;
 	s->discharge_r = across_r(x, p);
-	s->discharge_s = NAN;
-	if (!isnan(hz) && s->worst > hz)
-		s->discharge_s = isinf(s->discharge_r) ? INFINITY
-				: s->discharge_r * cap * log(s->worst / hz);
+	stress_set_energy(s, p->value * (p->ext ? p->ext->mult : 1.0), profile_hazard(x->p));
 }
 
 /* ---- structures ---- */
@@ -445,7 +542,7 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 		part_stress(&x, i, &s);
 		if (!s.bounded && s.structure < 0)
 			continue; /* not in a structure and not bounded: not listed */
-		if (pt->kind == NL_C && s.bounded)
+		if (pt->kind == NL_C)
 			energy(&x, &s);
 		if (!push(&x, out, &cap, &s))
 			return 0;
@@ -454,6 +551,8 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 		if (first_stage_diode(&x, i)) {
 			struct stress sg;
 			surge(&x, (size_t)s.structure, i, &sg);
+			sg.basis = sg.bounded ? SB_ANALYSIS : SB_NONE;
+			sg.analytic = sg.worst;
 			if (!push(&x, out, &cap, &sg))
 				return 0;
 		}
@@ -484,6 +583,8 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 		s->discharge_r = rl;
 		s->discharge_s = rl * pt->value * (pt->ext ? pt->ext->mult : 1.0) * log(s->worst / hz);
 	}
+	if (!judge_proofs(&x, out, &cap))
+		return 0;
 	for (int k = 0; k < NCORNER; k++)
 		out->corners[out->ncorners++] = corner_names[k];
 	struct prop_result *runs = arena_alloc(ar, sizeof x.runs);
@@ -498,4 +599,25 @@ int stress_gap(const struct stress *s)
 {
 	return s->bounded && isfinite(s->sim_worst) && !s->sim_near_open &&
 	       s->sim_worst > s->worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
+}
+
+/* The DC part of v(pin 0) - v(pin 1) in the best-case propagation (sources
+ * at -tol, diode drops), NaN when either node is not settled there. The
+ * simulations start each capacitor there (stress.h). */
+double stress_low_dc(const struct audit *a, const struct stress_result *sr,
+		     struct arena *ar, const struct nl_part *p)
+{
+	const struct prop_result *r = &sr->runs[STRESS_CORNER_LOW];
+	const uint32_t *q = nl_pins(a->er.circuit, p);
+	const struct prop_node *n0 = &r->nodes[q[0]], *n1 = &r->nodes[q[1]];
+	if (n0->state != PS_RESOLVED || n1->state != PS_RESOLVED || n0->conflict || n1->conflict)
+		return NAN;
+	const struct form *d = form_lin(ar, 1, n0->f, -1, n1->f);
+	if (!d)
+		return NAN;
+	double lo, hi, alo, ahi;
+	int exact;
+	form_range(&r->fc, d, &lo, &hi, &exact);
+	form_ac_range(&r->fc, d, &alo, &ahi, &exact);
+	return (lo + hi) / 2 - (alo + ahi) / 2;
 }

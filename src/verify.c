@@ -8,30 +8,6 @@
 #include "simrun.h"
 
 
-/* The DC part of v(pin 0) - v(pin 1) in the best-case propagation (sources
- * at -tol, diode drops), NaN when either node is not settled there. The
- * simulation starts each capacitor there, below where the +tol corner will
- * take it: a circuit that charges slowly then approaches its steady state
- * from below, so a run stopped early underestimates the stress and never
- * makes up a gap. */
-static double analytic_dc(const struct audit *a, struct arena *ar, const struct stress_result *sr,
-			  const struct nl_part *p)
-{
-	const struct prop_result *r = &sr->runs[STRESS_CORNER_LOW];
-	const uint32_t *q = nl_pins(a->er.circuit, p);
-	const struct prop_node *n0 = &r->nodes[q[0]], *n1 = &r->nodes[q[1]];
-	if (n0->state != PS_RESOLVED || n1->state != PS_RESOLVED || n0->conflict || n1->conflict)
-		return NAN;
-	const struct form *d = form_lin(ar, 1, n0->f, -1, n1->f);
-	if (!d)
-		return NAN;
-	double lo, hi, alo, ahi;
-	int exact;
-	form_range(&r->fc, d, &lo, &hi, &exact);
-	form_ac_range(&r->fc, d, &alo, &ahi, &exact);
-	return (lo + hi) / 2 - (alo + ahi) / 2;
-}
-
 /* The corner: per part source scales and capacitor start voltages. */
 static int corner(const struct audit *a, struct arena *ar, const struct profile *p,
 		  const struct stress_result *sr, struct simrun_opts *o,
@@ -49,7 +25,7 @@ static int corner(const struct audit *a, struct arena *ar, const struct profile 
 		const struct nl_part *pt = nl_part_at(c, i);
 		k[i] = pt->kind == NL_V ? 1 + stress_tolerance(a, p, (uint32_t)i) : 1;
 		set[i] = pt->kind == NL_V ? a->sources[i].max : NAN;
-		v0[i] = pt->kind == NL_C && pt->npins == 2 ? analytic_dc(a, ar, sr, pt) : NAN;
+		v0[i] = pt->kind == NL_C && pt->npins == 2 ? stress_low_dc(a, sr, ar, pt) : NAN;
 		if (isfinite(v0[i]))
 			(*started)++;
 	}

@@ -20,7 +20,7 @@ struct wave_rd {
 };
 
 static const char *const wave_names[] = {"dc", "sin", "pulse", "pwl", "exp",
-					 "sffm"};
+					 "sffm", "am"};
 _Static_assert(sizeof wave_names / sizeof wave_names[0] == NL_WAVE_COUNT,
 	       "one name per waveform");
 
@@ -29,11 +29,16 @@ const char *wave_name(enum nl_wave w)
 	return wave_names[w];
 }
 
+/* The names a waveform is written under: SPICE's, and the spellings
+ * schematic exporters write ("sine(...)", as in the ngspice manual's
+ * examples of exported decks, is SIN). */
 static enum nl_wave wave_kind(const char *s, size_t n)
 {
-	for (int w = NL_WAVE_SIN; w <= NL_WAVE_SFFM; w++)
+	for (int w = NL_WAVE_SIN; w < NL_WAVE_COUNT; w++)
 		if (num_ieq(s, n, wave_names[w]))
 			return (enum nl_wave)w;
+	if (num_ieq(s, n, "sine"))
+		return NL_WAVE_SIN;
 	return NL_WAVE_NONE;
 }
 
@@ -141,7 +146,7 @@ static enum dev_status pwl_option(struct wave_rd *r, const struct deck_field *f)
 /* Waveforms read for nothing but a warning. */
 static int is_other_wave(const struct deck_field *f)
 {
-	static const char *const w[] = {"am", "trnoise", "trrandom", "pat",
+	static const char *const w[] = {"trnoise", "trrandom", "pat",
 					"noise", NULL};
 	for (int i = 0; w[i]; i++)
 		if (deck_atom_is(f, w[i]))
@@ -155,6 +160,7 @@ static enum dev_status skip_other_wave(struct wave_rd *r,
 	struct diag_loc l = {r->card->loc.file, f->line, f->col};
 	diag_add(r->d, DIAG_WARNING, "source", l,
 		 "waveform '%s' is not understood: only its DC value is used", f->text);
+	r->src->unknown = 1;
 	r->i++;
 	while (r->i < r->card->nfields && numeric(&r->card->fields[r->i]))
 		r->i++;
@@ -175,6 +181,7 @@ static enum dev_status on_call(struct wave_rd *r, const struct deck_field *f)
 	struct diag_loc l = {r->card->loc.file, f->line, f->col};
 	diag_add(r->d, DIAG_WARNING, "source", l,
 		 "waveform '%s' is not understood: only its DC value is used", f->text);
+	r->src->unknown = 1;
 	return DEV_OK;
 }
 

@@ -1,0 +1,40 @@
+/* simbound.h: a number for every stress the analysis cannot prove. The
+ * whole circuit is run by the transient solver to its periodic steady
+ * state at the worst corners of the source tolerances with the diodes as
+ * modelled, and at the all-high corner once more with nearly ideal diodes
+ * (the analysis's own idealisation, usually the higher); each unproven
+ * stress takes the largest value seen, plus the solver's error allowance,
+ * and is labelled
+ * "simulated, not proven". A stress in an island with a part neither the
+ * analysis nor the solver models gets no number: the rules then warn. */
+#ifndef HEADROOM_SIMBOUND_H
+#define HEADROOM_SIMBOUND_H
+
+#include "audit.h"
+#include "profile.h"
+#include "stress.h"
+
+/* Allowance for the solver's own error on a simulated bound (its reltol
+ * is 1e-3; steady state is judged to 1e-4 a period): relative, plus volts. */
+#define SIMBOUND_REL 5e-3
+#define SIMBOUND_ABS 0.01
+
+/* At most this many sources get a corner of their own (the others move
+ * together in the all-high and all-low corners). */
+#define SIMBOUND_MAX_SOLO 4
+
+struct simbound_limits {
+	unsigned max_periods;     /* per run; 0: 4000 */
+	unsigned long max_work;   /* Newton iterations per run; 0: 5,000,000 */
+	unsigned long total_work; /* per file, all runs, in Newton iterations
+				     times unknowns; 0: 30,000,000 */
+};
+
+/* Simulates where sr has unproven stresses and fills their numbers (basis,
+ * worst, best, corner, energy) and sr->fallback. lim may be NULL.
+ * Allocates in ar. Returns 0 on out-of-memory. */
+int simbound_run(const struct audit *a, const struct profile *p,
+		 const struct simbound_limits *lim, struct arena *ar,
+		 struct stress_result *sr);
+
+#endif

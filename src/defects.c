@@ -1,0 +1,163 @@
+/* defects.c: circuit defects (defects.h). The forward voltage of a diode is
+ * read from the nominal propagation (ideal diodes, nominal sources): where
+ * both its nodes follow the sources through less than DEFECTS_LOOP_OHMS, a
+ * forward voltage above its drop drives a current that only that
+ * resistance limits, every cycle. */
+#include "defects.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "dmodel.h"
+#include "num.h"
+
+struct dctx {
+	const struct audit *a;
+	const struct rating *r;
+	const struct stress_result *s;
+	struct arena *ar;
+	struct rules_result *out;
+};
+
+static int held(const struct prop_node *n, uint32_t id)
+{
+	return id == NL_GROUND || (n->state == PS_RESOLVED &&
+				   (n->how == PH_GROUND || n->how == PH_SOURCE || n->how == PH_VCVS));
+}
+
+/* The source-held node that node id follows through a resistor below
+ * DEFECTS_LOOP_OHMS (itself when held), with that resistance; NL_NONE when
+ * none. */
+static uint32_t stiff(const struct nl_circuit *c, const struct prop_result *nom, uint32_t id,
+		      double *ohm)
+{
+	*ohm = 0;
+	if (held(&nom->nodes[id], id))
+		return id;
+	uint32_t k, best = NL_NONE;
+	const uint32_t *adj = nl_adjacency(c, id, &k);
+	*ohm = INFINITY;
+	for (uint32_t i = 0; i < k; i++) {
+		const struct nl_part *r = nl_part_at(c, adj[i]);
+		const uint32_t *q = nl_pins(c, r);
+		uint32_t o = q[0] == id ? q[1] : q[0];
+		double v = r->kind == NL_R ? r->value / (r->ext ? r->ext->mult : 1.0) : INFINITY;
+		if (v < DEFECTS_LOOP_OHMS && v < *ohm && held(&nom->nodes[o], o)) {
+			*ohm = v;
+			best = o;
+		}
+	}
+	return best;
+}
+
+/* The largest anode-minus-cathode voltage over a period, NaN if unknown. */
+static double forward_max(const struct prop_result *nom, const struct prop_node *a,
+			  const struct prop_node *k, struct arena *ar)
+{
+	const struct form *d = a->f && k->f ? form_lin(ar, 1, a->f, -1, k->f) : NULL;
+	double lo, hi;
+	int exact;
+	if (!d)
+		return NAN;
+	form_range(&nom->fc, d, &lo, &hi, &exact);
+	return hi;
+}
+
+static int loop_diode(struct dctx *x, uint32_t i)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	const struct nl_part *p = nl_part_at(c, i);
+	const struct prop_result *nom = &x->s->runs[0];
+	const uint32_t *q = nl_pins(c, p);
+	double r0, r1, rs = dmodel_value(p->model, DM_RS) / (p->value > 0 ? p->value : 1);
+	uint32_t h0 = stiff(c, nom, q[0], &r0), h1 = stiff(c, nom, q[1], &r1);
+	double rl = r0 + r1 + rs;
+	if (h0 == NL_NONE || h1 == NL_NONE || !(rl < DEFECTS_LOOP_OHMS))
+		return 1;
+	const struct prop_node *an = &nom->nodes[h0], *ka = &nom->nodes[h1];
+	double vf = rating_vf(p, x->r[i].kind), fwd = forward_max(nom, an, ka, x->ar);
+	if (!(fwd > vf + 1))
+		return 1;
+	struct finding *f = rules_add(x->out, x->ar, RULE_DIODE_LOOP);
+	if (!f)
+		return 0;
+	char v[32], ohm[32], amp[32], buf[600];
+	num_format_eng(fwd, "V", v, sizeof v);
+	num_format_eng(rl, "ohm", ohm, sizeof ohm);
+	num_format_eng((fwd - vf) / rl, "A", amp, sizeof amp);
+	f->part = i;
+	f->loc = nl_part_loc(p);
+	f->subject = p->path;
+	f->worst = (fwd - vf) / rl;
+	f->unit = "A";
+	snprintf(buf, sizeof buf, "%s is driven forward by up to %s straight from the sources, "
+		 "through only %s: nothing limits its current (about %s every cycle)",
+		 p->path, v, ohm, amp);
+	f->message = arena_strdup(x->ar, buf);
+	snprintf(buf, sizeof buf, "forward = max v(%s) - v(%s) over a period at nominal sources; "
+		 "I = (forward - Vf) / (series resistance + RS)",
+		 nl_node_at(c, q[0])->name, nl_node_at(c, q[1])->name);
+	f->computation = arena_strdup(x->ar, buf);
+	f->fix = "put the missing series capacitor (the first pump capacitor of a clamp or "
+		 "ladder) or a current-limiting resistor in the diode's loop";
+	return f->message && f->computation;
+}
+
+/* Two capacitors, or two diodes the same way round, on the same two nodes
+ * with the same value and model, in one diode-capacitor structure. */
+static int same_part(const struct nl_circuit *c, const struct nl_part *p, const struct nl_part *o)
+{
+	const uint32_t *a = nl_pins(c, p), *b = nl_pins(c, o);
+	if (p->kind != o->kind || p->model != o->model || p->value != o->value)
+		return 0;
+	if (p->kind == NL_D)
+		return a[0] == b[0] && a[1] == b[1];
+	return (a[0] == b[0] && a[1] == b[1]) || (a[0] == b[1] && a[1] == b[0]);
+}
+
+static int duplicates(struct dctx *x, const struct topo_struct *t)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	for (uint32_t i = 0; i < t->nparts; i++)
+		for (uint32_t j = 0; j < i; j++) {
+			const struct nl_part *p = nl_part_at(c, t->parts[i].part);
+			const struct nl_part *o = nl_part_at(c, t->parts[j].part);
+			if (!same_part(c, p, o))
+				continue;
+			struct finding *f = rules_add(x->out, x->ar, RULE_PART_TWIN);
+			char buf[600];
+			if (!f)
+				return 0;
+			const uint32_t *q = nl_pins(c, p);
+			f->part = t->parts[i].part;
+			f->loc = nl_part_loc(p);
+			f->subject = p->path;
+			snprintf(buf, sizeof buf, "%s repeats %s: the same value on the same nodes (%s, %s) "
+				 "inside a diode-capacitor network, where each position holds one part",
+				 p->path, o->path, nl_node_at(c, q[0])->name, nl_node_at(c, q[1])->name);
+			f->message = arena_strdup(x->ar, buf);
+			f->fix = "check the netlist: a node name copied from the line above usually "
+				 "leaves another position of the network without its part";
+			if (!f->message)
+				return 0;
+		}
+	return 1;
+}
+
+int defects_run(const struct audit *a, const struct rating *r,
+		const struct stress_result *s, struct arena *ar,
+		struct rules_result *out)
+{
+	struct dctx x = {a, r, s, ar, out};
+	const struct nl_circuit *c = a->er.circuit;
+	if (!s->runs)
+		return 1;
+	for (uint32_t i = 0; i < nl_part_count(c); i++)
+		if (nl_part_at(c, i)->kind == NL_D && nl_part_at(c, i)->npins == 2 && !loop_diode(&x, i))
+			return 0;
+	for (size_t k = 0; k < a->topo.n; k++)
+		if (!duplicates(&x, &a->topo.s[k]))
+			return 0;
+	return 1;
+}

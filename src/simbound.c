@@ -1,0 +1,364 @@
+/* simbound.c: simulated numbers for the stresses the analysis cannot
+ * prove (simbound.h). Corners: every toleranced source at +tol, every one
+ * at -tol, and each of the first SIMBOUND_MAX_SOLO alone at +tol with the
+ * rest at -tol (a bootstrap diode sees most with its rail low and the
+ * switch node high). A source's whole waveform scales in a corner, so a
+ * PULSE level at 0 V stays at 0 V. */
+#include "simbound.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <stdio.h>
+#include <string.h>
+
+#include "simrun.h"
+
+/* What the runs found, per part. */
+struct acc {
+	double *worst, *best, *rev_min;
+	const char **corner;
+	unsigned char *seen;     /* a settled run gave this part a value */
+	unsigned char *blocked;  /* per island: a part the solver cannot take */
+	const char *blocked_why;
+};
+
+struct sb {
+	const struct audit *a;
+	const struct profile *p;
+	struct arena *ar;
+	struct stress_result *sr;
+	struct simrun_opts o;
+	struct acc acc;
+	struct stress_fallback *fb;
+	double *scale, *set;     /* the corner being run */
+	double *vmin, *vmax;
+	unsigned long work, total_work; /* Newton iterations times unknowns */
+	unsigned long run_work;  /* Newton iterations allowed in one run */
+	unsigned long size;      /* unknowns of the circuit (estimate first) */
+};
+
+static int needs_run(const struct stress_result *sr, const unsigned char *blocked)
+{
+	for (size_t i = 0; i < sr->n; i++) {
+		const struct stress *s = &sr->s[i];
+		uint32_t is = sr->island ? sr->island[s->part] : NL_NONE;
+		if (s->unproven && s->qty != SQ_SURGE && !(blocked && is != NL_NONE && blocked[is]))
+			return 1;
+	}
+	return 0;
+}
+
+/* Sources with a tolerance or a range: the corners move them. */
+static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t n = 0;
+	for (size_t i = 0; i < nl_part_count(c) && n < max; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		if (pt->kind == NL_V && (stress_tolerance(b->a, b->p, (uint32_t)i) > 0 ||
+					 isfinite(b->a->sources[i].max)))
+			out[n++] = (uint32_t)i;
+	}
+	return n;
+}
+
+/* Sets the corner: solo < 0 moves everything to one end (high when
+ * solo == -1), else source solo high and the others low. */
+static void set_corner(struct sb *b, long solo, char *name, size_t n)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		int high = solo == -1 || (solo >= 0 && (size_t)solo == i);
+		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
+		const struct audit_source *as = &b->a->sources[i];
+		b->scale[i] = high ? 1 + t : 1 - t;
+		b->set[i] = pt->kind == NL_V && isfinite(as->max) ? (high ? as->max : as->min) : NAN;
+	}
+	if (solo >= 0)
+		snprintf(name, n, "%s at its high end, the other sources at their low end",
+			 nl_part_at(c, (size_t)solo)->path);
+	else
+		snprintf(name, n, "every source at its %s end", solo == -1 ? "high" : "low");
+}
+
+/* A part's stress from its voltage extremes: a capacitor's largest |V|, a
+ * diode's largest reverse voltage (pin 0 is its anode). */
+static double peak_of(const struct nl_circuit *c, uint32_t k, const double *vmin,
+		      const double *vmax)
+{
+	return nl_part_at(c, k)->kind == NL_D ? fmax(-vmin[k], 0) : fmax(vmax[k], -vmin[k]);
+}
+
+/* Folds one run's extremes into the accumulators. */
+static void take(struct sb *b, const char *corner, int real)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	struct acc *x = &b->acc;
+	for (size_t i = 0; i < b->sr->n; i++) {
+		const struct stress *s = &b->sr->s[i];
+		uint32_t k = s->part;
+		if (s->qty == SQ_SURGE || !s->unproven || !isfinite(b->vmin[k]))
+			continue;
+		double v = peak_of(c, k, b->vmin, b->vmax);
+		if (!x->seen[k] || v > x->worst[k]) {
+			x->worst[k] = v;
+			x->corner[k] = corner;
+		}
+		if (real)
+			x->best[k] = fmin(x->best[k], v);
+		x->rev_min[k] = fmin(x->rev_min[k], b->vmin[k]);
+		x->seen[k] = 1;
+	}
+}
+
+/* Why a run gave nothing (in the arena; NULL on out-of-memory). */
+static const char *fail_why(struct sb *b, const struct simrun_result *r, const char *corner)
+{
+	char buf[400];
+	const char *what = r->status != SIM_OK ? sim_status_text(r->status)
+			 : r->period <= 0 ? "no source repeats, so there is no steady state"
+					  : "the steady state was not reached within the periods allowed";
+	snprintf(buf, sizeof buf, "the simulation (%.200s) failed: %s", corner, what);
+	return arena_strdup(b->ar, buf);
+}
+
+/* A real run still rising when its periods ran out stands only where the
+ * settled nearly-ideal run of the same corner stays above it everywhere:
+ * charging from zero approaches from below, and the ideal diodes' steady
+ * state is then the ceiling it rises to. */
+static int under_ideal(const struct sb *b, const double *imin, const double *imax)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	for (size_t i = 0; i < b->sr->n; i++) {
+		const struct stress *s = &b->sr->s[i];
+		uint32_t k = s->part;
+		if (s->qty == SQ_SURGE || !s->unproven || !isfinite(b->vmin[k]))
+			continue;
+		double real = peak_of(c, k, b->vmin, b->vmax), ideal = peak_of(c, k, imin, imax);
+		if (!(real <= ideal * (1 + 1e-3) + 1e-3))
+			return 0;
+	}
+	return 1;
+}
+
+/* One corner: with nearly ideal diodes (when asked) and as modelled. */
+static int run_corner(struct sb *b, const char *name, double *imin, double *imax, int ideal)
+{
+	static const char *const how[3] = {"; diodes nearly ideal", "; diodes as modelled",
+					   "; diodes as modelled (still rising: under the ideal run)"};
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t np = nl_part_count(c) + 1;
+	struct hr_alloc h = *arena_hook(b->ar);
+	int ideal_ok = 0;
+	for (int real = !ideal; real < 2; real++) {
+		if (b->work >= b->total_work) {
+			if (!b->fb->why)
+				b->fb->why = "the simulation needs more work than allowed for one file";
+			return 1;
+		}
+		struct simrun_result r;
+		char buf[320];
+		b->o.ideal_diodes = !real;
+		/* work is Newton iterations times unknowns: a run may use what
+		   is left of the file's allowance, up to its own limit */
+		unsigned long left = (b->total_work - b->work) / b->size;
+		b->o.max_work = left < b->run_work ? (left ? left : 1) : b->run_work;
+		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, NULL, NULL, &r);
+		b->fb->runs++;
+		if (r.stats.unknowns)
+			b->size = r.stats.unknowns;
+		b->work += r.stats.newton * b->size;
+		if (r.status == SIM_OOM)
+			return 0;
+		int ran = r.status == SIM_OK && r.period > 0;
+		int rising = real && ran && !r.settled && ideal_ok && under_ideal(b, imin, imax);
+		if (ran && !r.settled)
+			b->fb->unsettled++;
+		if (!ran || (!r.settled && !rising)) {
+			/* a corner whose real run fails leaves the worst case
+			   unknown: nothing simulated may stand for it */
+			if (real && !b->fb->why && !(b->fb->why = fail_why(b, &r, name)))
+				return 0;
+			continue;
+		}
+		if (!real) {
+			ideal_ok = 1;
+			memcpy(imin, b->vmin, np * sizeof *imin);
+			memcpy(imax, b->vmax, np * sizeof *imax);
+		}
+		snprintf(buf, sizeof buf, "simulated, %.200s%s", name, how[rising ? 2 : real]);
+		const char *corner = arena_strdup(b->ar, buf);
+		if (!corner)
+			return 0;
+		take(b, corner, real);
+	}
+	return 1;
+}
+
+/* Parts the solver has no model for are left open; their islands get no
+ * simulated number (the circuit simulated would not be the real one). */
+static int leave_out(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t np = nl_part_count(c);
+	unsigned char *mask = arena_zalloc(b->ar, np + 1);
+	if (!mask)
+		return 0;
+	for (size_t i = 0; i < np; i++) {
+		struct sim_refusal ref;
+		if (sim_part_supported(c, i, &ref))
+			continue;
+		mask[i] = 1;
+		uint32_t is = b->sr->island[i];
+		if (is != NL_NONE)
+			b->acc.blocked[is] = 1;
+		if (!b->acc.blocked_why) {
+			char buf[1500];
+			snprintf(buf, sizeof buf, "%s has no model in the solver either (%s)",
+				 nl_part_at(c, i)->path, ref.why);
+			b->acc.blocked_why = arena_strdup(b->ar, buf);
+		}
+	}
+	b->o.leave_out = mask;
+	b->o.gshunt = 1e-12;
+	return 1;
+}
+
+static int alloc_all(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t np = nl_part_count(c) + 1, nn = nl_node_count(c) + 1;
+	struct acc *x = &b->acc;
+	x->worst = arena_alloc(b->ar, np * sizeof *x->worst);
+	x->best = arena_alloc(b->ar, np * sizeof *x->best);
+	x->rev_min = arena_alloc(b->ar, np * sizeof *x->rev_min);
+	x->corner = arena_zalloc(b->ar, np * sizeof *x->corner);
+	x->seen = arena_zalloc(b->ar, np);
+	x->blocked = arena_zalloc(b->ar, nn);
+	b->scale = arena_alloc(b->ar, np * sizeof *b->scale);
+	b->set = arena_alloc(b->ar, np * sizeof *b->set);
+	b->vmin = arena_alloc(b->ar, np * sizeof *b->vmin);
+	b->vmax = arena_alloc(b->ar, np * sizeof *b->vmax);
+	b->fb = arena_zalloc(b->ar, sizeof *b->fb);
+	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
+		x->best[i] = x->rev_min[i] = INFINITY;
+	return x->worst && x->best && x->rev_min && x->corner && x->seen && x->blocked &&
+	       b->scale && b->set && b->vmin && b->vmax && b->fb;
+}
+
+/* A corner failed: no simulated value is a worst case any more. */
+static void forget(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	memset(b->acc.seen, 0, nl_part_count(c) + 1);
+	if (!b->acc.blocked_why)
+		b->acc.blocked_why = b->fb->why;
+	for (size_t i = 0; i < b->sr->n; i++) {
+		uint32_t is = b->sr->island[b->sr->s[i].part];
+		if (is != NL_NONE && b->sr->s[i].unproven)
+			b->acc.blocked[is] = 1;
+	}
+}
+
+/* Capacitors start at the analysis's best-case DC where it has one, as
+ * --verify does: settling then takes a few periods instead of thousands. */
+static int start_caps(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t np = nl_part_count(c);
+	double *v0 = arena_alloc(b->ar, (np + 1) * sizeof *v0);
+	if (!v0)
+		return 0;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		v0[i] = pt->kind == NL_C && pt->npins == 2 ? stress_low_dc(b->a, b->sr, b->ar, pt) : NAN;
+	}
+	b->o.cap_v0 = v0;
+	return 1;
+}
+
+/* Writes the numbers into the unproven stresses. */
+static void fill(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	const struct acc *x = &b->acc;
+	double hz = profile_hazard(b->p);
+	for (size_t i = 0; i < b->sr->n; i++) {
+		struct stress *s = &b->sr->s[i];
+		uint32_t k = s->part, is = b->sr->island[k];
+		if (s->qty == SQ_SURGE || !s->unproven)
+			continue;
+		int blocked = is != NL_NONE && x->blocked[is];
+		if (blocked || !x->seen[k]) {
+			s->bounded = 0;
+			s->basis = SB_NONE;
+			s->best = s->worst = s->rev_min = NAN;
+			if (blocked)
+				s->unproven = x->blocked_why;
+			b->fb->left++;
+			continue;
+		}
+		s->bounded = 1;
+		s->basis = SB_SIMULATED;
+		s->worst = x->worst[k] * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
+		s->best = isfinite(x->best[k]) ? x->best[k] : x->worst[k];
+		s->rev_min = x->rev_min[k];
+		s->corner = x->corner[k];
+		const struct nl_part *pt = nl_part_at(c, k);
+		if (pt->kind == NL_C)
+			stress_set_energy(s, pt->value * (pt->ext ? pt->ext->mult : 1.0), hz);
+		b->fb->given++;
+	}
+}
+
+int simbound_run(const struct audit *a, const struct profile *p,
+		 const struct simbound_limits *lim, struct arena *ar,
+		 struct stress_result *sr)
+{
+	struct sb b;
+	uint32_t solo[SIMBOUND_MAX_SOLO];
+	char names[SIMBOUND_MAX_SOLO + 2][200];
+	if (!needs_run(sr, NULL))
+		return 1;
+	memset(&b, 0, sizeof b);
+	b.a = a, b.p = p, b.ar = ar, b.sr = sr;
+	if (!alloc_all(&b) || !leave_out(&b))
+		return 0;
+	sr->fallback = b.fb;
+	if (!needs_run(sr, b.acc.blocked)) {
+		fill(&b); /* every unproven island has a part the solver cannot take */
+		return 1;
+	}
+	b.o.ac_scale = b.o.dc_scale = b.scale;
+	b.o.dc_set = b.set;
+	if (!start_caps(&b))
+		return 0;
+	b.o.max_periods = lim && lim->max_periods ? lim->max_periods : 4000;
+	b.run_work = lim && lim->max_work ? lim->max_work : 5000000;
+	b.size = nl_node_count(a->er.circuit) + 1;
+	size_t ns = moving_sources(&b, solo, SIMBOUND_MAX_SOLO);
+	long corners[SIMBOUND_MAX_SOLO + 2] = {-1, -2};
+	size_t nc = ns ? 2 : 1;
+	for (size_t k = 0; ns > 1 && k < ns; k++)
+		corners[nc++] = (long)solo[k];
+	size_t np = nl_part_count(a->er.circuit) + 1;
+	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
+	if (!imin || !imax)
+		return 0;
+	b.total_work = lim && lim->total_work ? lim->total_work : 30000000;
+	/* nearly ideal diodes at the all-high corner only, where the
+	   analysis's own worst case lies; the real diodes everywhere */
+	for (size_t k = 0; k < nc && !b.fb->why; k++) {
+		set_corner(&b, corners[k], names[k], sizeof names[k]);
+		if (!run_corner(&b, names[k], imin, imax, k == 0))
+			return 0;
+	}
+	if (b.fb->why)
+		forget(&b);
+	fill(&b);
+	for (size_t i = 0; i < sr->n; i++)
+		if (sr->s[i].bounded && sr->s[i].qty != SQ_SURGE)
+			sr->max_voltage = fmax(sr->max_voltage, sr->s[i].worst);
+	return 1;
+}
