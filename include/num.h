@@ -50,4 +50,8 @@ int num_iequal(const char *a, size_t an, const char *b, size_t bn);
  * "2.2 MHz"). */
 void num_format_eng(double v, const char *unit, char *buf, size_t n);
 
+/* True when s is a calendar date written YYYY-MM-DD (ISO 8601), month and
+ * day in range for that month and year (leap years by the Gregorian rule). */
+int num_iso_date(const char *s);
+
 #endif

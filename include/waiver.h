@@ -1,5 +1,5 @@
 /* waiver.h: waivers (*@waive lines in a netlist or in a --waivers file) and
- * baselines (an earlier JSON report). A waiver names a rule (or "*"), a
+ * baselines (an earlier JSON report). A waiver names one rule, a
  * part glob, a mandatory reason and an optional expiry date; a finding it
  * matches is kept but marked waived; an expired waiver waives nothing and
  * becomes a finding; a waiver that matches nothing is a note. A baseline

@@ -169,6 +169,31 @@ static char *prefixed(struct arena *ar, const char *prefix, const char *w,
 	return t;
 }
 
+/* A waiver names one rule, gives a reason with words in it, and expires on
+ * a real ISO 8601 date, or it is an error: a waiver that waives more, for
+ * longer or for less reason than it says is worse than none. */
+static int waiver_ok(struct lexer *l, const struct annot *w)
+{
+	const struct annot_kv *r = annot_get(w, "reason"), *u = annot_get(w, "until");
+	if (!r) {
+		err(l, "a waiver needs reason=\"...\"%s", "");
+		return 0;
+	}
+	if (!r->text[strspn(r->text, " \t")]) {
+		err(l, "a waiver's reason is empty: say why the finding is accepted%s", "");
+		return 0;
+	}
+	if (u && !num_iso_date(u->text)) {
+		err(l, "until='%s' is not a date: write it YYYY-MM-DD", u->text);
+		return 0;
+	}
+	if (strcmp(w->rule, "*") == 0) {
+		err(l, "a waiver must name the rule it waives: '*' would waive every rule%s", "");
+		return 0;
+	}
+	return 1;
+}
+
 /* Parses one line; 1 on success, 0 when reported, -1 on out-of-memory. */
 static int parse_one(const struct elab_annot *a, struct arena *ar,
 		     struct diag_sink *d, struct annot *out)
@@ -205,10 +230,8 @@ static int parse_one(const struct elab_annot *a, struct arena *ar,
 		return -1;
 	if (!pairs(&l, ar, dv, out))
 		return d && diag_oom(d) ? -1 : 0;
-	if (dv->kind == AN_WAIVE && !annot_get(out, "reason")) {
-		err(&l, "a waiver needs reason=\"...\"%s", "");
+	if (dv->kind == AN_WAIVE && !waiver_ok(&l, out))
 		return 0;
-	}
 	return 1;
 }
 

@@ -14,6 +14,7 @@
 #include "check.h"
 #include "cli_batch.h"
 #include "cli_out.h"
+#include "num.h"
 #include "report_check.h"
 
 /* What every file's check shares: read-only once the batch starts. */
@@ -170,7 +171,7 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 		return 0;
 	if (c->baseline && !(o->baseline = baseline_load(c->baseline, ar, d)))
 		return 0;
-	if (c->today && (strlen(c->today) != 10 || c->today[4] != '-' || c->today[7] != '-')) {
+	if (c->today && !num_iso_date(c->today)) {
 		fprintf(stderr, "headroom: --today takes YYYY-MM-DD, not '%s'\n", c->today);
 		return 0;
 	}

@@ -122,13 +122,19 @@ void cli_usage(FILE *out)
 	      out);
 }
 
-static const struct opt_def *opt_find(const char *name)
+/* The option named by name[0..n). */
+static const struct opt_def *opt_find_n(const char *name, size_t n)
 {
 	for (size_t i = 0; i < sizeof opts / sizeof opts[0]; i++)
-		if (strcmp(name, opts[i].name) == 0 ||
-		    (opts[i].alias && strcmp(name, opts[i].alias) == 0))
+		if ((strlen(opts[i].name) == n && strncmp(name, opts[i].name, n) == 0) ||
+		    (opts[i].alias && strlen(opts[i].alias) == n && strncmp(name, opts[i].alias, n) == 0))
 			return &opts[i];
 	return NULL;
+}
+
+static const struct opt_def *opt_find(const char *name)
+{
+	return opt_find_n(name, strlen(name));
 }
 
 static int parse_count(const char *s, size_t *out)
@@ -231,9 +237,17 @@ int cli_parse(struct cli *c, int argc, char **argv)
 		return 0;
 	for (int i = 1; i < argc; i++) {
 		const char *a = argv[i];
-		const struct opt_def *o = opt_find(a);
-		if (o && o->kind == OPT_FLAG) {
+		const char *eq = a[0] == '-' && a[1] == '-' ? strchr(a, '=') : NULL;
+		const struct opt_def *o = eq ? opt_find_n(a, (size_t)(eq - a)) : opt_find(a);
+		if (o && o->kind == OPT_FLAG && !eq) {
 			*(int *)(void *)((char *)c + o->off) = 1;
+		} else if (o && eq) {
+			/* --opt=value, as --opt value */
+			if (o->kind == OPT_FLAG || !set_value(c, o, eq + 1)) {
+				if (o->kind == OPT_FLAG)
+					fprintf(stderr, "headroom: %s takes no value\n", o->name);
+				return 0;
+			}
 		} else if (o) {
 			if (!set_value(c, o, i + 1 < argc ? argv[i + 1] : NULL))
 				return 0;

@@ -282,3 +282,19 @@ void num_format_eng(double v, const char *unit, char *buf, size_t n)
 		}
 	}
 }
+
+int num_iso_date(const char *s)
+{
+	static const int days[12] = {31, 29, 31, 30, 31, 30, 31, 31, 30, 31, 30, 31};
+	for (int i = 0; i < 10; i++)
+		if ((i == 4 || i == 7) ? s[i] != '-' : (s[i] < '0' || s[i] > '9'))
+			return 0;
+	if (s[10] != '\0')
+		return 0;
+	int y = (s[0] - '0') * 1000 + (s[1] - '0') * 100 + (s[2] - '0') * 10 + (s[3] - '0');
+	int m = (s[5] - '0') * 10 + (s[6] - '0'), d = (s[8] - '0') * 10 + (s[9] - '0');
+	int leap = (y % 4 == 0 && y % 100 != 0) || y % 400 == 0;
+	if (m < 1 || m > 12 || d < 1 || d > days[m - 1])
+		return 0;
+	return m != 2 || d <= 28 + leap;
+}

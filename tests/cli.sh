@@ -292,5 +292,19 @@ else
 	echo "cli: skipped the device-node test (needs root to make one)"
 fi
 
+# Dates, reasons and rules of waivers; dates and --opt=value on the command line.
+printf 't\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nD1 0 x dm\n.model dm d\n*@waive rating-missing C1 reason="ok" until=next-year\n*@waive rating-missing D1 reason="" \n*@waive * C1 reason="all"\n*@waive rating-missing C1 reason="x" until=2027-02-30\n' > "$tmp/waivers_bad.cir"
+run check "$tmp/waivers_bad.cir"
+check "a waiver date that is not YYYY-MM-DD is a located error" grep -q "waivers_bad.cir:6:54: error: until='next-year' is not a date: write it YYYY-MM-DD" "$tmp/err"
+check "a waiver date that does not exist is a located error" grep -q "waivers_bad.cir:9:54: error: until='2027-02-30' is not a date" "$tmp/err"
+check "an empty waiver reason is a located error" grep -q "waivers_bad.cir:7:37: error: a waiver's reason is empty" "$tmp/err"
+check "a blanket '*' waiver is a located error" bash -c "test $rc -eq 2 && grep -q \"waivers_bad.cir:8:26: error: a waiver must name the rule it waives\" '$tmp/err'"
+run check --today 2026-13-40 "$here/../examples/rf_doubler.cir"
+check "--today with a month 13 is a usage error" bash -c "test $rc -eq 2 && grep -q \"not '2026-13-40'\" '$tmp/err'"
+run check --format=json --fail-on=never "$here/../examples/rf_doubler.cir"
+check "--opt=value works like --opt value" bash -c "test $rc -eq 0 && python3 -c \"import json,sys; json.load(open('$tmp/out'))\""
+run check --quiet=1 "$here/../examples/rf_doubler.cir"
+check "a flag given a value is a usage error" bash -c "test $rc -eq 2 && grep -q -- '--quiet takes no value' '$tmp/err'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

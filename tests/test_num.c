@@ -112,6 +112,24 @@ static void test_format(void **state)
 	assert_string_equal(b, "2.2Meg");
 }
 
+/* ISO 8601 calendar dates (YYYY-MM-DD), Gregorian leap years: a year
+ * divisible by 4 but not by 100, or by 400. */
+static void test_iso_date(void **state)
+{
+	(void)state;
+	static const struct {
+		const char *s;
+		int ok;
+	} dates[] = {
+		{"2026-12-02", 1}, {"2024-02-29", 1}, {"2000-02-29", 1}, {"1900-02-29", 0},
+		{"2027-02-29", 0}, {"2026-13-40", 0}, {"2026-00-10", 0}, {"2026-04-31", 0},
+		{"2026-4-30", 0}, {"31/03/2027", 0}, {"next-year", 0}, {"2026-12-02x", 0}, {"", 0},
+	};
+	for (size_t i = 0; i < sizeof dates / sizeof dates[0]; i++)
+		if (num_iso_date(dates[i].s) != dates[i].ok)
+			fail_msg("'%s' read as %s", dates[i].s, dates[i].ok ? "not a date" : "a date");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -119,6 +137,7 @@ int main(void)
 		cmocka_unit_test(test_bad_offset),
 		cmocka_unit_test(test_fold_and_compare),
 		cmocka_unit_test(test_format),
+		cmocka_unit_test(test_iso_date),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
