@@ -92,8 +92,8 @@ static int loop_diode(struct dctx *x, uint32_t i)
 	f->worst = (fwd - vf) / rl;
 	f->unit = "A";
 	snprintf(buf, sizeof buf, "%s is driven forward by up to %s straight from the sources, "
-		 "through only %s: nothing limits its current (about %s every cycle)",
-		 p->path, v, ohm, amp);
+		 "through only %s: nothing limits its current (about %s %s)",
+		 p->path, v, ohm, amp, form_is_dc(an->f) && form_is_dc(ka->f) ? "all the time" : "every cycle");
 	f->message = arena_strdup(x->ar, buf);
 	snprintf(buf, sizeof buf, "forward = max v(%s) - v(%s) over a period at nominal sources; "
 		 "I = (forward - Vf) / (series resistance + RS)",

@@ -13,7 +13,48 @@ static const char *const cap_rules[] = {"cap-overvoltage", "cap-derating",
 					"cap-reverse-bias", "stored-charge", NULL};
 static const char *const diode_rules[] = {"diode-overvoltage", "diode-derating",
 					  "slow-recovery", NULL};
-static const char *const surge_rules[] = {"surge-current", "surge-unbounded", NULL};
+static const char *const surge_rules[] = {"surge-current", "surge-excess", "surge-unbounded", NULL};
+
+static int listed(const char *const *list, const char *id)
+{
+	for (; *list; list++)
+		if (strcmp(*list, id) == 0)
+			return 1;
+	return 0;
+}
+
+/* A finding of a rule that no stress's testcase covers (a structure, a
+ * node, a waiver, a defect, an unbounded part): it gets a testcase of its
+ * own, so that no finding is missing from this format. */
+static int own_case(const struct finding *g)
+{
+	return !listed(cap_rules, g->rule->id) && !listed(diode_rules, g->rule->id) &&
+	       !listed(surge_rules, g->rule->id);
+}
+
+static void finding_case(FILE *out, const struct check_file *f, const struct finding *g)
+{
+	fputs("    <testcase classname=\"", out);
+	report_xml_text(out, f->path);
+	fprintf(out, "\" name=\"%s ", g->rule->id);
+	report_xml_text(out, g->subject ? g->subject : "");
+	fputs("\" time=\"0\"", out);
+	if (g->rule->severity == DIAG_NOTE || g->waived) {
+		fputs(">\n      <skipped message=\"", out);
+		report_xml_text(out, g->waived ? "waived" : g->message);
+		fputs("\"/>\n    </testcase>\n", out);
+		return;
+	}
+	fprintf(out, ">\n      <failure type=\"%s\" message=\"", g->rule->id);
+	report_xml_text(out, g->message);
+	fputs("\">", out);
+	report_xml_text(out, g->computation ? g->computation : "");
+	if (g->fix) {
+		fputs("\nfix: ", out);
+		report_xml_text(out, g->fix);
+	}
+	fputs("</failure>\n    </testcase>\n", out);
+}
 
 static const struct finding *finding_for(const struct check_file *f,
 					 const char *rule, uint32_t part)
@@ -85,6 +126,16 @@ static void counts(const struct check_file *f, size_t *tests, size_t *fails,
 				(*skips)++;
 		}
 	}
+	for (size_t i = 0; i < f->rules->n; i++) {
+		const struct finding *g = &f->rules->f[i];
+		if (!own_case(g))
+			continue;
+		(*tests)++;
+		if (g->rule->severity == DIAG_NOTE || g->waived)
+			(*skips)++;
+		else
+			(*fails)++;
+	}
 }
 
 void report_junit_file(FILE *out, const struct check_file *f,
@@ -108,6 +159,9 @@ void report_junit_file(FILE *out, const struct check_file *f,
 	for (size_t i = 0; i < f->stress->n; i++)
 		for (const char *const *r = rules_for(f, &f->stress->s[i]); *r; r++)
 			testcase(out, f, &f->stress->s[i], *r);
+	for (size_t i = 0; i < f->rules->n; i++)
+		if (own_case(&f->rules->f[i]))
+			finding_case(out, f, &f->rules->f[i]);
 	fputs("  </testsuite>\n", out);
 }
 

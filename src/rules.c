@@ -20,6 +20,7 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_DIODE_OVERVOLTAGE] = {"diode-overvoltage", DIAG_ERROR, "a diode's reverse voltage is above its rating"},
 	[RULE_DIODE_DERATING] = {"diode-derating", DIAG_WARNING, "a diode's reverse voltage is above the profile's share of its rating"},
 	[RULE_SURGE_CURRENT] = {"surge-current", DIAG_WARNING, "the power-up surge through a diode is above its surge rating"},
+	[RULE_SURGE_EXCESS] = {"surge-excess", DIAG_ERROR, "the power-up surge through a diode is above its surge rating itself"},
 	[RULE_SURGE_UNBOUNDED] = {"surge-unbounded", DIAG_WARNING, "nothing limits the power-up surge through a diode"},
 	[RULE_STORED_CHARGE] = {"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
 	[RULE_CLAMP_DROOP] = {"clamp-droop", DIAG_WARNING, "the load makes a clamp's capacitor droop too much each period"},
@@ -379,15 +380,21 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	double factor = profile_kind_key(x->p, "diode", r->kind, "surge", &note, &key);
 	if (isnan(r->i_surge.value) || isnan(factor) || !(s->worst > r->i_surge.value * factor))
 		return;
-	struct finding *f = add(x, RULE_SURGE_CURRENT, s->part, s->structure);
+	/* above the rating itself the part is over-stressed (an error); between
+	   the profile's share and the rating it only lacks margin (a warning) */
+	int over = s->worst > r->i_surge.value;
+	struct finding *f = add(x, over ? RULE_SURGE_EXCESS : RULE_SURGE_CURRENT, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = s->worst;
 	f->rating = r->i_surge.value;
 	f->limit = r->i_surge.value * factor;
 	f->unit = "A";
-	f->message = str(x, "power-up surge through %s is %s, above %.0f%% of its %s surge rating",
-			 f->subject, v(x, s->worst, "A"), factor * 100, v(x, r->i_surge.value, "A"));
+	f->message = over ? str(x, "power-up surge through %s is %s, above its %s surge rating (%.0f%% of it)",
+				f->subject, v(x, s->worst, "A"), v(x, r->i_surge.value, "A"),
+				100 * s->worst / r->i_surge.value)
+			  : str(x, "power-up surge through %s is %s, above %.0f%% of its %s surge rating",
+				f->subject, v(x, s->worst, "A"), factor * 100, v(x, r->i_surge.value, "A"));
 	f->computation = computation(x, s);
 	f->limits = str(x, "i_surge %s (%s); limit %s (profile %s, %s)", v(x, r->i_surge.value, "A"),
 			r->i_surge.from, v(x, f->limit, "A"), x->p->name, key);

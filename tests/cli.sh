@@ -306,5 +306,17 @@ check "--opt=value works like --opt value" bash -c "test $rc -eq 0 && python3 -c
 run check --quiet=1 "$here/../examples/rf_doubler.cir"
 check "a flag given a value is a usage error" bash -c "test $rc -eq 2 && grep -q -- '--quiet takes no value' '$tmp/err'"
 
+# Every warning and error finding reaches JUnit as a failure (defects,
+# unbounded parts and structure findings have test cases of their own).
+"$bin" check --format json --fail-on never --parts "$here/../examples/parts.csv" "$here/../examples" "$data/topo" > "$tmp/all.json" 2>/dev/null
+"$bin" check --format junit --fail-on never --parts "$here/../examples/parts.csv" "$here/../examples" "$data/topo" > "$tmp/all.junit" 2>/dev/null
+check "JUnit carries one failure per unwaived warning or error of the JSON report" python3 -c "
+import json,sys
+d=json.load(open(sys.argv[1]))
+want=sum(1 for f in d['files'] for g in f['findings'] if g['severity']!='note' and not g['waived'])
+got=open(sys.argv[2]).read().count('<failure ')
+assert want == got and want > 0, (want, got)
+" "$tmp/all.json" "$tmp/all.junit"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

@@ -111,10 +111,16 @@ static const struct rule_case cases[] = {
 	 "rev\nV1 a 0 sin(0 10 1k)\nD1 a o dm\nCE 0 o 10u\n.model dm d\n*@part CE v_rated=25V kind=alu-electrolytic\n",
 	 "rev\nV1 a 0 sin(0 10 1k)\nD1 a o dm\nCE o 0 10u\n.model dm d\n*@part CE v_rated=25V kind=alu-electrolytic\n",
 	 0},
-	/* 11 V / (10 ohm + 0.1 ohm) = 1.09 A: against 1 A x 80 % fires, 20 A quiet */
+	/* 11 V / (10 ohm + 0.1 ohm) = 1.09 A: within 1.2 A but above its
+	   80 % (0.96 A) fires; 20 A quiet */
 	{"surge-current", "DD",
-	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1A\n",
+	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1.2A\n",
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=20A\n",
+	 0.10},
+	/* the same 1.09 A above a 1 A rating itself: an error; 1.2 A quiet here */
+	{"surge-excess", "DD",
+	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1A\n",
+	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1.2A\n",
 	 0.10},
 	/* nothing in series with the source and no RS */
 	{"surge-unbounded", "DD",
