@@ -94,6 +94,43 @@ static int header(const char *const *cells, const unsigned *starts, int n,
 	return have_ref;
 }
 
+/* A header column the table does not know is an error at it: a misspelled
+ * "v_rate" would otherwise drop every rating in silence. Returns 0 when
+ * one was reported. */
+static int unknown_columns(struct diag_sink *d, struct diag_loc l, const char *const *cells,
+			   const unsigned *starts, int n, const int *map)
+{
+	int ok = 1;
+	for (int i = 0; i < n; i++)
+		if (map[i] < 0) {
+			l.col = starts[i];
+			diag_add(d, DIAG_ERROR, "parts", l,
+				 "unknown column '%s' (ref, kind, v_rated, i_surge, i_avg, trr, tol, note)",
+				 cells[i]);
+			ok = 0;
+		}
+	return ok;
+}
+
+/* The last row repeats an earlier row's ref (names compared without
+ * case): which rating would hold is then a guess, so it is an error. */
+static int duplicate_ref(const struct rating_table *t, struct diag_sink *d)
+{
+	const struct row *r = &t->rows[t->n - 1];
+	const char *ref = r->cell[COL_REF];
+	for (size_t i = 0; ref && *ref && i + 1 < t->n; i++) {
+		const char *o = t->rows[i].cell[COL_REF];
+		if (o && num_iequal(o, strlen(o), ref, strlen(ref))) {
+			struct diag_loc l;
+			cell_loc(t, r, COL_REF, &l);
+			diag_add(d, DIAG_ERROR, "parts", l, "'%s' is already rated on line %u of this table",
+				 ref, t->rows[i].line);
+			return 1;
+		}
+	}
+	return 0;
+}
+
 struct rating_table *rating_table_load(const char *path, struct arena *ar,
 				       struct diag_sink *d)
 {
@@ -119,6 +156,9 @@ struct rating_table *rating_table_load(const char *path, struct arena *ar,
 	size_t cap = 0;
 	while (fgets(line, sizeof line, f)) {
 		lineno++;
+		/* a UTF-8 byte-order mark, as spreadsheets write it */
+		if (lineno == 1 && strncmp(line, "\xef\xbb\xbf", 3) == 0)
+			memmove(line, line + 3, strlen(line + 3) + 1);
 		if (line[strspn(line, " \t\r\n")] == '\0')
 			continue;
 		int n = split_csv(line, buf, cells, starts, 64);
@@ -136,6 +176,7 @@ struct rating_table *rating_table_load(const char *path, struct arena *ar,
 				fclose(f);
 				return NULL;
 			}
+			ok &= unknown_columns(d, l, cells, starts, n, map);
 			continue;
 		}
 		if (t->n == cap) {
@@ -158,6 +199,7 @@ struct rating_table *rating_table_load(const char *path, struct arena *ar,
 				r->cell[map[i]] = arena_strdup(ar, cells[i]);
 				r->col[map[i]] = starts[i];
 			}
+		ok &= !duplicate_ref(t, d);
 	}
 	fclose(f);
 	return ok ? t : NULL;

@@ -318,5 +318,17 @@ got=open(sys.argv[2]).read().count('<failure ')
 assert want == got and want > 0, (want, got)
 " "$tmp/all.json" "$tmp/all.junit"
 
+# Parts tables: a misspelled column, a repeated ref are located errors; a
+# UTF-8 byte-order mark (what spreadsheets write) is read.
+printf 'ref,kind,v_rate\nCCPL,film,50V\n' > "$tmp/parts_typo.csv"
+run check --parts "$tmp/parts_typo.csv" "$here/../examples/sensor_restorer.cir"
+check "a misspelled parts-table column is a located error" bash -c "test $rc -eq 2 && grep -q \"parts_typo.csv:1:10: error: unknown column 'v_rate'\" '$tmp/err'"
+printf 'ref,kind,v_rated\nCCPL,film,50V\nccpl,film,63V\n' > "$tmp/parts_dup.csv"
+run check --parts "$tmp/parts_dup.csv" "$here/../examples/sensor_restorer.cir"
+check "a part rated twice in the parts table is a located error" bash -c "test $rc -eq 2 && grep -q \"parts_dup.csv:3:1: error: 'ccpl' is already rated on line 2\" '$tmp/err'"
+printf '\xef\xbb\xbfref,kind,v_rated\nDCLMP,rectifier,75V\n' > "$tmp/parts_bom.csv"
+run check --parts "$tmp/parts_bom.csv" "$here/../examples/sensor_restorer.cir"
+check "a parts table with a byte-order mark is read" bash -c "! grep -q 'parts_bom.csv.*error' '$tmp/err' && grep -q '^  DCLMP .* 75 V' '$tmp/out'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
