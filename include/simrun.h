@@ -56,4 +56,14 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		  const struct hr_alloc *h, double *vmin, double *vmax,
 		  double *node_min, double *node_max, struct simrun_result *r);
 
+/* Conductance from every node to ground when parts are left out, so that
+ * a node they leave floating stays defined (S). */
+#define SIMRUN_GSHUNT 1e-12
+
+/* The parts of c the solver has no model for: a mask with one entry per
+ * part (in ar), their count in *n, and the first one's refusal in *first
+ * (part NL_NONE when none). NULL on out-of-memory. */
+unsigned char *simrun_unsupported(const struct nl_circuit *c, struct arena *ar,
+				  size_t *n, struct sim_refusal *first);
+
 #endif

@@ -14,9 +14,6 @@
 #include "profile.h"
 #include "stress.h"
 
-/* Conductance from every node to ground when parts are left out. */
-#define VERIFY_GSHUNT 1e-12
-
 /* Bounds on one file's simulation; 0 takes the solver's defaults (2000
  * periods, 20,000,000 Newton iterations). */
 struct verify_limits {

@@ -20,10 +20,13 @@ struct dctx {
 	struct rules_result *out;
 };
 
+/* Held by independent sources (ground, chains of V sources): a node a
+ * controlled source drives is left out, since inside device models those
+ * sit in feedback loops the propagation does not close. */
 static int held(const struct prop_node *n, uint32_t id)
 {
 	return id == NL_GROUND || (n->state == PS_RESOLVED &&
-				   (n->how == PH_GROUND || n->how == PH_SOURCE || n->how == PH_VCVS));
+				   (n->how == PH_GROUND || n->how == PH_SOURCE));
 }
 
 /* The source-held node that node id follows through a resistor below
@@ -64,6 +67,22 @@ static double forward_max(const struct prop_result *nom, const struct prop_node 
 	return hi;
 }
 
+/* A diode inside a subcircuit instance that also holds a controlled
+ * source: a device macromodel's limiting diode, whose loop closes through
+ * feedback the propagation does not see. */
+static int in_macromodel(const struct nl_circuit *c, const struct nl_part *d)
+{
+	const char *dot = strrchr(d->path, '.');
+	size_t n = dot ? (size_t)(dot - d->path) + 1 : 0;
+	for (size_t i = 0; n && i < nl_part_count(c); i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		if ((p->kind == NL_E || p->kind == NL_F || p->kind == NL_G || p->kind == NL_H) &&
+		    strncmp(p->path, d->path, n) == 0 && !strchr(p->path + n, '.'))
+			return 1;
+	}
+	return 0;
+}
+
 static int loop_diode(struct dctx *x, uint32_t i)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
@@ -77,7 +96,7 @@ static int loop_diode(struct dctx *x, uint32_t i)
 		return 1;
 	const struct prop_node *an = &nom->nodes[h0], *ka = &nom->nodes[h1];
 	double vf = rating_vf(p, x->r[i].kind), fwd = forward_max(nom, an, ka, x->ar);
-	if (!(fwd > vf + 1))
+	if (!(fwd > vf + 1) || in_macromodel(c, p))
 		return 1;
 	struct finding *f = rules_add(x->out, x->ar, RULE_DIODE_LOOP);
 	if (!f)

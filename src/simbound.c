@@ -201,27 +201,23 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 static int leave_out(struct sb *b)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
-	size_t np = nl_part_count(c);
-	unsigned char *mask = arena_zalloc(b->ar, np + 1);
+	size_t count;
+	struct sim_refusal first;
+	unsigned char *mask = simrun_unsupported(c, b->ar, &count, &first);
 	if (!mask)
 		return 0;
-	for (size_t i = 0; i < np; i++) {
-		struct sim_refusal ref;
-		if (sim_part_supported(c, i, &ref))
-			continue;
-		mask[i] = 1;
-		uint32_t is = b->sr->island[i];
-		if (is != NL_NONE)
-			b->acc.blocked[is] = 1;
-		if (!b->acc.blocked_why) {
-			char buf[1500];
-			snprintf(buf, sizeof buf, "%s has no model in the solver either (%s)",
-				 nl_part_at(c, i)->path, ref.why);
-			b->acc.blocked_why = arena_strdup(b->ar, buf);
-		}
+	for (size_t i = 0; i < nl_part_count(c); i++)
+		if (mask[i] && b->sr->island[i] != NL_NONE)
+			b->acc.blocked[b->sr->island[i]] = 1;
+	if (count) {
+		char buf[1500];
+		snprintf(buf, sizeof buf, "%s has no model in the solver either (%s)",
+			 nl_part_at(c, first.part)->path, first.why);
+		if (!(b->acc.blocked_why = arena_strdup(b->ar, buf)))
+			return 0;
 	}
 	b->o.leave_out = mask;
-	b->o.gshunt = 1e-12;
+	b->o.gshunt = SIMRUN_GSHUNT;
 	return 1;
 }
 

@@ -192,3 +192,24 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 	hr_free(h, vprev);
 	finish(s, r);
 }
+
+unsigned char *simrun_unsupported(const struct nl_circuit *c, struct arena *ar,
+				  size_t *n, struct sim_refusal *first)
+{
+	size_t np = nl_part_count(c);
+	unsigned char *mask = arena_zalloc(ar, np + 1);
+	*n = 0;
+	first->part = NL_NONE;
+	first->why[0] = '\0';
+	for (size_t i = 0; mask && i < np; i++) {
+		struct sim_refusal ref;
+		if (sim_part_supported(c, i, &ref))
+			continue;
+		mask[i] = 1;
+		if (!(*n)++) {
+			*first = ref;
+			first->part = (uint32_t)i;
+		}
+	}
+	return mask;
+}

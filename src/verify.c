@@ -102,8 +102,9 @@ static int leave_out(const struct audit *a, struct arena *ar, struct simrun_opts
 		     unsigned char **open_node)
 {
 	const struct nl_circuit *c = a->er.circuit;
-	size_t np = nl_part_count(c);
-	unsigned char *mask = arena_zalloc(ar, np + 1);
+	size_t np = nl_part_count(c), count;
+	struct sim_refusal first;
+	unsigned char *mask = simrun_unsupported(c, ar, &count, &first);
 	unsigned char *nodes = arena_zalloc(ar, nl_node_count(c) + 1);
 	char names[200] = "";
 	size_t len = 0;
@@ -111,10 +112,8 @@ static int leave_out(const struct audit *a, struct arena *ar, struct simrun_opts
 		return 0;
 	*open_node = nodes;
 	for (size_t i = 0; i < np; i++) {
-		struct sim_refusal ref;
-		if (sim_part_supported(c, i, &ref))
+		if (!mask[i])
 			continue;
-		mask[i] = 1;
 		const struct nl_part *pt = nl_part_at(c, i);
 		const uint32_t *pin = nl_pins(c, pt);
 		for (uint8_t k = 0; k < pt->npins; k++)
@@ -128,7 +127,7 @@ static int leave_out(const struct audit *a, struct arena *ar, struct simrun_opts
 		snprintf(names + len, sizeof names - len, " and %zu more", v->left_out - 4);
 	v->left_out_names = arena_strdup(ar, names);
 	o->leave_out = mask;
-	o->gshunt = VERIFY_GSHUNT;
+	o->gshunt = SIMRUN_GSHUNT;
 	return v->left_out_names != NULL;
 }
 

@@ -122,6 +122,17 @@ static const struct rule_case cases[] = {
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1A\n",
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1.2A\n",
 	 0.10},
+	/* the first pump capacitor left out: D1 across the source through
+	   10 mohm, forward 10 V every cycle, about 1 kA (Ohm's law); with the
+	   capacitor back it is a clamp */
+	{"diode-loop", "D1",
+	 "l\nV1 a 0 sin(0 10 1k)\nR1 a b 0.01\nD1 0 b dm\n.model dm d\n",
+	 "l\nV1 a 0 sin(0 10 1k)\nR1 a b 0.01\nC1 b x 1u\nD1 0 x dm\n.model dm d\n", 0},
+	/* a coupling capacitor repeated on the same nodes; quiet with a
+	   different value on the second */
+	{"part-twin", "C2",
+	 "t\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nC2 a x 1u\nD1 0 x dm\n.model dm d\n",
+	 "t\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nC2 a x 100n\nD1 0 x dm\n.model dm d\n", 0},
 	/* nothing in series with the source and no RS */
 	{"surge-unbounded", "DD",
 	 "u\nV1 in 0 sin(0 10 1k)\nCC in x 1u\nDD 0 x dm\n.model dm d\n",
