@@ -84,10 +84,11 @@ double sim_time(const struct sim *s);
 /* Node voltages at the time reached, indexed by node id (v[0] = 0). */
 const double *sim_voltages(const struct sim *s);
 
-/* Periodic steady state: runs whole periods until the node voltages at
- * the start of successive periods agree within tol (relative to the
- * largest) and the decay seen so far leaves less than tol to come, or
- * max_periods have run. *periods gets the number run; the return is SIM_OK
+/* Periodic steady state: runs whole periods until the state (capacitor
+ * voltages, inductor currents) at the start of successive periods agrees
+ * within tol (relative to the largest) and the decay seen so far leaves
+ * less than tol to come, or max_periods have run. Never before every
+ * source's delay and other non-repeating part is over (simsrc.h). *periods gets the number run; the return is SIM_OK
  * with *settled 0 when the cap was hit. */
 enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 			   double tol, unsigned *periods, int *settled);
@@ -95,6 +96,10 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 struct sim_stats {
 	unsigned long points, rejected, newton, fresh_lu, refactor_lu;
 	size_t unknowns;
+	double residual;   /* sim_settle: the last period's change of the state,
+			      relative to its largest value */
+	double settled_from; /* sim_settle: when the sources' non-repeating
+				parts end (s); no steady state before it */
 };
 void sim_stats(const struct sim *s, struct sim_stats *out);
 

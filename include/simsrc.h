@@ -25,6 +25,13 @@ double simsrc_next_corner(const struct nl_source *src,
  * or 0 when it does not repeat. */
 double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp);
 
+/* The time by which src has played out everything that does not repeat:
+ * its delay, a single pulse, a PWL's part before its repeat (or all of a
+ * PWL that does not repeat), ten time constants of a damped SIN or of an
+ * EXP's second edge. A steady state is not looked for before it. */
+double simsrc_settled_from(const struct nl_source *src,
+			   const struct simsrc_span *sp);
+
 /* The steady-state mean of src: the time average over one period of a
  * repeating source (SIN and SFFM: their offset), else the value it settles
  * at. Corner runs scale a source's mean and its variation apart. */

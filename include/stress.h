@@ -62,6 +62,10 @@ struct stress {
  * (reltol 1e-3) is not mistaken for one. */
 #define STRESS_GAP_REL 2e-3
 #define STRESS_GAP_ABS 0.01
+/* A simulated value this close below the bound (relative, or within
+ * STRESS_GAP_ABS) confirms it; further below, the bound holds but is
+ * loose by the difference, and the report says by how much. */
+#define STRESS_CONFIRM_BAND 0.05
 
 /* Samples kept of each stressed part's simulated waveform (for plots). */
 #define STRESS_TRACE_POINTS 240
@@ -115,7 +119,11 @@ struct stress_verify {
 	int settled;            /* steady state reached within the cap */
 	double period;          /* s */
 	size_t started;         /* capacitors started at the best-case analytic DC */
-	size_t confirmed, gaps; /* stresses within / above their bound */
+	double residual;        /* the last period's relative change of the state */
+	size_t confirmed;       /* stresses simulated within STRESS_CONFIRM_BAND
+				   below their bound */
+	size_t holds;           /* simulated further below their bound */
+	size_t gaps;            /* simulated above their bound */
 	size_t uncompared;      /* simulated beside a part left open */
 	unsigned long points, newton;
 	size_t unknowns;
@@ -148,5 +156,8 @@ double stress_low_dc(const struct audit *a, const struct stress_result *sr,
 /* True when stress s was simulated above its bound (see STRESS_GAP_*):
  * the analysis-gap rule. */
 int stress_gap(const struct stress *s);
+/* 1 when s was simulated, compared and lies within STRESS_CONFIRM_BAND
+ * below its bound (or above it: see stress_gap). */
+int stress_confirmed(const struct stress *s);
 
 #endif

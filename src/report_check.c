@@ -71,9 +71,10 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 	char per[24];
 	num_format_eng(v->period, "s", per, sizeof per);
 	fprintf(out, "  simulated (--verify): %s after %u periods of %s, %zu capacitors started "
-		     "at the analysis's best-case voltages; %zu stresses confirmed, %zu above their bounds\n",
+		     "at the analysis's best-case voltages, last period's change %.1e; %zu stresses "
+		     "confirmed (within %.0f %% below their bounds), %zu hold further below, %zu above their bounds\n",
 		v->settled ? "steady" : "NOT steady (cap reached)", v->periods, per, v->started,
-		v->confirmed, v->gaps);
+		v->residual, v->confirmed, 100 * STRESS_CONFIRM_BAND, v->holds, v->gaps);
 	if (v->left_out)
 		fprintf(out, "  left open in the simulation (no solver model): %s; %zu stresses "
 			     "beside them not compared\n", v->left_out_names, v->uncompared);
@@ -302,10 +303,12 @@ static void json_file(FILE *out, const struct check_file *f)
 		fprintf(out, ", \"settled\": %s, \"periods\": %u, \"period\": ",
 			v->settled ? "true" : "false", v->periods);
 		jnum(out, v->period);
-		fprintf(out, ", \"started_from_analysis\": %zu, \"confirmed\": %zu, "
+		fprintf(out, ", \"residual\": ");
+		jnum(out, v->residual);
+		fprintf(out, ", \"started_from_analysis\": %zu, \"confirmed\": %zu, \"holds\": %zu, "
 			     "\"gaps\": %zu, \"uncompared\": %zu, \"points\": %lu, \"unknowns\": %zu, "
 			     "\"left_out\": %zu, \"left_out_names\": ",
-			v->started, v->confirmed, v->gaps, v->uncompared, v->points, v->unknowns,
+			v->started, v->confirmed, v->holds, v->gaps, v->uncompared, v->points, v->unknowns,
 			v->left_out);
 		jstr(out, v->left_out ? v->left_out_names : NULL);
 		fputc('}', out);

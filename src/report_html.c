@@ -267,10 +267,11 @@ static void verify_line(FILE *out, const struct stress_verify *v)
 	}
 	char per[24];
 	num_format_eng(v->period, "s", per, sizeof per);
-	fprintf(out, "<p>Simulated (--verify): %s after %u periods of %s; %zu stresses confirmed, "
+	fprintf(out, "<p>Simulated (--verify): %s after %u periods of %s (last period's change %.1e); "
+		     "%zu stresses confirmed (within %.0f %% below their bounds), %zu hold further below, "
 		     "%zu above their bounds. Plots show the simulation dashed in blue.</p>\n",
-		v->settled ? "steady" : "not steady (cap reached)", v->periods, per,
-		v->confirmed, v->gaps);
+		v->settled ? "steady" : "not steady (cap reached)", v->periods, per, v->residual,
+		v->confirmed, 100 * STRESS_CONFIRM_BAND, v->holds, v->gaps);
 	if (v->left_out) {
 		fputs("<p>Left open in the simulation (no solver model): ", out);
 		x(out, v->left_out_names);

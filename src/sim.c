@@ -629,6 +629,12 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 		return SIM_OOM;
 	*settled = 0;
 	*periods = 0;
+	double from = 0;
+	for (size_t i = 0; i < s->ndev; i++)
+		if (s->dev[i].src)
+			from = fmax(from, simsrc_settled_from(s->dev[i].src, &s->span));
+	s->st.settled_from = from;
+	s->st.residual = NAN;
 	enum sim_status r = sim_run(s, s->t, NULL, NULL);
 	double last_change = INFINITY;
 	state_of(s, now);
@@ -642,8 +648,11 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 		/* geometric decay: what is still to come is change r/(1-r) */
 		double to_come = ratio < 0.98 ? change * ratio / (1 - ratio) : INFINITY;
 		last_change = change;
-		/* a decay needs two changes to be seen: three periods at least */
-		if (r == SIM_OK && *periods >= 3 && change < tol &&
+		s->st.residual = change;
+		/* a decay needs two changes to be seen: three periods at least,
+		   the first of them after the sources' delays */
+		if (r == SIM_OK && *periods >= 3 && s->t - 2 * period >= from * (1 - 1e-9) &&
+		    change < tol &&
 		    (to_come < tol || change < tol / 10)) {
 			*settled = 1;
 			break;

@@ -256,6 +256,35 @@ double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp)
 	}
 }
 
+double simsrc_settled_from(const struct nl_source *src,
+			   const struct simsrc_span *sp)
+{
+	switch (src->wave) {
+	case NL_WAVE_SIN: {
+		double theta = arg(src, 4, 0);
+		return arg(src, 3, 0) + (theta > 0 ? 10 / theta : 0);
+	}
+	case NL_WAVE_PULSE: {
+		struct pulse p = pulse_of(src, sp);
+		return isfinite(p.per) ? p.td : p.td + p.tr + p.pw + p.tf;
+	}
+	case NL_WAVE_PWL: {
+		uint32_t n = src->nargs / 2;
+		double d = src->pwl_delay > 0 ? src->pwl_delay : 0;
+		double last = n ? src->args[2 * (n - 1)] : 0, r = src->pwl_repeat;
+		return d + (r >= 0 && last > r ? r : last);
+	}
+	case NL_WAVE_EXP: {
+		double td1 = arg(src, 2, 0), td2 = arg(src, 4, td1 + sp->step);
+		return td2 + 10 * arg(src, 5, sp->step);
+	}
+	case NL_WAVE_AM:
+		return arg(src, 4, 0);
+	default:
+		return 0;
+	}
+}
+
 /* Mean of a waveform that is linear between its corners, over one period
  * from t0 (trapezoids between corners, each taken just inside its ends so
  * that a jump at a corner counts on the right side). */

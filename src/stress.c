@@ -601,6 +601,12 @@ int stress_gap(const struct stress *s)
 	       s->sim_worst > s->worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
 }
 
+int stress_confirmed(const struct stress *s)
+{
+	return s->bounded && isfinite(s->sim_worst) && !s->sim_near_open &&
+	       s->sim_worst >= s->worst * (1 - STRESS_CONFIRM_BAND) - STRESS_GAP_ABS;
+}
+
 /* The DC part of v(pin 0) - v(pin 1) in the best-case propagation (sources
  * at -tol, diode drops), NaN when either node is not settled there. The
  * simulations start each capacitor there (stress.h). */

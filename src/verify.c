@@ -5,6 +5,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "num.h"
 #include "simrun.h"
 
 
@@ -89,8 +90,10 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 			v->uncompared++;
 		else if (stress_gap(s))
 			v->gaps++;
-		else
+		else if (stress_confirmed(s))
 			v->confirmed++;
+		else
+			v->holds++;
 	}
 }
 
@@ -165,6 +168,7 @@ int verify_run(const struct audit *a, const struct profile *p, const struct veri
 	v->points = r.stats.points;
 	v->newton = r.stats.newton;
 	v->unknowns = r.stats.unknowns;
+	v->residual = r.stats.residual;
 	if (r.status == SIM_OOM)
 		return 0;
 	if (r.status == SIM_REFUSED) {
@@ -182,6 +186,15 @@ int verify_run(const struct audit *a, const struct profile *p, const struct veri
 	if (r.period <= 0) {
 		v->why = "no source repeats: there is no steady state to simulate";
 		return 1;
+	}
+	if (!r.settled && r.t_end < r.stats.settled_from + r.period) {
+		char buf[300], t[24], from[24];
+		num_format_eng(r.t_end, "s", t, sizeof t);
+		num_format_eng(r.stats.settled_from, "s", from, sizeof from);
+		snprintf(buf, sizeof buf, "the run ended at %s, before the sources' delays and "
+			 "one-off edges (until %s) had played out: nothing verified", t, from);
+		v->why = arena_strdup(ar, buf);
+		return v->why != NULL;
 	}
 	v->simulated = 1;
 	record(sr, vmin, vmax, c, &o, open_node, v);
