@@ -89,9 +89,11 @@ const double *sim_voltages(const struct sim *s);
  * within tol (relative to the largest) and the decay seen so far leaves
  * less than tol to come, or max_periods have run. Never before every
  * source's delay and other non-repeating part is over (simsrc.h). *periods gets the number run; the return is SIM_OK
- * with *settled 0 when the cap was hit. */
+ * with *settled 0 when the cap was hit. fn (may be NULL) sees every
+ * accepted point on the way, as in sim_run. */
 enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
-			   double tol, unsigned *periods, int *settled);
+			   double tol, unsigned *periods, int *settled,
+			   sim_point_fn fn, void *ud);
 
 struct sim_stats {
 	unsigned long points, rejected, newton, fresh_lu, refactor_lu;

@@ -56,6 +56,14 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		  const struct hr_alloc *h, double *vmin, double *vmax,
 		  double *node_min, double *node_max, struct simrun_result *r);
 
+/* Power-up: the circuit from its zero state (every capacitor at its ic=
+ * or 0, whatever o->cap_v0 says) at the corner in o, run until its steady
+ * state or for max_periods; vmin and vmax (one per part) get the extremes
+ * of each two-pin part's voltage over the whole run. */
+void simrun_powerup(const struct nl_circuit *c, const struct simrun_opts *o,
+		    unsigned max_periods, const struct hr_alloc *h, double *vmin,
+		    double *vmax, struct simrun_result *r);
+
 /* Conductance from every node to ground when parts are left out, so that
  * a node they leave floating stays defined (S). */
 #define SIMRUN_GSHUNT 1e-12

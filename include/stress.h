@@ -49,6 +49,9 @@ struct stress {
 	/* --verify: the same quantity in the steady-state simulation at the
 	   +tol corner, NaN when not simulated (verify.h) */
 	double sim_worst;
+	/* --verify: the same quantity's peak over the power-up run (from the
+	   zero state at the same corner), NaN when not simulated */
+	double sim_powerup;
 	/* --verify: pin 0 minus pin 1 over the simulated period at
 	   STRESS_TRACE_POINTS even times, or NULL */
 	const double *sim_wave;
@@ -125,6 +128,10 @@ struct stress_verify {
 	size_t holds;           /* simulated further below their bound */
 	size_t gaps;            /* simulated above their bound */
 	size_t uncompared;      /* simulated beside a part left open */
+	int powerup;            /* the power-up run ran (from the zero state) */
+	unsigned powerup_periods; /* its periods (steady, or the cap) */
+	size_t powerup_above;   /* stresses whose power-up peak tops their
+				   steady state */
 	unsigned long points, newton;
 	size_t unknowns;
 	size_t left_out;        /* parts the solver has no model for, left open */
@@ -156,6 +163,15 @@ double stress_low_dc(const struct audit *a, const struct stress_result *sr,
 /* True when stress s was simulated above its bound (see STRESS_GAP_*):
  * the analysis-gap rule. */
 int stress_gap(const struct stress *s);
+/* The larger of s's steady-state and power-up simulated values (NaN when
+ * neither was simulated). */
+double stress_simulated_peak(const struct stress *s);
+/* 1 when the power-up run's peak lies above the steady state's by more
+ * than the solver's margin (STRESS_GAP_REL, STRESS_GAP_ABS). */
+int stress_powerup_above(const struct stress *s);
+/* What the rating rules judge: the bound, or the simulated peak (steady
+ * state or power-up) when that is higher and compared. */
+double stress_judged(const struct stress *s);
 /* 1 when s was simulated, compared and lies within STRESS_CONFIRM_BAND
  * below its bound (or above it: see stress_gap). */
 int stress_confirmed(const struct stress *s);

@@ -21,6 +21,12 @@ struct verify_limits {
 	unsigned long max_work;   /* Newton iterations */
 };
 
+/* The power-up run: from the zero state at the same corner, until its
+ * steady state or this many periods (the first charge's overshoot comes
+ * in the first periods; a slower build-up approaches the steady state from
+ * below, which the steady-state run covers). */
+#define VERIFY_POWERUP_PERIODS 100
+
 /* Simulates a's circuit and fills sim_worst of every voltage and reverse
  * stress in sr, and sr->verify. A circuit the solver cannot take (no
  * repeating source, no convergence, past the limits) is reported in

@@ -78,6 +78,9 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 	if (v->left_out)
 		fprintf(out, "  left open in the simulation (no solver model): %s; %zu stresses "
 			     "beside them not compared\n", v->left_out_names, v->uncompared);
+	if (v->powerup)
+		fprintf(out, "  power-up (--verify): %u periods from the zero state; %zu stresses peak "
+			     "above their steady state\n", v->powerup_periods, v->powerup_above);
 }
 
 static void text_table(FILE *out, const struct check_file *f)
@@ -237,6 +240,8 @@ static void json_stress(FILE *out, const struct check_file *f,
 	if (f->stress->verify) {
 		fputs(", \"simulated\": ", out);
 		jnum(out, s->sim_worst);
+		fputs(", \"simulated_powerup\": ", out);
+		jnum(out, s->sim_powerup);
 		fprintf(out, ", \"analysis_gap\": %s, \"compared\": %s", stress_gap(s) ? "true" : "false",
 			isfinite(s->sim_worst) && !s->sim_near_open ? "true" : "false");
 	}
@@ -311,7 +316,8 @@ static void json_file(FILE *out, const struct check_file *f)
 			v->started, v->confirmed, v->holds, v->gaps, v->uncompared, v->points, v->unknowns,
 			v->left_out);
 		jstr(out, v->left_out ? v->left_out_names : NULL);
-		fputc('}', out);
+		fprintf(out, ", \"powerup\": %s, \"powerup_periods\": %u, \"powerup_above\": %zu}",
+			v->powerup ? "true" : "false", v->powerup_periods, v->powerup_above);
 	}
 	const struct stress_fallback *fb = f->a->analysed ? f->stress->fallback : NULL;
 	if (fb) {

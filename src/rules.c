@@ -159,12 +159,21 @@ static const char *where(struct ctx *x, const struct stress *s)
 	return str(x, "%s in S%d (%s)", s->role, s->structure + 1, topo_kind_name(t->kind));
 }
 
+/* "; power-up peak 40.8 V, above the steady state", or "" */
+static const char *powerup(struct ctx *x, const struct stress *s)
+{
+	if (!stress_powerup_above(s))
+		return "";
+	return str(x, "; power-up peak %s (from the zero state), above the steady state",
+		   v(x, s->sim_powerup, "V"));
+}
+
 /* "; simulated 287.6 V: confirmed by simulation", or "" */
 static const char *simulation(struct ctx *x, const struct stress *s)
 {
 	if (!isfinite(s->sim_worst))
 		return "";
-	return str(x, "; simulated %s: %s", v(x, s->sim_worst, "V"),
+	return str(x, "; simulated %s%s: %s", v(x, s->sim_worst, "V"), powerup(x, s),
 		   s->sim_near_open ? "not compared (beside a part the solver left open)"
 		   : stress_gap(s) ? "ABOVE the analytic bound (analysis-gap)"
 		   : stress_confirmed(s) ? "confirmed by simulation"
@@ -199,14 +208,18 @@ static void gap(struct ctx *x, const struct stress *s)
 	if (!f)
 		return;
 	int diode = nl_part_at(x->a->er.circuit, s->part)->kind == NL_D;
-	f->message = str(x, "the simulation puts %s %s on %s, above its analytic worst case %s: "
+	double peak = stress_simulated_peak(s);
+	f->message = str(x, "the simulation puts %s %s on %s%s, above its analytic worst case %s: "
 			    "that bound is not sound here",
-			 v(x, s->sim_worst, "V"), diode ? "reverse" : "across", f->subject,
-			 v(x, s->worst, "V"));
-	f->worst = s->sim_worst;
+			 v(x, peak, "V"), diode ? "reverse" : "across", f->subject,
+			 peak > s->sim_worst ? " at power-up" : "", v(x, s->worst, "V"));
+	f->worst = peak;
 	f->computation = computation(x, s);
-	f->fix = "report the netlist: the analysis missed a mechanism; until then judge the part "
-		 "by the simulated value";
+	f->fix = peak > s->sim_worst
+		 ? "the analysis bounds the steady state; the first charge overshoots it: rate the "
+		   "part for the simulated peak, or slow the start (series resistance, soft start)"
+		 : "report the netlist: the analysis missed a mechanism; until then judge the part "
+		   "by the simulated value";
 }
 
 static const char *fix_rating(struct ctx *x, double worst, double factor,
@@ -240,27 +253,31 @@ static void overvoltage(struct ctx *x, const struct stress *s, const char *cls)
 	}
 	int diode = strcmp(cls, "diode") == 0;
 	const char *what = diode ? "reverse" : "across it";
+	/* a simulated peak above the bound (power-up or steady state) is
+	   judged itself: the analysis-gap finding says why */
+	double worst = stress_judged(s);
+	const char *when = worst > s->worst ? " (simulated)" : "";
 	struct finding *f = NULL;
-	if (s->worst > r->v_rated.value) {
+	if (worst > r->v_rated.value) {
 		f = add(x, diode ? RULE_DIODE_OVERVOLTAGE : RULE_CAP_OVERVOLTAGE, s->part, s->structure);
 		if (f)
-			f->message = str(x, "%s sees %s %s worst case, above its %s rating",
-					 f->subject, v(x, s->worst, "V"), what, v(x, r->v_rated.value, "V"));
-	} else if (s->worst > r->v_rated.value * factor) {
+			f->message = str(x, "%s sees %s %s worst case%s, above its %s rating",
+					 f->subject, v(x, worst, "V"), what, when, v(x, r->v_rated.value, "V"));
+	} else if (worst > r->v_rated.value * factor) {
 		f = add(x, diode ? RULE_DIODE_DERATING : RULE_CAP_DERATING, s->part, s->structure);
 		if (f)
-			f->message = str(x, "%s sees %s %s worst case, %.0f%% of its %s rating (limit %.0f%%)",
-					 f->subject, v(x, s->worst, "V"), what,
-					 100 * s->worst / r->v_rated.value, v(x, r->v_rated.value, "V"), factor * 100);
+			f->message = str(x, "%s sees %s %s worst case%s, %.0f%% of its %s rating (limit %.0f%%)",
+					 f->subject, v(x, worst, "V"), what, when,
+					 100 * worst / r->v_rated.value, v(x, r->v_rated.value, "V"), factor * 100);
 	}
 	if (!f)
 		return;
-	f->worst = s->worst;
+	f->worst = worst;
 	f->rating = r->v_rated.value;
 	f->limit = r->v_rated.value * factor;
 	f->computation = computation(x, s);
 	f->limits = limits(x, r, factor, key, note);
-	f->fix = fix_rating(x, s->worst, factor, diode);
+	f->fix = fix_rating(x, worst, factor, diode);
 }
 
 static void reverse_bias(struct ctx *x, const struct stress *s)
@@ -301,11 +318,11 @@ static void missing(struct ctx *x, const struct stress *s, const char *cls)
 	struct finding *f = add(x, RULE_RATING_MISSING, s->part, s->structure);
 	if (!f)
 		return;
-	f->worst = s->worst;
-	f->message = str(x, "%s has no voltage rating; it sees %s worst case", f->subject,
-			 v(x, s->worst, "V"));
+	f->worst = stress_judged(s);
+	f->message = str(x, "%s has no voltage rating; it sees %s worst case%s", f->subject,
+			 v(x, f->worst, "V"), f->worst > s->worst ? " (simulated)" : "");
 	f->computation = computation(x, s);
-	f->fix = fix_rating(x, s->worst, isnan(factor) ? 1 : factor, strcmp(cls, "diode") == 0);
+	f->fix = fix_rating(x, f->worst, isnan(factor) ? 1 : factor, strcmp(cls, "diode") == 0);
 }
 
 static void stored_charge(struct ctx *x, const struct stress *s)

@@ -621,7 +621,8 @@ static double state_change(const struct sim *s, const double *now, const double 
 }
 
 enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
-			   double tol, unsigned *periods, int *settled)
+			   double tol, unsigned *periods, int *settled,
+			   sim_point_fn fn, void *ud)
 {
 	double *prev = arena_alloc(s->ar, (s->ndev + 1) * sizeof *prev);
 	double *now = arena_alloc(s->ar, (s->ndev + 1) * sizeof *now);
@@ -640,7 +641,7 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 	state_of(s, now);
 	while (r == SIM_OK && *periods < max_periods) {
 		memcpy(prev, now, s->ndev * sizeof *prev);
-		r = sim_run(s, s->t + period, NULL, NULL);
+		r = sim_run(s, s->t + period, fn, ud);
 		++*periods;
 		state_of(s, now);
 		double change = state_change(s, now, prev);

@@ -70,7 +70,7 @@ static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o
 		return s;
 	r->status = sim_settle(s, r->period, o->max_periods ? o->max_periods : SIMRUN_PERIODS,
 			       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
-			       &r->periods, &r->settled);
+			       &r->periods, &r->settled, NULL, NULL);
 	return s;
 }
 
@@ -190,6 +190,31 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		r->status = sim_run(s, sim_time(s) + span, track, &e);
 	}
 	hr_free(h, vprev);
+	finish(s, r);
+}
+
+void simrun_powerup(const struct nl_circuit *c, const struct simrun_opts *o,
+		    unsigned max_periods, const struct hr_alloc *h, double *vmin,
+		    double *vmax, struct simrun_result *r)
+{
+	size_t np = nl_part_count(c);
+	for (size_t i = 0; i < np; i++)
+		vmin[i] = INFINITY, vmax[i] = -INFINITY;
+	struct simrun_opts zero = *o;
+	zero.cap_v0 = NULL;
+	zero.ntrace = 0;
+	zero.until = 0;
+	struct sim_opts so;
+	struct sim *s = NULL;
+	memset(r, 0, sizeof *r);
+	opts_of(&zero, 0, &so);
+	r->status = sim_create(c, &so, h, &s, &r->refusal);
+	if (r->status == SIM_OK && (r->period = sim_period(s)) > 0) {
+		struct extremes e = {c, vmin, vmax, NULL, NULL, &zero, 0, 0, 0, NULL, 0};
+		r->status = sim_settle(s, r->period, max_periods,
+				       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
+				       &r->periods, &r->settled, track, &e);
+	}
 	finish(s, r);
 }
 

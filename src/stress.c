@@ -109,6 +109,7 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, i);
 	memset(s, 0, sizeof *s);
 	s->sim_worst = NAN;
+	s->sim_powerup = NAN;
 	s->sim_wave = NULL;
 	s->part = i;
 	s->structure = x->struct_of[i] == UINT32_MAX ? -1 : (int32_t)x->struct_of[i];
@@ -446,6 +447,7 @@ static void surge(struct ctx *x, size_t si, uint32_t part, struct stress *s)
 	double v = 0, lo, hi;
 	memset(s, 0, sizeof *s);
 	s->sim_worst = NAN;
+	s->sim_powerup = NAN;
 	s->part = part;
 	s->structure = (int32_t)si;
 	set_role(x, part, s);
@@ -595,10 +597,31 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 	return 1;
 }
 
+double stress_simulated_peak(const struct stress *s)
+{
+	double p = s->sim_worst;
+	if (isfinite(s->sim_powerup) && !(s->sim_powerup <= p))
+		p = s->sim_powerup;
+	return p;
+}
+
+int stress_powerup_above(const struct stress *s)
+{
+	return isfinite(s->sim_powerup) && isfinite(s->sim_worst) &&
+	       s->sim_powerup > s->sim_worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
+}
+
 int stress_gap(const struct stress *s)
 {
-	return s->bounded && isfinite(s->sim_worst) && !s->sim_near_open &&
-	       s->sim_worst > s->worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
+	double p = stress_simulated_peak(s);
+	return s->bounded && isfinite(p) && !s->sim_near_open &&
+	       p > s->worst * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
+}
+
+double stress_judged(const struct stress *s)
+{
+	double p = stress_simulated_peak(s);
+	return isfinite(p) && !s->sim_near_open && s->bounded && p > s->worst ? p : s->worst;
 }
 
 int stress_confirmed(const struct stress *s)

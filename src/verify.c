@@ -69,7 +69,7 @@ static int near_open(const struct nl_circuit *c, uint32_t part,
 
 static void record(struct stress_result *sr, const double *vmin, const double *vmax,
 		   const struct nl_circuit *c, const struct simrun_opts *o,
-		   const unsigned char *open_node, struct stress_verify *v)
+		   const unsigned char *open_node)
 {
 	for (size_t i = 0, k = 0; i < sr->n; i++) {
 		struct stress *s = &sr->s[i];
@@ -84,7 +84,15 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 		s->sim_worst = diode ? fmax(-vmin[s->part], 0)
 				     : fmax(vmax[s->part], -vmin[s->part]);
 		s->sim_near_open = near_open(c, s->part, open_node);
-		if (!s->bounded)
+	}
+}
+
+/* The counts, once both runs are in. */
+static void tally(const struct stress_result *sr, struct stress_verify *v)
+{
+	for (size_t i = 0; i < sr->n; i++) {
+		const struct stress *s = &sr->s[i];
+		if (!s->bounded || !isfinite(s->sim_worst))
 			continue;
 		if (s->sim_near_open)
 			v->uncompared++;
@@ -95,6 +103,41 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 		else
 			v->holds++;
 	}
+}
+
+/* The power-up run (VERIFY_POWERUP_PERIODS): each compared stress gets
+ * its peak from switch-on, counted when it tops the steady state. */
+static void powerup(const struct audit *a, const struct verify_limits *lim,
+		    const struct simrun_opts *o, struct stress_result *sr,
+		    struct stress_verify *v)
+{
+	const struct nl_circuit *c = a->er.circuit;
+	size_t np = nl_part_count(c);
+	struct hr_alloc h = hr_alloc_default();
+	double *lo = hr_malloc(&h, (np + 1) * sizeof *lo);
+	double *hi = hr_malloc(&h, (np + 1) * sizeof *hi);
+	unsigned cap = VERIFY_POWERUP_PERIODS;
+	if (lim && lim->max_periods && lim->max_periods < cap)
+		cap = lim->max_periods;
+	struct simrun_result r;
+	if (lo && hi) {
+		simrun_powerup(c, o, cap, &h, lo, hi, &r);
+		if (r.status == SIM_OK) {
+			v->powerup = 1;
+			v->powerup_periods = r.periods;
+			for (size_t i = 0; i < sr->n; i++) {
+				struct stress *s = &sr->s[i];
+				if (s->qty == SQ_SURGE || !isfinite(s->sim_worst) || !isfinite(lo[s->part]))
+					continue;
+				int diode = nl_part_at(c, s->part)->kind == NL_D;
+				s->sim_powerup = diode ? fmax(-lo[s->part], 0)
+						       : fmax(hi[s->part], -lo[s->part]);
+				v->powerup_above += stress_powerup_above(s) && !s->sim_near_open;
+			}
+		}
+	}
+	hr_free(&h, lo);
+	hr_free(&h, hi);
 }
 
 /* Parts the solver has no model for are left out (open) and named; a
@@ -197,6 +240,8 @@ int verify_run(const struct audit *a, const struct profile *p, const struct veri
 		return v->why != NULL;
 	}
 	v->simulated = 1;
-	record(sr, vmin, vmax, c, &o, open_node, v);
+	record(sr, vmin, vmax, c, &o, open_node);
+	powerup(a, lim, &o, sr, v);
+	tally(sr, v);
 	return 1;
 }
