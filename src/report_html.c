@@ -85,7 +85,7 @@ static void head(FILE *out, const struct profile *p, const struct report_inputs 
 	      "figure.over{border:2px solid #ad1457}\n"
 	      "figcaption{font-size:.85rem}svg{width:100%;height:auto}\n"
 	      ".caution{border:2px solid #b3261e;padding:.6rem;border-radius:6px;background:#fff5f4}\n"
-	      "@media print{.plots{grid-template-columns:1fr 1fr}body{max-width:none}details>ul{display:block}}\n"
+	      "@media print{.plots{grid-template-columns:1fr 1fr}body{max-width:none}}\n"
 	      "@media (max-width:40rem){td,th{font-size:.85rem}}\n"
 	      "</style></head><body>\n<header><h1>headroom: worst-case stress of diode-capacitor networks</h1>\n",
 	      out);
@@ -327,14 +327,15 @@ static void over_runs(FILE *out, const struct plot_data *d, int side)
  * of that (a flat trace), the one nearest the middle of the period. */
 static int extreme_at(const struct plot_data *d)
 {
+	const int mid = PLOT_POINTS / 2;
 	double m = 0;
-	int k = PLOT_POINTS / 2;
+	int k = -1;
 	for (int i = 0; i < PLOT_POINTS; i++)
 		m = fmax(m, fabs(d->v[i]));
 	for (int i = 0; i < PLOT_POINTS; i++)
-		if (fabs(d->v[i]) >= 0.999 * m && abs(i - PLOT_POINTS / 2) < abs(k - PLOT_POINTS / 2))
+		if (fabs(d->v[i]) >= 0.999 * m && (k < 0 || abs(i - mid) < abs(k - mid)))
 			k = i;
-	return fabs(d->v[k]) >= 0.999 * m ? k : 0;
+	return k; /* the largest |v| always qualifies */
 }
 
 /* Past the limit (or the rating where there is no limit): the stretches

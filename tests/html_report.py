@@ -7,7 +7,10 @@
     farthest point lies beyond both lines, on the same side of zero;
   - a part over its rating or limit carries a marker and words on its plot
     (an element of class over-mark, "over rating" in the plot, "Over its
-    rating." in the caption); a part inside its limit carries neither;
+    rating." in the caption); a part inside its limit carries neither; on a
+    trace that varies (a clamp diode's reverse voltage) the ring sits on the
+    trace's farthest point and the red stretches lie past the limit line,
+    starting and ending on it;
   - every file's stress table holds the JSON report's stresses, in order,
     with the same part, quantity, worst, rating, ratio and basis (exact in
     data-v, and as displayed to the 4 digits shown), the CSV report's limit,
@@ -162,6 +165,43 @@ def plots(root, label):
               "over" not in fig.text_all().lower())
 
 
+def varying():
+    """DCL's reverse voltage swings 0..220 V; rated 200 V here."""
+    import tempfile
+    with tempfile.NamedTemporaryFile("w", suffix=".csv", delete=False) as t:
+        t.write("ref,kind,v_rated\nDCL,rectifier,200V\n")
+    try:
+        root = Tree(run(["--format", "html", "--parts", t.name, NEG]).stdout).root
+    finally:
+        os.unlink(t.name)
+    fig = figure_of(root, "DCL")
+    ring = fig and next(fig.all(lambda n: n.tag == "circle"), None)
+    check("varying: DCL is plotted over its rating, with a ring",
+          fig is not None and "over" in fig.classes() and ring is not None)
+    if fig is None or ring is None:
+        return
+    pts = [tuple(map(float, p.split(","))) for p in
+           next(fig.all(lambda n: "wave" in n.classes())).attrs["points"].split()]
+    y0 = float(next(fig.all(lambda n: "zero" in n.classes())).attrs["y1"])
+    far = max(abs(y - y0) for _, y in pts)
+    cx, cy = float(ring.attrs["cx"]), float(ring.attrs["cy"])
+    on = [(x, y) for x, y in pts if abs(x - cx) < 0.06 and abs(abs(y - y0) - far) < 0.6]
+    check("varying: the ring sits on the trace's farthest point", bool(on),
+          f"ring ({cx}, {cy}), farthest {far:.1f} from zero")
+    check("varying: the ring is not at an edge of the period", 45 < cx < 295, f"{cx}")
+    lim = float(next(l for l in fig.all(lambda n: n.tag == "line")
+                     if l.attrs.get("stroke") == LIMIT_COLOUR).attrs["y1"])
+    runs = list(fig.all(lambda n: "over-trace" in n.classes()))
+    check("varying: a red stretch is drawn", len(runs) >= 1)
+    for r in runs:
+        rp = [tuple(map(float, p.split(","))) for p in r.attrs["points"].split()]
+        check("varying: the red stretch lies past the limit line",
+              all(abs(y - y0) >= abs(lim - y0) - 0.06 for _, y in rp))
+        ends = [p for p in (rp[0], rp[-1]) if 40.05 < p[0] < 299.95]
+        check("varying: the red stretch starts and ends on the limit line",
+              ends and all(abs(y - lim) < 0.06 for _, y in ends), f"{rp[0]} {rp[-1]} limit {lim}")
+
+
 ENG = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "m": 1e-3, "": 1,
        "k": 1e3, "M": 1e6, "G": 1e9, "T": 1e12}
 
@@ -273,6 +313,7 @@ def main():
     ladder = Tree(run(["--format", "html", "--today", "2026-12-01", "--parts", "examples/parts.csv",
                        LADDER]).stdout).root
     plots(ladder, "ladder")
+    varying()
     n = stress_tables(["--today", "2026-12-01", "--parts", "examples/parts.csv", "examples", NEG], "examples")
     check("the stress tables hold rows", n > 40, f"{n}")
     inputs()
