@@ -116,6 +116,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_powerup.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
+	@HEADROOM=$(BUILD)/headroom python3 tests/html_report.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py
 
 check: deps

@@ -20,6 +20,18 @@ struct totals_part {
 	double ratio;
 };
 
+/* What a run read and when, for the reports that list their inputs (the
+ * HTML page's header); all borrowed from the caller. */
+struct report_inputs {
+	const char *today;        /* YYYY-MM-DD: --today, else the UTC date */
+	int today_given;          /* 1: from --today */
+	const char *parts;        /* --parts, or NULL */
+	const char *waivers;      /* --waivers, or NULL */
+	const char *baseline;     /* --baseline, or NULL */
+	const char *const *files; /* the netlists of the run, in order */
+	size_t nfiles;
+};
+
 struct check_totals {
 	size_t files, errors, warnings, notes, netlist_errors;
 	size_t per_rule[TOTALS_RULES]; /* unwaived findings, by rules_table index */
@@ -29,6 +41,8 @@ struct check_totals {
 	double hazard_voltage;
 	size_t emitted;        /* records written so far (SARIF results) */
 	const char *docs_uri;  /* absolute file: URI of docs/, for help links */
+	/* what the run read, for the HTML header; NULL: not listed */
+	const struct report_inputs *inputs;
 	int color;             /* text: ANSI colours */
 	int quiet;             /* text: findings only */
 };

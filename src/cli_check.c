@@ -23,6 +23,7 @@ struct batch {
 	struct check_opts o;
 	enum report_check_format fmt;
 	const char *docs;
+	struct report_inputs in; /* what the run reads, for the reports */
 	int color, quiet;
 	struct check_totals *t, *tj;   /* per job, by index (batch mode) */
 	struct check_totals sum, sumj; /* merged in file order */
@@ -46,6 +47,7 @@ static void totals_init(const struct batch *b, struct check_totals *t, struct ch
 	t->color = tj->color = b->color;
 	t->quiet = b->quiet;
 	t->docs_uri = tj->docs_uri = b->docs;
+	t->inputs = tj->inputs = &b->in;
 }
 
 /* One file: checks it, writes its reports, returns its exit-status part. */
@@ -194,6 +196,8 @@ static int run_files(struct batch *b, const struct cli_files *files, struct cli_
 	struct cli_batch cb = {check_job, check_emit, b, c->jobs, json->f != NULL,
 			       !c->quiet && files->n > 1 && isatty(STDERR_FILENO)};
 	FILE *o = out->f ? out->f : stdout;
+	b->in.files = (const char *const *)files->v;
+	b->in.nfiles = files->n;
 	b->t = calloc(files->n ? files->n : 1, sizeof *b->t);
 	b->tj = calloc(files->n ? files->n : 1, sizeof *b->tj);
 	int rc = EXIT_USAGE;
@@ -232,6 +236,8 @@ int cli_check(const struct cli *c)
 	b.color = !c->out_path && isatty(STDOUT_FILENO) && !getenv("NO_COLOR");
 	today_of(today, sizeof today, c->today);
 	b.o.today = today;
+	b.in = (struct report_inputs){today, c->today != NULL, c->parts, c->waivers, c->baseline,
+				      NULL, 0};
 	if (d && p && prepare(c, &b, p, ar, d) &&
 	    cli_files_expand(&files, c->files, (size_t)c->nfiles) &&
 	    (!c->out_path || cli_out_open(&out, c->out_path)) &&

@@ -436,7 +436,7 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		report_sarif_file(out, f, p, first, t);
 		return;
 	case RC_HTML:
-		report_html_file(out, f, p, first);
+		report_html_file(out, f, p, first, t);
 		return;
 	default:
 		break;

@@ -22,8 +22,11 @@ void report_sarif_file(FILE *out, const struct check_file *f,
 void report_sarif_end(FILE *out, const struct profile *p,
 		      const struct check_totals *t);
 
+/* The page's header (version, date, inputs from t->inputs) comes with
+ * the first file, or with the end when the run had none. */
 void report_html_file(FILE *out, const struct check_file *f,
-		      const struct profile *p, int first);
+		      const struct profile *p, int first,
+		      const struct check_totals *t);
 void report_html_end(FILE *out, const struct profile *p,
 		     const struct check_totals *t);
 

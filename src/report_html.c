@@ -7,9 +7,11 @@
 
 
 #include <math.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "num.h"
+#include "version.h"
 
 #define PLOT_POINTS STRESS_TRACE_POINTS
 #define PLOTS_PER_STRUCT 8
@@ -19,7 +21,51 @@ static void x(FILE *out, const char *s)
 	report_xml_text(out, s);
 }
 
-static void head(FILE *out, const struct profile *p)
+static void fact(FILE *out, const char *name, const char *value, const char *note)
+{
+	fprintf(out, "<dt>%s</dt><dd>", name);
+	x(out, value);
+	if (note)
+		fprintf(out, " <span class=\"small\">%s</span>", note);
+	fputs("</dd>\n", out);
+}
+
+/* The version, the date and what the run read, so that a printed page
+ * says where its numbers come from. */
+static void run_facts(FILE *out, const struct profile *p, const struct report_inputs *in)
+{
+	fputs("<dl class=\"run\">\n", out);
+	fact(out, "headroom", "version " HEADROOM_VERSION, NULL);
+	if (in)
+		fact(out, "date", in->today,
+		     in->today_given ? "(given with --today; waiver expiry is judged on it)"
+				     : "(UTC date of the run; waiver expiry is judged on it)");
+	fputs("<dt>profile</dt><dd>", out);
+	x(out, p->name);
+	fputs(": ", out);
+	x(out, p->description);
+	fputs(" <span class=\"small\">", out);
+	x(out, p->path);
+	fputs("</span></dd>\n", out);
+	if (!in) {
+		fputs("</dl>\n", out);
+		return;
+	}
+	fact(out, "parts table", in->parts ? in->parts : "none", in->parts ? NULL : "(ratings from annotations and models)");
+	fact(out, "waivers", in->waivers ? in->waivers : "none", in->waivers ? NULL : "(only *@waive lines in the netlists)");
+	if (in->baseline)
+		fact(out, "baseline", in->baseline, "(findings in it are not reported)");
+	fprintf(out, "<dt>netlists</dt><dd><details%s><summary>%zu file%s</summary><ul class=\"files\">",
+		in->nfiles <= 20 ? " open" : "", in->nfiles, in->nfiles == 1 ? "" : "s");
+	for (size_t i = 0; i < in->nfiles; i++) {
+		fputs("<li>", out);
+		x(out, in->files[i]);
+		fputs("</li>", out);
+	}
+	fputs("</ul></details></dd>\n</dl>\n", out);
+}
+
+static void head(FILE *out, const struct profile *p, const struct report_inputs *in)
 {
 	fputs("<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">\n"
 	      "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
@@ -31,18 +77,20 @@ static void head(FILE *out, const struct profile *p)
 	      "td,th{border-bottom:1px solid #e3e7ec;padding:.3rem .4rem;text-align:left;vertical-align:top}\n"
 	      ".error{color:#b3261e;font-weight:600}.warning{color:#8a5a00;font-weight:600}.note{color:#2b5f9e}\n"
 	      ".small{font-size:.85rem;color:#4a5560}.num{text-align:right;white-space:nowrap}\n"
+	      "dl.run{display:grid;grid-template-columns:max-content 1fr;gap:.15rem .9rem;margin:.5rem 0}\n"
+	      "dl.run dt{color:#4a5560}dl.run dd{margin:0}ul.files{margin:.2rem 0;padding-left:1.2rem}\n"
+	      ".wide{overflow-x:auto}tr.over td{background:#fdf0f4}.over-tag{color:#ad1457;font-weight:700}\n"
 	      ".plots{display:grid;grid-template-columns:repeat(auto-fill,minmax(18rem,1fr));gap:.8rem}\n"
 	      "figure{margin:0;border:1px solid #e3e7ec;border-radius:6px;padding:.4rem}\n"
+	      "figure.over{border:2px solid #ad1457}\n"
 	      "figcaption{font-size:.85rem}svg{width:100%;height:auto}\n"
 	      ".caution{border:2px solid #b3261e;padding:.6rem;border-radius:6px;background:#fff5f4}\n"
 	      "@media print{.plots{grid-template-columns:1fr 1fr}body{max-width:none}}\n"
 	      "@media (max-width:40rem){td,th{font-size:.85rem}}\n"
-	      "</style></head><body>\n<header><h1>headroom: worst-case stress of diode-capacitor networks</h1>\n"
-	      "<p class=\"small\">profile ", out);
-	x(out, p->name);
-	fputs(": ", out);
-	x(out, p->description);
-	fputs("</p></header>\n", out);
+	      "</style></head><body>\n<header><h1>headroom: worst-case stress of diode-capacitor networks</h1>\n",
+	      out);
+	run_facts(out, p, in);
+	fputs("</header>\n", out);
 }
 
 static void findings(FILE *out, const struct check_file *f)
@@ -135,73 +183,322 @@ static int waveform(const struct check_file *f, const struct nl_part *p,
 	return 1;
 }
 
-static void hline(FILE *out, double y, const char *color, const char *label)
+/* How far a stress goes past its bounds: the verdict shown in the stress
+ * table and on the plots, in words as well as colour. */
+enum over {
+	OV_NONE,
+	OV_LIMIT,
+	OV_RATING,
+};
+
+static enum over over_of(double worst, double rating, double limit)
 {
-	fprintf(out, "<line x1=\"40\" y1=\"%.1f\" x2=\"300\" y2=\"%.1f\" stroke=\"%s\" stroke-width=\"1.5\" stroke-dasharray=\"6 4\"/>"
-		"<text x=\"298\" y=\"%.1f\" font-size=\"9\" text-anchor=\"end\" fill=\"%s\">%s</text>",
-		y, y, color, y - 3, color, label);
+	if (worst > rating)
+		return OV_RATING;
+	return worst > limit ? OV_LIMIT : OV_NONE;
+}
+
+/* One plot: the waveform (the simulated one too with --verify), the lines
+ * it is judged against, and the value range drawn. A capacitor's voltage
+ * is signed (pin 0 minus pin 1) and its rating holds either way, so the
+ * rating and limit lines are drawn on each side the trace reaches. */
+struct plot_data {
+	const struct nl_part *pt;
+	const struct stress *s;
+	double v[PLOT_POINTS], sv[PLOT_POINTS];
+	int sim;
+	double rating, limit;
+	double bar;    /* the line a trace must stay inside: limit, else rating */
+	int pos, neg;  /* sides the lines are drawn on */
+	double lo, hi; /* value range of the drawing */
+};
+
+static double plot_y(const struct plot_data *d, double val)
+{
+	return 150 - (val - d->lo) / (d->hi - d->lo) * 135;
+}
+
+static double plot_x(double i)
+{
+	return 40 + 260.0 * i / (PLOT_POINTS - 1);
+}
+
+/* A side gets its lines when the trace goes a quarter of the way to the
+ * limit there: an excursion past the limit always has its line, and a
+ * trace on one side keeps the whole height of the plot. */
+static void plot_sides(struct plot_data *d)
+{
+	double vmin = 0, vmax = 0;
+	for (int i = 0; i < PLOT_POINTS; i++) {
+		vmin = fmin(fmin(vmin, d->v[i]), d->sim ? d->sv[i] : vmin);
+		vmax = fmax(fmax(vmax, d->v[i]), d->sim ? d->sv[i] : vmax);
+	}
+	d->bar = isfinite(d->limit) ? d->limit : d->rating;
+	d->neg = d->pt->kind == NL_C && isfinite(d->bar) && vmin <= -0.25 * d->bar;
+	d->pos = isfinite(d->bar) && (vmax >= 0.25 * d->bar || !d->neg);
+	double top = isfinite(d->rating) ? fmax(d->rating, d->bar) : d->bar;
+	if (d->pos)
+		vmax = fmax(vmax, top);
+	if (d->neg)
+		vmin = fmin(vmin, -top);
+	double span = vmax - vmin > 0 ? vmax - vmin : 1;
+	d->hi = vmax + 0.08 * span;
+	d->lo = vmin - (d->neg ? 0.08 : 0.04) * span;
+}
+
+static int plot_load(struct plot_data *d, const struct check_file *f,
+		     const struct profile *p, const struct stress *s, double period)
+{
+	d->pt = nl_part_at(f->a->er.circuit, s->part);
+	d->s = s;
+	if (!waveform(f, d->pt, period, d->v))
+		return 0;
+	d->rating = f->ratings[s->part].v_rated.value;
+	d->limit = report_limit(f, p, s);
+	/* the simulated waveform (--verify), the same sense as v */
+	d->sim = s->sim_wave != NULL;
+	for (int i = 0; d->sim && i < PLOT_POINTS; i++)
+		d->sv[i] = d->pt->kind == NL_D ? -s->sim_wave[i] : s->sim_wave[i];
+	plot_sides(d);
+	return 1;
+}
+
+/* A dashed line at value val, labelled at the end away from zero. */
+static void hline(FILE *out, const struct plot_data *d, double val, const char *cls,
+		  const char *color, const char *label)
+{
+	double y = plot_y(d, val);
+	fprintf(out, "<line class=\"%s\" data-v=\"%.10g\" x1=\"40\" y1=\"%.1f\" x2=\"300\" y2=\"%.1f\" "
+		     "stroke=\"%s\" stroke-width=\"1.5\" stroke-dasharray=\"6 4\"/>"
+		     "<text x=\"298\" y=\"%.1f\" font-size=\"9\" text-anchor=\"end\" fill=\"%s\">%s%s</text>",
+		cls, val, y, y, color, val < 0 ? y + 10 : y - 3, color, val < 0 ? "&#8722;" : "", label);
+}
+
+static void plot_lines(FILE *out, const struct plot_data *d)
+{
+	for (int side = 1; side >= -1; side -= 2) {
+		if (!(side > 0 ? d->pos : d->neg))
+			continue;
+		if (isfinite(d->rating))
+			hline(out, d, side * d->rating, "rating", "#8e24aa", "rating");
+		if (isfinite(d->limit) && d->limit != d->rating)
+			hline(out, d, side * d->limit, "limit", "#8a5a00", "limit");
+	}
+}
+
+static void polyline(FILE *out, const struct plot_data *d, const char *cls,
+		     const char *style, const double *v)
+{
+	fprintf(out, "<polyline class=\"%s\" fill=\"none\" %s points=\"", cls, style);
+	for (int i = 0; i < PLOT_POINTS; i++)
+		fprintf(out, "%.1f,%.1f ", plot_x(i), plot_y(d, v[i]));
+	fputs("\"/>", out);
+}
+
+/* The stretches of the trace past the bar on one side (side * v > bar),
+ * redrawn thick in red; each begins and ends where the trace crosses the
+ * line, so the red starts exactly at it. */
+static void over_runs(FILE *out, const struct plot_data *d, int side)
+{
+	int open = 0;
+	for (int i = 0; i < PLOT_POINTS; i++) {
+		double u = side * d->v[i] - d->bar;
+		int past = u > 0;
+		if (past && !open)
+			fputs("<polyline class=\"over-trace\" fill=\"none\" stroke=\"#d81b60\" "
+			      "stroke-width=\"4\" points=\"",
+			      out);
+		if (i > 0 && past != open) { /* the crossing between i - 1 and i */
+			double up = side * d->v[i - 1] - d->bar;
+			fprintf(out, "%.1f,%.1f ", plot_x(i - 1 + up / (up - u)),
+				plot_y(d, side * d->bar));
+		}
+		if (past)
+			fprintf(out, "%.1f,%.1f ", plot_x(i), plot_y(d, d->v[i]));
+		else if (open)
+			fputs("\"/>", out);
+		open = past;
+	}
+	if (open)
+		fputs("\"/>", out);
+}
+
+/* The point where the trace is farthest out; among points within 0.1 %
+ * of that (a flat trace), the one nearest the middle of the period. */
+static int extreme_at(const struct plot_data *d)
+{
+	const int mid = PLOT_POINTS / 2;
+	double m = 0;
+	int k = -1;
+	for (int i = 0; i < PLOT_POINTS; i++)
+		m = fmax(m, fabs(d->v[i]));
+	for (int i = 0; i < PLOT_POINTS; i++)
+		if (fabs(d->v[i]) >= 0.999 * m && (k < 0 || abs(i - mid) < abs(k - mid)))
+			k = i;
+	return k; /* the largest |v| always qualifies */
+}
+
+/* Past the limit (or the rating where there is no limit): the stretches
+ * over it in red, a ring where the trace is farthest out, and under the
+ * plot, beside the same ring, the stress in words. */
+static void over_mark(FILE *out, const struct plot_data *d, enum over ov)
+{
+	int k = extreme_at(d);
+	for (int side = 1; side >= -1; side -= 2)
+		if (side > 0 ? d->pos : d->neg)
+			over_runs(out, d, side);
+	/* the ring sits at the reported worst on the trace's side: on the
+	   trace when the plotted corner is the worst one */
+	double val = d->v[k] < 0 ? -d->s->worst : d->s->worst;
+	fprintf(out, "<g class=\"over-mark\"><circle cx=\"%.1f\" cy=\"%.1f\" r=\"6\" fill=\"none\" "
+		     "stroke=\"#d81b60\" stroke-width=\"2.5\"/>"
+		     "<circle cx=\"45\" cy=\"180\" r=\"4\" fill=\"none\" stroke=\"#d81b60\" stroke-width=\"2\"/>"
+		     "<text x=\"53\" y=\"183.5\" font-size=\"9.5\" font-weight=\"700\" fill=\"#d81b60\">"
+		     "%s %.0f%% of rating",
+		plot_x(k), plot_y(d, val), ov == OV_RATING ? "over rating:" : "over limit:",
+		100 * d->s->worst / d->rating);
+	if (ov == OV_LIMIT)
+		fprintf(out, " (limit %.0f%%)", 100 * d->limit / d->rating);
+	fputs("</text></g>", out);
+}
+
+static void plot_caption(FILE *out, const struct check_file *f,
+			 const struct plot_data *d, enum over ov)
+{
+	const uint32_t *q = nl_pins(f->a->er.circuit, d->pt);
+	char a[32];
+	fputs("<figcaption>", out);
+	if (ov != OV_NONE)
+		fprintf(out, "<strong class=\"over-tag\">%s</strong> ",
+			ov == OV_RATING ? "Over its rating." : "Over its limit.");
+	x(out, d->pt->path);
+	fputs(" (", out);
+	x(out, d->s->role);
+	fputs(")", out);
+	if (d->pt->kind == NL_C) {
+		fputs(", v(", out);
+		x(out, nl_node_at(f->a->er.circuit, q[0])->name);
+		fputs(") &#8722; v(", out);
+		x(out, nl_node_at(f->a->er.circuit, q[1])->name);
+		fputs(")", out);
+	}
+	num_format_eng(d->s->worst, "V", a, sizeof a);
+	fprintf(out, ": %s %s worst", d->pt->kind == NL_D ? "reverse" : "|V|", a);
+	if (d->sim) {
+		num_format_eng(d->s->sim_worst, "V", a, sizeof a);
+		fprintf(out, "; simulated %s (dashed blue)", a);
+	}
+	fputs("</figcaption></figure>\n", out);
 }
 
 static void plot(FILE *out, const struct check_file *f, const struct profile *p,
 		 const struct stress *s, double period)
 {
-	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
-	double v[PLOT_POINTS], lo = 0, hi = 0;
-	if (!waveform(f, pt, period, v))
+	struct plot_data d;
+	if (!plot_load(&d, f, p, s, period))
 		return;
-	double rating = f->ratings[s->part].v_rated.value, limit = report_limit(f, p, s);
-	/* the simulated waveform (--verify), the same sense as v */
-	double sv[PLOT_POINTS];
-	int sim = s->sim_wave != NULL;
-	for (int i = 0; sim && i < PLOT_POINTS; i++)
-		sv[i] = pt->kind == NL_D ? -s->sim_wave[i] : s->sim_wave[i];
-	for (int i = 0; i < PLOT_POINTS; i++) {
-		lo = fmin(fmin(lo, v[i]), sim ? sv[i] : lo);
-		hi = fmax(fmax(hi, v[i]), sim ? sv[i] : hi);
-	}
-	if (!isnan(rating))
-		hi = fmax(hi, rating), lo = fmin(lo, pt->kind == NL_C ? -0.05 * rating : lo);
-	double span = hi - lo > 0 ? hi - lo : 1;
-	hi += 0.08 * span;
-	lo -= 0.04 * span;
-#define Y(val) (150 - ((val) - lo) / (hi - lo) * 135)
-	fputs("<figure><svg class=\"plot\" viewBox=\"0 0 310 175\" role=\"img\" aria-label=\"waveform\">"
-	      "<rect x=\"40\" y=\"5\" width=\"260\" height=\"145\" fill=\"#f7f9fb\"/>", out);
+	enum over ov = over_of(s->worst, d.rating, d.limit);
 	char a[32], b[32];
-	num_format_eng(hi, "V", a, sizeof a);
-	num_format_eng(lo, "V", b, sizeof b);
-	fprintf(out, "<text x=\"36\" y=\"14\" font-size=\"9\" text-anchor=\"end\">%s</text>"
-		"<text x=\"36\" y=\"150\" font-size=\"9\" text-anchor=\"end\">%s</text>"
-		"<line x1=\"40\" y1=\"%.1f\" x2=\"300\" y2=\"%.1f\" stroke=\"#c3cad2\"/>", a, b, Y(0), Y(0));
-	if (!isnan(rating))
-		hline(out, Y(rating), "#8e24aa", "rating");
-	if (!isnan(limit) && limit != rating)
-		hline(out, Y(limit), "#8a5a00", "limit");
-	fputs("<polyline class=\"wave\" fill=\"none\" stroke=\"#137a5a\" stroke-width=\"2\" points=\"", out);
-	for (int i = 0; i < PLOT_POINTS; i++)
-		fprintf(out, "%.1f,%.1f ", 40 + 260.0 * i / (PLOT_POINTS - 1), Y(v[i]));
-	fputs("\"/>", out);
-	if (sim) {
-		fputs("<polyline class=\"sim\" fill=\"none\" stroke=\"#2f5fb3\" stroke-width=\"1.5\" "
-		      "stroke-dasharray=\"3 2\" points=\"", out);
-		for (int i = 0; i < PLOT_POINTS; i++)
-			fprintf(out, "%.1f,%.1f ", 40 + 260.0 * i / (PLOT_POINTS - 1), Y(sv[i]));
-		fputs("\"/>", out);
-	}
+	num_format_eng(d.hi, "V", a, sizeof a);
+	num_format_eng(d.lo, "V", b, sizeof b);
+	fputs("<figure", out);
+	fputs(ov != OV_NONE ? " class=\"over\" data-part=\"" : " data-part=\"", out);
+	x(out, d.pt->path);
+	/* an over-limit plot has a row below its time axis for the words */
+	fprintf(out, "\"><svg class=\"plot\" viewBox=\"-8 0 318 %d\" role=\"img\" aria-label=\"waveform\">"
+		     "<rect x=\"40\" y=\"5\" width=\"260\" height=\"145\" fill=\"#f7f9fb\"/>"
+		     "<text x=\"36\" y=\"14\" font-size=\"9\" text-anchor=\"end\">%s</text>"
+		     "<text x=\"36\" y=\"150\" font-size=\"9\" text-anchor=\"end\">%s</text>"
+		     "<line class=\"zero\" x1=\"40\" y1=\"%.1f\" x2=\"300\" y2=\"%.1f\" stroke=\"#c3cad2\"/>",
+		ov != OV_NONE ? 190 : 175, a, b, plot_y(&d, 0), plot_y(&d, 0));
+	plot_lines(out, &d);
+	polyline(out, &d, "wave", "stroke=\"#137a5a\" stroke-width=\"2\"", d.v);
+	if (d.sim)
+		polyline(out, &d, "sim", "stroke=\"#2f5fb3\" stroke-width=\"1.5\" stroke-dasharray=\"3 2\"", d.sv);
+	if (ov != OV_NONE && isfinite(d.bar))
+		over_mark(out, &d, ov);
 	num_format_eng(period, "s", a, sizeof a);
 	fprintf(out, "<text x=\"170\" y=\"168\" font-size=\"9\" text-anchor=\"middle\">one period (%s)</text></svg>", a);
-#undef Y
-	fputs("<figcaption>", out);
-	x(out, pt->path);
-	fputs(" (", out);
-	x(out, s->role);
-	num_format_eng(s->worst, "V", a, sizeof a);
-	fprintf(out, "): %s %s worst", pt->kind == NL_D ? "reverse" : "|V|", a);
-	if (sim) {
-		num_format_eng(s->sim_worst, "V", a, sizeof a);
-		fprintf(out, "; simulated %s (dashed blue)", a);
+	plot_caption(out, f, &d, ov);
+}
+
+/* ---- the stress table: every stress of the file, as in the JSON report ---- */
+
+/* Quantity names: the JSON report's, and the table's [stress_qty order]. */
+static const struct {
+	const char *id, *shown;
+} qty_names[] = {{"voltage", "voltage"}, {"reverse_voltage", "reverse"}, {"surge_current", "surge"}};
+_Static_assert(sizeof qty_names / sizeof qty_names[0] == SQ_SURGE + 1, "a name per quantity");
+
+/* A number cell: engineering notation to read, the exact value in data-v
+ * for scripts; "-" when there is none. */
+static void num_cell(FILE *out, double v, const char *unit)
+{
+	char b[32];
+	if (!isfinite(v)) {
+		fputs("<td class=\"num\">-</td>", out);
+		return;
 	}
-	fputs("</figcaption></figure>\n", out);
+	num_format_eng(v, unit, b, sizeof b);
+	fprintf(out, "<td class=\"num\" data-v=\"%.10g\">%s</td>", v, b);
+}
+
+static const char *verdict(const struct stress *s, double rated, enum over ov)
+{
+	if (!s->bounded)
+		return "no number";
+	if (isnan(rated))
+		return "no rating";
+	static const char *const words[] = {"within limit", "over limit", "over rating"};
+	_Static_assert(sizeof words / sizeof words[0] == OV_RATING + 1, "a word per verdict");
+	return words[ov];
+}
+
+static void stress_row(FILE *out, const struct check_file *f, const struct profile *p,
+		       const struct stress *s)
+{
+	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
+	const struct rating *r = &f->ratings[s->part];
+	double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+	double worst = s->bounded ? s->worst : NAN, limit = report_limit(f, p, s);
+	const char *unit = s->qty == SQ_SURGE ? "A" : "V";
+	enum over ov = over_of(worst, rated, limit);
+	fputs(ov != OV_NONE ? "<tr class=\"over\" data-part=\"" : "<tr data-part=\"", out);
+	x(out, pt->path);
+	fprintf(out, "\" data-qty=\"%s\"><td>", qty_names[s->qty].id);
+	x(out, pt->path);
+	if (s->role[0]) {
+		fputs("<br><span class=\"small\">", out);
+		x(out, s->role);
+		fputs("</span>", out);
+	}
+	if (s->structure >= 0)
+		fprintf(out, "</td><td>S%d</td>", s->structure + 1);
+	else
+		fputs("</td><td>-</td>", out);
+	fprintf(out, "<td>%s</td>", qty_names[s->qty].shown);
+	num_cell(out, worst, unit);
+	num_cell(out, rated, unit);
+	num_cell(out, limit, unit);
+	if (isfinite(worst / rated))
+		fprintf(out, "<td class=\"num\" data-v=\"%.10g\">%.0f%%</td>", worst / rated, 100 * worst / rated);
+	else
+		fputs("<td class=\"num\">-</td>", out);
+	fprintf(out, "<td>%s</td><td%s>%s</td></tr>\n", stress_basis_name(s->basis),
+		ov != OV_NONE ? " class=\"over-tag\"" : "", verdict(s, rated, ov));
+}
+
+static void stress_table(FILE *out, const struct check_file *f, const struct profile *p)
+{
+	if (f->stress->n == 0)
+		return;
+	fputs("<h3>Stresses</h3>\n<div class=\"wide\"><table class=\"stress\"><tr><th>part</th><th>in</th>"
+	      "<th>stress</th><th class=\"num\">worst</th><th class=\"num\">rating</th>"
+	      "<th class=\"num\">limit</th><th class=\"num\">of rating</th><th>basis</th><th>verdict</th></tr>\n",
+	      out);
+	for (size_t i = 0; i < f->stress->n; i++)
+		stress_row(out, f, p, &f->stress->s[i]);
+	fputs("</table></div>\n", out);
 }
 
 static int by_ratio(const struct check_file *f, const struct stress *a,
@@ -280,10 +577,11 @@ static void verify_line(FILE *out, const struct stress_verify *v)
 }
 
 void report_html_file(FILE *out, const struct check_file *f,
-		      const struct profile *p, int first)
+		      const struct profile *p, int first,
+		      const struct check_totals *t)
 {
 	if (first)
-		head(out, p);
+		head(out, p, t->inputs);
 	fputs("<section class=\"file\"><h2>", out);
 	x(out, f->path);
 	fputs("</h2>\n", out);
@@ -292,6 +590,7 @@ void report_html_file(FILE *out, const struct check_file *f,
 	} else {
 		verify_line(out, f->stress->verify);
 		findings(out, f);
+		stress_table(out, f, p);
 		for (size_t i = 0; i < f->a->topo.n; i++)
 			structure(out, f, p, i);
 	}
@@ -302,7 +601,7 @@ void report_html_end(FILE *out, const struct profile *p,
 		     const struct check_totals *t)
 {
 	if (t->files == 0)
-		head(out, p);
+		head(out, p, t->inputs);
 	fprintf(out, "<section id=\"summary\"><h2>Summary</h2>\n<p>%zu file%s checked: "
 		"<span class=\"error\">%zu error%s</span>, <span class=\"warning\">%zu warning%s</span>, "
 		"<span class=\"note\">%zu note%s</span>.</p>\n",
