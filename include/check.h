@@ -48,6 +48,7 @@ struct check_file {
 	const struct rating *ratings;   /* NULL when not analysed */
 	const struct stress_result *stress;
 	const struct rules_result *rules;
+	const char *caution;            /* this file's safety caution, or NULL */
 };
 
 /* One file's check and the memory behind it. */

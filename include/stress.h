@@ -27,6 +27,32 @@ enum stress_basis {
 /* Display names: "proven", "simulated", "none" [stress-basis]. */
 const char *stress_basis_name(enum stress_basis b);
 
+/* How a capacitor's charge drains once the circuit is off [stress-drain]. */
+enum stress_drain {
+	SD_NONE,    /* no resistor path: it keeps its charge */
+	SD_OWN,     /* resistors across it (through any nodes) */
+	SD_STACK,   /* only with its series stack, through the stack's resistors */
+	SD_OUTPUT,  /* estimate: through its structure's output resistance */
+	SD_COUNT
+};
+
+/* A series stack of capacitors inside a structure, from its output down to
+ * ground (or its low output): after switch-off one current drains every
+ * member, so the stack's voltage falls no slower than exp(-t / (R (Ceq +
+ * Cpar))). */
+struct stress_stack {
+	int32_t structure;
+	uint32_t top, bottom;   /* nodes */
+	uint32_t nseg;          /* capacitor positions in series (parallel parts merged) */
+	uint32_t first;         /* a part on the top position: where findings point */
+	double ceq_f;           /* series capacitance, F */
+	double cpar_f;          /* capacitance joining through diodes as it drains
+				   (a ladder's coupling column above stage 1), F */
+	double v;               /* sum of the positions' worst voltages, V */
+	double r;               /* resistance from top to bottom, INFINITY when none */
+	double t;               /* time for v to fall below the hazard voltage, s */
+};
+
 struct stress {
 	uint32_t part;
 	int32_t structure;      /* index in the audit's topo result, -1 if none */
@@ -40,10 +66,13 @@ struct stress {
 	enum stress_basis basis;
 	const char *unproven;   /* why the analysis's proof does not hold, or NULL */
 	double analytic;        /* the analysis's own worst (NaN when none) */
-	/* capacitors: stored energy at the worst voltage and discharge */
+	/* capacitors: stored energy at the worst voltage and discharge
+	   (discharge.h; set only above the hazard voltage) */
 	double energy_j;
-	double discharge_r;     /* resistance across it, INFINITY when none */
+	double discharge_r;     /* resistance it drains through, INFINITY when none */
 	double discharge_s;     /* time to fall below the hazard voltage */
+	enum stress_drain drain;/* where discharge_r comes from */
+	int32_t stack;          /* its series stack in stacks[], -1 when none */
 	/* surge: the series resistance that limits it (0: nothing) */
 	double series_r;
 	/* --verify: the same quantity in the steady-state simulation at the
@@ -91,7 +120,9 @@ struct stress_result {
 	struct stress *s;
 	size_t n;
 	struct stress_struct *st;   /* one per structure */
-	double max_voltage;         /* largest worst voltage of any stress */
+	double max_voltage;         /* largest worst voltage of any stress or stack */
+	const struct stress_stack *stacks; /* discharge.h */
+	size_t nstacks;
 	const char *corners[8];
 	size_t ncorners;
 	const struct prop_result *runs;   /* one propagation per corner */
@@ -147,9 +178,9 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part);
 
-/* Sets a capacitor stress's stored energy and its discharge time to the
- * hazard voltage from its worst voltage and discharge_r (cap_f farads). */
-void stress_set_energy(struct stress *s, double cap_f, double hazard_v);
+/* Sets a capacitor stress's stored energy from its worst voltage (cap_f
+ * farads). Its discharge is set later, by discharge_run (discharge.h). */
+void stress_set_energy(struct stress *s, double cap_f);
 
 /* The DC part of capacitor p's voltage (pin 0 minus pin 1) in the
  * best-case propagation (sources at -tol, diode drops), NaN where either

@@ -48,6 +48,7 @@ simrun solver
 profile check
 rating check
 stress check
+discharge check
 verify check
 rules check
 waiver check

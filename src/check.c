@@ -7,15 +7,36 @@
 
 #include <assert.h>
 #include <math.h>
+#include <stdio.h>
 #include <string.h>
 
 #include "defects.h"
+#include "discharge.h"
+#include "num.h"
 
 const char check_caution[] =
 	"caution: this design involves voltages above the hazard level. Stored charge "
 	"can injure or kill, also after power is removed. These findings are an aid to "
 	"review, not a certification: follow the applicable safety standard, local codes "
 	"and licensed practice.";
+
+/* The caution for a file whose stresses or stacks exceed the hazard
+ * voltage: it names the file and its highest voltage (docs/design.md §14). */
+static const char *file_caution(struct check_run *r, const char *path)
+{
+	double hz = profile_hazard(r->profile), top = r->sr.max_voltage;
+	char vt[40], vh[40], buf[1024];
+	if (isnan(hz) || !(top > hz))
+		return NULL;
+	num_format_eng(top, "V", vt, sizeof vt);
+	num_format_eng(hz, "V", vh, sizeof vh);
+	snprintf(buf, sizeof buf, "caution: %s involves up to %s, above the %s hazard voltage. Stored charge "
+		 "can injure or kill, also after power is removed. These findings are an aid to review, "
+		 "not a certification: follow the applicable safety standard, local codes and licensed "
+		 "practice.", path, vt, vh);
+	const char *c = arena_strdup(r->ar, buf);
+	return c ? c : check_caution;
+}
 
 /* A *@profile line picks the profile for its own file, unless the command
  * line named one. Returns 0 on out-of-memory; a profile that cannot be
@@ -74,7 +95,7 @@ static int judge(const struct check_opts *o, struct check_run *r)
 	int sim = o->verify && (!o->verify_max_parts ||
 				nl_part_count(a->er.circuit) <= o->verify_max_parts);
 	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
-	       simulate_unproven(o, r) &&
+	       simulate_unproven(o, r) && discharge_run(a, r->profile, a->ar, &r->sr) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
 	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
 	       defects_run(a, rt, &r->sr, a->ar, &r->rr) &&
@@ -87,7 +108,7 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 	assert(o && o->profile && o->today);
 	memset(r, 0, sizeof *r);
 	r->profile = o->profile;
-	r->f = (struct check_file){path, &r->a, NULL, NULL, &r->sr, &r->rr};
+	r->f = (struct check_file){path, &r->a, NULL, NULL, &r->sr, &r->rr, NULL};
 	r->ar = arena_create(hook);
 	r->d = r->ar ? diag_create(r->ar, o->max_errors ? o->max_errors : 50) : NULL;
 	if (!r->d)
@@ -99,6 +120,8 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 		r->status = CHECK_OOM;
 	if (r->status == CHECK_OK && !judge(o, r))
 		r->status = CHECK_OOM;
+	if (r->status == CHECK_OK)
+		r->f.caution = file_caution(r, path);
 	if (r->status == CHECK_OK && o->baseline)
 		baseline_filter(o->baseline, path, &r->rr);
 	if (r->status == CHECK_ERRORS)

@@ -24,7 +24,7 @@ const char *const profile_diode_kinds[] = {
 	"rectifier", "fast-recovery", "schottky", "zener", "hv-stack", "signal",
 	"default", NULL};
 
-static const char *const top_keys[] = {"source_tol", "hazard_voltage",
+static const char *const top_keys[] = {"source_tol", "hazard_voltage", "hazard_charge",
 	"discharge_time", "droop_limit", "recovery_fraction", NULL};
 static const char *const cap_fields[] = {"voltage", "reverse_v", "reverse_fraction", NULL};
 static const char *const diode_fields[] = {"voltage", "surge", NULL};

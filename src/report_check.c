@@ -171,10 +171,12 @@ static void text_file(FILE *out, const struct check_file *f,
 		f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name);
 	for (size_t i = 0; i < n; i++)
 		text_finding(out, f, &f->rules->f[i], t->color);
-	if (t->quiet)
-		return;
-	text_structs(out, f);
-	text_table(out, f);
+	if (!t->quiet) {
+		text_structs(out, f);
+		text_table(out, f);
+	}
+	if (f->caution)
+		fprintf(out, "%s\n", f->caution);
 }
 
 /* ---- JSON ---- */
@@ -296,6 +298,8 @@ static void json_file(FILE *out, const struct check_file *f)
 {
 	fputs("    {\"path\": ", out);
 	jstr(out, f->path);
+	fputs(", \"caution\": ", out);
+	jstr(out, f->caution);
 	fputs(", ", out);
 	json_errors(out, f);
 	fputs(",\n      ", out);

@@ -92,6 +92,23 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	fputc('\n', out);
 }
 
+/* The file's safety caution as a row of its own: quantity "caution", the
+ * text in the role column, the file's highest voltage as worst and the
+ * hazard voltage as limit (docs/reports.md). */
+static void caution_row(FILE *out, const struct check_file *f, const struct profile *p)
+{
+	if (!f->caution)
+		return;
+	report_csv_field(out, f->path);
+	fputs(",,,,,", out);
+	report_csv_field(out, f->caution);
+	fputs(",caution,", out);
+	num(out, f->stress->max_voltage);
+	fputs(",,V,,,,", out);
+	num(out, profile_hazard(p));
+	fputs(",,,,\n", out);
+}
+
 void report_csv_file(FILE *out, const struct check_file *f,
 		     const struct profile *p, int first)
 {
@@ -107,4 +124,5 @@ void report_csv_file(FILE *out, const struct check_file *f,
 		if (s->bounded || !isnan(rated) || s->structure >= 0)
 			row(out, f, p, s);
 	}
+	caution_row(out, f, p);
 }

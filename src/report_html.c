@@ -585,6 +585,11 @@ void report_html_file(FILE *out, const struct check_file *f,
 	fputs("<section class=\"file\"><h2>", out);
 	x(out, f->path);
 	fputs("</h2>\n", out);
+	if (f->caution) {
+		fputs("<p class=\"caution\"><strong>Caution.</strong> ", out);
+		x(out, f->caution + strlen("caution: "));
+		fputs("</p>\n", out);
+	}
 	if (!f->a->analysed) {
 		fputs("<p class=\"error\">Not checked: the netlist has errors.</p>\n", out);
 	} else {

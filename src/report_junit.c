@@ -28,8 +28,9 @@ static int listed(const char *const *list, const char *id)
  * own, so that no finding is missing from this format. */
 static int own_case(const struct finding *g)
 {
-	return !listed(cap_rules, g->rule->id) && !listed(diode_rules, g->rule->id) &&
-	       !listed(surge_rules, g->rule->id);
+	return g->part == NL_NONE || (!listed(cap_rules, g->rule->id) &&
+				      !listed(diode_rules, g->rule->id) &&
+				      !listed(surge_rules, g->rule->id));
 }
 
 static void finding_case(FILE *out, const struct check_file *f, const struct finding *g)
@@ -162,6 +163,11 @@ void report_junit_file(FILE *out, const struct check_file *f,
 	for (size_t i = 0; i < f->rules->n; i++)
 		if (own_case(&f->rules->f[i]))
 			finding_case(out, f, &f->rules->f[i]);
+	if (f->caution) {
+		fputs("    <system-out>", out);
+		report_xml_text(out, f->caution);
+		fputs("</system-out>\n", out);
+	}
 	fputs("  </testsuite>\n", out);
 }
 

@@ -124,6 +124,23 @@ static void result(FILE *out, const struct check_file *f, const struct finding *
 	fputc('}', out);
 }
 
+/* The file's safety caution: an informational result (kind
+ * "informational", level "none": no verdict) under stored-charge, the rule
+ * it belongs to, located at the file's first line. */
+static void caution(FILE *out, const struct check_file *f, int first)
+{
+	const struct rule_info *r = rules_find("stored-charge");
+	fprintf(out, "%s\n      {\"ruleId\": \"%s\", \"ruleIndex\": %zu, \"kind\": \"informational\", "
+		     "\"level\": \"none\", \"message\": {\"text\": ",
+		first ? "" : ",", r->id, rule_index(r));
+	report_json_string(out, f->caution);
+	fputs("},\n        \"locations\": [{\"physicalLocation\": {\"artifactLocation\": {\"uri\": ", out);
+	uri(out, f->path);
+	fprintf(out, "}, \"region\": {\"startLine\": 1, \"startColumn\": 1}}}],\n        "
+		     "\"partialFingerprints\": {\"headroomFinding/v1\": \"%016llx\"}}",
+		(unsigned long long)fnv("caution", f->path, NULL));
+}
+
 void report_sarif_file(FILE *out, const struct check_file *f,
 		       const struct profile *p, int first, struct check_totals *t)
 {
@@ -137,6 +154,10 @@ void report_sarif_file(FILE *out, const struct check_file *f,
 	 * drops a leading comma when nothing came before */
 	for (size_t i = 0; i < f->rules->n; i++) {
 		result(out, f, &f->rules->f[i], first && t->emitted == 0);
+		t->emitted++;
+	}
+	if (f->caution) {
+		caution(out, f, first && t->emitted == 0);
 		t->emitted++;
 	}
 }

@@ -87,7 +87,7 @@ static const char *str(struct ctx *x, const char *fmt, ...)
 
 static const char *str(struct ctx *x, const char *fmt, ...)
 {
-	char buf[600];
+	char buf[1024];
 	va_list ap;
 	va_start(ap, fmt);
 	vsnprintf(buf, sizeof buf, fmt, ap);
@@ -325,32 +325,144 @@ static void missing(struct ctx *x, const struct stress *s, const char *cls)
 	f->fix = fix_rating(x, f->worst, isnan(factor) ? 1 : factor, strcmp(cls, "diode") == 0);
 }
 
+/* A charge at or below the profile's hazard_charge (when it sets one) is
+ * too small to hurt, whatever the voltage (docs/rules/stored-charge.md). */
+static int enough_charge(const struct ctx *x, double q)
+{
+	double qmin = profile_value(x->p, "hazard_charge", NULL);
+	return isnan(qmin) || q > qmin;
+}
+
+static const char *charge_limits(struct ctx *x, double hz, double tmax)
+{
+	double qmin = profile_value(x->p, "hazard_charge", NULL);
+	return str(x, "hazard voltage %s, discharge within %s%s%s (profile %s)", v(x, hz, "V"),
+		   isnan(tmax) ? "no time set: only a missing path is reported" : v(x, tmax, "s"),
+		   isnan(qmin) ? "" : ", charges above ", isnan(qmin) ? "" : v(x, qmin, "C"), x->p->name);
+}
+
+/* The bleeder that brings capacitance c from v below hz within tmax,
+ * beside r_now already there: R <= tmax / (C ln(V / Vhaz)), P = V^2 / R. */
+static const char *bleeder(struct ctx *x, const char *across, double c, double volts,
+			   double r_now, double hz, double tmax)
+{
+	if (isnan(tmax))
+		return str(x, "add a bleeder resistor across %s (the profile sets no discharge_time to size it)",
+			   across);
+	double need = tmax / (c * log(volts / hz));
+	double r = isfinite(r_now) && r_now > need ? 1 / (1 / need - 1 / r_now) : need;
+	return str(x, "add a bleeder of at most %s across %s (%s in all: R <= t / (C ln(V / %s)) with t %s); "
+		      "it dissipates %s at %s (P = V^2 / R): rate it for that power and voltage, "
+		      "or switch a discharge resistor in at power-off",
+		   v(x, r, "ohm"), across, v(x, need, "ohm"), v(x, hz, "V"), v(x, tmax, "s"),
+		   v(x, volts * volts / r, "W"), v(x, volts, "V"));
+}
+
+static const char *node_name(const struct ctx *x, uint32_t n)
+{
+	return nl_node_at(x->a->er.circuit, n)->name;
+}
+
+/* How the capacitor drains, for the computation line [stress-drain]. */
+/* ", Cpar 500 nF (the coupling column ...)" or ", Cpar 0" */
+static const char *cpar(struct ctx *x, const struct stress_stack *st)
+{
+	if (!(st->cpar_f > 0))
+		return ", Cpar 0";
+	return str(x, ", Cpar %s (the coupling column above stage 1, in series: it joins through the diodes "
+		      "as the output falls)", v(x, st->cpar_f, "F"));
+}
+
+static const char *drain_text(struct ctx *x, const struct stress *s, double c, double hz)
+{
+	const char *open = "resistors only: sources disconnected, capacitors, diodes and inductors open";
+	const struct stress_stack *st = s->stack >= 0 ? &x->s->stacks[s->stack] : NULL;
+	switch (s->drain) {
+	case SD_OWN:
+		return str(x, "R = %s across it (%s); t = R C ln(V / %s) = %s", v(x, s->discharge_r, "ohm"),
+			   open, v(x, hz, "V"), v(x, s->discharge_s, "s"));
+	case SD_STACK:
+		return str(x, "no resistor across it; one of %u capacitors in series from %s to %s: "
+			      "Ceq %s%s, Vstack %s, R %s between them, tau = R (Ceq + Cpar) = %s, so it sees "
+			      "tau / C = %s; t = -tau ln(1 - (V - %s) C / (Ceq Vstack)) = %s",
+			   st->nseg, node_name(x, st->top), node_name(x, st->bottom), v(x, st->ceq_f, "F"),
+			   cpar(x, st), v(x, st->v, "V"), v(x, st->r, "ohm"),
+			   v(x, st->r * (st->ceq_f + st->cpar_f), "s"), v(x, s->discharge_r, "ohm"),
+			   v(x, hz, "V"), v(x, s->discharge_s, "s"));
+	case SD_OUTPUT:
+		return str(x, "no resistor across it: estimated as emptying through its structure's diodes into "
+			      "the output, R = %s from there to ground (not proven); t = R C ln(V / %s) = %s",
+			   v(x, s->discharge_r, "ohm"), v(x, hz, "V"), v(x, s->discharge_s, "s"));
+	default:
+		(void)c;
+		return str(x, "no resistor path across it (%s)%s", open,
+			   st ? ", nor across its stack" : "");
+	}
+}
+
 static void stored_charge(struct ctx *x, const struct stress *s)
 {
-	const char *n1, *n2;
+	const char *note;
 	double hz = profile_hazard(x->p);
-	n1 = NULL;
-	(void)n1;
-	double tmax = profile_value(x->p, "discharge_time", &n2);
-	if (isnan(hz) || !(s->worst > hz) || (!isinf(s->discharge_r) && !(s->discharge_s > tmax)))
+	double tmax = profile_value(x->p, "discharge_time", &note);
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
+	double c = p->value * (p->ext ? p->ext->mult : 1.0);
+	if (isnan(hz) || !(s->worst > hz) || !enough_charge(x, c * s->worst) ||
+	    (s->drain != SD_NONE && !(s->discharge_s > tmax)))
 		return;
 	struct finding *f = add(x, RULE_STORED_CHARGE, s->part, s->structure);
 	if (!f)
 		return;
+	const struct stress_stack *st = s->stack >= 0 ? &x->s->stacks[s->stack] : NULL;
 	f->worst = s->worst;
 	f->limit = hz;
-	f->message = isinf(s->discharge_r)
-		? str(x, "%s holds %s (%s) and has no resistor across it to discharge it",
-		      f->subject, v(x, s->worst, "V"), v(x, s->energy_j, "J"))
-		: str(x, "%s holds %s (%s) and takes %s to fall below %s",
-		      f->subject, v(x, s->worst, "V"), v(x, s->energy_j, "J"), v(x, s->discharge_s, "s"),
-		      v(x, hz, "V"));
-	f->computation = str(x, "%s: E = C V^2 / 2 = %s; discharge t = R C ln(V / %s)%s", where(x, s),
-			     v(x, s->energy_j, "J"), v(x, hz, "V"),
-			     isinf(s->discharge_r) ? " with no R" : "");
-	f->limits = str(x, "hazard voltage %s, discharge within %s (profile %s)", v(x, hz, "V"),
-			v(x, tmax, "s"), x->p->name);
-	f->fix = "add a bleeder resistor across the capacitor sized to reach the hazard voltage in time";
+	const char *held = str(x, "%s holds %s (%s, %s)", f->subject, v(x, s->worst, "V"),
+			       v(x, s->energy_j, "J"), v(x, c * s->worst, "C"));
+	f->message = s->drain == SD_NONE ? str(x, "%s and has no discharge path", held)
+		     : isinf(s->discharge_s) ? str(x, "%s and its stack empties before it falls below %s", held, v(x, hz, "V"))
+		     : str(x, "%s and takes %s to fall below %s%s", held, v(x, s->discharge_s, "s"), v(x, hz, "V"),
+			   s->drain == SD_STACK ? str(x, " with its stack (%s to %s)", node_name(x, st->top),
+						      node_name(x, st->bottom))
+			   : s->drain == SD_OUTPUT ? " (estimate)" : "");
+	f->computation = str(x, "%s: E = C V^2 / 2 = %s, Q = C V = %s; %s", where(x, s), v(x, s->energy_j, "J"),
+			     v(x, c * s->worst, "C"), drain_text(x, s, c, hz));
+	f->limits = charge_limits(x, hz, tmax);
+	f->fix = bleeder(x, f->subject, c, s->worst, s->drain == SD_OWN ? s->discharge_r : INFINITY, hz, tmax);
+	if (st)
+		f->fix = str(x, "%s; or bleed the whole stack from %s to %s", f->fix, node_name(x, st->top),
+			     node_name(x, st->bottom));
+}
+
+/* A series stack whose total is a hazard: named by its output node, the
+ * place a hand meets the whole voltage. */
+static void stack_charge(struct ctx *x, const struct stress_stack *st)
+{
+	double hz = profile_hazard(x->p), tmax = profile_value(x->p, "discharge_time", NULL);
+	double q = st->ceq_f * st->v;
+	if (isnan(hz) || !(st->v > hz) || !enough_charge(x, q) || (isfinite(st->r) && !(st->t > tmax)))
+		return;
+	struct finding *f = add(x, RULE_STORED_CHARGE, NL_NONE, st->structure);
+	if (!f)
+		return;
+	const char *top = node_name(x, st->top), *bot = node_name(x, st->bottom);
+	f->loc = nl_part_loc(nl_part_at(x->a->er.circuit, st->first));
+	f->subject = top;
+	f->worst = st->v;
+	f->limit = hz;
+	const char *held = str(x, "the stack of %u capacitors in series from %s to %s (output of S%d) holds %s (%s, %s)",
+			       st->nseg, top, bot, st->structure + 1, v(x, st->v, "V"),
+			       v(x, 0.5 * st->ceq_f * st->v * st->v, "J"), v(x, q, "C"));
+	f->message = isfinite(st->r) ? str(x, "%s and takes %s to fall below %s", held, v(x, st->t, "s"), v(x, hz, "V"))
+				     : str(x, "%s and has no discharge path", held);
+	f->computation = str(x, "S%d (%s): Ceq = 1 / sum(1 / C) = %s%s; Vstack = sum of the members' worst = %s; "
+				"R = %s from %s to %s (resistors only: sources disconnected, capacitors, diodes and "
+				"inductors open); t = R (Ceq + Cpar) ln(Vstack / %s) = %s",
+			     st->structure + 1, topo_kind_name(x->a->topo.s[st->structure].kind), v(x, st->ceq_f, "F"),
+			     cpar(x, st), v(x, st->v, "V"), isfinite(st->r) ? v(x, st->r, "ohm") : "none", top, bot,
+			     v(x, hz, "V"), isfinite(st->r) ? v(x, st->t, "s") : "infinite");
+	f->limits = charge_limits(x, hz, tmax);
+	f->fix = str(x, "%s; a string of equal resistors, one across each capacitor, does the same and shares the voltage",
+		     bleeder(x, str(x, "the stack (%s to %s)", top, bot), st->ceq_f + st->cpar_f, st->v, st->r, hz, tmax));
 }
 
 static double period_of(struct ctx *x, int32_t st)
@@ -573,6 +685,8 @@ int rules_run(const struct audit *a, const struct rating *r, const struct profil
 	memset(out, 0, sizeof *out);
 	for (size_t i = 0; i < s->n && !x.oom; i++)
 		part_rules(&x, &s->s[i]);
+	for (size_t i = 0; i < s->nstacks && !x.oom; i++)
+		stack_charge(&x, &s->stacks[i]);
 	for (size_t i = 0; i < a->topo.n && !x.oom; i++)
 		droop(&x, i);
 	for (uint32_t i = 0; i < a->nannots && !x.oom; i++)

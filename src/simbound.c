@@ -279,7 +279,6 @@ static void fill(struct sb *b)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
 	const struct acc *x = &b->acc;
-	double hz = profile_hazard(b->p);
 	for (size_t i = 0; i < b->sr->n; i++) {
 		struct stress *s = &b->sr->s[i];
 		uint32_t k = s->part, is = b->sr->island[k];
@@ -303,7 +302,7 @@ static void fill(struct sb *b)
 		s->corner = x->corner[k];
 		const struct nl_part *pt = nl_part_at(c, k);
 		if (pt->kind == NL_C)
-			stress_set_energy(s, pt->value * (pt->ext ? pt->ext->mult : 1.0), hz);
+			stress_set_energy(s, pt->value * (pt->ext ? pt->ext->mult : 1.0));
 		b->fb->given++;
 	}
 }

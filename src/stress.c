@@ -7,8 +7,7 @@
  *    seen in secondary sources, docs/sources.md §3);
  *  - clamp droop per period with load R: dV = Vcap T / (R C) (docs/design.md §6);
  *  - surge: I = Vpeak / R_series (docs/design.md §6);
- *  - stored energy E = C V^2 / 2; RC discharge to the hazard voltage
- *    t = R C ln(V / Vhaz). */
+ *  - stored energy E = C V^2 / 2 (the discharge is discharge.c's). */
 #include "stress.h"
 
 #include "dmodel.h"
@@ -223,75 +222,19 @@ static int judge_proofs(struct ctx *x, struct stress_result *out, size_t *cap)
 	return 1;
 }
 
-/* Resistance from node to ground through resistors alone (capacitors and
- * diodes open), a node held by a source counting as ground: the path a
- * stored charge drains through once the circuit is off. Depth and a call
- * budget bound the search on meshes (it then answers INFINITY, the safe
- * side for a discharge check). */
-static double to_ground(const struct ctx *x, uint32_t node, uint32_t from,
-			int depth, int *budget)
-{
-	const struct prop_node *n = &x->runs[C_NOM].nodes[node];
-	if (node == NL_GROUND || n->how == PH_SOURCE || n->how == PH_VCVS)
-		return 0;
-	if (depth > 16 || --*budget < 0)
-		return INFINITY;
-	const struct nl_circuit *c = x->a->er.circuit;
-	uint32_t k;
-	const uint32_t *adj = nl_adjacency(c, node, &k);
-	double g = 0;
-	for (uint32_t i = 0; i < k; i++) {
-		const struct nl_part *r = nl_part_at(c, adj[i]);
-		if (r->kind != NL_R || adj[i] == from || !(r->value > 0))
-			continue;
-		const uint32_t *q = nl_pins(c, r);
-		uint32_t other = q[0] == node ? q[1] : q[0];
-		double rest = to_ground(x, other, adj[i], depth + 1, budget);
-		if (isfinite(rest))
-			g += 1 / (r->value / (r->ext ? r->ext->mult : 1.0) + rest);
-	}
-	return g > 0 ? 1 / g : INFINITY;
-}
-
-/* A capacitor drains through resistors straight across it and through
- * each terminal's path to ground. */
-static double across_r(const struct ctx *x, const struct nl_part *p)
-{
-	const struct nl_circuit *c = x->a->er.circuit;
-	const uint32_t *q = nl_pins(c, p);
-	uint32_t n;
-	const uint32_t *adj = nl_adjacency(c, q[0], &n);
-	double g = 0;
-	for (uint32_t i = 0; i < n; i++) {
-		const struct nl_part *r = nl_part_at(c, adj[i]);
-		if (r->kind != NL_R || !(r->value > 0))
-			continue;
-		const uint32_t *rq = nl_pins(c, r);
-		if ((rq[0] == q[0] && rq[1] == q[1]) || (rq[0] == q[1] && rq[1] == q[0]))
-			g += (r->ext ? r->ext->mult : 1.0) / r->value;
-	}
-	int budget = 10000;
-	double via = to_ground(x, q[0], NL_NONE, 0, &budget) + to_ground(x, q[1], NL_NONE, 0, &budget);
-	if (isfinite(via) && via > 0)
-		g += 1 / via;
-	return g > 0 ? 1 / g : INFINITY;
-}
-
-void stress_set_energy(struct stress *s, double cap_f, double hazard_v)
+void stress_set_energy(struct stress *s, double cap_f)
 {
 	s->energy_j = s->bounded ? 0.5 * cap_f * s->worst * s->worst : NAN;
-	s->discharge_s = NAN;
-	if (s->bounded && !isnan(hazard_v) && s->worst > hazard_v)
-		s->discharge_s = isinf(s->discharge_r) ? INFINITY
-				: s->discharge_r * cap_f * log(s->worst / hazard_v);
 }
 
 static void energy(struct ctx *x, struct stress *s)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
 	const struct nl_part *p = nl_part_at(c, s->part);
-	s->discharge_r = across_r(x, p);
-	stress_set_energy(s, p->value * (p->ext ? p->ext->mult : 1.0), profile_hazard(x->p));
+	s->discharge_r = INFINITY; /* discharge.h, once the worst is final */
+	s->stack = -1;
+	s->discharge_s = NAN;
+	stress_set_energy(s, p->value * (p->ext ? p->ext->mult : 1.0));
 }
 
 /* ---- structures ---- */
@@ -568,23 +511,6 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 		return 0;
 	for (size_t s = 0; s < a->topo.n; s++)
 		figures(&x, s, &out->st[s], coupling[s]);
-	/* a capacitor inside a structure also drains through the structure's
-	 * output and whatever path that has to ground (the stack empties into
-	 * its load) */
-	for (size_t i = 0; i < out->n; i++) {
-		struct stress *s = &out->s[i];
-		const struct nl_part *pt = nl_part_at(c, s->part);
-		if (pt->kind != NL_C || s->structure < 0 || !s->bounded || !isinf(s->discharge_r))
-			continue;
-		const struct topo_struct *t = &a->topo.s[s->structure];
-		int budget = 10000;
-		double rl = t->output != NL_NONE ? to_ground(&x, t->output, NL_NONE, 0, &budget) : INFINITY;
-		double hz = profile_hazard(p);
-		if (!isfinite(rl) || isnan(hz) || !(s->worst > hz))
-			continue;
-		s->discharge_r = rl;
-		s->discharge_s = rl * pt->value * (pt->ext ? pt->ext->mult : 1.0) * log(s->worst / hz);
-	}
 	if (!judge_proofs(&x, out, &cap))
 		return 0;
 	for (int k = 0; k < NCORNER; k++)

@@ -133,6 +133,34 @@ check "a number the analysis cannot prove says so: simulated, with the reason" g
 check "the stress table is printed" grep -q "^  X2.CAC  S1   voltage ladder stage 2, coupling column" "$tmp/out"
 check "hazardous voltages carry the caution" grep -q "^caution: this design involves voltages above the hazard level" "$tmp/out"
 check "a summary closes the report" grep -q "^6 files checked: " "$tmp/out"
+check "the mains doubler's bleeder fix gives the value and its dissipation" grep -q "fix:    add a bleeder of at most 2.435 kohm across CM1 (2.384 kohm in all: R <= t / (C ln(V / 60 V)) with t 2 s); it dissipates 52.5 W at 357.5 V" "$tmp/out"
+check "the mains doubler's stack is named by its output" grep -q "warning: the stack of 2 capacitors in series from pos to neg (output of S1) holds 715 V" "$tmp/out"
+
+# stored-charge (docs/rules/stored-charge.md); times checked against ngspice
+# by tests/ngspice_charge.py
+cd_=$data/charge
+run check -q "$cd_/dc440_bare.cir"
+check "a DC-fed capacitor with no bleeder is reported (its source is no path once disconnected)" grep -q "dc440_bare.cir:8:1: warning: C1 holds 440 V (9.68 J, 44 mC) and has no discharge path \[stored-charge\]" "$tmp/out"
+# R <= 2 s / (100 uF ln(440 / 60)) = 10.04 kohm; P = 440^2 / 10.04 k = 19.29 W
+check "... with the bleeder it needs and that bleeder's power" grep -q "add a bleeder of at most 10.04 kohm across C1 .*it dissipates 19.29 W at 440 V" "$tmp/out"
+run check -q "$cd_/dc440_slow.cir"
+# ngspice: 4.382 s from the cut to 60 V (tests/ngspice_charge.py)
+check "a bleeder too large: the RC time (ngspice 4.382 s)" grep -q "C1 holds 440 V (9.68 J, 44 mC) and takes 4.383 s to fall below 60 V" "$tmp/out"
+check "... and the bleeder to add beside it: 1 / (1 / 10.04 k - 1 / 22 k)" grep -q "add a bleeder of at most 18.46 kohm across C1 (10.04 kohm in all" "$tmp/out"
+run check -q "$cd_/dc440_fast.cir"
+check "a bleeder fast enough: no stored-charge finding" bash -c "! grep -q stored-charge '$tmp/out'"
+run check -q "$cd_/ladder3_stack.cir"
+# ngspice: CD1..CD3 3.06-3.11 s, the stack at d3 5.11 s (tests/ngspice_charge.py)
+check "a ladder member drains with its stack: tau = 2.2 M (333.3 n + 500 n)" grep -q "CD3 holds 420 V (88.2 mJ, 420 uC) and takes 3.568 s to fall below 60 V with its stack (d3 to 0)" "$tmp/out"
+check "... not with the whole stack's resistor on its own capacitance (4.281 s)" bash -c "! grep -q 'CD3 holds 420 V .* 4.281 s' '$tmp/out'"
+check "the stack's output and its voltage are named" grep -q "ladder3_stack.cir:19:1: warning: the stack of 3 capacitors in series from d3 to 0 (output of S1) holds 1.26 kV (264.6 mJ, 420 uC) and takes 5.582 s to fall below 60 V \[stored-charge\]" "$tmp/out"
+for fmt in text json csv junit sarif html; do
+	run check --format $fmt --fail-on never "$cd_/ladder3_stack.cir"
+	check "the caution names the file and its voltage in $fmt" grep -qi "caution[:.][^ ]* [^ ]*ladder3_stack.cir involves up to 1.26 kV, above the 60 V hazard voltage. Stored charge can injure or kill" "$tmp/out"
+	check "... and defers to the safety standard, local codes and licensed practice in $fmt" grep -q "follow the applicable safety standard, local codes and licensed practice" "$tmp/out"
+done
+run check --format csv --fail-on never "$cd_/dc440_fast.cir"
+check "the caution in CSV is a row of its own, quantity caution, worst 440" grep -q ',"caution: [^"]*dc440_fast.cir involves up to 440 V[^"]*",caution,440,,V,,,,60,,,,$' "$tmp/out"
 run check --fail-on never --parts "$ex/parts.csv" "$ex"
 check "--fail-on never: exit 0" test $rc -eq 0
 run check --fail-on warning "$ex/sensor_restorer.cir"
