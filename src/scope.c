@@ -547,7 +547,7 @@ static int too_big(struct elab *el, const struct scope *sc, const struct deck_ca
 			 c->head, z.parts, el->o.max_parts);
 	else
 		diag_add(el->d, DIAG_ERROR, "expansion", c->loc,
-			 "%s expands to %zu parts; with the %zu built before it the circuit "
+			 "%s expands to %zu parts; with the %zu already in the circuit that "
 			 "passes the limit of %zu (see --max-parts)",
 			 c->head, z.parts, have, el->o.max_parts);
 	el->stop = 1;

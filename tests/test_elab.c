@@ -273,7 +273,7 @@ static void test_expansion_cap(void **state)
 		{THREE_BY_THREE "Xbig n c\n", 0, 10, 0,
 		 "top.cir:16:1: error: Xbig expands to 18 parts, past the limit of 10 (see --max-parts) [expansion]\n", 1},
 		{THREE_BY_THREE "R9 n 0 1\nXbig n c\n", 0, 18, 1,
-		 "top.cir:17:1: error: Xbig expands to 18 parts; with the 1 built before it the circuit passes the limit of 18 (see --max-parts) [expansion]\n", 1},
+		 "top.cir:17:1: error: Xbig expands to 18 parts; with the 1 already in the circuit that passes the limit of 18 (see --max-parts) [expansion]\n", 1},
 		{NULL, 40, 0, 1,
 		 "top.cir:166:1: error: X1 expands to 1099511627776 parts, past the limit of 10000000 (see --max-parts) [expansion]\n", 1},
 		{NULL, 70, 0, 1,
