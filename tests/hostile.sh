@@ -27,7 +27,7 @@ check() { # name, condition (a command)
 # Sanitizer builds reserve terabytes of address space for their shadow
 # memory and cannot start under ulimit -v; they run with the timeout only.
 hard=1
-if ! (ulimit -v $limit_kb && "$bin" --version) > /dev/null 2>&1; then
+if ! { (ulimit -v $limit_kb && exec "$bin" --version) > /dev/null 2>&1; } 2> /dev/null; then
 	hard=0
 	echo "hostile: note: $bin does not start under ulimit -v (a sanitizer build?): no memory limit"
 fi
