@@ -201,7 +201,7 @@ static int cmp_u(uintptr_t a, uintptr_t b)
 static int cmp_value(double a, double b)
 {
 	if (isnan(a) || isnan(b))
-		return isnan(b) - isnan(a);
+		return !!isnan(b) - !!isnan(a);
 	return (a > b) - (a < b);
 }
 
