@@ -31,6 +31,7 @@ devval front
 wave front
 elab front
 scope front
+subsize front
 nl front
 annot front
 dmodel front

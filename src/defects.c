@@ -6,11 +6,20 @@
 #include "defects.h"
 
 #include <math.h>
+#include <stdint.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "dmodel.h"
 #include "num.h"
+
+/* The instance a part sits in: its path up to and including the last dot
+ * (empty at the top level). */
+struct inst {
+	const char *s;
+	size_t n;
+};
 
 struct dctx {
 	const struct audit *a;
@@ -18,6 +27,8 @@ struct dctx {
 	const struct stress_result *s;
 	struct arena *ar;
 	struct rules_result *out;
+	struct inst *macros; /* instances holding a controlled source, sorted */
+	size_t nmacros;
 };
 
 /* Held by independent sources (ground, chains of V sources): a node a
@@ -67,20 +78,53 @@ static double forward_max(const struct prop_result *nom, const struct prop_node 
 	return hi;
 }
 
+static struct inst inst_of(const char *path)
+{
+	const char *dot = strrchr(path, '.');
+	return (struct inst){path, dot ? (size_t)(dot - path) + 1 : 0};
+}
+
+static int inst_cmp(const void *va, const void *vb)
+{
+	const struct inst *a = va, *b = vb;
+	int d = memcmp(a->s, b->s, a->n < b->n ? a->n : b->n);
+	return d ? d : (a->n > b->n) - (a->n < b->n);
+}
+
+static int controlled(const struct nl_part *p)
+{
+	return p->kind == NL_E || p->kind == NL_F || p->kind == NL_G || p->kind == NL_H;
+}
+
+/* The sorted instances that hold a controlled source, built on first use:
+ * one lookup per diode instead of a walk over every part. */
+static int macro_index(struct dctx *x)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	size_t n = 0, np = nl_part_count(c);
+	for (size_t i = 0; i < np; i++)
+		n += controlled(nl_part_at(c, i)) ? 1u : 0u;
+	x->macros = arena_alloc(x->ar, (n + 1) * sizeof *x->macros);
+	if (!x->macros)
+		return 0;
+	for (size_t i = 0; i < np; i++)
+		if (controlled(nl_part_at(c, i)))
+			x->macros[x->nmacros++] = inst_of(nl_part_at(c, i)->path);
+	qsort(x->macros, x->nmacros, sizeof *x->macros, inst_cmp);
+	return 1;
+}
+
 /* A diode inside a subcircuit instance that also holds a controlled
  * source: a device macromodel's limiting diode, whose loop closes through
- * feedback the propagation does not see. */
-static int in_macromodel(const struct nl_circuit *c, const struct nl_part *d)
+ * feedback the propagation does not see. -1 on out-of-memory. */
+static int in_macromodel(struct dctx *x, const struct nl_part *d)
 {
-	const char *dot = strrchr(d->path, '.');
-	size_t n = dot ? (size_t)(dot - d->path) + 1 : 0;
-	for (size_t i = 0; n && i < nl_part_count(c); i++) {
-		const struct nl_part *p = nl_part_at(c, i);
-		if ((p->kind == NL_E || p->kind == NL_F || p->kind == NL_G || p->kind == NL_H) &&
-		    strncmp(p->path, d->path, n) == 0 && !strchr(p->path + n, '.'))
-			return 1;
-	}
-	return 0;
+	struct inst key = inst_of(d->path);
+	if (!key.n)
+		return 0;
+	if (!x->macros && !macro_index(x))
+		return -1;
+	return x->nmacros && bsearch(&key, x->macros, x->nmacros, sizeof key, inst_cmp) != NULL;
 }
 
 static int loop_diode(struct dctx *x, uint32_t i)
@@ -96,8 +140,11 @@ static int loop_diode(struct dctx *x, uint32_t i)
 		return 1;
 	const struct prop_node *an = &nom->nodes[h0], *ka = &nom->nodes[h1];
 	double vf = rating_vf(p, x->r[i].kind), fwd = forward_max(nom, an, ka, x->ar);
-	if (!(fwd > vf + 1) || in_macromodel(c, p))
+	if (!(fwd > vf + 1))
 		return 1;
+	int macro = in_macromodel(x, p);
+	if (macro != 0)
+		return macro > 0;
 	struct finding *f = rules_add(x->out, x->ar, RULE_DIODE_LOOP);
 	if (!f)
 		return 0;
@@ -135,32 +182,103 @@ static int same_part(const struct nl_circuit *c, const struct nl_part *p, const 
 	return (a[0] == b[0] && a[1] == b[1]) || (a[0] == b[1] && a[1] == b[0]);
 }
 
+/* The sort key of a structure's part: twins (same_part) have equal keys,
+ * so comparing every pair is not needed; a network of 64,000 parts would
+ * otherwise cost two billion comparisons. */
+struct twin_key {
+	uintptr_t model;
+	double value;
+	uint32_t kind, lo, hi;
+	uint32_t pos; /* index in the structure: ties keep the structure's order */
+};
+
+static int cmp_u(uintptr_t a, uintptr_t b)
+{
+	return (a > b) - (a < b);
+}
+
+/* NaN sorts first and equal to NaN; same_part still keeps NaNs apart. */
+static int cmp_value(double a, double b)
+{
+	if (isnan(a) || isnan(b))
+		return !!isnan(b) - !!isnan(a);
+	return (a > b) - (a < b);
+}
+
+static int key_cmp(const struct twin_key *a, const struct twin_key *b)
+{
+	int d = cmp_u(a->kind, b->kind);
+	d = d ? d : cmp_u(a->lo, b->lo);
+	d = d ? d : cmp_u(a->hi, b->hi);
+	d = d ? d : cmp_u(a->model, b->model);
+	return d ? d : cmp_value(a->value, b->value);
+}
+
+static int by_key(const void *va, const void *vb)
+{
+	const struct twin_key *a = va, *b = vb;
+	int d = key_cmp(a, b);
+	return d ? d : cmp_u(a->pos, b->pos);
+}
+
+static struct twin_key *twin_keys(const struct nl_circuit *c, const struct topo_struct *t,
+				  struct arena *ar)
+{
+	struct twin_key *k = arena_alloc(ar, ((size_t)t->nparts + 1) * sizeof *k);
+	for (uint32_t i = 0; k && i < t->nparts; i++) {
+		const struct nl_part *p = nl_part_at(c, t->parts[i].part);
+		const uint32_t *q = nl_pins(c, p);
+		int keep = p->kind == NL_D || q[0] <= q[1]; /* a diode's pins are ordered */
+		k[i] = (struct twin_key){(uintptr_t)p->model, p->value, p->kind,
+					 keep ? q[0] : q[1], keep ? q[1] : q[0], i};
+	}
+	if (k && t->nparts > 1)
+		qsort(k, t->nparts, sizeof *k, by_key);
+	return k;
+}
+
+static int twin(struct dctx *x, const struct nl_part *p, const struct nl_part *o, uint32_t part)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	struct finding *f = rules_add(x->out, x->ar, RULE_PART_TWIN);
+	char buf[600];
+	if (!f)
+		return 0;
+	const uint32_t *q = nl_pins(c, p);
+	f->part = part;
+	f->loc = nl_part_loc(p);
+	f->subject = p->path;
+	snprintf(buf, sizeof buf, "%s repeats %s: the same value on the same nodes (%s, %s) "
+		 "inside a diode-capacitor network, where each position holds one part",
+		 p->path, o->path, nl_node_at(c, q[0])->name, nl_node_at(c, q[1])->name);
+	f->message = arena_strdup(x->ar, buf);
+	f->fix = "check the netlist: a node name copied from the line above usually "
+		 "leaves another position of the network without its part";
+	return f->message != NULL;
+}
+
+/* Every pair (j < i) of twins, in the order of the structure's parts: part
+ * i against each earlier part of its run of equal keys. */
 static int duplicates(struct dctx *x, const struct topo_struct *t)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
-	for (uint32_t i = 0; i < t->nparts; i++)
-		for (uint32_t j = 0; j < i; j++) {
-			const struct nl_part *p = nl_part_at(c, t->parts[i].part);
-			const struct nl_part *o = nl_part_at(c, t->parts[j].part);
-			if (!same_part(c, p, o))
-				continue;
-			struct finding *f = rules_add(x->out, x->ar, RULE_PART_TWIN);
-			char buf[600];
-			if (!f)
-				return 0;
-			const uint32_t *q = nl_pins(c, p);
-			f->part = t->parts[i].part;
-			f->loc = nl_part_loc(p);
-			f->subject = p->path;
-			snprintf(buf, sizeof buf, "%s repeats %s: the same value on the same nodes (%s, %s) "
-				 "inside a diode-capacitor network, where each position holds one part",
-				 p->path, o->path, nl_node_at(c, q[0])->name, nl_node_at(c, q[1])->name);
-			f->message = arena_strdup(x->ar, buf);
-			f->fix = "check the netlist: a node name copied from the line above usually "
-				 "leaves another position of the network without its part";
-			if (!f->message)
+	struct twin_key *k = twin_keys(c, t, x->ar);
+	uint32_t *first = arena_alloc(x->ar, ((size_t)t->nparts + 1) * sizeof *first);
+	uint32_t *at = arena_alloc(x->ar, ((size_t)t->nparts + 1) * sizeof *at);
+	if (!k || !first || !at)
+		return 0;
+	for (uint32_t s = 0; s < t->nparts; s++) {
+		first[s] = s > 0 && key_cmp(&k[s - 1], &k[s]) == 0 ? first[s - 1] : s;
+		at[k[s].pos] = s;
+	}
+	for (uint32_t i = 0; i < t->nparts; i++) {
+		const struct nl_part *p = nl_part_at(c, t->parts[i].part);
+		for (uint32_t s = first[at[i]]; s < at[i]; s++) {
+			const struct nl_part *o = nl_part_at(c, t->parts[k[s].pos].part);
+			if (same_part(c, p, o) && !twin(x, p, o, t->parts[i].part))
 				return 0;
 		}
+	}
 	return 1;
 }
 
@@ -168,7 +286,7 @@ int defects_run(const struct audit *a, const struct rating *r,
 		const struct stress_result *s, struct arena *ar,
 		struct rules_result *out)
 {
-	struct dctx x = {a, r, s, ar, out};
+	struct dctx x = {a, r, s, ar, out, NULL, 0};
 	const struct nl_circuit *c = a->er.circuit;
 	if (!s->runs)
 		return 1;

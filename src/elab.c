@@ -524,7 +524,7 @@ static void finish_top(struct elab *el)
 		diag_add(el->d, DIAG_ERROR, "subckt", d->loc,
 			 ".subckt '%s' has no .ends", d->name);
 	el->open = NULL;
-	for (size_t i = 0; i < el->ndeferred && !el->oom && !el->stop; i++)
+	for (size_t i = 0; i < el->ndeferred && !el->oom && !el->stop && !diag_full(el->d); i++)
 		scope_build(el, &el->global, (const struct deck_card *)el->deferred[i], 0);
 	scope_check_models(el);
 	scope_link_controls(el);

@@ -29,6 +29,11 @@ struct subdef {
 	struct smap *models;         /* local models */
 	struct subdef *parent;       /* enclosing definition, NULL at top */
 	int active;                  /* being expanded: recursion guard */
+	/* subsize.c's memo: parts and nesting of one instance */
+	size_t size_parts;
+	unsigned size_levels;
+	unsigned char size_state;    /* 0 not yet, 1 being counted, 2 counted */
+	unsigned char size_unknown;  /* the count met a cycle */
 };
 
 struct scope {
@@ -85,6 +90,40 @@ struct elab {
 	size_t ncond, capcond;
 	int oom, stop;
 };
+
+/* Lookups both expansion (scope.c) and sizing (subsize.c) need; inline so
+ * that neither module calls the other's. */
+
+/* The word that opens a subcircuit's or an instance's parameters. */
+static inline int elab_is_params_kw(const struct deck_field *f)
+{
+	return deck_atom_is(f, "params:") || deck_atom_is(f, "params");
+}
+
+/* Position of an instance card's subcircuit name plus one: the name is the
+ * last word before params: or the first name=value; 0 when there is none. */
+static inline uint32_t elab_name_index(const struct deck_card *c)
+{
+	uint32_t k = 0;
+	while (k < c->nfields && c->fields[k].kind == FIELD_ATOM &&
+	       !elab_is_params_kw(&c->fields[k]))
+		k++;
+	return k;
+}
+
+/* The definition called name[0..n), looked up from definition `from`
+ * outwards (lexically), then among the global ones; NULL when none. */
+static inline const struct subdef *elab_find_subckt(const struct elab *el,
+						    const struct subdef *from,
+						    const char *name, size_t n)
+{
+	for (const struct subdef *d = from; d; d = d->parent) {
+		const struct subdef *s = smap_get(d->subckts, name, n);
+		if (s)
+			return s;
+	}
+	return smap_get(el->top.subckts, name, n);
+}
 
 /* Sets up the global scope and tables. Returns 0 on out-of-memory. */
 int scope_init(struct elab *el);

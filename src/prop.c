@@ -295,6 +295,7 @@ struct shapes {
 	uint32_t *unknown;   /* of those, neighbours without a shape yet */
 	uint32_t *follows;   /* leaf -> the node it follows, or NL_NONE */
 	uint8_t *pruned;
+	uint32_t *stack;     /* shape_set's followers still to visit */
 	struct queue ready, leaves;
 };
 
@@ -331,28 +332,45 @@ static void shape_mean(struct run *u, struct shapes *sh, uint32_t id)
 	shape_set(u, sh, id, mean ? form_ac(fc->ar, mean) : NULL, nb[best].node);
 }
 
-static void shape_set(struct run *u, struct shapes *sh, uint32_t id,
-		      const struct form *f, uint32_t anchor)
+static void shape_one(struct run *u, uint32_t id, const struct form *f, uint32_t anchor)
 {
 	struct prop_node *n = N(u, id);
-	if (!f) {
-		u->oom = 1;
-		return;
-	}
 	n->f = f;
 	n->state = PS_SHAPED;
 	n->cls = PC_FREE;
 	n->anchor = anchor;
+}
+
+/* Gives id the shape f, and the same shape to every pruned leaf that
+ * follows it, transitively. A chain of leaves can be as long as the circuit
+ * (a series string of capacitors), so the followers go on an explicit stack
+ * in the arena, not the call stack; each node is shaped once, so the stack
+ * never holds more than the node count. */
+static void shape_set(struct run *u, struct shapes *sh, uint32_t id,
+		      const struct form *f, uint32_t anchor)
+{
+	if (!f) {
+		u->oom = 1;
+		return;
+	}
+	shape_one(u, id, f, anchor);
+	size_t top = 0;
+	sh->stack[top++] = id;
 	struct capn nb[CAPN_MAX];
-	uint32_t k = cap_neighbours(u, id, nb, CAPN_MAX);
-	for (uint32_t i = 0; i < k; i++) {
-		uint32_t v = nb[i].node;
-		if (has_shape(u, v))
-			continue;
-		if (sh->pruned[v] && sh->follows[v] == id)
-			shape_set(u, sh, v, f, id);
-		else if (!sh->pruned[v] && sh->unknown[v] > 0 && --sh->unknown[v] == 0)
-			q_push(&sh->ready, v);
+	while (top > 0) {
+		uint32_t x = sh->stack[--top];
+		uint32_t k = cap_neighbours(u, x, nb, CAPN_MAX);
+		for (uint32_t i = 0; i < k; i++) {
+			uint32_t v = nb[i].node;
+			if (has_shape(u, v))
+				continue;
+			if (sh->pruned[v] && sh->follows[v] == x) {
+				shape_one(u, v, f, x);
+				sh->stack[top++] = v;
+			} else if (!sh->pruned[v] && sh->unknown[v] > 0 && --sh->unknown[v] == 0) {
+				q_push(&sh->ready, v);
+			}
+		}
 	}
 }
 
@@ -362,7 +380,8 @@ static int shapes_init(struct run *u, struct shapes *sh, size_t nn)
 	sh->unknown = arena_zalloc(u->ar, nn * sizeof *sh->unknown);
 	sh->follows = arena_alloc(u->ar, nn * sizeof *sh->follows);
 	sh->pruned = arena_zalloc(u->ar, nn);
-	if (!sh->deg || !sh->unknown || !sh->follows || !sh->pruned ||
+	sh->stack = arena_alloc(u->ar, (nn + 1) * sizeof *sh->stack);
+	if (!sh->deg || !sh->unknown || !sh->follows || !sh->pruned || !sh->stack ||
 	    !q_init(u, &sh->ready, nn) || !q_init(u, &sh->leaves, nn))
 		return 0;
 	struct capn nb[CAPN_MAX];

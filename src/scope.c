@@ -10,6 +10,7 @@
 
 #include "num.h"
 #include "parse.h"
+#include "subsize.h"
 
 /* What device callbacks need: the scope, and whether this is the first
  * (streaming) pass at top level. */
@@ -187,11 +188,6 @@ int scope_eval_global(struct elab *el, const struct expr *e,
 
 /* ---- definitions ---- */
 
-static int is_params_kw(const struct deck_field *f)
-{
-	return deck_atom_is(f, "params:") || deck_atom_is(f, "params");
-}
-
 struct subdef *scope_def_create(struct elab *el, const struct deck_card *c)
 {
 	const struct deck_card *k = deck_card_clone(el->ar, c);
@@ -212,7 +208,8 @@ struct subdef *scope_def_create(struct elab *el, const struct deck_card *c)
 	}
 	uint32_t i = 1;
 	for (; i < k->nfields && k->fields[i].kind == FIELD_ATOM &&
-	       !is_params_kw(&k->fields[i]); i++) {
+	       !elab_is_params_kw(&k->fields[i]);
+	     i++) {
 		const struct deck_field *f = &k->fields[i];
 		if (smap_get(d->portmap, f->text, f->len))
 			diag_add(el->d, DIAG_ERROR, "subckt",
@@ -223,7 +220,7 @@ struct subdef *scope_def_create(struct elab *el, const struct deck_card *c)
 			      (void *)(uintptr_t)d->nports))
 			el->oom = 1;
 	}
-	if (i < k->nfields && is_params_kw(&k->fields[i]))
+	if (i < k->nfields && elab_is_params_kw(&k->fields[i]))
 		i++;
 	d->defaults = k->fields + i;
 	d->ndefaults = k->nfields - i;
@@ -394,34 +391,11 @@ static struct dev_scope dev_scope_of(struct cb *cb)
 	return ds;
 }
 
-static const struct subdef *find_subckt(const struct elab *el,
-					const struct subdef *from,
-					const char *name, size_t n)
-{
-	for (const struct subdef *d = from; d; d = d->parent) {
-		const struct subdef *s = smap_get(d->subckts, name, n);
-		if (s)
-			return s;
-	}
-	return smap_get(el->top.subckts, name, n);
-}
-
 static struct diag_loc at_field(const struct deck_card *c,
 				const struct deck_field *f)
 {
 	struct diag_loc l = {c->loc.file, f->line, f->col};
 	return l;
-}
-
-/* Position of the subcircuit name: the last word before params: or the
- * first name=value. */
-static uint32_t name_index(const struct deck_card *c)
-{
-	uint32_t k = 0;
-	while (k < c->nfields && c->fields[k].kind == FIELD_ATOM &&
-	       !is_params_kw(&c->fields[k]))
-		k++;
-	return k;
 }
 
 /* Instance parameters, evaluated in the caller's scope; m= multiplies. */
@@ -434,7 +408,7 @@ static int instance_params(struct elab *el, struct scope *ns,
 	for (uint32_t i = from; i < c->nfields; i++) {
 		const struct deck_field *f = &c->fields[i];
 		double v;
-		if (is_params_kw(f))
+		if (elab_is_params_kw(f))
 			continue;
 		if (f->kind != FIELD_ASSIGN) {
 			diag_add(el->d, DIAG_ERROR, "instance", at_field(c, f),
@@ -475,7 +449,8 @@ static int default_params(struct elab *el, struct scope *ns,
 
 static void expand_body(struct elab *el, struct scope *ns)
 {
-	for (size_t i = 0; i < ns->def->nbody && !el->oom && !el->stop; i++) {
+	/* past the error cap the file is given up, as when reading it */
+	for (size_t i = 0; i < ns->def->nbody && !el->oom && !el->stop && !diag_full(el->d); i++) {
 		const struct deck_card *b = (const struct deck_card *)ns->def->body[i];
 		if (b->kind == CARD_ELEMENT)
 			scope_build(el, ns, b, 0);
@@ -508,7 +483,7 @@ static const struct subdef *check_instance(struct elab *el,
 		return NULL;
 	}
 	const struct deck_field *nf = &c->fields[k - 1];
-	const struct subdef *def = find_subckt(el, sc->def, nf->text, nf->len);
+	const struct subdef *def = elab_find_subckt(el, sc->def, nf->text, nf->len);
 	if (!def) {
 		diag_add(el->d, DIAG_ERROR, "instance", at_field(c, nf),
 			 "undefined subcircuit '%s'", nf->text);
@@ -547,13 +522,45 @@ static char *instance_prefix(struct elab *el, const struct scope *sc,
 	return p;
 }
 
+/* A top-level instance whose size, counted from the definitions, would
+ * take the circuit past --max-parts is refused before it is expanded: a
+ * nest of 40 definitions that each hold two instances of the one before
+ * asks for 2^40 parts, and expanding up to the cap would take seconds and
+ * gigabytes first. When the size cannot be known (a definition that
+ * instantiates itself) or the nesting is too deep, the expansion reports. */
+static int too_big(struct elab *el, const struct scope *sc, const struct deck_card *c,
+		   struct subdef *def)
+{
+	struct subsize z;
+	if (sc->depth != 0 || !subsize_of(el, def, &z))
+		return 0;
+	size_t have = nl_part_count(el->c);
+	if (!z.known || z.levels > el->o.max_inst_depth || z.parts <= el->o.max_parts - have)
+		return 0;
+	if (z.parts == SIZE_MAX)
+		diag_add(el->d, DIAG_ERROR, "expansion", c->loc,
+			 "%s expands to more than %zu parts, past the limit of %zu (see --max-parts)",
+			 c->head, SIZE_MAX - 1, el->o.max_parts);
+	else if (z.parts > el->o.max_parts)
+		diag_add(el->d, DIAG_ERROR, "expansion", c->loc,
+			 "%s expands to %zu parts, past the limit of %zu (see --max-parts)",
+			 c->head, z.parts, el->o.max_parts);
+	else
+		diag_add(el->d, DIAG_ERROR, "expansion", c->loc,
+			 "%s expands to %zu parts; with the %zu already in the circuit that "
+			 "passes the limit of %zu (see --max-parts)",
+			 c->head, z.parts, have, el->o.max_parts);
+	el->stop = 1;
+	return 1;
+}
+
 static enum dev_status expand(struct elab *el, struct scope *sc,
 			      const struct deck_card *c)
 {
-	uint32_t k = name_index(c);
+	uint32_t k = elab_name_index(c);
 	struct subdef *def = (struct subdef *)check_instance(el, sc, c, k);
-	if (!def)
-		return DEV_ERROR;
+	if (!def || too_big(el, sc, c, def))
+		return el->oom ? DEV_OOM : DEV_ERROR;
 	uint32_t *actual = arena_alloc(el->ar, (k ? k : 1) * sizeof *actual);
 	struct scope ns = {el, sc, def, smap_create(&el->hook),
 			   instance_prefix(el, sc, c), actual, sc->mult,

@@ -435,11 +435,10 @@ static int first_stage_diode(const struct ctx *x, uint32_t part)
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, part);
 	if (p->kind != NL_D || x->struct_of[part] == UINT32_MAX)
 		return 0;
+	/* tpart_of, not a walk over the structure: a network can hold every
+	 * part of the circuit */
 	const struct topo_struct *t = &x->a->topo.s[x->struct_of[part]];
-	for (uint32_t k = 0; k < t->nparts; k++)
-		if (t->parts[k].part == part)
-			return t->kind != TK_NETWORK && t->parts[k].stage <= 1;
-	return 0;
+	return t->kind != TK_NETWORK && x->tpart_of[part]->stage <= 1;
 }
 
 static int push(struct ctx *x, struct stress_result *out, size_t *cap,

@@ -133,6 +133,11 @@ static const struct rule_case cases[] = {
 	{"part-twin", "C2",
 	 "t\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nC2 a x 1u\nD1 0 x dm\n.model dm d\n",
 	 "t\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nC2 a x 100n\nD1 0 x dm\n.model dm d\n", 0},
+	/* twins are found by sorting on (kind, nodes, model, value): a
+	   capacitor written the other way round is still a twin */
+	{"part-twin", "C2",
+	 "t\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nC2 x a 1u\nD1 0 x dm\n.model dm d\n",
+	 "t\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nC2 x a 2u\nD1 0 x dm\n.model dm d\n", 0},
 	/* nothing in series with the source and no RS */
 	{"surge-unbounded", "DD",
 	 "u\nV1 in 0 sin(0 10 1k)\nCC in x 1u\nDD 0 x dm\n.model dm d\n",

@@ -238,21 +238,97 @@ static size_t expect_elab_error(const char *top, const struct elab_opts *o,
 	return n;
 }
 
+/* A nest of n definitions, each two instances of the one below, over one
+ * resistor: 2^n parts. */
+static const char *nest(unsigned n)
+{
+	static char buf[8192];
+	size_t k = (size_t)snprintf(buf, sizeof buf, "t\n.subckt s0 a b\nR1 a b 1\n.ends\n");
+	for (unsigned i = 1; i <= n; i++)
+		k += (size_t)snprintf(buf + k, sizeof buf - k,
+				      ".subckt s%u a b\nX1 a m s%u\nX2 m b s%u\n.ends\n", i, i - 1, i - 1);
+	snprintf(buf + k, sizeof buf - k, "V1 1 0 1\nX1 1 0 s%u\n", n);
+	return buf;
+}
+
+#define THREE_BY_THREE \
+	"t\n.subckt a p\nR1 p 0 1\nR2 p 0 1\n.ends\n" \
+	".subckt b p\nX1 p a\nX2 p a\nX3 p a\n.ends\n" \
+	".subckt c p\nX1 p b\nX2 p b\nX3 p b\n.ends\n"
+
+/* The size of an instance is counted from the definitions before it is
+ * expanded: past --max-parts it is refused at once at the top-level card,
+ * with nothing of it built. A count that cannot be known (a definition
+ * that instantiates itself) falls back to the cap while expanding. */
 static void test_expansion_cap(void **state)
+{
+	(void)state;
+	static const struct {
+		const char *text; /* NULL: nest(levels) */
+		unsigned levels;
+		size_t max_parts, parts;
+		const char *want;
+		int exact;
+	} rows[] = {
+		{THREE_BY_THREE "Xbig n c\n", 0, 10, 0,
+		 "top.cir:16:1: error: Xbig expands to 18 parts, past the limit of 10 (see --max-parts) [expansion]\n", 1},
+		{THREE_BY_THREE "R9 n 0 1\nXbig n c\n", 0, 18, 1,
+		 "top.cir:17:1: error: Xbig expands to 18 parts; with the 1 already in the circuit that passes the limit of 18 (see --max-parts) [expansion]\n", 1},
+		{NULL, 40, 0, 1,
+		 "top.cir:166:1: error: X1 expands to 1099511627776 parts, past the limit of 10000000 (see --max-parts) [expansion]\n", 1},
+		{NULL, 70, 0, 1,
+		 "top.cir:286:1: error: X1 expands to more than 18446744073709551614 parts, past the limit of 10000000 (see --max-parts) [expansion]\n", 1},
+		/* R1..R4 then a self-instance (an error, no parts): not countable */
+		{"t\n.subckt a p\nR1 p 0 1\nR2 p 0 1\nR3 p 0 1\nR4 p 0 1\nX1 p a\n.ends\n"
+		 ".subckt b p\nX1 p a\nX2 p a\nX3 p a\n.ends\nXbig n b\n", 0, 10, 10,
+		 "top.cir:14:1: error: the circuit grows past 10 parts (the limit; see --max-parts) [expansion]\n", 0},
+	};
+	for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
+		static struct memfs fs;
+		fs.name[0] = "top.cir";
+		fs.text[0] = rows[i].text ? rows[i].text : nest(rows[i].levels);
+		fs.n = 1;
+		struct elab_opts o = {0};
+		o.open = memfs_open;
+		o.open_ud = &fs;
+		o.max_parts = rows[i].max_parts;
+		assert_int_equal(expect_elab_error("top.cir", &o, rows[i].want, rows[i].exact),
+				 rows[i].parts);
+	}
+}
+
+/* Elaborates top.cir from fs with max_parts; expects no diagnostics and
+ * returns the part count. */
+static size_t parts_built(struct memfs *fs, size_t max_parts)
+{
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct diag_sink *d = diag_create(ar, 50);
+	struct elab_result res;
+	struct elab_opts o = {0};
+	o.open = memfs_open;
+	o.open_ud = fs;
+	o.max_parts = max_parts;
+	assert_int_equal(elab_file("top.cir", &o, &h, d, &res), ELAB_OK);
+	assert_int_equal(diag_count(d), 0);
+	size_t n = nl_part_count(res.circuit);
+	nl_destroy(res.circuit);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return n;
+}
+
+/* At the limit exactly, and a legitimate nest of 2^10 parts, expand. */
+static void test_expansion_fits(void **state)
 {
 	(void)state;
 	static struct memfs fs;
 	fs.name[0] = "top.cir";
-	fs.text[0] = "t\n.subckt a p\nR1 p 0 1\nR2 p 0 1\n.ends\n"
-		     ".subckt b p\nX1 p a\nX2 p a\nX3 p a\n.ends\n"
-		     ".subckt c p\nX1 p b\nX2 p b\nX3 p b\n.ends\nXbig n c\n";
+	fs.text[0] = THREE_BY_THREE "Xbig n c\n";
 	fs.n = 1;
-	struct elab_opts o = {0};
-	o.open = memfs_open;
-	o.open_ud = &fs;
-	o.max_parts = 10;
-	assert_int_equal(expect_elab_error("top.cir", &o,
-		"top.cir:16:1: error: the circuit grows past 10 parts (the limit; see --max-parts) [expansion]\n", 1), 10);
+	assert_int_equal(parts_built(&fs, 18), 18);
+	fs.text[0] = nest(10);
+	assert_int_equal(parts_built(&fs, 0), 1025);
 }
 
 /* Includes that repeat without a cycle stop at the file count cap. */
@@ -346,6 +422,7 @@ int main(void)
 		cmocka_unit_test(test_sources),
 		cmocka_unit_test(test_elements),
 		cmocka_unit_test(test_expansion_cap),
+		cmocka_unit_test(test_expansion_fits),
 		cmocka_unit_test(test_include_count_cap),
 		cmocka_unit_test(test_adjacency),
 		cmocka_unit_test(test_file_changed_while_read),
