@@ -117,7 +117,7 @@ static void result(FILE *out, const struct diag_sink *d, const struct finding *g
 	fprintf(out, "}],\n        \"partialFingerprints\": {\"headroomFinding/v1\": \"%016llx\"}",
 		(unsigned long long)fnv(g->rule->id, file, g->subject));
 	if (g->waived) {
-		/* SARIF 2.1.0 §3.34.3: a *@waive line in the netlist is in
+		/* SARIF 2.1.0 suppression.kind: a *@waive line in the netlist is in
 		 * source; a --waivers file is kept apart from it: external */
 		fprintf(out, ", \"suppressions\": [{\"kind\": \"%s\", \"justification\": ",
 			g->waiver_external ? "external" : "inSource");
