@@ -367,6 +367,9 @@ printf 't\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nD1 0 x dm\n.model dm d\n.end\n\n  *@w
 run check "$tmp/after_end.cir"
 check "a *@waive after .end is a located warning" grep -q "after_end.cir:8:3: warning: '\*@waive' after .end is ignored" "$tmp/err"
 check "a *@part after .end too, and a plain comment there is no warning" bash -c "grep -q \"after_end.cir:10:1: warning: '\*@part' after .end is ignored\" '$tmp/err' && test \$(grep -c 'after .end' '$tmp/err') -eq 2 && test $rc -eq 0"
+{ printf 't\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nD1 0 x dm\n.model dm d\n.end\n'; cat "$tmp/digits"; printf '\n'; } > "$tmp/end_tail.cir"
+run check "$tmp/end_tail.cir"
+check "a line past --max-line after .end is no error (what follows .end is only scanned for *@ lines)" bash -c "test $rc -eq 0 && ! grep -q error '$tmp/err'"
 
 # A profile is a draft when a value is marked from memory or cites nothing;
 # every format says so. A fully sourced one says nothing of the kind.

@@ -81,11 +81,11 @@ check "after a change only the new finding is reported" bash -c "test $rc -eq 1 
 # matched by real path, and every summary says how many findings it hid
 mkdir -p "$tmp/proj/dir" "$tmp/proj/ci"
 cp $ex/sensor_restorer.cir $ex/mains_doubler.cir "$tmp/proj/dir/"
-(cd "$tmp/proj" && "$abs_bin" check --fail-on never --write-baseline ci/base.json dir/ > /dev/null 2>&1)
-(cd "$tmp/proj/dir" && "$abs_bin" check --baseline ../ci/base.json . > "$tmp/bl.txt" 2>&1)
+(cd "$tmp/proj" && HEADROOM_RULES="$root/rules" "$abs_bin" check --fail-on never --write-baseline ci/base.json dir/ > /dev/null 2>&1)
+(cd "$tmp/proj/dir" && HEADROOM_RULES="$root/rules" "$abs_bin" check --baseline ../ci/base.json . > "$tmp/bl.txt" 2>&1)
 rc=$?
 check "a baseline written as dir/ hides the same findings when used from inside dir" bash -c "test $rc -eq 0 && grep -q '^2 files checked: 0 errors, 0 warnings, 0 notes' '$tmp/bl.txt' && grep -q '^  baseline: 5 known findings not shown' '$tmp/bl.txt'"
-(cd "$tmp/proj/dir" && for f in json sarif junit; do "$abs_bin" check --format $f --baseline ../ci/base.json . > "$tmp/bl.$f" 2>/dev/null; done)
+(cd "$tmp/proj/dir" && for f in json sarif junit; do HEADROOM_RULES="$root/rules" "$abs_bin" check --format $f --baseline ../ci/base.json . > "$tmp/bl.$f" 2>/dev/null; done)
 check "JSON, SARIF and JUnit say how many known findings the baseline hid" python3 -c "
 import json,sys
 j=json.load(open(sys.argv[1]))
