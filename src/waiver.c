@@ -458,20 +458,20 @@ static const char *real_path(struct arena *ar, const char *dir, const char *p)
 		return out;
 	}
 	char *slash = strrchr(joined, '/');
+	const char *name = slash ? slash + 1 : joined;
 	if (slash && slash != joined) {
 		*slash = '\0';
 		r = realpath(joined, NULL);
 		*slash = '/';
-	} else if (!slash) {
-		r = realpath(".", NULL);
-		slash = joined - 1;
+	} else {
+		r = realpath(slash ? "/" : ".", NULL);
 	}
 	if (!r)
 		return arena_strdup(ar, joined);
-	size_t n = strlen(r) + strlen(slash + 1) + 2;
+	size_t n = strlen(r) + strlen(name) + 2;
 	char *out = arena_alloc(ar, n);
 	if (out)
-		snprintf(out, n, "%s/%s", r, slash + 1);
+		snprintf(out, n, "%s%s%s", r, strcmp(r, "/") ? "/" : "", name);
 	free(r);
 	return out;
 }
@@ -486,7 +486,9 @@ static int baseline_paths(struct baseline *b, const char *path, struct arena *ar
 	if (b->paths_from) {
 		const char *slash = strrchr(path, '/');
 		char base[4096];
-		if (!slash)
+		if (b->paths_from[0] == '/')
+			snprintf(base, sizeof base, "%s", b->paths_from);
+		else if (!slash)
 			snprintf(base, sizeof base, "./%s", b->paths_from);
 		else
 			snprintf(base, sizeof base, "%.*s/%s", (int)(slash - path), path, b->paths_from);
