@@ -117,6 +117,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_powerup.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_charge.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/doc_profiles.py
 	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_report.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py

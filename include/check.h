@@ -27,7 +27,7 @@ struct check_opts {
 	const struct profile *profile;   /* the run's profile */
 	int profile_fixed;               /* 1: *@profile lines are not obeyed */
 	const char *argv0;               /* where named profiles are looked up */
-	const char *parts_path;          /* parts table, or NULL */
+	const struct rating_table *parts;/* the parts table all files share, or NULL */
 	const struct waiver_file *waivers;/* --waivers, or NULL */
 	const struct baseline *baseline; /* --baseline, or NULL */
 	const char *today;               /* YYYY-MM-DD, for waiver expiry */
@@ -49,6 +49,8 @@ struct check_file {
 	const struct stress_result *stress;
 	const struct rules_result *rules;
 	const char *caution;            /* this file's safety caution, or NULL */
+	size_t baselined;               /* known findings the baseline removed */
+	int has_baseline;               /* a baseline was applied */
 };
 
 /* One file's check and the memory behind it. */
@@ -74,6 +76,15 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 				 const struct hr_alloc *hook, struct check_run *r);
 
 void check_free(struct check_run *r);
+
+/* What a whole run found that belongs to no single netlist, located in the
+ * file it concerns: parts-table rows that rated no capacitor or diode of
+ * any file checked (parts-unmatched), --waivers lines that matched no
+ * finding anywhere (waiver-unused). Call once, after every file's check;
+ * names of locations are those of the sink the table and waivers were
+ * loaded with. Appends to out, allocating in ar; 0 on out-of-memory. */
+int check_batch_end(const struct check_opts *o, struct arena *ar,
+		    struct rules_result *out);
 
 /* The highest severity among unwaived findings, or -1 when there are none
  * (enum diag_severity values otherwise). */

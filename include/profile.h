@@ -52,6 +52,24 @@ double profile_kind_key(const struct profile *p, const char *cls,
 			const char *kind, const char *field, const char **note,
 			const char **key_used);
 
+/* A profile is a draft when any of its values is marked from memory or
+ * cites nothing (docs/profiles.md, "Drafts"): reports then say so. */
+struct profile_status {
+	size_t values;        /* numeric entries */
+	size_t from_memory;   /* notes marked from memory */
+	size_t unsourced;     /* entries with no note */
+	const char *first;    /* key of the first such entry, or NULL */
+	unsigned first_line;
+};
+
+/* Fills *st; returns 1 when p is a draft. */
+int profile_draft(const struct profile *p, struct profile_status *st);
+
+/* True when a note marks its value as from memory: the words "from
+ * memory" in any case, or the status mark M standing alone ("(M)",
+ * "(M: ...", ", M: ..."). */
+int profile_note_from_memory(const char *note);
+
 /* The hazard voltage, 60 V when the profile does not set it (docs/design.md §7). */
 double profile_hazard(const struct profile *p);
 

@@ -25,13 +25,23 @@ struct rating {
 	const char *note;
 };
 
-/* A parsed parts table. */
+/* A parsed parts table. rating_resolve only marks which rows it used, so
+ * one table can serve many files checked at once, on several threads. */
 struct rating_table;
 
 /* Reads a parts table (CSV, header row, RFC 4180 quoting). Problems go to
  * d with file:line:col; returns NULL when the file cannot be used. */
 struct rating_table *rating_table_load(const char *path, struct arena *ar,
 				       struct diag_sink *d);
+
+/* Rows of a parts table (0 for NULL). */
+size_t rating_table_rows(const struct rating_table *t);
+
+/* Row k's ref (never NULL) and the location of its ref cell in the sink the
+ * table was loaded with; returns whether the row has rated a capacitor or
+ * diode in any rating_resolve call so far (thread-safe). */
+int rating_table_row(const struct rating_table *t, size_t k, const char **ref,
+		     struct diag_loc *loc);
 
 /* Ratings for every part of c (array of nl_part_count entries, in ar).
  * table may be NULL. Kinds that do not fit the part (a diode kind on a

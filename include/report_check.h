@@ -45,6 +45,12 @@ struct check_totals {
 	const struct report_inputs *inputs;
 	int color;             /* text: ANSI colours */
 	int quiet;             /* text: findings only */
+	size_t baselined;      /* known findings a baseline hid */
+	int has_baseline;      /* a baseline was applied */
+	/* Set on the run's totals before report_check_end: */
+	const struct diag_sink *run_d;   /* names the files of run findings */
+	const struct rules_result *run;  /* findings of the whole run (check_batch_end), or NULL */
+	const char *paths_from;          /* JSON: "paths_from" of a baseline being written, or NULL */
 };
 
 enum report_check_format { RC_TEXT, RC_JSON, RC_CSV, RC_JUNIT, RC_SARIF, RC_HTML };
@@ -59,7 +65,12 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		       const struct check_file *f, const struct profile *p,
 		       int first, struct check_totals *t);
 
-/* Closes the report: totals, the safety caution when due. */
+/* Adds the unwaived findings of rr to t's counts (errors, warnings, notes,
+ * per rule). */
+void report_totals_count(struct check_totals *t, const struct rules_result *rr);
+
+/* Closes the report: the run's own findings (t->run), totals, how many
+ * findings a baseline hid, a draft profile, the safety caution when due. */
 void report_check_end(FILE *out, enum report_check_format fmt,
 		      const struct profile *p, const struct check_totals *t);
 

@@ -35,6 +35,7 @@ enum rule_id {
 	RULE_BREAKDOWN_WORK,
 	RULE_DIODE_LOOP,
 	RULE_PART_TWIN,
+	RULE_PARTS_UNMATCHED,
 	RULE_WAIVER_EXPIRED,
 	RULE_WAIVER_UNUSED,
 	RULE_COUNT
@@ -66,6 +67,7 @@ struct finding {
 	const char *unit;
 	int waived;
 	const char *waiver;     /* reason, when waived */
+	int waiver_external;    /* the waiver came from a --waivers file */
 };
 
 struct rules_result {

@@ -3,8 +3,8 @@
  * part glob, a mandatory reason and an optional expiry date; a finding it
  * matches is kept but marked waived; an expired waiver waives nothing and
  * becomes a finding; a waiver that matches nothing is a note. A baseline
- * drops findings already present in it, matched by file, rule and part
- * (never by line). */
+ * drops findings already present in it, matched by file (its real path),
+ * rule and part (never by line). */
 #ifndef HEADROOM_WAIVER_H
 #define HEADROOM_WAIVER_H
 
@@ -34,8 +34,11 @@ struct waiver_file *waiver_load(const char *path, struct arena *ar,
 int waiver_apply(const struct audit *a, const struct waiver_file *wf,
 		 const char *today, struct arena *ar, struct rules_result *rr);
 
-/* Notes, once after a batch, the file waivers that matched nothing. */
-void waiver_unused(const struct waiver_file *wf, struct diag_sink *d);
+/* Once after a batch: a waiver-unused finding (located in the waiver
+ * file) for each file waiver that matched nothing in any file. Appends to
+ * rr in ar; 0 on out-of-memory. */
+int waiver_unused(const struct waiver_file *wf, struct arena *ar,
+		  struct rules_result *rr);
 
 /* Findings of an earlier JSON report, as (file, rule, part) keys. */
 struct baseline;
@@ -45,8 +48,16 @@ struct baseline;
 struct baseline *baseline_load(const char *path, struct arena *ar,
 			       struct diag_sink *d);
 
-/* Removes from rr the findings present in the baseline for file path. */
-void baseline_filter(const struct baseline *b, const char *path,
-		     struct rules_result *rr);
+/* Removes from rr the findings present in the baseline for file path;
+ * returns how many. Files are compared by real path, whatever folder each
+ * check was run from. ar holds the resolved path. */
+size_t baseline_filter(const struct baseline *b, const char *path,
+		       struct rules_result *rr, struct arena *ar);
+
+/* The current directory as seen from the folder of baseline_path (".",
+ * "..", "../src"), which a baseline records as "paths_from" so that its
+ * relative paths can be found from anywhere. 0 when a folder cannot be
+ * resolved or out is too small. */
+int baseline_paths_from(const char *baseline_path, char *out, size_t n);
 
 #endif

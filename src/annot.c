@@ -221,7 +221,8 @@ static int parse_one(const struct elab_annot *a, struct arena *ar,
 	}
 	w = word(&l, &n);
 	if (!n || l.s[l.i] == '=') {
-		err(&l, "expected the name of a part or source here%s", "");
+		err(&l, dv->kind == AN_PROFILE ? "expected a profile's name or file here (*@profile NAME)%s"
+					       : "expected the name of a part or source here%s", "");
 		return 0;
 	}
 	out->target = dv->kind == AN_PROFILE ? arena_strndup(ar, w, n)

@@ -87,9 +87,7 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 static int judge(const struct check_opts *o, struct check_run *r)
 {
 	const struct audit *a = &r->a;
-	const struct rating_table *tab =
-		o->parts_path ? rating_table_load(o->parts_path, a->ar, r->d) : NULL;
-	const struct rating *rt = rating_resolve(a->er.circuit, tab, a->annots,
+	const struct rating *rt = rating_resolve(a->er.circuit, o->parts, a->annots,
 						 a->nannots, a->ar, r->d);
 	r->f.ratings = rt;
 	int sim = o->verify && (!o->verify_max_parts ||
@@ -108,7 +106,7 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 	assert(o && o->profile && o->today);
 	memset(r, 0, sizeof *r);
 	r->profile = o->profile;
-	r->f = (struct check_file){path, &r->a, NULL, NULL, &r->sr, &r->rr, NULL};
+	r->f = (struct check_file){path, &r->a, NULL, NULL, &r->sr, &r->rr, NULL, 0, o->baseline != NULL};
 	r->ar = arena_create(hook);
 	r->d = r->ar ? diag_create(r->ar, o->max_errors ? o->max_errors : 50) : NULL;
 	if (!r->d)
@@ -123,7 +121,7 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 	if (r->status == CHECK_OK)
 		r->f.caution = file_caution(r, path);
 	if (r->status == CHECK_OK && o->baseline)
-		baseline_filter(o->baseline, path, &r->rr);
+		r->f.baselined = baseline_filter(o->baseline, path, &r->rr, r->a.ar);
 	if (r->status == CHECK_ERRORS)
 		r->a.analysed = 0;
 	return r->status;
@@ -146,4 +144,37 @@ int check_worst_level(const struct check_run *r)
 		if (!r->rr.f[i].waived && (int)r->rr.f[i].rule->severity > level)
 			level = (int)r->rr.f[i].rule->severity;
 	return level;
+}
+
+/* A parts-table row that rated nothing in any file is a rating the user
+ * believes applies and that applies nowhere: usually a misspelt or renamed
+ * reference, whose part is then judged without it. */
+static int unmatched_rows(const struct rating_table *t, struct arena *ar,
+			  struct rules_result *out)
+{
+	for (size_t k = 0; k < rating_table_rows(t); k++) {
+		const char *ref;
+		struct diag_loc loc;
+		if (rating_table_row(t, k, &ref, &loc))
+			continue;
+		struct finding *g = rules_add(out, ar, RULE_PARTS_UNMATCHED);
+		if (!g)
+			return 0;
+		char msg[256];
+		snprintf(msg, sizeof msg, "'%.80s' matches no capacitor or diode in any file checked: "
+			 "this parts-table row rates nothing", ref);
+		g->loc = loc;
+		g->subject = *ref ? ref : NULL;
+		g->message = arena_strdup(ar, *ref ? msg : "this parts-table row has no ref: it rates nothing");
+		if (!g->message)
+			return 0;
+		g->fix = "correct the ref (a part path or glob, as the stress table prints it) or delete the row";
+	}
+	return 1;
+}
+
+int check_batch_end(const struct check_opts *o, struct arena *ar,
+		    struct rules_result *out)
+{
+	return unmatched_rows(o->parts, ar, out) && waiver_unused(o->waivers, ar, out);
 }

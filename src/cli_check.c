@@ -27,6 +27,7 @@ struct batch {
 	int color, quiet;
 	struct check_totals *t, *tj;   /* per job, by index (batch mode) */
 	struct check_totals sum, sumj; /* merged in file order */
+	char paths_from[1024];         /* --write-baseline: where its paths start */
 };
 
 static int load_profile(const struct cli *c, struct diag_sink *d, struct profile *p)
@@ -48,6 +49,7 @@ static void totals_init(const struct batch *b, struct check_totals *t, struct ch
 	t->quiet = b->quiet;
 	t->docs_uri = tj->docs_uri = b->docs;
 	t->inputs = tj->inputs = &b->in;
+	tj->paths_from = b->paths_from[0] ? b->paths_from : NULL;
 }
 
 /* One file: checks it, writes its reports, returns its exit-status part. */
@@ -171,6 +173,13 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 		return 0;
 	if (c->waivers && !(o->waivers = waiver_load(c->waivers, ar, d)))
 		return 0;
+	if (c->parts && !(o->parts = rating_table_load(c->parts, ar, d)))
+		return 0;
+	if (c->write_baseline && !baseline_paths_from(c->write_baseline, b->paths_from,
+						      sizeof b->paths_from)) {
+		fprintf(stderr, "headroom: cannot resolve the folder of '%s'\n", c->write_baseline);
+		return 0;
+	}
 	if (c->baseline && !(o->baseline = baseline_load(c->baseline, ar, d)))
 		return 0;
 	if (c->today && !num_iso_date(c->today)) {
@@ -183,14 +192,31 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 	o->profile = p;
 	o->profile_fixed = c->profile != NULL;
 	o->argv0 = c->argv0;
-	o->parts_path = c->parts;
 	o->verify = c->verify;
 	return 1;
 }
 
+/* The run's own findings (check_batch_end) go to both reports; returns
+ * their exit-status part (1 when one reaches --fail-on, 2 out of memory). */
+static int run_findings(struct batch *b, struct arena *ar, struct diag_sink *d,
+			struct rules_result *run)
+{
+	if (!check_batch_end(&b->o, ar, run)) {
+		fprintf(stderr, "headroom: error: out of memory\n");
+		return EXIT_USAGE;
+	}
+	b->sum.run = b->sumj.run = run;
+	b->sum.run_d = b->sumj.run_d = d;
+	int worst = -1;
+	for (size_t i = 0; i < run->n; i++)
+		if (!run->f[i].waived && (int)run->f[i].rule->severity > worst)
+			worst = (int)run->f[i].rule->severity;
+	return b->c->fail_on >= 0 && worst >= b->c->fail_on;
+}
+
 /* Runs the batch into the open outputs; returns the exit status. */
 static int run_files(struct batch *b, const struct cli_files *files, struct cli_out *out,
-		     struct cli_out *json, struct diag_sink *d)
+		     struct cli_out *json, struct arena *ar, struct diag_sink *d)
 {
 	const struct cli *c = b->c;
 	struct cli_batch cb = {check_job, check_emit, b, c->jobs, json->f != NULL,
@@ -203,11 +229,13 @@ static int run_files(struct batch *b, const struct cli_files *files, struct cli_
 	int rc = EXIT_USAGE;
 	if (b->t && b->tj) {
 		totals_init(b, &b->sum, &b->sumj);
+		struct rules_result run = {0};
 		rc = cli_batch_run(&cb, files->v, files->n, o, json->f);
+		int rr = run_findings(b, ar, d, &run);
+		rc = rr > rc ? rr : rc;
 		report_check_end(o, b->fmt, b->o.profile, &b->sum);
 		if (json->f)
 			report_check_end(json->f, RC_JSON, b->o.profile, &b->sumj);
-		waiver_unused(b->o.waivers, d);
 	}
 	if (out->f && !cli_out_close(out, 1))
 		rc = EXIT_USAGE;
@@ -242,7 +270,7 @@ int cli_check(const struct cli *c)
 	    cli_files_expand(&files, c->files, (size_t)c->nfiles) &&
 	    (!c->out_path || cli_out_open(&out, c->out_path)) &&
 	    (!c->write_baseline || cli_out_open(&json, c->write_baseline)))
-		rc = run_files(&b, &files, &out, &json, d);
+		rc = run_files(&b, &files, &out, &json, ar, d);
 	else if (out.f)
 		cli_out_close(&out, 0);
 	if (d)

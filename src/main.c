@@ -135,6 +135,12 @@ static int run_rules(const struct cli *c)
 			printf("  %-18s %-8s %s\n", rules_table[i].id,
 			       diag_severity_name(rules_table[i].severity), rules_table[i].summary);
 		printf("\nprofile %s (%s): %s\n", p->name, p->path, p->description);
+		struct profile_status st;
+		if (profile_draft(p, &st))
+			printf("  draft: of %zu values, %zu marked from memory, %zu citing no source (the first: %s, line %u)\n",
+			       st.values, st.from_memory, st.unsourced, st.first, st.first_line);
+		else
+			printf("  sourced: each of its %zu values cites a source or says common practice\n", st.values);
 		for (size_t i = 0; i < p->n; i++)
 			printf("  %-32s %-10g %s\n", p->e[i].key, p->e[i].value, p->e[i].note);
 		rc = 0;

@@ -279,6 +279,36 @@ double profile_kind_key(const struct profile *p, const char *cls,
 	return NAN;
 }
 
+int profile_note_from_memory(const char *note)
+{
+	for (const char *s = note; *s; s++) {
+		if (num_iequal(s, strlen(s) < 11 ? strlen(s) : 11, "from memory", 11))
+			return 1;
+		/* the mark M: after '(' or ", ", before ')' or ':' */
+		int after = (s > note && s[-1] == '(') || (s > note + 1 && s[-1] == ' ' && s[-2] == ',');
+		if (*s == 'M' && after && (s[1] == ')' || s[1] == ':'))
+			return 1;
+	}
+	return 0;
+}
+
+int profile_draft(const struct profile *p, struct profile_status *st)
+{
+	memset(st, 0, sizeof *st);
+	st->values = p->n;
+	for (size_t i = 0; i < p->n; i++) {
+		const struct profile_entry *e = &p->e[i];
+		int memory = profile_note_from_memory(e->note), none = !e->note[0];
+		st->from_memory += (size_t)memory;
+		st->unsourced += (size_t)none;
+		if ((memory || none) && !st->first) {
+			st->first = e->key;
+			st->first_line = e->line;
+		}
+	}
+	return st->first != NULL;
+}
+
 double profile_hazard(const struct profile *p)
 {
 	double v = profile_value(p, "hazard_voltage", NULL);

@@ -9,6 +9,7 @@
 #include <errno.h>
 
 #include <math.h>
+#include <stdatomic.h>
 #include <stdio.h>
 #include <string.h>
 
@@ -30,6 +31,7 @@ struct rating_table {
 	uint32_t file;
 	struct row *rows;
 	size_t n;
+	atomic_uchar *used;    /* per row: rated a part of some file, any thread */
 };
 
 /* One CSV record from line (RFC 4180 quoting, no embedded newlines); cells
@@ -202,7 +204,27 @@ struct rating_table *rating_table_load(const char *path, struct arena *ar,
 		ok &= !duplicate_ref(t, d);
 	}
 	fclose(f);
+	if (ok && !(t->used = arena_alloc(ar, (t->n + 1) * sizeof *t->used)))
+		return NULL;
+	for (size_t i = 0; ok && i < t->n; i++)
+		atomic_init(&t->used[i], 0);
 	return ok ? t : NULL;
+}
+
+size_t rating_table_rows(const struct rating_table *t)
+{
+	return t ? t->n : 0;
+}
+
+int rating_table_row(const struct rating_table *t, size_t k, const char **ref,
+		     struct diag_loc *loc)
+{
+	const struct row *r = &t->rows[k];
+	*ref = r->cell[COL_REF] ? r->cell[COL_REF] : "";
+	cell_loc(t, r, COL_REF, loc);
+	if (!loc->col)
+		loc->col = 1;
+	return atomic_load(&t->used[k]) != 0;
 }
 
 /* ---- values ---- */
@@ -246,6 +268,7 @@ static const char *known_kind(const char *kind)
 struct source {
 	const char *from;
 	struct diag_loc loc;
+	uint32_t table_file;   /* the parts table's id in d */
 	struct diag_sink *d;
 	struct arena *ar;
 };
@@ -317,16 +340,22 @@ static void from_row(struct rating *r, const struct nl_part *p,
 	if (!src->from)
 		return;
 	cell_loc(t, row, COL_V, &src->loc);
+	src->loc.file = src->table_file;
 	set_field(&r->v_rated, row->cell[COL_V], 0, src, "v_rated");
 	cell_loc(t, row, COL_ISURGE, &src->loc);
+	src->loc.file = src->table_file;
 	set_field(&r->i_surge, row->cell[COL_ISURGE], 0, src, "i_surge");
 	cell_loc(t, row, COL_IAVG, &src->loc);
+	src->loc.file = src->table_file;
 	set_field(&r->i_avg, row->cell[COL_IAVG], 0, src, "i_avg");
 	cell_loc(t, row, COL_TRR, &src->loc);
+	src->loc.file = src->table_file;
 	set_field(&r->trr, row->cell[COL_TRR], 0, src, "trr");
 	cell_loc(t, row, COL_TOL, &src->loc);
+	src->loc.file = src->table_file;
 	set_field(&r->tol, row->cell[COL_TOL], 1, src, "tol");
 	cell_loc(t, row, COL_KIND, &src->loc);
+	src->loc.file = src->table_file;
 	set_kind(r, p, row->cell[COL_KIND], src);
 	if (row->cell[COL_NOTE] && *row->cell[COL_NOTE])
 		r->note = row->cell[COL_NOTE];
@@ -365,9 +394,10 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 {
 	size_t np = nl_part_count(c);
 	struct rating *out = arena_alloc(ar, (np + 1) * sizeof *out);
-	uint8_t *row_used = table ? arena_zalloc(ar, table->n + 1) : NULL;
 	uint8_t *an_used = arena_zalloc(ar, nannots + 1);
-	if (!out || (table && !row_used) || !an_used)
+	/* the table may be shared by many files, each with its own sink */
+	uint32_t tfile = table ? diag_add_file(d, table->path) : 0;
+	if (!out || !an_used)
 		return NULL;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
@@ -375,11 +405,11 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 		if (p->kind != NL_C && p->kind != NL_D)
 			continue;
 		from_model(&out[i], p);
-		struct source src = {NULL, {0, 0, 0}, d, ar};
+		struct source src = {NULL, {0, 0, 0}, tfile, d, ar};
 		for (size_t k = 0; table && k < table->n; k++)
 			if (table->rows[k].cell[COL_REF] && annot_glob(table->rows[k].cell[COL_REF], p->path)) {
 				from_row(&out[i], p, table, &table->rows[k], &src);
-				row_used[k] = 1;
+				atomic_store(&table->used[k], 1);
 			}
 		for (uint32_t k = 0; k < nannots; k++) {
 			if (annots[k].kind != AN_PART || !annot_glob(annots[k].target, p->path))
@@ -396,7 +426,8 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 		if (annots[k].kind == AN_PART && !an_used[k])
 			diag_add(d, DIAG_WARNING, "annotation", annots[k].loc,
 				 "*@part names '%s', which matches no capacitor or diode", annots[k].target);
-	/* rows that match nothing are normal: one table serves many netlists */
+	/* a row that matches nothing here may rate a part of another file:
+	 * unmatched rows are judged once the whole run is checked */
 	return out;
 }
 

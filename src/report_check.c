@@ -17,7 +17,7 @@ static const char *sev_name(enum diag_severity s)
 	return diag_severity_name(s);
 }
 
-static void count(struct check_totals *t, const struct rules_result *r)
+void report_totals_count(struct check_totals *t, const struct rules_result *r)
 {
 	for (size_t i = 0; r && i < r->n; i++) {
 		if (r->f[i].waived)
@@ -35,12 +35,12 @@ static void count(struct check_totals *t, const struct rules_result *r)
 
 /* ---- text ---- */
 
-static void text_finding(FILE *out, const struct check_file *f,
+static void text_finding(FILE *out, const struct diag_sink *d,
 			 const struct finding *g, int color)
 {
 	/* bold red errors, yellow warnings, blue notes */
 	static const char *const paint[] = {"\033[1;34m", "\033[1;33m", "\033[1;31m"};
-	fprintf(out, "%s:%u:%u: %s%s%s: %s [%s]%s\n", diag_file_name(f->d, g->loc.file),
+	fprintf(out, "%s:%u:%u: %s%s%s: %s [%s]%s\n", diag_file_name(d, g->loc.file),
 		g->loc.line, g->loc.col, color ? paint[g->rule->severity] : "",
 		sev_name(g->rule->severity), color ? "\033[0m" : "", g->message, g->rule->id,
 		g->waived ? " (waived)" : "");
@@ -167,10 +167,11 @@ static void text_file(FILE *out, const struct check_file *f,
 	}
 	size_t n = f->rules->n;
 	if (!t->quiet)
-		fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s)\n", f->path, f->a->topo.n,
-		f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name);
+		fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s%s)\n", f->path, f->a->topo.n,
+			f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name,
+			profile_draft(p, &(struct profile_status){0}) ? ", draft" : "");
 	for (size_t i = 0; i < n; i++)
-		text_finding(out, f, &f->rules->f[i], t->color);
+		text_finding(out, f->d, &f->rules->f[i], t->color);
 	if (!t->quiet) {
 		text_structs(out, f);
 		text_table(out, f);
@@ -250,14 +251,14 @@ static void json_stress(FILE *out, const struct check_file *f,
 	fputc('}', out);
 }
 
-static void json_finding(FILE *out, const struct check_file *f,
+static void json_finding(FILE *out, const struct diag_sink *d,
 			 const struct finding *g)
 {
 	fprintf(out, "{\"rule\": \"%s\", \"severity\": \"%s\", \"part\": ", g->rule->id,
 		sev_name(g->rule->severity));
 	jstr(out, g->subject);
 	fputs(", \"file\": ", out);
-	jstr(out, diag_file_name(f->d, g->loc.file));
+	jstr(out, diag_file_name(d, g->loc.file));
 	fprintf(out, ", \"line\": %u, \"col\": %u, \"message\": ", g->loc.line, g->loc.col);
 	jstr(out, g->message);
 	fputs(", \"computation\": ", out);
@@ -294,13 +295,16 @@ static void json_errors(FILE *out, const struct check_file *f)
 	fputc(']', out);
 }
 
-static void json_file(FILE *out, const struct check_file *f)
+static void json_file(FILE *out, const struct check_file *f, const struct profile *p)
 {
 	fputs("    {\"path\": ", out);
 	jstr(out, f->path);
 	fputs(", \"caution\": ", out);
 	jstr(out, f->caution);
-	fputs(", ", out);
+	fputs(", \"profile\": ", out);
+	jstr(out, p->name);
+	fprintf(out, ", \"profile_draft\": %s, ",
+		profile_draft(p, &(struct profile_status){0}) ? "true" : "false");
 	json_errors(out, f);
 	fputs(",\n      ", out);
 	report_topo_json_structures(out, f->a, f->d);
@@ -340,16 +344,38 @@ static void json_file(FILE *out, const struct check_file *f)
 	n = f->a->analysed ? f->rules->n : 0;
 	for (size_t i = 0; i < n; i++) {
 		fputs(i ? ",\n        " : "\n        ", out);
-		json_finding(out, f, &f->rules->f[i]);
+		json_finding(out, f->d, &f->rules->f[i]);
 	}
 	fputs("]}", out);
 }
 
-static void json_head(FILE *out, const struct profile *p)
+/* Whether the profile is a draft, and why (docs/profiles.md, "Drafts"). */
+static void json_profile_status(FILE *out, const struct profile *p)
+{
+	struct profile_status st;
+	int draft = profile_draft(p, &st);
+	fprintf(out, "{\"draft\": %s, \"values\": %zu, \"from_memory\": %zu, \"unsourced\": %zu, \"first\": ",
+		draft ? "true" : "false", st.values, st.from_memory, st.unsourced);
+	jstr(out, st.first);
+	fputs(", \"first_line\": ", out);
+	if (st.first)
+		fprintf(out, "%u}", st.first_line);
+	else
+		fputs("null}", out);
+}
+
+static void json_head(FILE *out, const struct profile *p, const struct check_totals *t)
 {
 	fputs("{\"schema\": 1, \"tool\": {\"name\": \"headroom\", \"version\": \"" HEADROOM_VERSION "\"},\n", out);
+	if (t->paths_from) {
+		fputs("  \"paths_from\": ", out);
+		jstr(out, t->paths_from);
+		fputs(",\n", out);
+	}
 	fputs("  \"profile\": ", out);
 	jstr(out, p->name);
+	fputs(", \"profile_status\": ", out);
+	json_profile_status(out, p);
 	fputs(", \"assumptions\": {\"source_tol_default\": ", out);
 	jnum(out, profile_value(p, "source_tol", NULL));
 	fputs(", \"hazard_voltage\": ", out);
@@ -405,6 +431,8 @@ void report_totals_merge(struct check_totals *t, const struct check_totals *j)
 	t->warnings += j->warnings;
 	t->notes += j->notes;
 	t->netlist_errors += j->netlist_errors;
+	t->baselined += j->baselined;
+	t->has_baseline |= j->has_baseline;
 	t->max_voltage = fmax(t->max_voltage, j->max_voltage);
 	for (size_t i = 0; i < TOTALS_RULES; i++)
 		t->per_rule[i] += j->per_rule[i];
@@ -417,10 +445,12 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		       int first, struct check_totals *t)
 {
 	t->files++;
+	t->baselined += f->baselined;
+	t->has_baseline |= f->has_baseline;
 	if (!f->a->analysed)
 		t->netlist_errors++;
 	else {
-		count(t, f->rules);
+		report_totals_count(t, f->rules);
 		top_file(t, f);
 		t->max_voltage = fmax(t->max_voltage, f->stress->max_voltage);
 	}
@@ -446,10 +476,10 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		break;
 	}
 	if (first)
-		json_head(out, p);
+		json_head(out, p, t);
 	else
 		fputs(",\n", out);
-	json_file(out, f);
+	json_file(out, f, p);
 }
 
 /* Across files: findings per rule and the most stressed parts. */
@@ -469,45 +499,62 @@ static void text_batch(FILE *out, const struct check_totals *t)
 			t->top[i].part, t->top[i].qty);
 }
 
-void report_check_end(FILE *out, enum report_check_format fmt,
-		      const struct profile *p, const struct check_totals *t)
+/* The run's own findings (parts-table rows, file waivers), after the files. */
+static void text_run(FILE *out, const struct check_totals *t)
 {
-	double hz = profile_hazard(p);
-	int hazard = !isnan(hz) && t->max_voltage > hz;
-	if (fmt == RC_CSV)
+	if (!t->run || t->run->n == 0)
 		return;
-	if (fmt == RC_JUNIT) {
-		report_junit_end(out, t);
-		return;
-	}
-	if (fmt == RC_SARIF) {
-		report_sarif_end(out, p, t);
-		return;
-	}
-	if (fmt == RC_HTML) {
-		report_html_end(out, p, t);
-		return;
-	}
-	if (fmt == RC_TEXT && t->quiet) {
+	if (!t->quiet)
+		fputc('\n', out);
+	for (size_t i = 0; i < t->run->n; i++)
+		text_finding(out, t->run_d, &t->run->f[i], t->color);
+}
+
+static void text_end(FILE *out, const struct profile *p, const struct check_totals *t,
+		     int hazard)
+{
+	char draft[512];
+	report_draft_line(draft, sizeof draft, p);
+	text_run(out, t);
+	if (t->quiet) {
 		if (hazard)
 			fprintf(out, "%s\n", check_caution);
 		return;
 	}
-	if (fmt == RC_TEXT) {
-		fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",
-			t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
-			t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s",
-			t->netlist_errors ? "; some files have netlist errors" : "");
-		if (t->files > 1)
-			text_batch(out, t);
-		if (hazard)
-			fprintf(out, "\n%s\n", check_caution);
-		return;
-	}
+	fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",
+		t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
+		t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s",
+		t->netlist_errors ? "; some files have netlist errors" : "");
+	if (t->has_baseline)
+		fprintf(out, "  baseline: %zu known finding%s not shown\n", t->baselined,
+			t->baselined == 1 ? "" : "s");
+	if (t->files > 1)
+		text_batch(out, t);
+	if (draft[0])
+		fprintf(out, "  %s\n", draft);
+	if (hazard)
+		fprintf(out, "\n%s\n", check_caution);
+}
+
+static void json_end(FILE *out, const struct profile *p, const struct check_totals *t,
+		     int hazard)
+{
 	if (t->files == 0)
-		json_head(out, p);
-	fprintf(out, "\n  ],\n  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu, \"max_voltage\": ",
+		json_head(out, p, t);
+	fputs("\n  ],\n  \"run_findings\": [", out);
+	for (size_t i = 0; t->run && i < t->run->n; i++) {
+		fputs(i ? ",\n    " : "\n    ", out);
+		json_finding(out, t->run_d, &t->run->f[i]);
+	}
+	fprintf(out, "],\n  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu, \"baseline_hidden\": ",
 		t->files, t->errors, t->warnings, t->notes, t->netlist_errors);
+	if (t->has_baseline)
+		fprintf(out, "%zu", t->baselined);
+	else
+		fputs("null", out);
+	fputs(", \"profile_draft\": ", out);
+	fputs(profile_draft(p, &(struct profile_status){0}) ? "true" : "false", out);
+	fputs(", \"max_voltage\": ", out);
 	jnum(out, t->max_voltage);
 	fputs(", \"caution\": ", out);
 	jstr(out, hazard ? check_caution : NULL);
@@ -526,4 +573,21 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 		fputc('}', out);
 	}
 	fputs("]}\n}\n", out);
+}
+
+void report_check_end(FILE *out, enum report_check_format fmt,
+		      const struct profile *p, const struct check_totals *t0)
+{
+	struct check_totals all = *t0, *t = &all;
+	report_totals_count(t, t->run);
+	double hz = profile_hazard(p);
+	int hazard = !isnan(hz) && t->max_voltage > hz;
+	switch (fmt) {
+	case RC_CSV: return;
+	case RC_JUNIT: report_junit_end(out, p, t); return;
+	case RC_SARIF: report_sarif_end(out, p, t); return;
+	case RC_HTML: report_html_end(out, p, t); return;
+	case RC_TEXT: text_end(out, p, t, hazard); return;
+	default: json_end(out, p, t, hazard); return;
+	}
 }

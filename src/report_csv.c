@@ -37,6 +37,19 @@ void report_xml_text(FILE *out, const char *s)
 	}
 }
 
+/* A draft profile, in one sentence (every format that prints text). */
+void report_draft_line(char *buf, size_t n, const struct profile *p)
+{
+	struct profile_status st;
+	buf[0] = '\0';
+	if (!profile_draft(p, &st))
+		return;
+	snprintf(buf, n, "profile %s is a draft: of its %zu values, %zu %s marked from memory and "
+		 "%zu cite%s no source (the first: %s, line %u); confirm them before relying "
+		 "on its limits", p->name, st.values, st.from_memory, st.from_memory == 1 ? "is" : "are",
+		 st.unsourced, st.unsourced == 1 ? "s" : "", st.first, st.first_line);
+}
+
 double report_limit(const struct check_file *f, const struct profile *p,
 		    const struct stress *s)
 {
@@ -89,7 +102,9 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	num(out, limit - worst);
 	fprintf(out, ",%s,", stress_basis_name(s->basis));
 	report_csv_field(out, s->unproven ? s->unproven : "");
-	fputc('\n', out);
+	fputc(',', out);
+	report_csv_field(out, p->name);
+	fprintf(out, ",%s\n", profile_draft(p, &(struct profile_status){0}) ? "draft" : "sourced");
 }
 
 /* The file's safety caution as a row of its own: quantity "caution", the
@@ -106,7 +121,9 @@ static void caution_row(FILE *out, const struct check_file *f, const struct prof
 	num(out, f->stress->max_voltage);
 	fputs(",,V,,,,", out);
 	num(out, profile_hazard(p));
-	fputs(",,,,\n", out);
+	fputs(",,,,,", out);
+	report_csv_field(out, p->name);
+	fprintf(out, ",%s\n", profile_draft(p, &(struct profile_status){0}) ? "draft" : "sourced");
 }
 
 void report_csv_file(FILE *out, const struct check_file *f,
@@ -114,7 +131,7 @@ void report_csv_file(FILE *out, const struct check_file *f,
 {
 	if (first)
 		fputs("file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"
-		      "rating,rating_from,limit,ratio,margin,basis,unproven\n", out);
+		      "rating,rating_from,limit,ratio,margin,basis,unproven,profile,profile_status\n", out);
 	if (!f->a->analysed)
 		return;
 	for (size_t i = 0; i < f->stress->n; i++) {

@@ -15,7 +15,7 @@ void report_csv_file(FILE *out, const struct check_file *f,
 
 void report_junit_file(FILE *out, const struct check_file *f,
 		       const struct profile *p, int first);
-void report_junit_end(FILE *out, const struct check_totals *t);
+void report_junit_end(FILE *out, const struct profile *p, const struct check_totals *t);
 
 void report_sarif_file(FILE *out, const struct check_file *f,
 		       const struct profile *p, int first, struct check_totals *t);
@@ -29,6 +29,9 @@ void report_html_file(FILE *out, const struct check_file *f,
 		      const struct check_totals *t);
 void report_html_end(FILE *out, const struct profile *p,
 		     const struct check_totals *t);
+
+/* One sentence saying that p is a draft and why; "" when it is not. */
+void report_draft_line(char *buf, size_t n, const struct profile *p);
 
 /* Writes s with &, <, >, " escaped for XML and HTML. */
 void report_xml_text(FILE *out, const char *s);

@@ -90,23 +90,36 @@ static void head(FILE *out, const struct profile *p, const struct report_inputs 
 	      "</style></head><body>\n<header><h1>headroom: worst-case stress of diode-capacitor networks</h1>\n",
 	      out);
 	run_facts(out, p, in);
+	char draft[512];
+	report_draft_line(draft, sizeof draft, p);
+	if (draft[0]) {
+		fputs("<p class=\"warning\">", out);
+		x(out, draft);
+		fputs("</p>\n", out);
+	}
 	fputs("</header>\n", out);
 }
 
-static void findings(FILE *out, const struct check_file *f)
+/* The findings of rr; file_of names each one's file (run findings), or
+ * is NULL when they all belong to the file of the section. */
+static void findings(FILE *out, const struct rules_result *rr, const struct diag_sink *file_of)
 {
-	if (f->rules->n == 0) {
+	if (rr->n == 0) {
 		fputs("<p>No findings.</p>\n", out);
 		return;
 	}
 	fputs("<table><tr><th>part</th><th>finding</th></tr>\n", out);
-	for (size_t i = 0; i < f->rules->n; i++) {
-		const struct finding *g = &f->rules->f[i];
+	for (size_t i = 0; i < rr->n; i++) {
+		const struct finding *g = &rr->f[i];
 		const char *sev = diag_severity_name(g->rule->severity);
 		fputs("<tr><td>", out);
 		x(out, g->subject ? g->subject : "");
-		fprintf(out, "<br><span class=\"small\">line %u</span></td><td><span class=\"%s\">%s</span> ",
-			g->loc.line, sev, sev);
+		fputs("<br><span class=\"small\">", out);
+		if (file_of) {
+			x(out, diag_file_name(file_of, g->loc.file));
+			fputc(' ', out);
+		}
+		fprintf(out, "line %u</span></td><td><span class=\"%s\">%s</span> ", g->loc.line, sev, sev);
 		x(out, g->message);
 		fprintf(out, " <span class=\"small\">[%s]%s</span>", g->rule->id, g->waived ? " waived" : "");
 		const char *parts[3] = {g->computation, g->limits, g->fix};
@@ -594,7 +607,10 @@ void report_html_file(FILE *out, const struct check_file *f,
 		fputs("<p class=\"error\">Not checked: the netlist has errors.</p>\n", out);
 	} else {
 		verify_line(out, f->stress->verify);
-		findings(out, f);
+		if (profile_draft(p, &(struct profile_status){0}))
+			fprintf(out, "<p class=\"warning\">Checked with profile %s, a draft (see the summary).</p>\n",
+				p->name);
+		findings(out, f->rules, NULL);
 		stress_table(out, f, p);
 		for (size_t i = 0; i < f->a->topo.n; i++)
 			structure(out, f, p, i);
@@ -612,6 +628,20 @@ void report_html_end(FILE *out, const struct profile *p,
 		"<span class=\"note\">%zu note%s</span>.</p>\n",
 		t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
 		t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s");
+	if (t->has_baseline)
+		fprintf(out, "<p>Baseline: %zu known finding%s not shown.</p>\n", t->baselined,
+			t->baselined == 1 ? "" : "s");
+	char draft[512];
+	report_draft_line(draft, sizeof draft, p);
+	if (draft[0]) {
+		fputs("<p class=\"warning\">", out);
+		x(out, draft);
+		fputs("</p>\n", out);
+	}
+	if (t->run && t->run->n) {
+		fputs("<h3>Findings of the run (parts table, waiver file)</h3>\n", out);
+		findings(out, t->run, t->run_d);
+	}
 	if (t->ntop) {
 		fputs("<table><tr><th>most stressed</th><th>quantity</th><th class=\"num\">of rating</th></tr>\n", out);
 		for (size_t i = 0; i < t->ntop; i++) {

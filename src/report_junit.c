@@ -33,10 +33,10 @@ static int own_case(const struct finding *g)
 				      !listed(surge_rules, g->rule->id));
 }
 
-static void finding_case(FILE *out, const struct check_file *f, const struct finding *g)
+static void finding_case(FILE *out, const char *classname, const struct finding *g)
 {
 	fputs("    <testcase classname=\"", out);
-	report_xml_text(out, f->path);
+	report_xml_text(out, classname);
 	fprintf(out, "\" name=\"%s ", g->rule->id);
 	report_xml_text(out, g->subject ? g->subject : "");
 	fputs("\" time=\"0\"", out);
@@ -139,10 +139,29 @@ static void counts(const struct check_file *f, size_t *tests, size_t *fails,
 	}
 }
 
+/* The profile a suite was checked with, whether it is a draft, and (for
+ * the run's own suite) how many known findings a baseline hid. */
+static void properties(FILE *out, const struct profile *p, const struct check_totals *t)
+{
+	char draft[512];
+	report_draft_line(draft, sizeof draft, p);
+	fputs("    <properties>\n      <property name=\"profile\" value=\"", out);
+	report_xml_text(out, p->name);
+	fprintf(out, "\"/>\n      <property name=\"profile_draft\" value=\"%s\"/>\n",
+		draft[0] ? "true" : "false");
+	if (draft[0]) {
+		fputs("      <property name=\"profile_status\" value=\"", out);
+		report_xml_text(out, draft);
+		fputs("\"/>\n", out);
+	}
+	if (t && t->has_baseline)
+		fprintf(out, "      <property name=\"baseline_hidden\" value=\"%zu\"/>\n", t->baselined);
+	fputs("    </properties>\n", out);
+}
+
 void report_junit_file(FILE *out, const struct check_file *f,
 		       const struct profile *p, int first)
 {
-	(void)p;
 	if (first)
 		fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"headroom\">\n", out);
 	fputs("  <testsuite name=\"", out);
@@ -157,12 +176,13 @@ void report_junit_file(FILE *out, const struct check_file *f,
 	size_t tests, fails, skips;
 	counts(f, &tests, &fails, &skips);
 	fprintf(out, "\" tests=\"%zu\" failures=\"%zu\" errors=\"0\" skipped=\"%zu\">\n", tests, fails, skips);
+	properties(out, p, NULL);
 	for (size_t i = 0; i < f->stress->n; i++)
 		for (const char *const *r = rules_for(f, &f->stress->s[i]); *r; r++)
 			testcase(out, f, &f->stress->s[i], *r);
 	for (size_t i = 0; i < f->rules->n; i++)
 		if (own_case(&f->rules->f[i]))
-			finding_case(out, f, &f->rules->f[i]);
+			finding_case(out, f->path, &f->rules->f[i]);
 	if (f->caution) {
 		fputs("    <system-out>", out);
 		report_xml_text(out, f->caution);
@@ -171,9 +191,19 @@ void report_junit_file(FILE *out, const struct check_file *f,
 	fputs("  </testsuite>\n", out);
 }
 
-void report_junit_end(FILE *out, const struct check_totals *t)
+/* The run's own suite: its findings (parts table, waiver file), the
+ * profile and the baseline. */
+void report_junit_end(FILE *out, const struct profile *p, const struct check_totals *t)
 {
 	if (t->files == 0)
 		fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"headroom\">\n", out);
-	fputs("</testsuites>\n", out);
+	size_t n = t->run ? t->run->n : 0, fails = 0;
+	for (size_t i = 0; i < n; i++)
+		fails += t->run->f[i].rule->severity != DIAG_NOTE && !t->run->f[i].waived;
+	fprintf(out, "  <testsuite name=\"headroom run\" tests=\"%zu\" failures=\"%zu\" errors=\"0\" skipped=\"%zu\">\n",
+		n, fails, n - fails);
+	properties(out, p, t);
+	for (size_t i = 0; i < n; i++)
+		finding_case(out, diag_file_name(t->run_d, t->run->f[i].loc.file), &t->run->f[i]);
+	fputs("  </testsuite>\n</testsuites>\n", out);
 }

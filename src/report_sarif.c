@@ -98,10 +98,10 @@ static size_t rule_index(const struct rule_info *r)
 	return (size_t)(r - rules_table);
 }
 
-static void result(FILE *out, const struct check_file *f, const struct finding *g,
+static void result(FILE *out, const struct diag_sink *d, const struct finding *g,
 		   int first)
 {
-	const char *file = diag_file_name(f->d, g->loc.file);
+	const char *file = diag_file_name(d, g->loc.file);
 	fprintf(out, "%s\n      {\"ruleId\": \"%s\", \"ruleIndex\": %zu, \"level\": \"%s\", \"message\": {\"text\": ",
 		first ? "" : ",", g->rule->id, rule_index(g->rule), level(g->rule->severity));
 	report_json_string(out, g->message);
@@ -117,7 +117,10 @@ static void result(FILE *out, const struct check_file *f, const struct finding *
 	fprintf(out, "}],\n        \"partialFingerprints\": {\"headroomFinding/v1\": \"%016llx\"}",
 		(unsigned long long)fnv(g->rule->id, file, g->subject));
 	if (g->waived) {
-		fputs(", \"suppressions\": [{\"kind\": \"inSource\", \"justification\": ", out);
+		/* SARIF 2.1.0 suppression.kind: a *@waive line in the netlist is in
+		 * source; a --waivers file is kept apart from it: external */
+		fprintf(out, ", \"suppressions\": [{\"kind\": \"%s\", \"justification\": ",
+			g->waiver_external ? "external" : "inSource");
 		report_json_string(out, g->waiver ? g->waiver : "waived");
 		fputs("}]", out);
 	}
@@ -153,7 +156,7 @@ void report_sarif_file(FILE *out, const struct check_file *f,
 	 * file cannot know whether earlier ones had any, so the batch writer
 	 * drops a leading comma when nothing came before */
 	for (size_t i = 0; i < f->rules->n; i++) {
-		result(out, f, &f->rules->f[i], first && t->emitted == 0);
+		result(out, f->d, &f->rules->f[i], first && t->emitted == 0);
 		t->emitted++;
 	}
 	if (f->caution) {
@@ -165,8 +168,27 @@ void report_sarif_file(FILE *out, const struct check_file *f,
 void report_sarif_end(FILE *out, const struct profile *p,
 		      const struct check_totals *t)
 {
-	(void)p;
 	if (t->files == 0)
 		head(out, t->docs_uri);
-	fputs("]\n  }]\n}\n", out);
+	for (size_t i = 0; t->run && i < t->run->n; i++)
+		result(out, t->run_d, &t->run->f[i], t->emitted + i == 0);
+	fputs("]", out);
+	char draft[512];
+	report_draft_line(draft, sizeof draft, p);
+	if (draft[0]) {
+		/* shown by viewers as a note about how the tool was set up */
+		fputs(",\n    \"invocations\": [{\"executionSuccessful\": true, "
+		      "\"toolConfigurationNotifications\": [{\"level\": \"warning\", \"message\": {\"text\": ", out);
+		report_json_string(out, draft);
+		fputs("}}]}]", out);
+	}
+	fputs(",\n    \"properties\": {\"profile\": ", out);
+	report_json_string(out, p->name);
+	fprintf(out, ", \"profileDraft\": %s, \"baselineHidden\": ",
+		draft[0] ? "true" : "false");
+	if (t->has_baseline)
+		fprintf(out, "%zu}", t->baselined);
+	else
+		fputs("null}", out);
+	fputs("\n  }]\n}\n", out);
 }

@@ -30,6 +30,7 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_STRESS_UNSETTLED] = {"stress-unsettled", DIAG_WARNING, "a part's stress could not be bounded"},
 	[RULE_DIODE_LOOP] = {"diode-loop", DIAG_ERROR, "a diode is driven forward straight from the sources with nothing to limit its current"},
 	[RULE_PART_TWIN] = {"part-twin", DIAG_NOTE, "two parts repeat each other on the same nodes inside a diode-capacitor network"},
+	[RULE_PARTS_UNMATCHED] = {"parts-unmatched", DIAG_WARNING, "a parts-table row rates no capacitor or diode of any file checked"},
 	[RULE_BREAKDOWN_WORK] = {"breakdown-work", DIAG_NOTE, "a zener works in reverse breakdown: its stress is power, not reverse voltage"},
 	[RULE_ANALYSIS_GAP] = {"analysis-gap", DIAG_ERROR, "the simulation (--verify) exceeds a part's analytic worst case"},
 	[RULE_WAIVER_EXPIRED] = {"waiver-expired", DIAG_WARNING, "a waiver's date has passed: what it covered is reported again"},

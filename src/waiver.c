@@ -116,8 +116,9 @@ static int note_expired(struct arena *ar, const struct annot *w, struct rules_re
 }
 
 /* Marks the findings w covers as waived (unless it has expired); returns
- * whether it covers any. */
-static int mark(const struct annot *w, const char *today, struct rules_result *rr)
+ * whether it covers any. external: w comes from a --waivers file. */
+static int mark(const struct annot *w, const char *today, int external,
+		struct rules_result *rr)
 {
 	const char *reason = annot_get(w, "reason") ? annot_get(w, "reason")->text : "";
 	int used = 0;
@@ -130,6 +131,7 @@ static int mark(const struct annot *w, const char *today, struct rules_result *r
 		if (!expired(w, today)) {
 			f->waived = 1;
 			f->waiver = reason;
+			f->waiver_external = external;
 		}
 	}
 	return used;
@@ -139,7 +141,7 @@ static int mark(const struct annot *w, const char *today, struct rules_result *r
 static int apply_one(struct arena *ar, const struct annot *w, const char *today,
 		     struct rules_result *rr)
 {
-	int used = mark(w, today, rr);
+	int used = mark(w, today, 0, rr);
 	if (expired(w, today) && used)
 		return note_expired(ar, w, rr);
 	if (used)
@@ -159,7 +161,7 @@ static int apply_file_one(struct arena *ar, const struct waiver_file *wf,
 			  uint32_t i, const char *today, struct rules_result *rr)
 {
 	const struct annot *w = &wf->w[i];
-	if (!mark(w, today, rr))
+	if (!mark(w, today, 1, rr))
 		return 1;
 	atomic_store(&wf->used[i], 1);
 	return !expired(w, today) || note_expired(ar, w, rr);
@@ -177,12 +179,21 @@ int waiver_apply(const struct audit *a, const struct waiver_file *wf,
 	return 1;
 }
 
-void waiver_unused(const struct waiver_file *wf, struct diag_sink *d)
+int waiver_unused(const struct waiver_file *wf, struct arena *ar,
+		  struct rules_result *rr)
 {
-	for (uint32_t i = 0; wf && i < wf->n; i++)
-		if (!atomic_load(&wf->used[i]))
-			diag_add(d, DIAG_NOTE, "waiver-unused", wf->w[i].loc,
-				 "this waiver matched no finding in any file checked");
+	for (uint32_t i = 0; wf && i < wf->n; i++) {
+		if (atomic_load(&wf->used[i]))
+			continue;
+		struct finding *g = rules_add(rr, ar, RULE_WAIVER_UNUSED);
+		if (!g)
+			return 0;
+		g->loc = wf->w[i].loc;
+		g->subject = wf->w[i].target;
+		g->message = "this waiver matched no finding in any file checked: remove it or "
+			     "correct its rule and part";
+	}
+	return 1;
 }
 
 /* ---- baselines: a small strict JSON reader ---- */
@@ -196,6 +207,7 @@ struct key {
 struct baseline {
 	struct key *k;
 	size_t n, cap;
+	const char *paths_from;   /* the report's "paths_from", or NULL */
 };
 
 struct jr {
@@ -327,6 +339,9 @@ static void jobject(struct jr *j, const char *parent, int in_findings)
 		if (k && strcmp(k, "path") == 0 && parent && strcmp(parent, "files") == 0 &&
 		    j->i < j->n && j->s[j->i] == '"') {
 			j->cur_file = jstring(j);
+		} else if (k && strcmp(k, "paths_from") == 0 && j->depth == 1 &&
+			   j->i < j->n && j->s[j->i] == '"') {
+			j->b->paths_from = jstring(j);
 		} else if (in_findings && k && (strcmp(k, "rule") == 0 || strcmp(k, "part") == 0) &&
 			   j->i < j->n && j->s[j->i] == '"') {
 			const char *v = jstring(j);
@@ -424,6 +439,112 @@ static void jvalue(struct jr *j, const char *key, int in_findings, struct key *f
 	j->depth--;
 }
 
+/* ---- baselines: paths ---- */
+
+/* p made absolute and canonical: its real path, or for a file that does not
+ * exist the real path of its folder and its name, or as joined. Relative p
+ * is taken from dir (NULL: the current directory). In ar; NULL on
+ * out-of-memory. */
+static const char *real_path(struct arena *ar, const char *dir, const char *p)
+{
+	char joined[4096], *r;
+	if (p[0] == '/' || !dir)
+		snprintf(joined, sizeof joined, "%s", p);
+	else
+		snprintf(joined, sizeof joined, "%s/%s", dir, p);
+	if ((r = realpath(joined, NULL))) {
+		const char *out = arena_strdup(ar, r);
+		free(r);
+		return out;
+	}
+	char *slash = strrchr(joined, '/');
+	const char *name = slash ? slash + 1 : joined;
+	if (slash && slash != joined) {
+		*slash = '\0';
+		r = realpath(joined, NULL);
+		*slash = '/';
+	} else {
+		r = realpath(slash ? "/" : ".", NULL);
+	}
+	if (!r)
+		return arena_strdup(ar, joined);
+	size_t n = strlen(r) + strlen(name) + 2;
+	char *out = arena_alloc(ar, n);
+	if (out)
+		snprintf(out, n, "%s%s%s", r, strcmp(r, "/") ? "/" : "", name);
+	free(r);
+	return out;
+}
+
+/* Every key's file as a real path. A baseline written with
+ * --write-baseline says where its paths start ("paths_from", relative to
+ * the baseline's folder); other JSON reports are taken from the current
+ * directory, as the check that wrote them most likely ran there. */
+static int baseline_paths(struct baseline *b, const char *path, struct arena *ar)
+{
+	const char *dir = NULL, *raw = NULL, *real = NULL;
+	if (b->paths_from) {
+		const char *slash = strrchr(path, '/');
+		char base[4096];
+		if (b->paths_from[0] == '/')
+			snprintf(base, sizeof base, "%s", b->paths_from);
+		else if (!slash)
+			snprintf(base, sizeof base, "./%s", b->paths_from);
+		else
+			snprintf(base, sizeof base, "%.*s/%s", (int)(slash - path), path, b->paths_from);
+		if (!(dir = arena_strdup(ar, base)))
+			return 0;
+	}
+	for (size_t i = 0; i < b->n; i++) {
+		if (b->k[i].file != raw) { /* keys of one file share the pointer */
+			raw = b->k[i].file;
+			if (!(real = real_path(ar, dir, raw)))
+				return 0;
+		}
+		b->k[i].file = real;
+	}
+	return 1;
+}
+
+/* The relative path from folder from to folder to, both real paths. */
+static int rel_path(const char *from, const char *to, char *out, size_t n)
+{
+	size_t c = 0, k = 0; /* c: the end of the common leading folders */
+	for (size_t i = 0;; i++) {
+		if ((from[i] == '/' || !from[i]) && (to[i] == '/' || !to[i]))
+			c = i;
+		if (!from[i] || !to[i] || from[i] != to[i])
+			break;
+	}
+	out[0] = '\0';
+	for (const char *p = from + c; *p; p++)
+		if (*p == '/' && p[1])
+			k += (size_t)snprintf(out + k, k < n ? n - k : 0, "%s..", k ? "/" : "");
+	const char *rest = to + c + (to[c] == '/');
+	if (*rest)
+		k += (size_t)snprintf(out + k, k < n ? n - k : 0, "%s%s", k ? "/" : "", rest);
+	if (k == 0)
+		k = (size_t)snprintf(out, n, ".");
+	return k < n;
+}
+
+int baseline_paths_from(const char *baseline_path, char *out, size_t n)
+{
+	const char *slash = strrchr(baseline_path, '/');
+	char dir[4096];
+	if (!slash)
+		snprintf(dir, sizeof dir, ".");
+	else if (slash == baseline_path)
+		snprintf(dir, sizeof dir, "/");
+	else
+		snprintf(dir, sizeof dir, "%.*s", (int)(slash - baseline_path), baseline_path);
+	char *from = realpath(dir, NULL), *to = realpath(".", NULL);
+	int ok = from && to && rel_path(from, to, out, n);
+	free(from);
+	free(to);
+	return ok;
+}
+
 struct baseline *baseline_load(const char *path, struct arena *ar,
 			       struct diag_sink *d)
 {
@@ -469,22 +590,29 @@ struct baseline *baseline_load(const char *path, struct arena *ar,
 			jerr(&j, "text after the JSON document");
 	}
 	free(buf);
-	return b && !j.bad ? b : NULL;
+	if (!b || j.bad || !baseline_paths(b, path, ar))
+		return NULL;
+	return b;
 }
 
-void baseline_filter(const struct baseline *b, const char *path,
-		     struct rules_result *rr)
+size_t baseline_filter(const struct baseline *b, const char *path,
+		       struct rules_result *rr, struct arena *ar)
 {
 	size_t k = 0;
+	const char *real = real_path(ar, NULL, path);
+	if (!real)
+		real = path;
 	for (size_t i = 0; i < rr->n; i++) {
 		const struct finding *f = &rr->f[i];
 		int old = 0;
 		for (size_t m = 0; m < b->n && !old; m++)
-			old = strcmp(b->k[m].file, path) == 0 && strcmp(b->k[m].rule, f->rule->id) == 0 &&
+			old = strcmp(b->k[m].file, real) == 0 && strcmp(b->k[m].rule, f->rule->id) == 0 &&
 			      ((b->k[m].part == NULL) == (f->subject == NULL)) &&
 			      (!f->subject || strcmp(b->k[m].part, f->subject) == 0);
 		if (!old)
 			rr->f[k++] = *f;
 	}
+	size_t hidden = rr->n - k;
 	rr->n = k;
+	return hidden;
 }

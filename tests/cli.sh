@@ -359,5 +359,72 @@ printf '\xef\xbb\xbfref,kind,v_rated\nDCLMP,rectifier,75V\n' > "$tmp/parts_bom.c
 run check --parts "$tmp/parts_bom.csv" "$here/../examples/sensor_restorer.cir"
 check "a parts table with a byte-order mark is read" bash -c "! grep -q 'parts_bom.csv.*error' '$tmp/err' && grep -q '^  DCLMP .* 75 V' '$tmp/out'"
 
+# No input is dropped without a word (docs/check.md, "Inputs that do nothing").
+# A parts-table row that rates no part of any file checked is a located
+# warning in every format; with one table for a folder, a row is unmatched
+# only when no file of the run has its part.
+shared=$data/inputs/parts_shared.csv
+run check --format json --parts "$shared" "$data/inputs/batch"
+check "folder mode: only the row no file matches is parts-unmatched, at its line, in JSON" python3 -c "
+import json,sys
+d=json.load(open(sys.argv[1]))
+got=[(g['rule'], g['part'], g['file'].rsplit('/',1)[-1], g['line'], g['severity']) for g in d['run_findings']]
+assert got == [('parts-unmatched', 'CRELAY9', 'parts_shared.csv', 5, 'warning')], got
+assert d['summary']['per_rule'].get('parts-unmatched') == 1, d['summary']
+" "$tmp/out"
+run check --parts "$shared" "$data/inputs/batch/probe_clamp.cir"
+check "one file of the two: the rows of the other file's parts are unmatched too" bash -c "grep -q \"parts_shared.csv:3:1: warning: 'DRLY\*' matches no capacitor or diode in any file checked\" '$tmp/out' && grep -q 'parts_shared.csv:4:1: warning: .CRLY2. matches no' '$tmp/out' && grep -q 'parts_shared.csv:5:1: warning: .CRELAY9. matches no' '$tmp/out' && ! grep -q 'CPROBE. matches no' '$tmp/out'"
+printf 't\nV1 a 0 sin(0 5 1k)\nR1 a b 1k\nC1 b x 1u\nD1 0 x dm\nRL x 0 1meg\n.model dm d bv=100 rs=1\n*@part C1 v_rated=63V kind=film\n' > "$tmp/clean.cir"
+printf 'ref,v_rated\nC1,63V\nC9,63V\n' > "$tmp/one_extra.csv"
+run check --fail-on warning "$tmp/clean.cir"
+rc_clean=$rc
+run check --fail-on warning --parts "$tmp/one_extra.csv" "$tmp/clean.cir"
+check "an unmatched row alone makes --fail-on warning fail (exit 1; 0 without the table)" bash -c "test $rc_clean -eq 0 && test $rc -eq 1"
+for fmt in sarif junit html; do
+	"$bin" check --format $fmt --fail-on never --parts "$shared" "$data/inputs/batch" > "$tmp/unm.$fmt" 2>/dev/null
+done
+check "parts-unmatched reaches SARIF with the table's line" python3 -c "
+import json,sys
+r=[x for x in json.load(open(sys.argv[1]))['runs'][0]['results'] if x['ruleId']=='parts-unmatched']
+assert len(r)==1 and r[0]['locations'][0]['physicalLocation']['region']['startLine']==5, r
+assert r[0]['locations'][0]['physicalLocation']['artifactLocation']['uri'].endswith('parts_shared.csv')
+" "$tmp/unm.sarif"
+check "parts-unmatched reaches JUnit as a failure and HTML" bash -c "grep -q 'name=\"parts-unmatched CRELAY9\"' '$tmp/unm.junit' && grep -q '<failure type=\"parts-unmatched\"' '$tmp/unm.junit' && xmllint --noout '$tmp/unm.junit' && grep -q 'CRELAY9.*parts-unmatched' '$tmp/unm.html'"
+
+# A *@ line after .end is not read: a located warning, not silence.
+printf 't\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nD1 0 x dm\n.model dm d\n.end\n\n  *@waive rating-missing C1 reason="too late"\n* a plain comment\n*@part D1 v_rated=50V\n' > "$tmp/after_end.cir"
+run check "$tmp/after_end.cir"
+check "a *@waive after .end is a located warning" grep -q "after_end.cir:8:3: warning: '\*@waive' after .end is ignored" "$tmp/err"
+check "a *@part after .end too, and a plain comment there is no warning" bash -c "grep -q \"after_end.cir:10:1: warning: '\*@part' after .end is ignored\" '$tmp/err' && test \$(grep -c 'after .end' '$tmp/err') -eq 2 && test $rc -eq 0"
+{ printf 't\nV1 a 0 sin(0 10 1k)\nC1 a x 1u\nD1 0 x dm\n.model dm d\n.end\n'; cat "$tmp/digits"; printf '\n'; } > "$tmp/end_tail.cir"
+run check "$tmp/end_tail.cir"
+check "a line past --max-line after .end is no error (what follows .end is only scanned for *@ lines)" bash -c "test $rc -eq 0 && ! grep -q error '$tmp/err'"
+
+# A profile is a draft when a value is marked from memory or cites nothing;
+# every format says so. A fully sourced one says nothing of the kind.
+printf 'name = sourced\nsource_tol = 10%%   # common practice, no source\ncap.default.voltage = 70%%  # common practice, no source\ndiode.default.voltage = 75%%  # SD-18 Table 1A (V)\n' > "$tmp/sourced.profile"
+printf 'name = recalled\nsource_tol = 10%%   # common practice, no source\ncap.default.voltage = 50%%  # EEE-INST-002 (M)\ndiode.default.voltage = 70%%\n' > "$tmp/recalled.profile"
+for prof in sourced recalled; do
+	for fmt in text json csv junit sarif html; do
+		"$bin" check --format $fmt --fail-on never --profile "$tmp/$prof.profile" "$here/../examples/sensor_restorer.cir" > "$tmp/$prof.$fmt" 2>/dev/null
+	done
+done
+check "draft profile: text says draft on the file line and why in the summary" bash -c "grep -q '(profile recalled, draft)' '$tmp/recalled.text' && grep -q 'profile recalled is a draft: of its 3 values, 1 is marked from memory and 1 cites no source (the first: cap.default.voltage, line 3)' '$tmp/recalled.text'"
+check "draft profile: JSON, SARIF, JUnit, CSV and HTML say draft" python3 -c "
+import json,csv,sys
+t=sys.argv[1]
+j=json.load(open(t+'/recalled.json'))
+assert j['profile_status']['draft'] and j['profile_status']['from_memory']==1 and j['profile_status']['unsourced']==1, j['profile_status']
+assert j['summary']['profile_draft'] is True and j['files'][0]['profile_draft'] is True
+s=json.load(open(t+'/recalled.sarif'))['runs'][0]
+assert s['properties']['profileDraft'] is True
+assert 'is a draft' in s['invocations'][0]['toolConfigurationNotifications'][0]['message']['text']
+assert '<property name=\"profile_draft\" value=\"true\"/>' in open(t+'/recalled.junit').read()
+rows=list(csv.DictReader(open(t+'/recalled.csv')))
+assert rows and all(r['profile_status']=='draft' for r in rows), rows[:1]
+assert 'profile recalled is a draft' in open(t+'/recalled.html').read()
+" "$tmp"
+check "a fully sourced profile is not called a draft in any format" bash -c "! grep -qi 'draft' '$tmp/sourced.text' '$tmp/sourced.html' && ! grep -q 'draft\"*: *true\|profileDraft\": true\|value=\"true\"\|,draft$' '$tmp/sourced.json' '$tmp/sourced.sarif' '$tmp/sourced.junit' '$tmp/sourced.csv'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

@@ -26,16 +26,19 @@ runs = [
     [os.path.join(HERE, "data", "topo")],
     [os.path.join(HERE, "data", "two_errors.cir"), os.path.join(ROOT, "examples", "rf_doubler.cir")],
     ["--profile", "flight", "--source-tol", "0", os.path.join(ROOT, "examples", "mains_doubler.cir")],
+    ["--parts", os.path.join(HERE, "data", "inputs", "parts_shared.csv"),
+     "--waivers", os.path.join(HERE, "data", "inputs", "unused.waivers"),
+     os.path.join(HERE, "data", "inputs", "batch", "probe_clamp.cir")],
 ]
 
 
 def summary_agrees(doc):
     """The batch summary is recomputed from the per-file sections: counts
-    per rule from the unwaived findings, and the most stressed parts from
+    per rule from the unwaived findings (the run's own ones too), and the most stressed parts from
     every bounded, rated stress (worst / rating, highest first)."""
     per_rule, sev = {}, {"error": 0, "warning": 0, "note": 0}
     ratios = []
-    for f in doc["files"]:
+    for f in doc["files"] + [{"findings": doc["run_findings"]}]:
         for g in f["findings"]:
             if not g["waived"]:
                 per_rule[g["rule"]] = per_rule.get(g["rule"], 0) + 1

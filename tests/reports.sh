@@ -23,6 +23,7 @@ check() {
 	if "$@"; then pass=$((pass + 1)); else fail=$((fail + 1)); echo "reports: FAIL $name"; fi
 }
 cd "$root" || exit 1
+abs_bin=$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")
 
 # The help links in SARIF point at this checkout's docs: made neutral here.
 neutral() { sed -e "s|file://[^\"]*/docs/|file:///DOCS/|g" "$1"; }
@@ -76,6 +77,22 @@ sed -i "s|\"path\": \"$ex/sensor_restorer.cir\"|\"path\": \"$tmp/changed/sensor_
 "$bin" check --baseline "$tmp/base2.json" "$tmp/changed/sensor_restorer.cir" > "$tmp/new.txt" 2>/dev/null
 rc=$?
 check "after a change only the new finding is reported" bash -c "test $rc -eq 1 && grep -q 'cap-overvoltage' '$tmp/new.txt' && ! grep -q 'cap-derating' '$tmp/new.txt'"
+# a baseline written from one folder and used from another: files are
+# matched by real path, and every summary says how many findings it hid
+mkdir -p "$tmp/proj/dir" "$tmp/proj/ci"
+cp $ex/sensor_restorer.cir $ex/mains_doubler.cir "$tmp/proj/dir/"
+(cd "$tmp/proj" && HEADROOM_RULES="$root/rules" "$abs_bin" check --fail-on never --write-baseline ci/base.json dir/ > /dev/null 2>&1)
+(cd "$tmp/proj/dir" && HEADROOM_RULES="$root/rules" "$abs_bin" check --baseline ../ci/base.json . > "$tmp/bl.txt" 2>&1)
+rc=$?
+check "a baseline written as dir/ hides the same findings when used from inside dir" bash -c "test $rc -eq 0 && grep -q '^2 files checked: 0 errors, 0 warnings, 0 notes' '$tmp/bl.txt' && grep -q '^  baseline: 6 known findings not shown' '$tmp/bl.txt'"
+(cd "$tmp/proj/dir" && for f in json sarif junit; do HEADROOM_RULES="$root/rules" "$abs_bin" check --format $f --baseline ../ci/base.json . > "$tmp/bl.$f" 2>/dev/null; done)
+check "JSON, SARIF and JUnit say how many known findings the baseline hid" python3 -c "
+import json,sys
+j=json.load(open(sys.argv[1]))
+assert j['summary']['baseline_hidden']==6 and sum(len(f['findings']) for f in j['files'])==0, j['summary']
+assert json.load(open(sys.argv[2]))['runs'][0]['properties']['baselineHidden']==6
+assert '<property name=\"baseline_hidden\" value=\"6\"/>' in open(sys.argv[3]).read()
+" "$tmp/bl.json" "$tmp/bl.sarif" "$tmp/bl.junit"
 printf '{"schema": 1, "files": [ {"path": "x", "findings": [ {"rule": 5} ]}\n' > "$tmp/bad.json"
 "$bin" check --baseline "$tmp/bad.json" $ex/sensor_restorer.cir > /dev/null 2> "$tmp/bad.err"
 check "a broken baseline is a located error" bash -c "test $? -ne 0 && grep -q \"bad.json:2:1: error: expected ',' or ']'\" '$tmp/bad.err'"
@@ -95,7 +112,19 @@ printf '*@waive diode-overvoltage NOSUCH* reason="old part"\n*@waive cap-deratin
 "$bin" check --waivers "$tmp/waivers.txt" --fail-on warning $ex/sensor_restorer.cir > "$tmp/wf.txt" 2> "$tmp/wf.err"
 rc=$?
 check "a waiver file applies to the files checked" bash -c "test $rc -eq 0 && grep -q '(waived)' '$tmp/wf.txt'"
-check "an unused waiver is a note" grep -q "waivers.txt:1:1: note: this waiver matched no finding" "$tmp/wf.err"
+check "an unused waiver is a note, in the report" grep -q "waivers.txt:1:1: note: this waiver matched no finding in any file checked.*\[waiver-unused\]" "$tmp/wf.txt"
+"$bin" check --format json --waivers "$tmp/waivers.txt" $ex/sensor_restorer.cir > "$tmp/wf.json" 2>/dev/null
+"$bin" check --format sarif --waivers "$tmp/waivers.txt" $ex/sensor_restorer.cir > "$tmp/wf.sarif" 2>/dev/null
+check "an unused file waiver reaches JSON (run_findings, counted) and SARIF at its line" python3 -c "
+import json,sys
+j=json.load(open(sys.argv[1]))
+u=[g for g in j['run_findings'] if g['rule']=='waiver-unused']
+assert len(u)==1 and u[0]['file'].endswith('waivers.txt') and u[0]['line']==1 and u[0]['part']=='NOSUCH*', j['run_findings']
+assert j['summary']['notes']==1 and j['summary']['per_rule'].get('waiver-unused')==1, j['summary']
+r=[x for x in json.load(open(sys.argv[2]))['runs'][0]['results'] if x['ruleId']=='waiver-unused']
+assert len(r)==1 and r[0]['locations'][0]['physicalLocation']['artifactLocation']['uri'].endswith('waivers.txt'), r
+" "$tmp/wf.json" "$tmp/wf.sarif"
+check "SARIF marks a waiver from a --waivers file as an external suppression" grep -q '"suppressions": \[{"kind": "external", "justification": "checked by hand"}\]' "$tmp/wf.sarif"
 printf '*@waive cap-derating CCPL\n' > "$tmp/noreason.txt"
 "$bin" check --waivers "$tmp/noreason.txt" $ex/sensor_restorer.cir > /dev/null 2> "$tmp/nr.err"
 check "a waiver without a reason is a located error" bash -c "test $? -eq 2 && grep -q 'noreason.txt:1:.*a waiver needs reason=' '$tmp/nr.err'"
