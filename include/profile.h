@@ -59,4 +59,8 @@ double profile_hazard(const struct profile *p);
 double profile_value(const struct profile *p, const char *key,
 		     const char **note);
 
+/* The unit of a known key's value: "fraction" (a share: factors,
+ * tolerances, limits), "V" or "s". */
+const char *profile_key_unit(const char *key);
+
 #endif

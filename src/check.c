@@ -97,6 +97,8 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 	r->status = st == AUDIT_OK ? CHECK_OK : st == AUDIT_OOM ? CHECK_OOM : CHECK_ERRORS;
 	if (r->status == CHECK_OK && !o->profile_fixed && !file_profile(o, r))
 		r->status = CHECK_OOM;
+	if (r->status == CHECK_OK)
+		waiver_check_rules(r->a.annots, r->a.nannots, r->d);
 	if (r->status == CHECK_OK && !judge(o, r))
 		r->status = CHECK_OOM;
 	if (r->status == CHECK_OK && o->baseline)

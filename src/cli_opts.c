@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "diag.h"
+#include "suggest.h"
 
 enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_FAIL };
 
@@ -122,6 +123,54 @@ void cli_usage(FILE *out)
 	      out);
 }
 
+const char *cli_hint(const char *word, const char *const *names, size_t n, char *buf,
+		     size_t size)
+{
+	struct suggest s;
+	suggest_init(&s, word, strlen(word));
+	for (size_t i = 0; i < n; i++)
+		suggest_offer(&s, names[i]);
+	return suggest_hint(&s, buf, size);
+}
+
+int cli_format(const struct cli *c, const char *const *names, size_t n, size_t *index)
+{
+	char hint[SUGGEST_HINT_SIZE];
+	*index = 0;
+	for (size_t i = 0; c->fmt_name && i < n; i++)
+		if (strcmp(c->fmt_name, names[i]) == 0)
+			*index = i;
+	if (!c->fmt_name || strcmp(c->fmt_name, names[*index]) == 0)
+		return 1;
+	fprintf(stderr, "headroom: %s writes ", c->cmd);
+	for (size_t i = 0; i < n; i++)
+		fprintf(stderr, "%s%s", names[i], i + 2 < n ? ", " : i + 2 == n ? " or " : "");
+	fprintf(stderr, ", not '%s'%s\n", c->fmt_name, cli_hint(c->fmt_name, names, n, hint, sizeof hint));
+	return 0;
+}
+
+/* An unknown option: says so, with the closest option's name when one is
+ * close (the name part of --opt=value). */
+static void unknown_option(const char *a)
+{
+	char name[SUGGEST_MAX_LEN + 1], hint[SUGGEST_HINT_SIZE];
+	size_t n = a[0] == '-' && a[1] == '-' ? strcspn(a, "=") : strlen(a);
+	struct suggest s;
+	snprintf(name, sizeof name, "%.*s", (int)n, a);
+	suggest_init(&s, name, strlen(name));
+	for (size_t i = 0; i < sizeof opts / sizeof opts[0]; i++) {
+		suggest_offer(&s, opts[i].name);
+		if (opts[i].alias)
+			suggest_offer(&s, opts[i].alias);
+	}
+	suggest_offer(&s, "--help");
+	suggest_offer(&s, "--version");
+	if (suggest_best(&s))
+		fprintf(stderr, "headroom: unknown option '%s'%s\n", name, suggest_hint(&s, hint, sizeof hint));
+	else
+		fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", name);
+}
+
 /* The option named by name[0..n). */
 static const struct opt_def *opt_find_n(const char *name, size_t n)
 {
@@ -175,7 +224,13 @@ static int set_fail_on(struct cli *c, const char *val)
 			c->fail_on = tab[i].level;
 			return 1;
 		}
-	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'\n", val);
+	struct suggest s;
+	char hint[SUGGEST_HINT_SIZE];
+	suggest_init(&s, val, strlen(val));
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		suggest_offer(&s, tab[i].name);
+	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'%s\n", val,
+		suggest_hint(&s, hint, sizeof hint));
 	return 0;
 }
 
@@ -253,7 +308,7 @@ int cli_parse(struct cli *c, int argc, char **argv)
 				return 0;
 			i++;
 		} else if (a[0] == '-' && a[1] != '\0') {
-			fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", a);
+			unknown_option(a);
 			return 0;
 		} else if (!c->cmd) {
 			c->cmd = a;

@@ -109,10 +109,14 @@ static const struct nl_model *need_model(struct build *b,
 	const struct nl_model *m = NULL;
 	if (f->kind == FIELD_ATOM)
 		m = b->s->model(b->s->ud, f);
-	if (!m)
-		*st = err_at(b, f, "undefined model '%s'",
-			     f->kind == FIELD_ATOM ? f->text : "?");
-	return m;
+	if (m)
+		return m;
+	const char *near = f->kind == FIELD_ATOM && b->s->near_model ? b->s->near_model(b->s->ud, f) : NULL;
+	diag_add(b->d, DIAG_ERROR, "element", field_loc(b, f), "undefined model '%s'%s%s%s",
+		 f->kind == FIELD_ATOM ? f->text : "?", near ? "; did you mean '" : "",
+		 near ? near : "", near ? "'?" : "");
+	*st = DEV_ERROR;
+	return NULL;
 }
 
 static void set_mult(struct build *b, double m)

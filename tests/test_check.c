@@ -113,7 +113,7 @@ static const struct rule_case cases[] = {
 	 0},
 	/* 11 V / (10 ohm + 0.1 ohm) = 1.09 A: within 1.2 A but above its
 	   80 % (0.96 A) fires; 20 A quiet */
-	{"surge-current", "DD",
+	{"surge-derating", "DD",
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1.2A\n",
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=20A\n",
 	 0.10},
