@@ -36,7 +36,8 @@ static const struct opt_def opts[] = {
 	{"--format", NULL, STR(fmt_name),
 	 "--format FMT         parts: text (default), csv, json, count\n"
 	 "topo: text (default), json, count\n"
-	 "check: text (default), json, csv, junit, sarif,\nhtml"},
+	 "check: text (default), json, csv, junit, sarif,\nhtml\n"
+	 "rules: text (default), json"},
 	{"--profile", NULL, STR(profile),
 	 "--profile NAME|FILE  derating profile: basic, industrial (default),\n"
 	 "flight, or a profile file"},
@@ -96,11 +97,11 @@ void cli_usage(FILE *out)
 	      "\n"
 	      "commands:\n"
 	      "  parts FILE...        list the flattened parts of each netlist\n"
-	      "  topo FILE...         find clamps, detectors, doublers, ladders, pumps\n"
+	      "  topo FILE|DIR...     find clamps, detectors, doublers, ladders, pumps\n"
 	      "                       and rectifiers; print parts, roles, node ranges\n"
 	      "  check FILE|DIR...    worst-case stresses against ratings and the\n"
 	      "                       derating profile; findings and a stress table\n"
-	      "  rules                the rules and the profile's limits\n"
+	      "  rules                the rules and the profile's limits (text or JSON)\n"
 	      "  sim FILE --node N... waveforms of nodes over one steady-state period\n"
 	      "                       (or 0 to --until T) as CSV; see headroom(1)\n"
 	      "\n"
@@ -119,7 +120,11 @@ void cli_usage(FILE *out)
 	      "\n"
 	      "colour: on a terminal only, and never when NO_COLOR is set.\n"
 	      "exit status: 0 success; 1 findings at or above --fail-on (check);\n"
-	      "2 usage error or a netlist with errors\n",
+	      "2 usage error or a netlist with errors; 3 the solver failed (sim)\n"
+	      "\n"
+	      "an unknown name (option, command, format, model, subcircuit, rule...)\n"
+	      "is reported with the closest known one when it is within 2 edits\n"
+	      "and a third of its length; see headroom(1), DIAGNOSTICS\n",
 	      out);
 }
 

@@ -267,7 +267,7 @@ static void test_profile_errors(void **state)
 	assert_false(profile_load(path, d, &p));
 	char *txt = render_headers(d);
 	assert_string_equal(txt,
-		"/tmp/headroom-test-bad.profile:4:1: error: unknown key 'cap.flim.voltage' (see docs/profiles.md) [profile]\n"
+		"/tmp/headroom-test-bad.profile:4:1: error: unknown key 'cap.flim.voltage' (see docs/profiles.md); did you mean 'cap.film.voltage'? [profile]\n"
 		"/tmp/headroom-test-bad.profile:5:23: error: 'lots' is not a non-negative number [profile]\n"
 		"/tmp/headroom-test-bad.profile:6:1: error: expected key = value [profile]\n");
 	free(txt);
