@@ -14,7 +14,7 @@ recovery_fraction = 10%          # common practice, no source: trr as a fraction
 
 cap.default.voltage = 80%        # "20 % derating = use at <= 80 % of rated" (seen in passive-components.eu, KEMET chart; docs/sources.md §1f)
 cap.alu-electrolytic.voltage = 80%   # same commercial rule (docs/sources.md §1f, M: no single standard)
-cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con; docs/sources.md §2)
+cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con guidance; docs/sources.md §2)
 cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (seen in KEMET T491 via Digi-Key forum; docs/sources.md §1f)
 cap.tantalum.reverse_v = 1.0V    # <= 10 % of UR and <= 1.0 V at 25 C (seen only in a secondary source, docs/sources.md §2)
 cap.tantalum.reverse_fraction = 10%  # same source as the line above

@@ -19,8 +19,8 @@ cap.ceramic.voltage = 50%        # as X7R (common practice, no source)
 cap.film.voltage = 70%           # common practice, no source
 cap.mica.voltage = 60%           # common practice, no source
 cap.glass.voltage = 60%          # common practice, no source
-cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (seen in Chemi-Con guide, docs/sources.md §1f) with 20 % margin (common practice)
-cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con; docs/sources.md §2)
+cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (seen in the Chemi-Con guide, docs/sources.md §1f) with 20 % margin (common practice)
+cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con guidance; docs/sources.md §2)
 cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (seen in KEMET T491; docs/sources.md §1f)
 cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (seen only in a secondary source, docs/sources.md §2)
 cap.tantalum.reverse_fraction = 3%   # same source as the line above

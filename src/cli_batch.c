@@ -61,7 +61,8 @@ static int list_dir(const char *dir, struct cli_files *here)
 			add(here, path);
 		}
 	closedir(d);
-	qsort(here->v, here->n, sizeof *here->v, by_name);
+	if (here->n > 1)
+		qsort(here->v, here->n, sizeof *here->v, by_name);
 	return 1;
 }
 

@@ -10,6 +10,7 @@
 
 #include "devval.h"
 #include "num.h"
+#include "suggest.h"
 #include "wave.h"
 
 #define DEV_MAX_PINS 64
@@ -111,10 +112,11 @@ static const struct nl_model *need_model(struct build *b,
 		m = b->s->model(b->s->ud, f);
 	if (m)
 		return m;
-	const char *near = f->kind == FIELD_ATOM && b->s->near_model ? b->s->near_model(b->s->ud, f) : NULL;
-	diag_add(b->d, DIAG_ERROR, "element", field_loc(b, f), "undefined model '%s'%s%s%s",
-		 f->kind == FIELD_ATOM ? f->text : "?", near ? "; did you mean '" : "",
-		 near ? near : "", near ? "'?" : "");
+	char hint[SUGGEST_HINT_SIZE] = "";
+	if (f->kind == FIELD_ATOM && b->s->model_hint)
+		b->s->model_hint(b->s->ud, f, hint, sizeof hint);
+	diag_add(b->d, DIAG_ERROR, "element", field_loc(b, f), "undefined model '%s'%s",
+		 f->kind == FIELD_ATOM ? f->text : "?", hint);
 	*st = DEV_ERROR;
 	return NULL;
 }

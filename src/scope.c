@@ -180,7 +180,7 @@ static void offer_keys(struct suggest *s, const struct smap *m, int models)
 			suggest_offer(s, k);
 }
 
-static const char *cb_near_model(void *ud, const struct deck_field *f)
+static void cb_model_hint(void *ud, const struct deck_field *f, char *buf, size_t n)
 {
 	const struct cb *cb = ud;
 	struct suggest s;
@@ -188,7 +188,7 @@ static const char *cb_near_model(void *ud, const struct deck_field *f)
 	for (const struct subdef *d = cb->sc->def; d; d = d->parent)
 		offer_keys(&s, d->models, 1);
 	offer_keys(&s, cb->el->top.models, 1);
-	return suggest_best(&s);
+	suggest_hint(&s, buf, n);
 }
 
 int scope_eval_global(struct elab *el, const struct expr *e,
@@ -416,7 +416,7 @@ static struct dev_scope dev_scope_of(struct cb *cb)
 	ds.eval = cb_eval;
 	ds.node = cb_node;
 	ds.model = cb_model;
-	ds.near_model = cb_near_model;
+	ds.model_hint = cb_model_hint;
 	ds.atom_expr = cb_atom_expr;
 	ds.prefix = cb->sc->prefix;
 	ds.defer_undefined = cb->first_pass;
