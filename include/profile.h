@@ -26,6 +26,9 @@ struct profile {
 	size_t n;
 };
 
+/* The profiles shipped in rules/, by name; NULL-terminated. */
+extern const char *const profile_shipped[];
+
 /* Capacitor and diode kinds of docs/design.md §4; NULL-terminated. */
 extern const char *const profile_cap_kinds[];
 extern const char *const profile_diode_kinds[];

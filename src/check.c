@@ -10,6 +10,7 @@
 #include <string.h>
 
 #include "defects.h"
+#include "suggest.h"
 
 const char check_caution[] =
 	"caution: this design involves voltages above the hazard level. Stored charge "
@@ -33,8 +34,14 @@ static int file_profile(const struct check_opts *o, struct check_run *r)
 			return 0;
 		if (!profile_find(an->target, o->argv0, path, sizeof path) ||
 		    !profile_load(path, r->d, own)) {
+			struct suggest s;
+			char hint[SUGGEST_HINT_SIZE];
+			suggest_init(&s, an->target, strlen(an->target));
+			for (size_t k = 0; profile_shipped[k]; k++)
+				suggest_offer(&s, profile_shipped[k]);
 			diag_add(r->d, DIAG_ERROR, "annotation", an->loc,
-				 "*@profile names '%s', which cannot be loaded", an->target);
+				 "*@profile names '%s', which cannot be loaded%s", an->target,
+				 suggest_hint(&s, hint, sizeof hint));
 			r->status = CHECK_ERRORS;
 		} else {
 			r->profile = own;

@@ -31,12 +31,14 @@ struct batch {
 
 int cli_load_profile(const struct cli *c, struct diag_sink *d, struct profile *p)
 {
-	static const char *const shipped[] = {"basic", "industrial", "flight"};
 	char path[1024], hint[SUGGEST_HINT_SIZE];
 	const char *name = c->profile ? c->profile : "industrial";
+	size_t n = 0;
+	while (profile_shipped[n])
+		n++;
 	if (!profile_find(name, c->argv0, path, sizeof path)) {
 		fprintf(stderr, "headroom: no profile '%s' (basic, industrial, flight, or a file)%s\n", name,
-			cli_hint(name, shipped, sizeof shipped / sizeof shipped[0], hint, sizeof hint));
+			cli_hint(name, profile_shipped, n, hint, sizeof hint));
 		return 0;
 	}
 	return profile_load(path, d, p);

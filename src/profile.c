@@ -17,6 +17,8 @@
 #include "num.h"
 #include "suggest.h"
 
+const char *const profile_shipped[] = {"basic", "industrial", "flight", NULL};
+
 /* Both lists also appear in docs/profiles.md [kinds-list]. */
 const char *const profile_cap_kinds[] = {
 	"ceramic-c0g", "ceramic-x7r", "ceramic", "film", "mica", "glass",
