@@ -156,7 +156,7 @@ install: $(BUILD)/headroom
 	install -m 755 $(BUILD)/headroom $(DESTDIR)$(PREFIX)/bin/headroom
 	install -m 644 rules/*.profile $(DESTDIR)$(PREFIX)/share/headroom/rules/
 	install -m 644 docs/headroom.1 $(DESTDIR)$(PREFIX)/share/man/man1/headroom.1
-	install -m 644 docs/*.md docs/report.schema.json $(DESTDIR)$(PREFIX)/share/doc/headroom/
+	install -m 644 docs/*.md docs/report.schema.json docs/rules.schema.json $(DESTDIR)$(PREFIX)/share/doc/headroom/
 	install -m 644 docs/rules/*.md $(DESTDIR)$(PREFIX)/share/doc/headroom/rules/
 
 clean:

@@ -25,6 +25,7 @@ struct annot {
 	const char *target;   /* part path or glob, with the instance prefix;
 				 profile: its name */
 	const char *rule;     /* waive: the rule id */
+	uint32_t rule_col;    /* waive: its column (loc.line is its line) */
 	struct annot_kv *kv;
 	uint32_t nkv;
 	struct diag_loc loc;

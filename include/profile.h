@@ -26,6 +26,9 @@ struct profile {
 	size_t n;
 };
 
+/* The profiles shipped in rules/, by name; NULL-terminated. */
+extern const char *const profile_shipped[];
+
 /* Capacitor and diode kinds of docs/design.md §4; NULL-terminated. */
 extern const char *const profile_cap_kinds[];
 extern const char *const profile_diode_kinds[];
@@ -76,5 +79,9 @@ double profile_hazard(const struct profile *p);
 /* A top-level value ("hazard_voltage"); NaN when missing. */
 double profile_value(const struct profile *p, const char *key,
 		     const char **note);
+
+/* The unit of a known key's value: "fraction" (a share: factors,
+ * tolerances, limits), "V" or "s". */
+const char *profile_key_unit(const char *key);
 
 #endif

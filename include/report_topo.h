@@ -11,7 +11,9 @@
 
 enum report_topo_format { RT_TEXT, RT_JSON, RT_COUNT };
 
-/* Writes one file's structures. first/last bracket the JSON file list. */
+/* Writes one file's structures. first/last bracket the JSON file list.
+ * With path NULL (and a, d NULL): a batch of no files, an empty JSON
+ * file list (nothing in text). */
 void report_topo(FILE *out, enum report_topo_format fmt, const char *path,
 		 const struct audit *a, const struct diag_sink *d, int first,
 		 int last);

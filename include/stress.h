@@ -14,7 +14,16 @@
 #include "profile.h"
 #include "rating.h"
 
-enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE };
+/* What a stress measures [stress-qty]. */
+enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE, SQ_COUNT };
+
+/* The one name of each quantity, the same in every report format (text,
+ * JSON, CSV, HTML): "voltage" (a capacitor's |V|), "reverse_voltage" (a
+ * diode's cathode minus anode), "surge_current" (the power-up surge
+ * through a diode) [stress-qty]. */
+const char *stress_qty_name(enum stress_qty q);
+/* Its unit: "V" or "A". */
+const char *stress_qty_unit(enum stress_qty q);
 
 /* Where a stress's number comes from [stress-basis]. */
 enum stress_basis {

@@ -28,6 +28,12 @@ struct waiver_file {
 struct waiver_file *waiver_load(const char *path, struct arena *ar,
 				struct diag_sink *d);
 
+/* Reports (errors in d, at the rule's column) the waivers among w[0..n)
+ * that name no rule of rules_table, with the closest rule's name when one
+ * is close (suggest.h); returns how many. Such waivers then waive
+ * nothing and are not reported as unused. */
+size_t waiver_check_rules(const struct annot *w, uint32_t n, struct diag_sink *d);
+
 /* Applies inline waivers (a->annots) and file waivers to the findings of
  * one netlist; today is "YYYY-MM-DD". Adds waiver-expired and
  * waiver-unused findings, allocated in ar. Returns 0 on out-of-memory. */

@@ -1,7 +1,8 @@
 # headroom derating profile: basic -- the least conservative of the three.
 # For commercial products where the common "use parts at 80 % of rating"
 # rule is the design standard. Every value cites its source after '#':
-# "V" seen in a source (docs/sources.md), "M" from memory, or common practice.
+# "seen in" a source, "seen only in a secondary source", "from memory" (the
+# marks of docs/sources.md), or "common practice, no source".
 name = basic
 description = commercial practice: parts at up to 80 % of their rating
 
@@ -11,16 +12,16 @@ discharge_time = 5s              # common practice, no source
 droop_limit = 10%                # common practice, no source: clamp droop per period, fraction of the swing
 recovery_fraction = 10%          # common practice, no source: trr as a fraction of the drive period
 
-cap.default.voltage = 80%        # "20 % derating = use at <= 80 % of rated" (V: passive-components.eu, KEMET chart; docs/sources.md §1f)
+cap.default.voltage = 80%        # "20 % derating = use at <= 80 % of rated" (seen in passive-components.eu, KEMET chart; docs/sources.md §1f)
 cap.alu-electrolytic.voltage = 80%   # same commercial rule (docs/sources.md §1f, M: no single standard)
-cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (V: Nippon Chemi-Con; docs/sources.md §2)
-cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (V: KEMET T491 via Digi-Key forum; docs/sources.md §1f)
-cap.tantalum.reverse_v = 1.0V    # <= 10 % of UR and <= 1.0 V at 25 C (V2: docs/sources.md §2)
+cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con guidance; docs/sources.md §2)
+cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (seen in KEMET T491 via Digi-Key forum; docs/sources.md §1f)
+cap.tantalum.reverse_v = 1.0V    # <= 10 % of UR and <= 1.0 V at 25 C (seen only in a secondary source, docs/sources.md §2)
 cap.tantalum.reverse_fraction = 10%  # same source as the line above
-cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating typical (V2: KEMET via aggregator; docs/sources.md §1f)
-cap.polymer.reverse_v = 0V       # treat as 0 V (M: docs/sources.md §2)
+cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating typical (seen only in a secondary source: KEMET via aggregator; docs/sources.md §1f)
+cap.polymer.reverse_v = 0V       # treat as 0 V (from memory, docs/sources.md §2)
 cap.supercap.voltage = 90%       # common practice, no source
 cap.supercap.reverse_v = 0V      # common practice, no source: polarised, no reverse allowance
 
-diode.default.voltage = 80%      # commercial 80 % of VRRM (M: docs/sources.md §1f)
+diode.default.voltage = 80%      # commercial 80 % of VRRM (from memory, docs/sources.md §1f)
 diode.default.surge = 100%       # common practice, no source: the datasheet IFSM as is

@@ -19,22 +19,22 @@ cap.ceramic.voltage = 50%        # as X7R (common practice, no source)
 cap.film.voltage = 70%           # common practice, no source
 cap.mica.voltage = 60%           # common practice, no source
 cap.glass.voltage = 60%          # common practice, no source
-cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (V: Chemi-Con guide, docs/sources.md §1f) with 20 % margin (common practice)
-cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (V: Nippon Chemi-Con; docs/sources.md §2)
-cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (V: KEMET T491; docs/sources.md §1f)
-cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (V2: docs/sources.md §2)
+cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (seen in the Chemi-Con guide, docs/sources.md §1f) with 20 % margin (common practice)
+cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con guidance; docs/sources.md §2)
+cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (seen in KEMET T491; docs/sources.md §1f)
+cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (seen only in a secondary source, docs/sources.md §2)
 cap.tantalum.reverse_fraction = 3%   # same source as the line above
-cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating (V2: KEMET; docs/sources.md §1f)
-cap.polymer.reverse_v = 0V       # treat as 0 V (M: docs/sources.md §2)
+cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating (seen only in a secondary source: KEMET; docs/sources.md §1f)
+cap.polymer.reverse_v = 0V       # treat as 0 V (from memory, docs/sources.md §2)
 cap.supercap.voltage = 80%       # common practice, no source
 cap.supercap.reverse_v = 0V      # common practice, no source
 
-diode.default.voltage = 75%      # SD-18 Table 1A general-purpose diode VR, normal L2 (V)
-diode.default.surge = 80%        # SD-18 Table 1A general-purpose diode IFSM, normal L2 (V)
-diode.signal.voltage = 75%       # SD-18 Table 1A general-purpose/switching diode VR, normal L2 (V)
-diode.signal.surge = 80%         # SD-18 Table 1A IFSM, normal L2 (V)
-diode.rectifier.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal L2 (V)
-diode.fast-recovery.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal L2 (V)
-diode.hv-stack.voltage = 75%     # SD-18 Table 1A power rectifier VR, normal L2 (V)
-diode.schottky.voltage = 80%     # SD-18 Table 1A Schottky/PIN VR, normal L2 (V)
+diode.default.voltage = 75%      # SD-18 Table 1A general-purpose diode VR, normal L2 (seen, docs/sources.md §1a)
+diode.default.surge = 80%        # SD-18 Table 1A general-purpose diode IFSM, normal L2 (seen, docs/sources.md §1a)
+diode.signal.voltage = 75%       # SD-18 Table 1A general-purpose/switching diode VR, normal L2 (seen, docs/sources.md §1a)
+diode.signal.surge = 80%         # SD-18 Table 1A IFSM, normal L2 (seen, docs/sources.md §1a)
+diode.rectifier.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal L2 (seen, docs/sources.md §1a)
+diode.fast-recovery.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal L2 (seen, docs/sources.md §1a)
+diode.hv-stack.voltage = 75%     # SD-18 Table 1A power rectifier VR, normal L2 (seen, docs/sources.md §1a)
+diode.schottky.voltage = 80%     # SD-18 Table 1A Schottky/PIN VR, normal L2 (seen, docs/sources.md §1a)
 diode.zener.voltage = 75%        # common practice, no source: as a general-purpose diode

@@ -21,6 +21,7 @@ num base
 utf8 base
 infile base
 smap base
+suggest base
 expr base
 deck front
 parse front
@@ -58,6 +59,7 @@ simbound check
 defects check
 report_parts reports
 report_topo reports
+report_rules reports
 report_check reports
 report_csv reports
 report_html reports

@@ -218,6 +218,7 @@ static int parse_one(const struct elab_annot *a, struct arena *ar,
 			return 0;
 		}
 		out->rule = lower_copy(ar, w, n);
+		out->rule_col = a->loc.col + (uint32_t)(w - a->text) + 2; /* after "*@" */
 	}
 	w = word(&l, &n);
 	if (!n || l.s[l.i] == '=') {

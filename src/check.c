@@ -13,6 +13,7 @@
 #include "defects.h"
 #include "discharge.h"
 #include "num.h"
+#include "suggest.h"
 
 const char check_caution[] =
 	"caution: this design involves voltages above the hazard level. Stored charge "
@@ -54,8 +55,14 @@ static int file_profile(const struct check_opts *o, struct check_run *r)
 			return 0;
 		if (!profile_find(an->target, o->argv0, path, sizeof path) ||
 		    !profile_load(path, r->d, own)) {
+			struct suggest s;
+			char hint[SUGGEST_HINT_SIZE];
+			suggest_init(&s, an->target, strlen(an->target));
+			for (size_t k = 0; profile_shipped[k]; k++)
+				suggest_offer(&s, profile_shipped[k]);
 			diag_add(r->d, DIAG_ERROR, "annotation", an->loc,
-				 "*@profile names '%s', which cannot be loaded", an->target);
+				 "*@profile names '%s', which cannot be loaded%s", an->target,
+				 suggest_hint(&s, hint, sizeof hint));
 			r->status = CHECK_ERRORS;
 		} else {
 			r->profile = own;
@@ -116,6 +123,8 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 	r->status = st == AUDIT_OK ? CHECK_OK : st == AUDIT_OOM ? CHECK_OOM : CHECK_ERRORS;
 	if (r->status == CHECK_OK && !o->profile_fixed && !file_profile(o, r))
 		r->status = CHECK_OOM;
+	if (r->status == CHECK_OK)
+		waiver_check_rules(r->a.annots, r->a.nannots, r->d);
 	if (r->status == CHECK_OK && !judge(o, r))
 		r->status = CHECK_OOM;
 	if (r->status == CHECK_OK)

@@ -32,6 +32,23 @@ struct cli {
  * problem and returns 0 on a usage error. */
 int cli_parse(struct cli *c, int argc, char **argv);
 
+/* "; did you mean 'X'?" when one of names[0..n) is close to word by the
+ * rule of suggest.h, else ""; written into buf (SUGGEST_HINT_SIZE). */
+const char *cli_hint(const char *word, const char *const *names, size_t n, char *buf,
+		     size_t size);
+
+/* The --format given, as an index into names[0..n) (0, the first, when
+ * none is given). Prints "CMD writes ..., not 'x'" with a "did you mean"
+ * and returns 0 for a name not in the list. */
+int cli_format(const struct cli *c, const char *const *names, size_t n, size_t *index);
+
+/* Finds and loads the profile --profile names (default industrial);
+ * prints why and returns 0 when there is none or it has errors (left in
+ * d). */
+struct profile;
+struct diag_sink;
+int cli_load_profile(const struct cli *c, struct diag_sink *d, struct profile *p);
+
 /* The --help text, written from the option table. */
 void cli_usage(FILE *out);
 

@@ -8,6 +8,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+/* Also in the warning of cli_files_expand and docs/headroom.1 [netlist-ext]. */
 static int netlist_name(const char *name)
 {
 	static const char *const ext[] = {".cir", ".sp", ".spice", ".net", ".ckt", ".cdl"};
@@ -60,7 +61,8 @@ static int list_dir(const char *dir, struct cli_files *here)
 			add(here, path);
 		}
 	closedir(d);
-	qsort(here->v, here->n, sizeof *here->v, by_name);
+	if (here->n > 1)
+		qsort(here->v, here->n, sizeof *here->v, by_name);
 	return 1;
 }
 
@@ -87,9 +89,17 @@ int cli_files_expand(struct cli_files *l, const char *const *paths, size_t n)
 {
 	for (size_t i = 0; i < n; i++) {
 		struct stat st;
+		size_t before = l->n;
 		if (stat(paths[i], &st) == 0 && S_ISDIR(st.st_mode)) {
-			if (!scan(paths[i], l, 0))
+			if (!scan(paths[i], l, 0)) {
 				fprintf(stderr, "%s: error: cannot read the folder\n", paths[i]);
+				l->unreadable++;
+			} else if (l->n == before) {
+				/* [netlist-ext] */
+				fprintf(stderr, "%s: warning: no netlists in this folder (names ending "
+						".cir, .sp, .spice, .net, .ckt or .cdl)\n",
+					paths[i]);
+			}
 		} else if (!add(l, paths[i])) {
 			return 0;
 		}

@@ -12,11 +12,12 @@
 struct cli_files {
 	char **v;
 	size_t n, cap;
+	size_t unreadable;       /* folders that could not be read */
 };
 
 /* Appends the files given and the netlists under the folders given.
- * Returns 0 on out-of-memory; an unreadable folder is reported and
- * skipped. */
+ * Returns 0 on out-of-memory; an unreadable folder is reported, counted
+ * in unreadable and skipped; a folder with no netlists gets a warning. */
 int cli_files_expand(struct cli_files *l, const char *const *paths, size_t n);
 void cli_files_free(struct cli_files *l);
 

@@ -16,6 +16,7 @@
 #include "cli_out.h"
 #include "num.h"
 #include "report_check.h"
+#include "suggest.h"
 
 /* What every file's check shares: read-only once the batch starts. */
 struct batch {
@@ -30,12 +31,16 @@ struct batch {
 	char paths_from[1024];         /* --write-baseline: where its paths start */
 };
 
-static int load_profile(const struct cli *c, struct diag_sink *d, struct profile *p)
+int cli_load_profile(const struct cli *c, struct diag_sink *d, struct profile *p)
 {
-	char path[1024];
+	char path[1024], hint[SUGGEST_HINT_SIZE];
 	const char *name = c->profile ? c->profile : "industrial";
+	size_t n = 0;
+	while (profile_shipped[n])
+		n++;
 	if (!profile_find(name, c->argv0, path, sizeof path)) {
-		fprintf(stderr, "headroom: no profile '%s' (basic, industrial, flight, or a file)\n", name);
+		fprintf(stderr, "headroom: no profile '%s' (basic, industrial, flight, or a file)%s\n", name,
+			cli_hint(name, profile_shipped, n, hint, sizeof hint));
 		return 0;
 	}
 	return profile_load(path, d, p);
@@ -147,21 +152,15 @@ static void today_of(char *buf, size_t n, const char *given)
 
 static int choose_format(const struct cli *c, enum report_check_format *fmt)
 {
-	static const struct {
-		const char *name;
-		enum report_check_format fmt;
-	} fmts[] = {{"text", RC_TEXT}, {"json", RC_JSON}, {"csv", RC_CSV},
-		    {"junit", RC_JUNIT}, {"sarif", RC_SARIF}, {"html", RC_HTML}};
-	*fmt = RC_TEXT;
-	for (size_t i = 0; c->fmt_name && i < sizeof fmts / sizeof fmts[0]; i++)
-		if (strcmp(c->fmt_name, fmts[i].name) == 0) {
-			*fmt = fmts[i].fmt;
-			return 1;
-		}
-	if (!c->fmt_name)
-		return 1;
-	fprintf(stderr, "headroom: check writes text, json, csv, junit, sarif or html, not '%s'\n", c->fmt_name);
-	return 0;
+	static const char *const names[] = {"text", "json", "csv", "junit", "sarif", "html"};
+	static const enum report_check_format fmts[] = {RC_TEXT, RC_JSON, RC_CSV,
+							RC_JUNIT, RC_SARIF, RC_HTML};
+	_Static_assert(sizeof names / sizeof names[0] == sizeof fmts / sizeof fmts[0], "one per format");
+	size_t i;
+	if (!cli_format(c, names, sizeof names / sizeof names[0], &i))
+		return 0;
+	*fmt = fmts[i];
+	return 1;
 }
 
 /* Loads what the batch shares; 0 on a usage error (reported). */
@@ -169,7 +168,7 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 		   struct arena *ar, struct diag_sink *d)
 {
 	struct check_opts *o = &b->o;
-	if (!choose_format(c, &b->fmt) || !load_profile(c, d, p))
+	if (!choose_format(c, &b->fmt) || !cli_load_profile(c, d, p))
 		return 0;
 	if (c->waivers && !(o->waivers = waiver_load(c->waivers, ar, d)))
 		return 0;
@@ -273,6 +272,8 @@ int cli_check(const struct cli *c)
 		rc = run_files(&b, &files, &out, &json, ar, d);
 	else if (out.f)
 		cli_out_close(&out, 0);
+	if (files.unreadable)
+		rc = EXIT_USAGE; /* a folder given was not checked */
 	if (d)
 		diag_render(d, UINT32_MAX, stderr);
 	cli_files_free(&files);

@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "diag.h"
+#include "suggest.h"
 
 enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_FAIL };
 
@@ -35,7 +36,8 @@ static const struct opt_def opts[] = {
 	{"--format", NULL, STR(fmt_name),
 	 "--format FMT         parts: text (default), csv, json, count\n"
 	 "topo: text (default), json, count\n"
-	 "check: text (default), json, csv, junit, sarif,\nhtml"},
+	 "check: text (default), json, csv, junit, sarif,\nhtml\n"
+	 "rules: text (default), json"},
 	{"--profile", NULL, STR(profile),
 	 "--profile NAME|FILE  derating profile: basic, industrial (default),\n"
 	 "flight, or a profile file"},
@@ -95,11 +97,11 @@ void cli_usage(FILE *out)
 	      "\n"
 	      "commands:\n"
 	      "  parts FILE...        list the flattened parts of each netlist\n"
-	      "  topo FILE...         find clamps, detectors, doublers, ladders, pumps\n"
+	      "  topo FILE|DIR...     find clamps, detectors, doublers, ladders, pumps\n"
 	      "                       and rectifiers; print parts, roles, node ranges\n"
 	      "  check FILE|DIR...    worst-case stresses against ratings and the\n"
 	      "                       derating profile; findings and a stress table\n"
-	      "  rules                the rules and the profile's limits\n"
+	      "  rules                the rules and the profile's limits (text or JSON)\n"
 	      "  sim FILE --node N... waveforms of nodes over one steady-state period\n"
 	      "                       (or 0 to --until T) as CSV; see headroom(1)\n"
 	      "\n"
@@ -118,8 +120,60 @@ void cli_usage(FILE *out)
 	      "\n"
 	      "colour: on a terminal only, and never when NO_COLOR is set.\n"
 	      "exit status: 0 success; 1 findings at or above --fail-on (check);\n"
-	      "2 usage error or a netlist with errors\n",
+	      "2 usage error or a netlist with errors; 3 the solver failed (sim)\n"
+	      "\n"
+	      "an unknown name (option, command, format, model, subcircuit, rule...)\n"
+	      "is reported with the closest known one when it is within 2 edits\n"
+	      "and a third of its length; see headroom(1), DIAGNOSTICS\n",
 	      out);
+}
+
+const char *cli_hint(const char *word, const char *const *names, size_t n, char *buf,
+		     size_t size)
+{
+	struct suggest s;
+	suggest_init(&s, word, strlen(word));
+	for (size_t i = 0; i < n; i++)
+		suggest_offer(&s, names[i]);
+	return suggest_hint(&s, buf, size);
+}
+
+int cli_format(const struct cli *c, const char *const *names, size_t n, size_t *index)
+{
+	char hint[SUGGEST_HINT_SIZE];
+	*index = 0;
+	for (size_t i = 0; c->fmt_name && i < n; i++)
+		if (strcmp(c->fmt_name, names[i]) == 0)
+			*index = i;
+	if (!c->fmt_name || strcmp(c->fmt_name, names[*index]) == 0)
+		return 1;
+	fprintf(stderr, "headroom: %s writes ", c->cmd);
+	for (size_t i = 0; i < n; i++)
+		fprintf(stderr, "%s%s", names[i], i + 2 < n ? ", " : i + 2 == n ? " or " : "");
+	fprintf(stderr, ", not '%s'%s\n", c->fmt_name, cli_hint(c->fmt_name, names, n, hint, sizeof hint));
+	return 0;
+}
+
+/* An unknown option: says so, with the closest option's name when one is
+ * close (the name part of --opt=value). */
+static void unknown_option(const char *a)
+{
+	char name[SUGGEST_MAX_LEN + 1], hint[SUGGEST_HINT_SIZE];
+	size_t n = a[0] == '-' && a[1] == '-' ? strcspn(a, "=") : strlen(a);
+	struct suggest s;
+	snprintf(name, sizeof name, "%.*s", (int)n, a);
+	suggest_init(&s, name, strlen(name));
+	for (size_t i = 0; i < sizeof opts / sizeof opts[0]; i++) {
+		suggest_offer(&s, opts[i].name);
+		if (opts[i].alias)
+			suggest_offer(&s, opts[i].alias);
+	}
+	suggest_offer(&s, "--help");
+	suggest_offer(&s, "--version");
+	if (suggest_best(&s))
+		fprintf(stderr, "headroom: unknown option '%s'%s\n", name, suggest_hint(&s, hint, sizeof hint));
+	else
+		fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", name);
 }
 
 /* The option named by name[0..n). */
@@ -175,7 +229,13 @@ static int set_fail_on(struct cli *c, const char *val)
 			c->fail_on = tab[i].level;
 			return 1;
 		}
-	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'\n", val);
+	struct suggest s;
+	char hint[SUGGEST_HINT_SIZE];
+	suggest_init(&s, val, strlen(val));
+	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
+		suggest_offer(&s, tab[i].name);
+	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'%s\n", val,
+		suggest_hint(&s, hint, sizeof hint));
 	return 0;
 }
 
@@ -253,7 +313,7 @@ int cli_parse(struct cli *c, int argc, char **argv)
 				return 0;
 			i++;
 		} else if (a[0] == '-' && a[1] != '\0') {
-			fprintf(stderr, "headroom: unknown option '%s' (see --help)\n", a);
+			unknown_option(a);
 			return 0;
 		} else if (!c->cmd) {
 			c->cmd = a;

@@ -1,7 +1,9 @@
 /* cli_out.c: replace-on-success output files (cli_out.h). */
+#define _GNU_SOURCE /* O_TMPFILE, linkat's AT_SYMLINK_FOLLOW */
 #include "cli_out.h"
 
 #include <errno.h>
+#include <fcntl.h>
 #include <limits.h>
 #include <stdlib.h>
 #include <string.h>
@@ -51,6 +53,48 @@ static void set_mode(int fd, const char *target)
 	fchmod(fd, mode);
 }
 
+/* An unnamed file in the folder of o->target (O_TMPFILE), or -1 where the
+ * system has none or /proc is missing (it gives the file its name). */
+static int open_unnamed(struct cli_out *o)
+{
+#ifdef O_TMPFILE
+	const char *slash = strrchr(o->target, '/');
+	char *dir = slash ? strndup(o->target, (size_t)(slash - o->target) + 1) : strdup(".");
+	int fd = -1;
+	if (dir && access("/proc/self/fd", X_OK) == 0)
+		fd = open(dir, O_TMPFILE | O_WRONLY | O_CLOEXEC, 0600);
+	free(dir);
+	return fd;
+#else
+	(void)o;
+	return -1;
+#endif
+}
+
+/* Gives the unnamed file a temporary name beside the target, to be
+ * renamed over it; 0 (printed) on failure. */
+static int name_unnamed(struct cli_out *o)
+{
+	char proc[64];
+	size_t n = strlen(o->target) + 48;
+	if (fflush(o->f) != 0 || !(o->tmp = malloc(n))) {
+		fprintf(stderr, "headroom: cannot write '%s': %s\n", o->path, strerror(errno));
+		return 0;
+	}
+	snprintf(proc, sizeof proc, "/proc/self/fd/%d", fileno(o->f));
+	for (int k = 0; k < 100; k++) {
+		snprintf(o->tmp, n, "%s.tmp-%ld-%d", o->target, (long)getpid(), k);
+		if (linkat(AT_FDCWD, proc, AT_FDCWD, o->tmp, AT_SYMLINK_FOLLOW) == 0)
+			return 1;
+		if (errno != EEXIST)
+			break;
+	}
+	fprintf(stderr, "headroom: cannot write '%s': %s\n", o->path, strerror(errno));
+	free(o->tmp);
+	o->tmp = NULL;
+	return 0;
+}
+
 int cli_out_open(struct cli_out *o, const char *path)
 {
 	struct stat st;
@@ -63,6 +107,16 @@ int cli_out_open(struct cli_out *o, const char *path)
 		return o->f != NULL;
 	}
 	o->target = resolve(path);
+	int ufd = o->target ? open_unnamed(o) : -1;
+	if (ufd >= 0) {
+		set_mode(ufd, o->target);
+		o->f = fdopen(ufd, "w");
+		if (o->f) {
+			o->unnamed = 1;
+			return 1;
+		}
+		close(ufd);
+	}
 	o->tmp = o->target ? malloc(strlen(o->target) + 16) : NULL;
 	if (!o->tmp) {
 		fprintf(stderr, "headroom: out of memory\n");
@@ -86,12 +140,13 @@ int cli_out_open(struct cli_out *o, const char *path)
 
 int cli_out_close(struct cli_out *o, int ok)
 {
-	int good = 1;
+	int good = 1, named = !(o->f && o->unnamed && ok) || name_unnamed(o);
 	if (o->f) {
 		good = !(ferror(o->f) | fclose(o->f));
 		if (!good)
 			fprintf(stderr, "headroom: cannot write '%s'\n", o->path);
 	}
+	good = good && named;
 	if (o->tmp && (!ok || !good)) {
 		remove(o->tmp);
 	} else if (o->tmp && rename(o->tmp, o->target) != 0) {

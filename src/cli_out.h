@@ -1,6 +1,8 @@
 /* cli_out.h: output files of the program (reports, baselines, sim CSV).
  * A regular file is written beside its final name and renamed into place
  * only when the run succeeds, so a failed run leaves an old report alone;
+ * where the system allows (Linux O_TMPFILE), the new file has no name
+ * until then, so a run that is killed leaves nothing behind either;
  * a symbolic link is followed and its target replaced the same way; a
  * target that is not a regular file (a device such as /dev/null, a FIFO)
  * is written directly and never replaced. */
@@ -13,7 +15,9 @@ struct cli_out {
 	FILE *f;             /* write here */
 	const char *path;    /* as given */
 	char *target;        /* the file replaced (link resolved), malloc'd */
-	char *tmp;           /* temporary name, malloc'd; NULL when direct */
+	char *tmp;           /* temporary name, malloc'd; NULL when direct
+				or (until closing) unnamed */
+	int unnamed;         /* an O_TMPFILE, given a name only at close */
 };
 
 /* Opens path for writing. Returns 0 and prints why on failure. */

@@ -8,13 +8,14 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "cli.h"
 #include "cli_out.h"
 #include "diag.h"
 #include "elab.h"
 #include "num.h"
 #include "simrun.h"
+#include "suggest.h"
 
-#define EXIT_USAGE 2
 #define EXIT_SOLVER 3
 #define CLI_SIM_MAX_NODES 64
 
@@ -34,6 +35,19 @@ static int number(const char *opt, const char *val, double *out)
 		return 0;
 	}
 	return 1;
+}
+
+/* An option sim does not know, or -o without its file. */
+static void unknown(const char *a)
+{
+	static const char *const opts[] = {"--node", "-o", "--until", "--from", "--max-step",
+					   "--max-periods"};
+	char hint[SUGGEST_HINT_SIZE];
+	if (strcmp(a, "-o") == 0)
+		fprintf(stderr, "headroom: sim: -o needs a file name\n");
+	else
+		fprintf(stderr, "headroom: sim: unknown option '%s'%s\n", a,
+			cli_hint(a, opts, sizeof opts / sizeof opts[0], hint, sizeof hint));
 }
 
 static int one_option(struct sim_cli *c, const char *a, const char *val)
@@ -61,7 +75,7 @@ static int one_option(struct sim_cli *c, const char *a, const char *val)
 		else
 			c->o.max_periods = x > 1e6 ? 1000000u : (unsigned)x;
 	} else {
-		fprintf(stderr, "headroom: sim: unknown option or missing value '%s'\n", a);
+		unknown(a);
 		return 0;
 	}
 	return 1;

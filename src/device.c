@@ -10,6 +10,7 @@
 
 #include "devval.h"
 #include "num.h"
+#include "suggest.h"
 #include "wave.h"
 
 #define DEV_MAX_PINS 64
@@ -109,10 +110,15 @@ static const struct nl_model *need_model(struct build *b,
 	const struct nl_model *m = NULL;
 	if (f->kind == FIELD_ATOM)
 		m = b->s->model(b->s->ud, f);
-	if (!m)
-		*st = err_at(b, f, "undefined model '%s'",
-			     f->kind == FIELD_ATOM ? f->text : "?");
-	return m;
+	if (m)
+		return m;
+	char hint[SUGGEST_HINT_SIZE] = "";
+	if (f->kind == FIELD_ATOM && b->s->model_hint)
+		b->s->model_hint(b->s->ud, f, hint, sizeof hint);
+	diag_add(b->d, DIAG_ERROR, "element", field_loc(b, f), "undefined model '%s'%s",
+		 f->kind == FIELD_ATOM ? f->text : "?", hint);
+	*st = DEV_ERROR;
+	return NULL;
 }
 
 static void set_mult(struct build *b, double m)

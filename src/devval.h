@@ -21,6 +21,10 @@ struct dev_scope {
 	uint32_t (*node)(void *ud, const char *name, size_t n);
 	/* Model visible here named by atom f, or NULL. */
 	const struct nl_model *(*model)(void *ud, const struct deck_field *f);
+	/* For an undefined model named by atom f: writes "; did you mean
+	 * 'X'?" into buf[0..n) for a defined model visible here whose name is
+	 * close (suggest.h), else "". May be NULL itself. */
+	void (*model_hint)(void *ud, const struct deck_field *f, char *buf, size_t n);
 	/* Parses an atom written without braces as an expression ("20e3/t");
 	 * NULL on a syntax error (reported) or out-of-memory (*oom set). */
 	struct expr *(*atom_expr)(void *ud, const struct deck_field *f, int *oom);

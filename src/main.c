@@ -12,33 +12,28 @@
 #include "arena.h"
 #include "audit.h"
 #include "cli.h"
+#include "cli_batch.h"
 #include "cli_sim.h"
 #include "diag.h"
 #include "elab.h"
 #include "profile.h"
 #include "report_parts.h"
+#include "report_rules.h"
 #include "report_topo.h"
-#include "rules.h"
+#include "suggest.h"
 #include "version.h"
 
 /* parts: text, csv, json, count. */
 static int parts_format(const struct cli *c, enum report_parts_format *fmt)
 {
-	static const struct {
-		const char *name;
-		enum report_parts_format fmt;
-	} tab[] = {{"text", RP_TEXT}, {"csv", RP_CSV}, {"json", RP_JSON},
-		   {"count", RP_COUNT}};
-	*fmt = RP_TEXT;
-	if (!c->fmt_name)
-		return 1;
-	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
-		if (strcmp(c->fmt_name, tab[i].name) == 0) {
-			*fmt = tab[i].fmt;
-			return 1;
-		}
-	fprintf(stderr, "headroom: unknown format '%s' (text, csv, json, count)\n", c->fmt_name);
-	return 0;
+	static const char *const names[] = {"text", "csv", "json", "count"};
+	static const enum report_parts_format fmts[] = {RP_TEXT, RP_CSV, RP_JSON, RP_COUNT};
+	_Static_assert(sizeof names / sizeof names[0] == sizeof fmts / sizeof fmts[0], "one per format");
+	size_t i;
+	if (!cli_format(c, names, sizeof names / sizeof names[0], &i))
+		return 0;
+	*fmt = fmts[i];
+	return 1;
 }
 
 /* headroom parts: elaborate each file, print its parts, report errors. */
@@ -75,74 +70,80 @@ static int run_parts(const struct cli *c)
 
 static int topo_format(const struct cli *c, enum report_topo_format *fmt)
 {
-	*fmt = RT_TEXT;
-	if (c->fmt_name && strcmp(c->fmt_name, "json") == 0)
-		*fmt = RT_JSON;
-	else if (c->fmt_name && strcmp(c->fmt_name, "count") == 0)
-		*fmt = RT_COUNT;
-	else if (c->fmt_name && strcmp(c->fmt_name, "text") != 0) {
-		fprintf(stderr, "headroom: topo writes text, json or count, not '%s'\n", c->fmt_name);
+	static const char *const names[] = {"text", "json", "count"};
+	static const enum report_topo_format fmts[] = {RT_TEXT, RT_JSON, RT_COUNT};
+	_Static_assert(sizeof names / sizeof names[0] == sizeof fmts / sizeof fmts[0], "one per format");
+	size_t i;
+	if (!cli_format(c, names, sizeof names / sizeof names[0], &i))
 		return 0;
-	}
+	*fmt = fmts[i];
 	return 1;
 }
 
-/* headroom topo: the structures of each file. */
-static int run_topo(const struct cli *c)
+/* One file of headroom topo; returns its exit-status part. */
+static int topo_one(const struct cli *c, enum report_topo_format fmt, const char *path,
+		    int first, int last)
 {
 	struct hr_alloc hook = hr_alloc_default();
+	struct arena *ar = arena_create(&hook);
+	struct diag_sink *d = ar ? diag_create(ar, c->max_errors) : NULL;
+	struct audit a;
+	struct audit_opts o = {c->eo, c->source_tol};
+	enum audit_status st = d ? audit_file(path, &o, &hook, d, &a) : AUDIT_OOM;
+	if (st == AUDIT_OOM)
+		fprintf(stderr, "%s: error: out of memory\n", path);
+	else
+		report_topo(stdout, fmt, path, &a, d, first, last);
+	if (d)
+		diag_render(d, UINT32_MAX, stderr);
+	if (d)
+		audit_free(&a);
+	diag_destroy(d);
+	arena_destroy(ar);
+	return st == AUDIT_OK ? 0 : EXIT_USAGE;
+}
+
+/* headroom topo: the structures of each file; a folder stands for the
+ * netlists under it, in name order (as for check). */
+static int run_topo(const struct cli *c)
+{
 	enum report_topo_format fmt;
+	struct cli_files files = {0};
 	int status = 0;
 	if (!topo_format(c, &fmt))
 		return EXIT_USAGE;
-	for (int i = 0; i < c->nfiles; i++) {
-		struct arena *ar = arena_create(&hook);
-		struct diag_sink *d = ar ? diag_create(ar, c->max_errors) : NULL;
-		struct audit a;
-		struct audit_opts o = {c->eo, c->source_tol};
-		enum audit_status st = d ? audit_file(c->files[i], &o, &hook, d, &a) : AUDIT_OOM;
-		if (st == AUDIT_OOM)
-			fprintf(stderr, "%s: error: out of memory\n", c->files[i]);
-		else
-			report_topo(stdout, fmt, c->files[i], &a, d, i == 0, i + 1 == c->nfiles);
-		if (d)
-			diag_render(d, UINT32_MAX, stderr);
-		if (st != AUDIT_OK)
-			status = EXIT_USAGE;
-		if (d)
-			audit_free(&a);
-		diag_destroy(d);
-		arena_destroy(ar);
+	if (!cli_files_expand(&files, c->files, (size_t)c->nfiles)) {
+		fprintf(stderr, "headroom: out of memory\n");
+		cli_files_free(&files);
+		return EXIT_USAGE;
 	}
+	if (files.unreadable)
+		status = EXIT_USAGE;
+	for (size_t i = 0; i < files.n; i++)
+		if (topo_one(c, fmt, files.v[i], i == 0, i + 1 == files.n))
+			status = EXIT_USAGE;
+	if (files.n == 0)
+		report_topo(stdout, fmt, NULL, NULL, NULL, 1, 1);
+	cli_files_free(&files);
 	return status;
 }
 
 /* headroom rules: every rule, then the profile's limits with sources. */
 static int run_rules(const struct cli *c)
 {
+	static const char *const names[] = {"text", "json"};
+	static const enum report_rules_format fmts[] = {RR_TEXT, RR_JSON};
+	_Static_assert(sizeof names / sizeof names[0] == sizeof fmts / sizeof fmts[0], "one per format");
 	struct hr_alloc hook = hr_alloc_default();
 	struct arena *ar = arena_create(&hook);
 	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
 	struct profile *p = malloc(sizeof *p);
-	char path[1024];
-	const char *name = c->profile ? c->profile : "industrial";
+	size_t f;
 	int rc = EXIT_USAGE;
-	if (!profile_find(name, c->argv0, path, sizeof path))
-		fprintf(stderr, "headroom: no profile '%s' (basic, industrial, flight, or a file)\n", name);
-	else if (d && p && profile_load(path, d, p)) {
-		printf("rules:\n");
-		for (size_t i = 0; i < rules_count; i++)
-			printf("  %-18s %-8s %s\n", rules_table[i].id,
-			       diag_severity_name(rules_table[i].severity), rules_table[i].summary);
-		printf("\nprofile %s (%s): %s\n", p->name, p->path, p->description);
-		struct profile_status st;
-		if (profile_draft(p, &st))
-			printf("  draft: of %zu values, %zu marked from memory, %zu citing no source (the first: %s, line %u)\n",
-			       st.values, st.from_memory, st.unsourced, st.first, st.first_line);
-		else
-			printf("  sourced: each of its %zu values cites a source or says common practice\n", st.values);
-		for (size_t i = 0; i < p->n; i++)
-			printf("  %-32s %-10g %s\n", p->e[i].key, p->e[i].value, p->e[i].note);
+	if (!d || !p)
+		fprintf(stderr, "headroom: out of memory\n");
+	else if (cli_format(c, names, sizeof names / sizeof names[0], &f) && cli_load_profile(c, d, p)) {
+		report_rules(stdout, fmts[f], p);
 		rc = 0;
 	}
 	if (d)
@@ -189,7 +190,12 @@ static int dispatch(const struct cli *c)
 		return run_topo(c);
 	if (strcmp(c->cmd, "check") == 0)
 		return cli_check(c);
-	fprintf(stderr, "headroom: unknown command '%s' (see --help)\n", c->cmd);
+	static const char *const cmds[] = {"parts", "topo", "check", "rules", "sim"};
+	char hint[SUGGEST_HINT_SIZE];
+	if (*cli_hint(c->cmd, cmds, sizeof cmds / sizeof cmds[0], hint, sizeof hint))
+		fprintf(stderr, "headroom: unknown command '%s'%s\n", c->cmd, hint);
+	else
+		fprintf(stderr, "headroom: unknown command '%s' (see --help)\n", c->cmd);
 	return EXIT_USAGE;
 }
 

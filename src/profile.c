@@ -15,6 +15,9 @@
 #include <unistd.h>
 
 #include "num.h"
+#include "suggest.h"
+
+const char *const profile_shipped[] = {"basic", "industrial", "flight", NULL};
 
 /* Both lists also appear in docs/profiles.md [kinds-list]. */
 const char *const profile_cap_kinds[] = {
@@ -64,6 +67,32 @@ static int key_known(const char *k)
 	return 0;
 }
 
+/* Offers every key of the form prefix.<kind>.<field>. */
+static void offer_class(struct suggest *s, const char *prefix, const char *const *kinds,
+			const char *const *fields)
+{
+	char k[96];
+	for (int i = 0; kinds[i]; i++)
+		for (int j = 0; fields[j]; j++) {
+			snprintf(k, sizeof k, "%s.%s.%s", prefix, kinds[i], fields[j]);
+			suggest_offer(s, k);
+		}
+}
+
+/* "; did you mean '...'?" for the known key closest to key, or "". */
+static const char *near_key(const char *key, char *buf, size_t n)
+{
+	struct suggest s;
+	suggest_init(&s, key, strlen(key));
+	suggest_offer(&s, "name");
+	suggest_offer(&s, "description");
+	for (int i = 0; top_keys[i]; i++)
+		suggest_offer(&s, top_keys[i]);
+	offer_class(&s, "cap", profile_cap_kinds, cap_fields);
+	offer_class(&s, "diode", profile_diode_kinds, diode_fields);
+	return suggest_hint(&s, buf, n);
+}
+
 static void trim(char *s)
 {
 	size_t n = strlen(s);
@@ -109,6 +138,15 @@ static int is_fraction(const char *key)
 	       strcmp(key, "droop_limit") == 0 || strcmp(key, "recovery_fraction") == 0;
 }
 
+const char *profile_key_unit(const char *key)
+{
+	if (is_fraction(key))
+		return "fraction";
+	if (strcmp(key, "hazard_charge") == 0)
+		return "C";
+	return strcmp(key, "discharge_time") == 0 ? "s" : "V";
+}
+
 static int number(const char *v, double *out)
 {
 	size_t n = strlen(v);
@@ -151,7 +189,10 @@ static void entry(struct reader *r, char *line)
 	const char *vat = eq + 1 + strspn(eq + 1, " \t");
 	double v;
 	if (!key_known(key)) {
-		fail(r, line, line + strspn(line, " \t"), "unknown key '%s' (see docs/profiles.md)", key);
+		char msg[sizeof key + SUGGEST_HINT_SIZE + 32], hint[SUGGEST_HINT_SIZE];
+		snprintf(msg, sizeof msg, "unknown key '%s' (see docs/profiles.md)%s", key,
+			 near_key(key, hint, sizeof hint));
+		fail(r, line, line + strspn(line, " \t"), "%s", msg);
 	} else if (!number(val, &v) || v < 0) {
 		fail(r, line, vat, "'%s' is not a non-negative number", val);
 	} else if (is_fraction(key) && v > 1) {

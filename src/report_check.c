@@ -56,7 +56,7 @@ static void text_finding(FILE *out, const struct diag_sink *d,
 
 static const char *qty_unit(const struct stress *s)
 {
-	return s->qty == SQ_SURGE ? "A" : "V";
+	return stress_qty_unit(s->qty);
 }
 
 /* The --verify line: how the simulation ran, or why it did not. */
@@ -98,7 +98,7 @@ static void text_table(FILE *out, const struct check_file *f)
 		w = l > w ? l : w;
 	}
 	int sim = sr->verify && sr->verify->simulated;
-	fprintf(out, "  %-*s  %-4s %-7s %-38s %11s %11s %10s %6s %-9s%s\n", (int)w, "part", "in",
+	fprintf(out, "  %-*s  %-4s %-15s %-38s %11s %11s %10s %6s %-9s%s\n", (int)w, "part", "in",
 		"stress", "role", "worst", "best", "rating", "ratio", "basis",
 		sim ? "   simulated" : "");
 	for (size_t i = 0; i < sr->n; i++) {
@@ -120,8 +120,8 @@ static void text_table(FILE *out, const struct check_file *f)
 		char sv[24] = "-";
 		if (isfinite(s->sim_worst))
 			num_format_eng(s->sim_worst, qty_unit(s), sv, sizeof sv);
-		fprintf(out, "  %-*s  %-4s %-7s %-38.38s %11s %11s %10s %6s %-9s", (int)w, p->path, st,
-			s->qty == SQ_SURGE ? "surge" : p->kind == NL_D ? "reverse" : "voltage",
+		fprintf(out, "  %-*s  %-4s %-15s %-38.38s %11s %11s %10s %6s %-9s", (int)w, p->path, st,
+			stress_qty_name(s->qty),
 			s->role[0] ? s->role : "-", wv, bv, rv, ratio, stress_basis_name(s->basis));
 		if (sim)
 			fprintf(out, " %11s%s", sv, stress_gap(s) ? " GAP" : s->sim_near_open ? " n/c" : "");
@@ -213,12 +213,11 @@ static void json_stress(FILE *out, const struct check_file *f,
 	fputs(", \"role\": ", out);
 	jstr(out, s->role[0] ? s->role : NULL);
 	fprintf(out, ", \"quantity\": \"%s\", \"bounded\": %s, \"best\": ",
-		s->qty == SQ_SURGE ? "surge_current" : s->qty == SQ_REVERSE ? "reverse_voltage" : "voltage",
-		s->bounded ? "true" : "false");
+		stress_qty_name(s->qty), s->bounded ? "true" : "false");
 	jnum(out, s->bounded ? s->best : NAN);
 	fputs(", \"worst\": ", out);
 	jnum(out, s->bounded ? s->worst : NAN);
-	fprintf(out, ", \"unit\": \"%s\", \"corner\": ", s->qty == SQ_SURGE ? "A" : "V");
+	fprintf(out, ", \"unit\": \"%s\", \"corner\": ", stress_qty_unit(s->qty));
 	jstr(out, s->bounded ? s->corner : NULL);
 	fprintf(out, ", \"basis\": \"%s\", \"unproven\": ", stress_basis_name(s->basis));
 	jstr(out, s->unproven);
@@ -417,8 +416,7 @@ static void top_file(struct check_totals *t, const struct check_file *f)
 		struct totals_part x;
 		snprintf(x.file, sizeof x.file, "%s", f->path);
 		snprintf(x.part, sizeof x.part, "%s", nl_part_at(f->a->er.circuit, s->part)->path);
-		x.qty = s->qty == SQ_SURGE ? "surge_current"
-			: s->qty == SQ_REVERSE ? "reverse_voltage" : "voltage";
+		x.qty = stress_qty_name(s->qty);
 		x.ratio = s->worst / rated;
 		top_add(t, &x);
 	}

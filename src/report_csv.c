@@ -84,11 +84,11 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	report_csv_field(out, r->kind ? r->kind : "");
 	fprintf(out, ",%s,", st);
 	report_csv_field(out, s->role);
-	fprintf(out, ",%s,", s->qty == SQ_SURGE ? "surge_current" : s->qty == SQ_REVERSE ? "reverse_voltage" : "voltage");
+	fprintf(out, ",%s,", stress_qty_name(s->qty));
 	num(out, worst);
 	fputc(',', out);
 	num(out, s->bounded && s->qty != SQ_SURGE ? s->best : NAN);
-	fprintf(out, ",%s,", s->qty == SQ_SURGE ? "A" : "V");
+	fprintf(out, ",%s,", stress_qty_unit(s->qty));
 	report_csv_field(out, s->corner ? s->corner : "");
 	fputc(',', out);
 	num(out, rf->value);

@@ -13,7 +13,7 @@ static const char *const cap_rules[] = {"cap-overvoltage", "cap-derating",
 					"cap-reverse-bias", "stored-charge", NULL};
 static const char *const diode_rules[] = {"diode-overvoltage", "diode-derating",
 					  "slow-recovery", NULL};
-static const char *const surge_rules[] = {"surge-current", "surge-excess", "surge-unbounded", NULL};
+static const char *const surge_rules[] = {"surge-derating", "surge-excess", "surge-unbounded", NULL};
 
 static int listed(const char *const *list, const char *id)
 {

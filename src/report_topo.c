@@ -311,6 +311,11 @@ void report_topo(FILE *out, enum report_topo_format fmt, const char *path,
 		 const struct audit *a, const struct diag_sink *d, int first,
 		 int last)
 {
+	if (!path) { /* no files at all */
+		if (fmt == RT_JSON)
+			fputs("{\"schema\": 1, \"tool\": {\"name\": \"headroom\"},\n  \"files\": []\n}\n", out);
+		return;
+	}
 	if (fmt == RT_COUNT) {
 		count_file(out, path, a);
 		return;

@@ -19,7 +19,7 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_CAP_REVERSE_BIAS] = {"cap-reverse-bias", DIAG_ERROR, "a polarised capacitor is reverse-biased past its limit"},
 	[RULE_DIODE_OVERVOLTAGE] = {"diode-overvoltage", DIAG_ERROR, "a diode's reverse voltage is above its rating"},
 	[RULE_DIODE_DERATING] = {"diode-derating", DIAG_WARNING, "a diode's reverse voltage is above the profile's share of its rating"},
-	[RULE_SURGE_CURRENT] = {"surge-current", DIAG_WARNING, "the power-up surge through a diode is above its surge rating"},
+	[RULE_SURGE_DERATING] = {"surge-derating", DIAG_WARNING, "the power-up surge through a diode is above the profile's share of its surge rating"},
 	[RULE_SURGE_EXCESS] = {"surge-excess", DIAG_ERROR, "the power-up surge through a diode is above its surge rating itself"},
 	[RULE_SURGE_UNBOUNDED] = {"surge-unbounded", DIAG_WARNING, "nothing limits the power-up surge through a diode"},
 	[RULE_STORED_CHARGE] = {"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
@@ -515,7 +515,7 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	/* above the rating itself the part is over-stressed (an error); between
 	   the profile's share and the rating it only lacks margin (a warning) */
 	int over = s->worst > r->i_surge.value;
-	struct finding *f = add(x, over ? RULE_SURGE_EXCESS : RULE_SURGE_CURRENT, s->part, s->structure);
+	struct finding *f = add(x, over ? RULE_SURGE_EXCESS : RULE_SURGE_DERATING, s->part, s->structure);
 	if (!f)
 		return;
 	f->worst = s->worst;

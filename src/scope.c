@@ -11,6 +11,7 @@
 #include "num.h"
 #include "parse.h"
 #include "subsize.h"
+#include "suggest.h"
 
 /* What device callbacks need: the scope, and whether this is the first
  * (streaming) pass at top level. */
@@ -169,6 +170,28 @@ static const struct nl_model *cb_model(void *ud, const struct deck_field *f)
 	return NULL;
 }
 
+/* Offers the keys of m (with models, only those a .model defined). */
+static void offer_keys(struct suggest *s, const struct smap *m, int models)
+{
+	size_t pos = 0;
+	void *v;
+	const char *k;
+	while ((k = smap_next(m, &pos, &v)))
+		if (!models || ((const struct nl_model *)v)->type)
+			suggest_offer(s, k);
+}
+
+static void cb_model_hint(void *ud, const struct deck_field *f, char *buf, size_t n)
+{
+	const struct cb *cb = ud;
+	struct suggest s;
+	suggest_init(&s, f->text, f->len);
+	for (const struct subdef *d = cb->sc->def; d; d = d->parent)
+		offer_keys(&s, d->models, 1);
+	offer_keys(&s, cb->el->top.models, 1);
+	suggest_hint(&s, buf, n);
+}
+
 int scope_eval_global(struct elab *el, const struct expr *e,
 		      struct diag_loc at, double *v)
 {
@@ -304,10 +327,17 @@ void scope_fill_model(struct elab *el, struct nl_model *m,
 
 void scope_check_models(struct elab *el)
 {
-	for (size_t i = 0; i < el->npending; i++)
-		if (!el->pending[i]->type)
-			diag_add(el->d, DIAG_ERROR, "model", el->pending[i]->loc,
-				 "undefined model '%s'", el->pending[i]->name);
+	for (size_t i = 0; i < el->npending; i++) {
+		const struct nl_model *m = el->pending[i];
+		if (m->type)
+			continue;
+		struct suggest s;
+		char hint[SUGGEST_HINT_SIZE];
+		suggest_init(&s, m->name, strlen(m->name));
+		offer_keys(&s, el->top.models, 1);
+		diag_add(el->d, DIAG_ERROR, "model", m->loc, "undefined model '%s'%s", m->name,
+			 suggest_hint(&s, hint, sizeof hint));
+	}
 }
 
 /* ---- parameters and functions ---- */
@@ -383,6 +413,7 @@ static struct dev_scope dev_scope_of(struct cb *cb)
 	ds.eval = cb_eval;
 	ds.node = cb_node;
 	ds.model = cb_model;
+	ds.model_hint = cb_model_hint;
 	ds.atom_expr = cb_atom_expr;
 	ds.prefix = cb->sc->prefix;
 	ds.defer_undefined = cb->first_pass;
@@ -485,8 +516,14 @@ static const struct subdef *check_instance(struct elab *el,
 	const struct deck_field *nf = &c->fields[k - 1];
 	const struct subdef *def = elab_find_subckt(el, sc->def, nf->text, nf->len);
 	if (!def) {
+		struct suggest s;
+		char hint[SUGGEST_HINT_SIZE];
+		suggest_init(&s, nf->text, nf->len);
+		for (const struct subdef *d = sc->def; d; d = d->parent)
+			offer_keys(&s, d->subckts, 0);
+		offer_keys(&s, el->top.subckts, 0);
 		diag_add(el->d, DIAG_ERROR, "instance", at_field(c, nf),
-			 "undefined subcircuit '%s'", nf->text);
+			 "undefined subcircuit '%s'%s", nf->text, suggest_hint(&s, hint, sizeof hint));
 		return NULL;
 	}
 	if (def->nports != k - 1) {

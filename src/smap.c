@@ -127,3 +127,17 @@ size_t smap_count(const struct smap *m)
 {
 	return m->n;
 }
+
+const char *smap_next(const struct smap *m, size_t *pos, void **value)
+{
+	for (; *pos < m->cap; (*pos)++) {
+		const struct slot *s = &m->slots[*pos];
+		if (s->key) {
+			(*pos)++;
+			if (value)
+				*value = s->value;
+			return s->key;
+		}
+	}
+	return NULL;
+}

@@ -21,6 +21,10 @@ void *smap_get(const struct smap *m, const char *key, size_t n);
  * out-of-memory (map unchanged). */
 int smap_put(struct smap *m, const char *key, size_t n, void *value);
 size_t smap_count(const struct smap *m);
+/* Walks the entries: start with *pos = 0; returns the next key (its value
+ * in *value when value is not NULL), or NULL past the last. The order is
+ * the table's, not the order of insertion. */
+const char *smap_next(const struct smap *m, size_t *pos, void **value);
 
 /* Case-insensitive FNV-1a hash, shared with the node table. */
 unsigned long smap_hash(const char *s, size_t n);

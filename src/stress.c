@@ -143,6 +143,25 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 
 static const char *const basis_names[SB_COUNT] = {"proven", "simulated", "none"};
 
+/* [stress-qty] */
+static const struct {
+	const char *name, *unit;
+} qty_names[SQ_COUNT] = {
+	[SQ_VOLTAGE] = {"voltage", "V"},
+	[SQ_REVERSE] = {"reverse_voltage", "V"},
+	[SQ_SURGE] = {"surge_current", "A"},
+};
+
+const char *stress_qty_name(enum stress_qty q)
+{
+	return q < SQ_COUNT ? qty_names[q].name : "?";
+}
+
+const char *stress_qty_unit(enum stress_qty q)
+{
+	return q < SQ_COUNT ? qty_names[q].unit : "?";
+}
+
 const char *stress_basis_name(enum stress_basis b)
 {
 	return b < SB_COUNT ? basis_names[b] : "?";

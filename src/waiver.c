@@ -14,8 +14,51 @@
 #include <string.h>
 
 #include "num.h"
+#include "suggest.h"
 
 /* ---- waivers ---- */
+
+/* Rules renamed since an earlier version: old id, new id. */
+static const char *const renamed[][2] = {
+	{"surge-current", "surge-derating"}, /* 0.3.0: too close to the quantity's name */
+};
+
+static const char *new_name(const char *id)
+{
+	for (size_t i = 0; i < sizeof renamed / sizeof renamed[0]; i++)
+		if (strcmp(id, renamed[i][0]) == 0)
+			return renamed[i][1];
+	return NULL;
+}
+
+/* Reports waiver w, which names no rule. */
+static void unknown_rule(const struct annot *w, struct diag_sink *d)
+{
+	struct diag_loc l = {w->loc.file, w->loc.line, w->rule_col};
+	struct suggest s;
+	char hint[SUGGEST_HINT_SIZE];
+	if (new_name(w->rule)) {
+		diag_add(d, DIAG_ERROR, "waiver", l, "the rule '%s' is now named '%s'", w->rule,
+			 new_name(w->rule));
+		return;
+	}
+	suggest_init(&s, w->rule, strlen(w->rule));
+	for (size_t k = 0; k < rules_count; k++)
+		suggest_offer(&s, rules_table[k].id);
+	diag_add(d, DIAG_ERROR, "waiver", l, "no rule is named '%s'%s", w->rule,
+		 suggest_best(&s) ? suggest_hint(&s, hint, sizeof hint) : " (headroom rules lists them)");
+}
+
+size_t waiver_check_rules(const struct annot *w, uint32_t n, struct diag_sink *d)
+{
+	size_t bad = 0;
+	for (uint32_t i = 0; i < n; i++)
+		if (w[i].kind == AN_WAIVE && w[i].rule && !rules_find(w[i].rule)) {
+			unknown_rule(&w[i], d);
+			bad++;
+		}
+	return bad;
+}
 
 struct waiver_file *waiver_load(const char *path, struct arena *ar,
 				struct diag_sink *d)
@@ -85,6 +128,8 @@ struct waiver_file *waiver_load(const char *path, struct arena *ar,
 			diag_add(d, DIAG_ERROR, "waiver", wf->w[i].loc, "a waiver file holds *@waive lines only");
 			ok = 0;
 		}
+	if (waiver_check_rules(wf->w, wf->n, d))
+		ok = 0;
 	return ok && diag_errors(d, UINT32_MAX) == 0 ? wf : NULL;
 }
 
@@ -171,8 +216,9 @@ int waiver_apply(const struct audit *a, const struct waiver_file *wf,
 		 const char *today, struct arena *ar, struct rules_result *rr)
 {
 	for (uint32_t i = 0; i < a->nannots; i++)
-		if (a->annots[i].kind == AN_WAIVE && !apply_one(ar, &a->annots[i], today, rr))
-			return 0;
+		if (a->annots[i].kind == AN_WAIVE && rules_find(a->annots[i].rule) &&
+		    !apply_one(ar, &a->annots[i], today, rr))
+			return 0; /* a waiver of no rule: an error of waiver_check_rules */
 	for (uint32_t i = 0; wf && i < wf->n; i++)
 		if (!apply_file_one(ar, wf, i, today, rr))
 			return 0;

@@ -1,5 +1,6 @@
 #!/usr/bin/env python3
 """The JSON report of `headroom check` validated against docs/report.schema.json
+(and `headroom rules --format json` against docs/rules.schema.json)
 with the jsonschema package (Debian: python3-jsonschema), on the examples
 (with their parts table), on every hand-written structure netlist, and on a
 file with netlist errors. Prints one line per document."""
@@ -70,6 +71,29 @@ for args in runs:
         passed += 1
     except (ValueError, jsonschema.ValidationError) as e:
         print("report-schema: FAIL %s: %s" % (args, str(e)[:400]))
+        failed += 1
+# `headroom rules --format json` against docs/rules.schema.json, for each
+# shipped profile: the rules are those of the text listing, and each limit
+# is the value its profile line gives.
+rules_schema = json.load(open(os.path.join(ROOT, "docs", "rules.schema.json")))
+for prof in ["basic", "industrial", "flight"]:
+    r = subprocess.run([BIN, "rules", "--format", "json", "--profile", prof], capture_output=True, text=True)
+    t = subprocess.run([BIN, "rules", "--profile", prof], capture_output=True, text=True)
+    try:
+        doc = json.loads(r.stdout)
+        jsonschema.validate(doc, rules_schema)
+        listed = [l.split()[0] for l in t.stdout.split("\n\n")[0].splitlines()[1:]]
+        if [x["id"] for x in doc["rules"]] != listed:
+            raise ValueError("rules differ from the text listing")
+        lines = open(doc["profile"]["path"]).read().splitlines()
+        for lim in doc["profile"]["limits"]:
+            if not lines[lim["line"] - 1].lstrip().startswith(lim["key"]):
+                raise ValueError("%s is not on line %d" % (lim["key"], lim["line"]))
+        print("report-schema: rules --profile %s: valid (%d rules, %d limits)" % (
+            prof, len(doc["rules"]), len(doc["profile"]["limits"])))
+        passed += 1
+    except (ValueError, jsonschema.ValidationError) as e:
+        print("report-schema: FAIL rules --profile %s: %s" % (prof, str(e)[:400]))
         failed += 1
 print("report-schema: %d passed, %d failed" % (passed, failed))
 sys.exit(1 if failed else 0)

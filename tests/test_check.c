@@ -113,7 +113,7 @@ static const struct rule_case cases[] = {
 	 0},
 	/* 11 V / (10 ohm + 0.1 ohm) = 1.09 A: within 1.2 A but above its
 	   80 % (0.96 A) fires; 20 A quiet */
-	{"surge-current", "DD",
+	{"surge-derating", "DD",
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=1.2A\n",
 	 "s\nV1 a 0 sin(0 10 1k)\nR1 a in 10\nCC in x 1u\nDD 0 x dm\n.model dm d rs=0.1\n*@part DD v_rated=100V kind=rectifier i_surge=20A\n",
 	 0.10},
@@ -277,7 +277,7 @@ static void test_profile_errors(void **state)
 	assert_false(profile_load(path, d, &p));
 	char *txt = render_headers(d);
 	assert_string_equal(txt,
-		"/tmp/headroom-test-bad.profile:4:1: error: unknown key 'cap.flim.voltage' (see docs/profiles.md) [profile]\n"
+		"/tmp/headroom-test-bad.profile:4:1: error: unknown key 'cap.flim.voltage' (see docs/profiles.md); did you mean 'cap.film.voltage'? [profile]\n"
 		"/tmp/headroom-test-bad.profile:5:23: error: 'lots' is not a non-negative number [profile]\n"
 		"/tmp/headroom-test-bad.profile:6:1: error: expected key = value [profile]\n");
 	free(txt);
