@@ -58,6 +58,7 @@ report_parts reports
 report_topo reports
 report_check reports
 report_csv reports
+report_files reports
 report_html reports
 report_junit reports
 report_sarif reports

@@ -158,13 +158,20 @@ static void text_file(FILE *out, const struct check_file *f,
 		      const struct profile *p, const struct check_totals *t)
 {
 	if (!f->a->analysed) {
-		fprintf(out, "%s: not checked: the netlist has errors (listed on standard error)\n", f->path);
+		char why[64];
+		fprintf(out, "%s: not checked: %s\n", f->path, report_not_checked(f, why, sizeof why));
+		report_text_diags(out, f);
 		return;
 	}
-	size_t n = f->rules->n;
+	size_t n = f->rules->n, nd = report_diag_n(f);
+	char msgs[48] = "";
+	if (nd)
+		snprintf(msgs, sizeof msgs, ", %zu netlist message%s", nd, nd == 1 ? "" : "s");
 	if (!t->quiet)
-		fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s)\n", f->path, f->a->topo.n,
-		f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name);
+		fprintf(out, "%s: %zu structure%s, %zu finding%s%s (profile %s)\n", f->path,
+			f->a->topo.n, f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", msgs,
+			p->name);
+	report_text_diags(out, f);
 	for (size_t i = 0; i < n; i++)
 		text_finding(out, f, &f->rules->f[i], t->color);
 	if (t->quiet)
@@ -267,31 +274,12 @@ static void json_finding(FILE *out, const struct check_file *f,
 	fprintf(out, ", \"unit\": \"%s\", \"waived\": %s}", g->unit, g->waived ? "true" : "false");
 }
 
-static void json_errors(FILE *out, const struct check_file *f)
-{
-	int first = 1;
-	fputs("\"errors\": [", out);
-	for (size_t i = 0; i < diag_count(f->d); i++) {
-		const struct diag *g = diag_at(f->d, i);
-		if (g->severity != DIAG_ERROR)
-			continue;
-		fputs(first ? "{\"file\": " : ", {\"file\": ", out);
-		jstr(out, diag_file_name(f->d, g->loc.file));
-		fprintf(out, ", \"line\": %u, \"col\": %u, \"code\": \"%s\", \"message\": ",
-			g->loc.line, g->loc.col, g->code);
-		jstr(out, g->message);
-		fputc('}', out);
-		first = 0;
-	}
-	fputc(']', out);
-}
-
 static void json_file(FILE *out, const struct check_file *f)
 {
 	fputs("    {\"path\": ", out);
 	jstr(out, f->path);
 	fputs(", ", out);
-	json_errors(out, f);
+	report_json_diags(out, f);
 	fputs(",\n      ", out);
 	report_topo_json_structures(out, f->a, f->d);
 	const struct stress_verify *v = f->a->analysed ? f->stress->verify : NULL;
@@ -385,9 +373,12 @@ static void top_file(struct check_totals *t, const struct check_file *f)
 	}
 }
 
-void report_totals_merge(struct check_totals *t, const struct check_totals *j)
+int report_totals_merge(struct check_totals *t, const struct check_totals *j)
 {
 	t->files += j->files;
+	t->read_errors += j->read_errors;
+	t->read_warnings += j->read_warnings;
+	t->read_notes += j->read_notes;
 	t->errors += j->errors;
 	t->warnings += j->warnings;
 	t->notes += j->notes;
@@ -397,6 +388,7 @@ void report_totals_merge(struct check_totals *t, const struct check_totals *j)
 		t->per_rule[i] += j->per_rule[i];
 	for (size_t i = 0; i < j->ntop; i++)
 		top_add(t, &j->top[i]);
+	return report_totals_defer(t, j->deferred, j->ndeferred);
 }
 
 void report_check_file(FILE *out, enum report_check_format fmt,
@@ -404,6 +396,9 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 		       int first, struct check_totals *t)
 {
 	t->files++;
+	t->read_errors += report_diag_count(f, DIAG_ERROR);
+	t->read_warnings += report_diag_count(f, DIAG_WARNING);
+	t->read_notes += report_diag_count(f, DIAG_NOTE);
 	if (!f->a->analysed)
 		t->netlist_errors++;
 	else {
@@ -461,8 +456,10 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 {
 	double hz = profile_hazard(p);
 	int hazard = !isnan(hz) && t->max_voltage > hz;
-	if (fmt == RC_CSV)
+	if (fmt == RC_CSV) {
+		report_csv_end(out, t);
 		return;
+	}
 	if (fmt == RC_JUNIT) {
 		report_junit_end(out, t);
 		return;
@@ -476,15 +473,17 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 		return;
 	}
 	if (fmt == RC_TEXT && t->quiet) {
+		report_text_skipped(out, t);
 		if (hazard)
 			fprintf(out, "%s\n", check_caution);
 		return;
 	}
 	if (fmt == RC_TEXT) {
-		fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",
-			t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
-			t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s",
-			t->netlist_errors ? "; some files have netlist errors" : "");
+		if (t->nskipped)
+			fputc('\n', out);
+		report_text_skipped(out, t);
+		fputc('\n', out);
+		report_text_counts(out, t);
 		if (t->files > 1)
 			text_batch(out, t);
 		if (hazard)
@@ -493,8 +492,12 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 	}
 	if (t->files == 0)
 		json_head(out, p);
-	fprintf(out, "\n  ],\n  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu, \"max_voltage\": ",
+	fputs("\n  ],\n", out);
+	report_json_skipped(out, t);
+	fprintf(out, "  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu,\n    ",
 		t->files, t->errors, t->warnings, t->notes, t->netlist_errors);
+	report_json_counts(out, t);
+	fputs(", \"max_voltage\": ", out);
 	jnum(out, t->max_voltage);
 	fputs(", \"caution\": ", out);
 	jstr(out, hazard ? check_caution : NULL);
