@@ -226,6 +226,9 @@ static int run_files(struct batch *b, const struct cli_files *files,
 	if (b->t && b->tj && (sv || !skips->n)) {
 		totals_init(b, &b->sum, &b->sumj);
 		rc = cli_batch_run(&cb, files->v, files->n, o, json->f);
+		if (files->n == 0)
+			fprintf(stderr, "headroom: no netlist found: %zu entr%s skipped (see --netlist-ext)\n",
+				skips->n, skips->n == 1 ? "y" : "ies");
 		b->sum.skipped = b->sumj.skipped = sv;
 		b->sum.nskipped = b->sumj.nskipped = skips->n;
 		report_check_end(o, b->fmt, b->o.profile, &b->sum);

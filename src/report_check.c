@@ -479,7 +479,7 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 		return;
 	}
 	if (fmt == RC_TEXT) {
-		if (t->nskipped)
+		if (t->nskipped && t->files)
 			fputc('\n', out);
 		report_text_skipped(out, t);
 		fputc('\n', out);

@@ -380,6 +380,10 @@ mkdir -p "$deep"
 cp "$files/good.cir" "$deep/deep.cir"
 run check --format json --fail-on never "$tmp/deep"
 check "a folder nested too deep is a skipped entry, not a silent stop" bash -c "python3 -c \"import json; d=json.load(open('$tmp/out')); assert [k['reason'] for k in d['skipped']] == ['folder nested too deep: not walked'] and d['files'] == []\""
+mkdir -p "$tmp/nonet"
+cp "$files/notes.txt" "$tmp/nonet/"
+run check "$tmp/nonet"
+check "a folder with no netlist says so on standard error and lists what it skipped" bash -c "grep -q 'no netlist found: 1 entry skipped (see --netlist-ext)' '$tmp/err' && grep -q 'notes.txt: skipped: ' '$tmp/out' && grep -q '^1 file seen: 0 checked, 0 not checked, 1 skipped$' '$tmp/out'"
 run check --format json --fail-on never "$files/notes.txt"
 check "a file named on the command line is checked whatever its ending" checked_as "$tmp/out" notes.txt checked
 for bad in cir "" + ".cir,,.sp" ".a/b" "."; do
