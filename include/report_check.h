@@ -32,8 +32,20 @@ struct report_inputs {
 	size_t nfiles;
 };
 
+/* An entry under a folder given that was not checked, and why. */
+struct check_skip {
+	const char *path, *why;
+};
+
 struct check_totals {
-	size_t files, errors, warnings, notes, netlist_errors;
+	size_t files;          /* read: checked or not checked */
+	size_t errors, warnings, notes; /* unwaived findings */
+	size_t netlist_errors; /* files not checked (netlist errors, out of memory) */
+	size_t read_errors, read_warnings, read_notes; /* the files' diagnostics */
+	const struct check_skip *skipped; /* run level, borrowed: set before */
+	size_t nskipped;                  /* report_check_end */
+	char *deferred;        /* SARIF notifications, written at the end */
+	size_t ndeferred;      /* (malloc'd: report_totals_free) */
 	size_t per_rule[TOTALS_RULES]; /* unwaived findings, by rules_table index */
 	struct totals_part top[TOTALS_TOP];
 	size_t ntop;
@@ -56,11 +68,16 @@ struct check_totals {
 enum report_check_format { RC_TEXT, RC_JSON, RC_CSV, RC_JUNIT, RC_SARIF, RC_HTML };
 
 /* Adds the counts and most stressed parts of j into t (in file order, so
- * that ties keep the earlier file). */
-void report_totals_merge(struct check_totals *t, const struct check_totals *j);
+ * that ties keep the earlier file), and appends j's deferred text to t's;
+ * returns 0 when memory for that runs out. */
+int report_totals_merge(struct check_totals *t, const struct check_totals *j);
+/* Frees t's deferred text. */
+void report_totals_free(struct check_totals *t);
 
-/* Writes one file; first/last bracket the JSON document; totals are
- * updated. */
+/* Writes one file, checked or not (f->a->analysed 0: netlist errors, or
+ * out of memory; f->d may then be NULL); first/last bracket the JSON
+ * document; totals are updated. Every diagnostic of f->d goes into every
+ * format, located, apart from the findings. */
 void report_check_file(FILE *out, enum report_check_format fmt,
 		       const struct check_file *f, const struct profile *p,
 		       int first, struct check_totals *t);
@@ -69,8 +86,10 @@ void report_check_file(FILE *out, enum report_check_format fmt,
  * per rule). */
 void report_totals_count(struct check_totals *t, const struct rules_result *rr);
 
-/* Closes the report: the run's own findings (t->run), totals, how many
- * findings a baseline hid, a draft profile, the safety caution when due. */
+/* Closes the report: the run's own findings (t->run), the skipped
+ * entries (t->skipped), the counts of files seen, checked, not checked
+ * and skipped, totals, how many findings a baseline hid, a draft profile,
+ * the safety caution when due. */
 void report_check_end(FILE *out, enum report_check_format fmt,
 		      const struct profile *p, const struct check_totals *t);
 

@@ -62,6 +62,7 @@ report_topo reports
 report_rules reports
 report_check reports
 report_csv reports
+report_files reports
 report_html reports
 report_junit reports
 report_sarif reports

@@ -1,22 +1,58 @@
 /* cli_batch.c: folder walk and the ordered worker pool (cli_batch.h). */
 #include "cli_batch.h"
 
+#include <ctype.h>
 #include <dirent.h>
+#include <errno.h>
 #include <pthread.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
-/* Also in the warning of cli_files_expand and docs/headroom.1 [netlist-ext]. */
-static int netlist_name(const char *name)
+/* One ending of a comma-separated list: ".cir" in ".sp,.cir". */
+static int ends_with(const char *name, const char *end, size_t n)
 {
-	static const char *const ext[] = {".cir", ".sp", ".spice", ".net", ".ckt", ".cdl"};
-	const char *dot = strrchr(name, '.');
-	for (size_t i = 0; dot && i < sizeof ext / sizeof ext[0]; i++)
-		if (strcmp(dot, ext[i]) == 0)
+	size_t l = strlen(name);
+	return n && l > n && strncasecmp(name + l - n, end, n) == 0;
+}
+
+static int in_list(const char *name, const char *list)
+{
+	for (const char *p = list; *p;) {
+		size_t n = strcspn(p, ",");
+		if (ends_with(name, p, n))
 			return 1;
+		p += n + (p[n] == ',');
+	}
 	return 0;
+}
+
+/* A netlist by its name: exts replaces the default list, "+..." adds to it. */
+static int netlist_name(const char *name, const char *exts)
+{
+	if (!exts || exts[0] == '+')
+		if (in_list(name, CLI_NETLIST_EXT))
+			return 1;
+	return exts && in_list(name, exts + (exts[0] == '+'));
+}
+
+const char *cli_netlist_ext_check(const char *exts)
+{
+	const char *p = exts + (exts[0] == '+');
+	if (!*p)
+		return "an empty list";
+	for (;;) {
+		size_t n = strcspn(p, ",");
+		if (n < 2 || p[0] != '.')
+			return "each ending starts with '.' and has a character after it";
+		if (memchr(p, '/', n))
+			return "an ending cannot hold '/'";
+		if (!p[n])
+			return NULL;
+		p += n + 1;
+	}
 }
 
 static int add(struct cli_files *l, const char *path)
@@ -40,12 +76,47 @@ void cli_files_free(struct cli_files *l)
 	memset(l, 0, sizeof *l);
 }
 
+static int skip(struct cli_skips *s, const char *path, const char *why)
+{
+	if (!s)
+		return 1;
+	if (s->n == s->cap) {
+		size_t ncap = s->cap ? s->cap * 2 : 32;
+		struct cli_skip *v = realloc(s->v, ncap * sizeof *v);
+		if (!v)
+			return 0;
+		s->v = v;
+		s->cap = ncap;
+	}
+	struct cli_skip *k = &s->v[s->n];
+	k->path = strdup(path);
+	k->why = strdup(why);
+	if (!k->path || !k->why) {
+		free(k->path);
+		free(k->why);
+		return 0;
+	}
+	s->n++;
+	return 1;
+}
+
+void cli_skips_free(struct cli_skips *s)
+{
+	for (size_t i = 0; i < s->n; i++) {
+		free(s->v[i].path);
+		free(s->v[i].why);
+	}
+	free(s->v);
+	memset(s, 0, sizeof *s);
+}
+
 static int by_name(const void *a, const void *b)
 {
 	return strcmp(*(char *const *)a, *(char *const *)b);
 }
 
-/* The entries of one folder, in name order. */
+/* The entries of one folder but "." and "..", in name order; errno set
+ * when the folder cannot be opened. */
 static int list_dir(const char *dir, struct cli_files *here)
 {
 	DIR *d = opendir(dir);
@@ -53,58 +124,94 @@ static int list_dir(const char *dir, struct cli_files *here)
 		return 0;
 	struct dirent *e;
 	size_t dl = strlen(dir);
-	while ((e = readdir(d)))
-		if (e->d_name[0] != '.') {
+	int ok = 1;
+	while (ok && (e = readdir(d)))
+		if (strcmp(e->d_name, ".") != 0 && strcmp(e->d_name, "..") != 0) {
 			char path[4096];
 			snprintf(path, sizeof path, "%s%s%s", dir,
 				 dl && dir[dl - 1] == '/' ? "" : "/", e->d_name);
-			add(here, path);
+			ok = add(here, path);
 		}
 	closedir(d);
 	if (here->n > 1)
 		qsort(here->v, here->n, sizeof *here->v, by_name);
-	return 1;
+	return ok ? 1 : -1;
 }
 
-/* Netlists under dir, recursively, in name order. */
-static int scan(const char *dir, struct cli_files *l, int depth)
+struct walk {
+	struct cli_files *files;
+	struct cli_skips *skips;
+	const char *exts;
+};
+
+static int scan(const struct walk *w, const char *dir, int depth);
+
+/* One entry of a folder: a folder to walk, a netlist to check, or a
+ * skipped entry with its reason. Returns 0 on out-of-memory. */
+static int visit(const struct walk *w, const char *path, int depth)
+{
+	const char *base = strrchr(path, '/') ? strrchr(path, '/') + 1 : path;
+	struct stat st;
+	int dir = stat(path, &st) == 0 && S_ISDIR(st.st_mode);
+	if (base[0] == '.')
+		return skip(w->skips, path, dir ? "hidden folder: not walked" : "hidden file");
+	if (dir && depth >= CLI_WALK_DEPTH)
+		return skip(w->skips, path, "folder nested too deep: not walked");
+	if (dir)
+		return scan(w, path, depth + 1);
+	if (netlist_name(base, w->exts))
+		return add(w->files, path);
+	return skip(w->skips, path, "name does not end in a netlist extension (see --netlist-ext)");
+}
+
+/* Netlists under dir, recursively, in name order. Returns 0 on
+ * out-of-memory; a folder that cannot be read is a skipped entry. */
+static int scan(const struct walk *w, const char *dir, int depth)
 {
 	struct cli_files here = {0};
-	if (depth > 32)
-		return 1;
-	if (!list_dir(dir, &here))
-		return 0;
-	for (size_t i = 0; i < here.n; i++) {
-		struct stat st;
-		if (stat(here.v[i], &st) == 0 && S_ISDIR(st.st_mode))
-			scan(here.v[i], l, depth + 1);
-		else if (netlist_name(here.v[i]))
-			add(l, here.v[i]);
+	int r = list_dir(dir, &here);
+	if (r == 0) {
+		char why[160];
+		int n = snprintf(why, sizeof why, "folder cannot be read: %s", strerror(errno));
+		size_t k = strlen("folder cannot be read: ");
+		if (n > (int)k)
+			why[k] = (char)tolower((unsigned char)why[k]);
+		if (depth == 0) {
+			fprintf(stderr, "%s: error: %s\n", dir, why);
+			w->files->unreadable++;
+		}
+		r = skip(w->skips, dir, why) ? 1 : -1;
 	}
+	for (size_t i = 0; r > 0 && i < here.n; i++)
+		r = visit(w, here.v[i], depth);
 	cli_files_free(&here);
-	return 1;
+	return r > 0;
 }
 
-int cli_files_expand(struct cli_files *l, const char *const *paths, size_t n)
+int cli_files_walk(struct cli_files *l, struct cli_skips *s, const char *exts,
+		   const char *const *paths, size_t n)
 {
+	const struct walk w = {l, s, exts};
 	for (size_t i = 0; i < n; i++) {
 		struct stat st;
 		size_t before = l->n;
 		if (stat(paths[i], &st) == 0 && S_ISDIR(st.st_mode)) {
-			if (!scan(paths[i], l, 0)) {
-				fprintf(stderr, "%s: error: cannot read the folder\n", paths[i]);
-				l->unreadable++;
-			} else if (l->n == before) {
-				/* [netlist-ext] */
+			if (!scan(&w, paths[i], 0))
+				return 0;
+			if (l->n == before) /* [netlist-ext] */
 				fprintf(stderr, "%s: warning: no netlists in this folder (names ending "
-						".cir, .sp, .spice, .net, .ckt or .cdl)\n",
-					paths[i]);
-			}
+						"%s; see --netlist-ext)\n",
+					paths[i], exts && exts[0] != '+' ? exts : CLI_NETLIST_EXT);
 		} else if (!add(l, paths[i])) {
 			return 0;
 		}
 	}
 	return 1;
+}
+
+int cli_files_expand(struct cli_files *l, const char *const *paths, size_t n)
+{
+	return cli_files_walk(l, NULL, NULL, paths, n);
 }
 
 /* ---- the pool ---- */

@@ -15,11 +15,42 @@ struct cli_files {
 	size_t unreadable;       /* folders that could not be read */
 };
 
-/* Appends the files given and the netlists under the folders given.
- * Returns 0 on out-of-memory; an unreadable folder is reported, counted
- * in unreadable and skipped; a folder with no netlists gets a warning. */
+/* An entry met under a folder and not checked, with the reason. */
+struct cli_skip {
+	char *path, *why; /* malloc'd */
+};
+struct cli_skips {
+	struct cli_skip *v;
+	size_t n, cap;
+};
+
+/* The file-name endings of netlists under a folder, by default; matched
+ * without regard to case. */
+#define CLI_NETLIST_EXT ".cir,.sp,.spice,.net,.ckt,.cdl"
+/* Folders nested deeper than this under a folder given are not walked. */
+#define CLI_WALK_DEPTH 32
+
+/* NULL when exts is a valid --netlist-ext value: endings such as
+ * ".cir,.cir.out", each "." and at least one more character, no '/';
+ * a leading '+' adds them to CLI_NETLIST_EXT. Otherwise what is wrong
+ * (a static string). */
+const char *cli_netlist_ext_check(const char *exts);
+
+/* Appends the files given (whatever their names) and the netlists under
+ * the folders given: the files whose names end in one of exts (NULL:
+ * CLI_NETLIST_EXT; "+..." adds to it), walked recursively in name order.
+ * Every other entry met under a folder goes to s (when not NULL) with the
+ * reason: a name with another ending, a hidden file or folder (a name
+ * starting with '.'; a hidden folder is one entry, not walked), a folder
+ * nested deeper than CLI_WALK_DEPTH or one that cannot be read (a folder
+ * given that cannot be read is also reported on stderr). Returns 0 on
+ * out-of-memory. */
+int cli_files_walk(struct cli_files *l, struct cli_skips *s, const char *exts,
+		   const char *const *paths, size_t n);
+/* cli_files_walk with the default endings, the skipped entries left out. */
 int cli_files_expand(struct cli_files *l, const char *const *paths, size_t n);
 void cli_files_free(struct cli_files *l);
+void cli_skips_free(struct cli_skips *s);
 
 /* One file's work and, in batch mode, its buffered outputs. */
 struct cli_job {

@@ -72,13 +72,19 @@ static int check_job(void *ud, const struct cli_job *j, FILE *out, FILE *err, FI
 		rc = 1;
 	if (st != CHECK_OK || diag_errors(r.d, UINT32_MAX))
 		rc = EXIT_USAGE;
+	/* out of memory: reported as a file not checked, its own state
+	 * half built and not read */
+	struct audit none;
+	struct check_file oom = {j->path, &none, r.d, NULL, NULL, NULL, NULL, 0, 0};
+	const struct check_file *f = &r.f;
 	if (st == CHECK_OOM) {
 		fprintf(err, "%s: error: out of memory\n", j->path);
-	} else {
-		report_check_file(out, b->fmt, &r.f, r.profile, j->index == 0, t);
-		if (json)
-			report_check_file(json, RC_JSON, &r.f, r.profile, j->index == 0, tj);
+		memset(&none, 0, sizeof none);
+		f = &oom;
 	}
+	report_check_file(out, b->fmt, f, r.profile, j->index == 0, t);
+	if (json)
+		report_check_file(json, RC_JSON, f, r.profile, j->index == 0, tj);
 	if (r.d)
 		diag_render(r.d, UINT32_MAX, err);
 	check_free(&r);
@@ -102,8 +108,10 @@ static void check_emit(void *ud, const struct cli_job *j, FILE *out, FILE *json)
 	if (json && j->aux)
 		fwrite(j->aux, 1, j->auxn, json);
 	b->sum.emitted += t->emitted;
-	report_totals_merge(&b->sum, t);
-	report_totals_merge(&b->sumj, tj);
+	if (!report_totals_merge(&b->sum, t) || !report_totals_merge(&b->sumj, tj))
+		fprintf(stderr, "%s: error: out of memory while writing the report\n", j->path);
+	report_totals_free(&b->t[j->index]);
+	report_totals_free(&b->tj[j->index]);
 }
 
 /* file:// URI of the documentation folder next to the program (the build
@@ -181,6 +189,12 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 	}
 	if (c->baseline && !(o->baseline = baseline_load(c->baseline, ar, d)))
 		return 0;
+	const char *bad = c->netlist_ext ? cli_netlist_ext_check(c->netlist_ext) : NULL;
+	if (bad) {
+		fprintf(stderr, "headroom: --netlist-ext takes endings such as .cir,.sp or +.sim, "
+				"not '%s': %s\n", c->netlist_ext, bad);
+		return 0;
+	}
 	if (c->today && !num_iso_date(c->today)) {
 		fprintf(stderr, "headroom: --today takes YYYY-MM-DD, not '%s'\n", c->today);
 		return 0;
@@ -213,8 +227,19 @@ static int run_findings(struct batch *b, struct arena *ar, struct diag_sink *d,
 	return b->c->fail_on >= 0 && worst >= b->c->fail_on;
 }
 
+/* The skipped entries as the reports take them (borrowing s's strings);
+ * NULL when there are none or memory runs out. */
+static struct check_skip *skips_view(const struct cli_skips *s)
+{
+	struct check_skip *v = s->n ? calloc(s->n, sizeof *v) : NULL;
+	for (size_t i = 0; v && i < s->n; i++)
+		v[i] = (struct check_skip){s->v[i].path, s->v[i].why};
+	return v;
+}
+
 /* Runs the batch into the open outputs; returns the exit status. */
-static int run_files(struct batch *b, const struct cli_files *files, struct cli_out *out,
+static int run_files(struct batch *b, const struct cli_files *files,
+		     const struct cli_skips *skips, struct cli_out *out,
 		     struct cli_out *json, struct arena *ar, struct diag_sink *d)
 {
 	const struct cli *c = b->c;
@@ -225,13 +250,19 @@ static int run_files(struct batch *b, const struct cli_files *files, struct cli_
 	b->in.nfiles = files->n;
 	b->t = calloc(files->n ? files->n : 1, sizeof *b->t);
 	b->tj = calloc(files->n ? files->n : 1, sizeof *b->tj);
+	struct check_skip *sv = skips_view(skips);
 	int rc = EXIT_USAGE;
-	if (b->t && b->tj) {
+	if (b->t && b->tj && (sv || !skips->n)) {
 		totals_init(b, &b->sum, &b->sumj);
 		struct rules_result run = {0};
 		rc = cli_batch_run(&cb, files->v, files->n, o, json->f);
 		int rr = run_findings(b, ar, d, &run);
 		rc = rr > rc ? rr : rc;
+		if (files->n == 0)
+			fprintf(stderr, "headroom: no netlist found: %zu entr%s skipped (see --netlist-ext)\n",
+				skips->n, skips->n == 1 ? "y" : "ies");
+		b->sum.skipped = b->sumj.skipped = sv;
+		b->sum.nskipped = b->sumj.nskipped = skips->n;
 		report_check_end(o, b->fmt, b->o.profile, &b->sum);
 		if (json->f)
 			report_check_end(json->f, RC_JSON, b->o.profile, &b->sumj);
@@ -240,6 +271,9 @@ static int run_files(struct batch *b, const struct cli_files *files, struct cli_
 		rc = EXIT_USAGE;
 	if (json->f && !cli_out_close(json, 1))
 		rc = EXIT_USAGE;
+	report_totals_free(&b->sum);
+	report_totals_free(&b->sumj);
+	free(sv);
 	free(b->t);
 	free(b->tj);
 	return rc;
@@ -252,6 +286,7 @@ int cli_check(const struct cli *c)
 	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
 	struct profile *p = malloc(sizeof *p);
 	struct cli_files files = {0};
+	struct cli_skips skips = {0};
 	struct cli_out out = {0}, json = {0};
 	struct batch b;
 	char today[32];
@@ -266,10 +301,10 @@ int cli_check(const struct cli *c)
 	b.in = (struct report_inputs){today, c->today != NULL, c->parts, c->waivers, c->baseline,
 				      NULL, 0};
 	if (d && p && prepare(c, &b, p, ar, d) &&
-	    cli_files_expand(&files, c->files, (size_t)c->nfiles) &&
+	    cli_files_walk(&files, &skips, c->netlist_ext, c->files, (size_t)c->nfiles) &&
 	    (!c->out_path || cli_out_open(&out, c->out_path)) &&
 	    (!c->write_baseline || cli_out_open(&json, c->write_baseline)))
-		rc = run_files(&b, &files, &out, &json, ar, d);
+		rc = run_files(&b, &files, &skips, &out, &json, ar, d);
 	else if (out.f)
 		cli_out_close(&out, 0);
 	if (files.unreadable)
@@ -277,6 +312,7 @@ int cli_check(const struct cli *c)
 	if (d)
 		diag_render(d, UINT32_MAX, stderr);
 	cli_files_free(&files);
+	cli_skips_free(&skips);
 	free((char *)b.docs);
 	free(p);
 	diag_destroy(d);

@@ -10,6 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "cli_batch.h"
 #include "diag.h"
 #include "suggest.h"
 
@@ -50,6 +51,11 @@ static const struct opt_def opts[] = {
 	 "run succeeds)"},
 	{"-j", NULL, COUNT(CO_JOBS, 1024),
 	 "-j N                 check N files at once (default: one per processor)"},
+	{"--netlist-ext", NULL, STR(netlist_ext),
+	 "--netlist-ext LIST   check: the file-name endings of the netlists under\n"
+	 "a folder (default " CLI_NETLIST_EXT ");\n"
+	 "+LIST adds to them (+.sim,.cir.out); the other\n"
+	 "files there are listed as skipped, with the reason"},
 	{"--waivers", NULL, STR(waivers), "--waivers FILE       *@waive lines that apply to every file"},
 	{"--baseline", NULL, STR(baseline),
 	 "--baseline FILE      report only findings not in this earlier JSON report"},

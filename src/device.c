@@ -414,9 +414,14 @@ static enum dev_status build_opaque(struct build *b, char letter)
 	if (letter == 'a')
 		return build_xspice(b);
 	if (!r) {
+		/* a control byte or half a UTF-8 sequence is named by its value:
+		 * the message goes into XML and JSON reports too */
+		unsigned char u = (unsigned char)letter;
+		char shown[16];
+		snprintf(shown, sizeof shown, u > 0x20 && u < 0x7f ? "'%c'" : "byte 0x%02X", u);
 		diag_add(b->d, DIAG_WARNING, "unknown-element", b->card->loc,
-			 "unknown element letter '%c': kept as an opaque part whose words are all nodes",
-			 letter);
+			 "unknown element letter %s: kept as an opaque part whose words are all nodes",
+			 shown);
 		for (uint32_t i = 0; i < b->card->nfields; i++)
 			if (b->card->fields[i].kind == FIELD_ATOM &&
 			    !num_looks_numeric(b->card->fields[i].text, b->card->fields[i].len)) {

@@ -162,14 +162,20 @@ static void text_file(FILE *out, const struct check_file *f,
 		      const struct profile *p, const struct check_totals *t)
 {
 	if (!f->a->analysed) {
-		fprintf(out, "%s: not checked: the netlist has errors (listed on standard error)\n", f->path);
+		char why[64];
+		fprintf(out, "%s: not checked: %s\n", f->path, report_not_checked(f, why, sizeof why));
+		report_text_diags(out, f);
 		return;
 	}
-	size_t n = f->rules->n;
+	size_t n = f->rules->n, nd = report_diag_n(f);
+	char msgs[48] = "";
+	if (nd)
+		snprintf(msgs, sizeof msgs, ", %zu netlist message%s", nd, nd == 1 ? "" : "s");
 	if (!t->quiet)
-		fprintf(out, "%s: %zu structure%s, %zu finding%s (profile %s%s)\n", f->path, f->a->topo.n,
-			f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", p->name,
-			profile_draft(p, &(struct profile_status){0}) ? ", draft" : "");
+		fprintf(out, "%s: %zu structure%s, %zu finding%s%s (profile %s%s)\n", f->path,
+			f->a->topo.n, f->a->topo.n == 1 ? "" : "s", n, n == 1 ? "" : "s", msgs,
+			p->name, profile_draft(p, &(struct profile_status){0}) ? ", draft" : "");
+	report_text_diags(out, f);
 	for (size_t i = 0; i < n; i++)
 		text_finding(out, f->d, &f->rules->f[i], t->color);
 	if (!t->quiet) {
@@ -275,25 +281,6 @@ static void json_finding(FILE *out, const struct diag_sink *d,
 	fprintf(out, ", \"unit\": \"%s\", \"waived\": %s}", g->unit, g->waived ? "true" : "false");
 }
 
-static void json_errors(FILE *out, const struct check_file *f)
-{
-	int first = 1;
-	fputs("\"errors\": [", out);
-	for (size_t i = 0; i < diag_count(f->d); i++) {
-		const struct diag *g = diag_at(f->d, i);
-		if (g->severity != DIAG_ERROR)
-			continue;
-		fputs(first ? "{\"file\": " : ", {\"file\": ", out);
-		jstr(out, diag_file_name(f->d, g->loc.file));
-		fprintf(out, ", \"line\": %u, \"col\": %u, \"code\": \"%s\", \"message\": ",
-			g->loc.line, g->loc.col, g->code);
-		jstr(out, g->message);
-		fputc('}', out);
-		first = 0;
-	}
-	fputc(']', out);
-}
-
 static void json_file(FILE *out, const struct check_file *f, const struct profile *p)
 {
 	fputs("    {\"path\": ", out);
@@ -304,7 +291,7 @@ static void json_file(FILE *out, const struct check_file *f, const struct profil
 	jstr(out, p->name);
 	fprintf(out, ", \"profile_draft\": %s, ",
 		profile_draft(p, &(struct profile_status){0}) ? "true" : "false");
-	json_errors(out, f);
+	report_json_diags(out, f);
 	fputs(",\n      ", out);
 	report_topo_json_structures(out, f->a, f->d);
 	const struct stress_verify *v = f->a->analysed ? f->stress->verify : NULL;
@@ -422,9 +409,12 @@ static void top_file(struct check_totals *t, const struct check_file *f)
 	}
 }
 
-void report_totals_merge(struct check_totals *t, const struct check_totals *j)
+int report_totals_merge(struct check_totals *t, const struct check_totals *j)
 {
 	t->files += j->files;
+	t->read_errors += j->read_errors;
+	t->read_warnings += j->read_warnings;
+	t->read_notes += j->read_notes;
 	t->errors += j->errors;
 	t->warnings += j->warnings;
 	t->notes += j->notes;
@@ -436,6 +426,7 @@ void report_totals_merge(struct check_totals *t, const struct check_totals *j)
 		t->per_rule[i] += j->per_rule[i];
 	for (size_t i = 0; i < j->ntop; i++)
 		top_add(t, &j->top[i]);
+	return report_totals_defer(t, j->deferred, j->ndeferred);
 }
 
 void report_check_file(FILE *out, enum report_check_format fmt,
@@ -445,6 +436,9 @@ void report_check_file(FILE *out, enum report_check_format fmt,
 	t->files++;
 	t->baselined += f->baselined;
 	t->has_baseline |= f->has_baseline;
+	t->read_errors += report_diag_count(f, DIAG_ERROR);
+	t->read_warnings += report_diag_count(f, DIAG_WARNING);
+	t->read_notes += report_diag_count(f, DIAG_NOTE);
 	if (!f->a->analysed)
 		t->netlist_errors++;
 	else {
@@ -515,14 +509,16 @@ static void text_end(FILE *out, const struct profile *p, const struct check_tota
 	report_draft_line(draft, sizeof draft, p);
 	text_run(out, t);
 	if (t->quiet) {
+		report_text_skipped(out, t);
 		if (hazard)
 			fprintf(out, "%s\n", check_caution);
 		return;
 	}
-	fprintf(out, "\n%zu file%s checked: %zu error%s, %zu warning%s, %zu note%s%s\n",
-		t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
-		t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s",
-		t->netlist_errors ? "; some files have netlist errors" : "");
+	if (t->nskipped && t->files)
+		fputc('\n', out);
+	report_text_skipped(out, t);
+	fputc('\n', out);
+	report_text_counts(out, t);
 	if (t->has_baseline)
 		fprintf(out, "  baseline: %zu known finding%s not shown\n", t->baselined,
 			t->baselined == 1 ? "" : "s");
@@ -539,13 +535,17 @@ static void json_end(FILE *out, const struct profile *p, const struct check_tota
 {
 	if (t->files == 0)
 		json_head(out, p, t);
-	fputs("\n  ],\n  \"run_findings\": [", out);
+	fputs("\n  ],\n", out);
+	report_json_skipped(out, t);
+	fputs("  \"run_findings\": [", out);
 	for (size_t i = 0; t->run && i < t->run->n; i++) {
 		fputs(i ? ",\n    " : "\n    ", out);
 		json_finding(out, t->run_d, &t->run->f[i]);
 	}
-	fprintf(out, "],\n  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu, \"baseline_hidden\": ",
+	fprintf(out, "],\n  \"summary\": {\"files\": %zu, \"errors\": %zu, \"warnings\": %zu, \"notes\": %zu, \"netlist_errors\": %zu,\n    ",
 		t->files, t->errors, t->warnings, t->notes, t->netlist_errors);
+	report_json_counts(out, t);
+	fputs(", \"baseline_hidden\": ", out);
 	if (t->has_baseline)
 		fprintf(out, "%zu", t->baselined);
 	else
@@ -581,7 +581,7 @@ void report_check_end(FILE *out, enum report_check_format fmt,
 	double hz = profile_hazard(p);
 	int hazard = !isnan(hz) && t->max_voltage > hz;
 	switch (fmt) {
-	case RC_CSV: return;
+	case RC_CSV: report_csv_end(out, p, t); return;
 	case RC_JUNIT: report_junit_end(out, p, t); return;
 	case RC_SARIF: report_sarif_end(out, p, t); return;
 	case RC_HTML: report_html_end(out, p, t); return;

@@ -61,10 +61,23 @@ double report_limit(const struct check_file *f, const struct profile *p,
 	return rated * (isnan(factor) ? 1 : factor);
 }
 
+#define CSV_HEADER                                                                   \
+	"file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"     \
+	"rating,rating_from,limit,ratio,margin,basis,unproven,profile,profile_status,"     \
+	"record,line,col,code,message\n"
+
 static void num(FILE *out, double v)
 {
 	if (!isnan(v) && !isinf(v))
 		fprintf(out, "%.6g", v);
+}
+
+/* ",profile,draft" (or "sourced"): the profile a row was judged with. */
+static void profile_cols(FILE *out, const struct profile *p)
+{
+	fputc(',', out);
+	report_csv_field(out, p->name);
+	fprintf(out, ",%s", profile_draft(p, &(struct profile_status){0}) ? "draft" : "sourced");
 }
 
 static void row(FILE *out, const struct check_file *f, const struct profile *p,
@@ -102,9 +115,28 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	num(out, limit - worst);
 	fprintf(out, ",%s,", stress_basis_name(s->basis));
 	report_csv_field(out, s->unproven ? s->unproven : "");
+	profile_cols(out, p);
+	fputs(",part,,,,\n", out);
+}
+
+/* A row that is no part: the file, the record kind, line, column, code
+ * and message; the part's columns empty, the profile's filled. */
+static void other_row(FILE *out, const struct profile *p, const char *file, const char *record,
+		      uint32_t line, uint32_t col, const char *code, const char *message)
+{
+	report_csv_field(out, file);
+	fputs(",,,,,,,,,,,,,,,,,", out);
+	profile_cols(out, p);
+	fprintf(out, ",%s,", record);
+	if (line)
+		fprintf(out, "%u,%u", line, col);
+	else
+		fputc(',', out);
 	fputc(',', out);
-	report_csv_field(out, p->name);
-	fprintf(out, ",%s\n", profile_draft(p, &(struct profile_status){0}) ? "draft" : "sourced");
+	report_csv_field(out, code);
+	fputc(',', out);
+	report_csv_field(out, message);
+	fputc('\n', out);
 }
 
 /* The file's safety caution as a row of its own: quantity "caution", the
@@ -121,17 +153,43 @@ static void caution_row(FILE *out, const struct check_file *f, const struct prof
 	num(out, f->stress->max_voltage);
 	fputs(",,V,,,,", out);
 	num(out, profile_hazard(p));
-	fputs(",,,,,", out);
-	report_csv_field(out, p->name);
-	fprintf(out, ",%s\n", profile_draft(p, &(struct profile_status){0}) ? "draft" : "sourced");
+	fputs(",,,,", out);
+	profile_cols(out, p);
+	fputs(",caution,,,,\n", out);
+}
+
+/* The file's own row, then a row per diagnostic. */
+static void file_rows(FILE *out, const struct check_file *f, const struct profile *p)
+{
+	char why[64];
+	other_row(out, p, f->path, f->a->analysed ? "file-checked" : "file-not-checked", 0, 0, "",
+		  f->a->analysed ? "" : report_not_checked(f, why, sizeof why));
+	for (size_t i = 0; i < report_diag_n(f); i++) {
+		const struct diag *g = report_diag_at(f, i);
+		other_row(out, p, report_diag_file(f, g), diag_severity_name(g->severity), g->loc.line,
+			  g->loc.col, g->code, g->message);
+	}
+}
+
+void report_csv_end(FILE *out, const struct profile *p, const struct check_totals *t)
+{
+	struct report_counts c = report_counts_of(t);
+	char sum[160];
+	if (t->files == 0)
+		fputs(CSV_HEADER, out);
+	for (size_t i = 0; i < t->nskipped; i++)
+		other_row(out, p, t->skipped[i].path, "file-skipped", 0, 0, "", t->skipped[i].why);
+	snprintf(sum, sizeof sum, "%zu seen, %zu checked, %zu not checked, %zu skipped", c.seen,
+		 c.checked, c.not_checked, c.skipped);
+	other_row(out, p, "", "summary", 0, 0, "", sum);
 }
 
 void report_csv_file(FILE *out, const struct check_file *f,
 		     const struct profile *p, int first)
 {
 	if (first)
-		fputs("file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"
-		      "rating,rating_from,limit,ratio,margin,basis,unproven,profile,profile_status\n", out);
+		fputs(CSV_HEADER, out);
+	file_rows(out, f, p);
 	if (!f->a->analysed)
 		return;
 	for (size_t i = 0; i < f->stress->n; i++) {

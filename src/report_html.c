@@ -589,6 +589,31 @@ static void verify_line(FILE *out, const struct stress_verify *v)
 	}
 }
 
+/* The file's diagnostics (netlist errors, the reader's warnings), one
+ * list item each with its location. */
+static void diags(FILE *out, const struct check_file *f)
+{
+	size_t n = report_diag_n(f);
+	if (n == 0)
+		return;
+	fprintf(out, "<p>Reading the netlist gave %zu message%s:</p>\n<ul class=\"diags\">\n", n,
+		n == 1 ? "" : "s");
+	for (size_t i = 0; i < n; i++) {
+		const struct diag *g = report_diag_at(f, i);
+		const char *sev = diag_severity_name(g->severity);
+		fputs("<li>", out);
+		x(out, report_diag_file(f, g));
+		if (g->loc.line)
+			fprintf(out, ":%u:%u", g->loc.line, g->loc.col);
+		fprintf(out, ": <span class=\"%s\">%s</span>: ", sev, sev);
+		x(out, g->message);
+		fputs(" <span class=\"small\">[", out);
+		x(out, g->code);
+		fputs("]</span></li>\n", out);
+	}
+	fputs("</ul>\n", out);
+}
+
 void report_html_file(FILE *out, const struct check_file *f,
 		      const struct profile *p, int first,
 		      const struct check_totals *t)
@@ -604,8 +629,13 @@ void report_html_file(FILE *out, const struct check_file *f,
 		fputs("</p>\n", out);
 	}
 	if (!f->a->analysed) {
-		fputs("<p class=\"error\">Not checked: the netlist has errors.</p>\n", out);
+		char why[64];
+		fputs("<p class=\"error not-checked\">Not checked: ", out);
+		x(out, report_not_checked(f, why, sizeof why));
+		fputs(".</p>\n", out);
+		diags(out, f);
 	} else {
+		diags(out, f);
 		verify_line(out, f->stress->verify);
 		if (profile_draft(p, &(struct profile_status){0}))
 			fprintf(out, "<p class=\"warning\">Checked with profile %s, a draft (see the summary).</p>\n",
@@ -618,16 +648,47 @@ void report_html_file(FILE *out, const struct check_file *f,
 	fputs("</section>\n", out);
 }
 
+/* The entries of folders that were not checked, with the reasons. */
+static void skipped(FILE *out, const struct check_totals *t)
+{
+	if (t->nskipped == 0)
+		return;
+	fprintf(out, "<section id=\"skipped\"><h2>Skipped (%zu)</h2>\n<table><tr><th>file</th><th>reason</th></tr>\n",
+		t->nskipped);
+	for (size_t i = 0; i < t->nskipped; i++) {
+		fputs("<tr><td>", out);
+		x(out, t->skipped[i].path);
+		fputs("</td><td>", out);
+		x(out, t->skipped[i].why);
+		fputs("</td></tr>\n", out);
+	}
+	fputs("</table></section>\n", out);
+}
+
+/* The counts of files and of the files' own diagnostics. */
+static void counts(FILE *out, const struct check_totals *t)
+{
+	struct report_counts c = report_counts_of(t);
+	fprintf(out, "<p class=\"files\"><span class=\"seen\">%zu</span> file%s seen: "
+		"<span class=\"checked\">%zu</span> checked, <span class=\"not-checked\">%zu</span> not checked, "
+		"<span class=\"skipped\">%zu</span> skipped.</p>\n",
+		c.seen, c.seen == 1 ? "" : "s", c.checked, c.not_checked, c.skipped);
+	fprintf(out, "<p>Findings: <span class=\"error\">%zu error%s</span>, <span class=\"warning\">%zu warning%s</span>, "
+		"<span class=\"note\">%zu note%s</span>. Reading the netlists: %zu error%s, %zu warning%s, %zu note%s.</p>\n",
+		t->errors, t->errors == 1 ? "" : "s", t->warnings, t->warnings == 1 ? "" : "s",
+		t->notes, t->notes == 1 ? "" : "s", t->read_errors, t->read_errors == 1 ? "" : "s",
+		t->read_warnings, t->read_warnings == 1 ? "" : "s", t->read_notes,
+		t->read_notes == 1 ? "" : "s");
+}
+
 void report_html_end(FILE *out, const struct profile *p,
 		     const struct check_totals *t)
 {
 	if (t->files == 0)
 		head(out, p, t->inputs);
-	fprintf(out, "<section id=\"summary\"><h2>Summary</h2>\n<p>%zu file%s checked: "
-		"<span class=\"error\">%zu error%s</span>, <span class=\"warning\">%zu warning%s</span>, "
-		"<span class=\"note\">%zu note%s</span>.</p>\n",
-		t->files, t->files == 1 ? "" : "s", t->errors, t->errors == 1 ? "" : "s",
-		t->warnings, t->warnings == 1 ? "" : "s", t->notes, t->notes == 1 ? "" : "s");
+	skipped(out, t);
+	fputs("<section id=\"summary\"><h2>Summary</h2>\n", out);
+	counts(out, t);
 	if (t->has_baseline)
 		fprintf(out, "<p>Baseline: %zu known finding%s not shown.</p>\n", t->baselined,
 			t->baselined == 1 ? "" : "s");

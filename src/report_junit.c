@@ -159,24 +159,81 @@ static void properties(FILE *out, const struct profile *p, const struct check_to
 	fputs("    </properties>\n", out);
 }
 
+/* The diagnostics of f of one kind (errors, or warnings and notes), one
+ * "file:line:col: severity: message [code]" per line. */
+static void diag_lines(FILE *out, const struct check_file *f, int errors)
+{
+	char line[1200];
+	for (size_t i = 0; i < report_diag_n(f); i++) {
+		const struct diag *g = report_diag_at(f, i);
+		if ((g->severity == DIAG_ERROR) != errors)
+			continue;
+		report_diag_line(f, g, line, sizeof line);
+		report_xml_text(out, line);
+		fputc('\n', out);
+	}
+}
+
+/* The testcase "netlist" of every file: reading it. An <error> when it has
+ * errors (the first in the message, all in the body), the reader's
+ * warnings and notes in <system-out>. */
+static void netlist_case(FILE *out, const struct check_file *f, size_t errors)
+{
+	size_t others = report_diag_n(f) - errors;
+	fputs("    <testcase classname=\"", out);
+	report_xml_text(out, f->path);
+	fputs("\" name=\"netlist\" time=\"0\"", out);
+	if (!errors && !others && f->a->analysed) {
+		fputs("/>\n", out);
+		return;
+	}
+	fputs(">\n", out);
+	if (errors || !f->a->analysed) {
+		char why[64], line[1200] = "";
+		for (size_t i = 0; !line[0] && i < report_diag_n(f); i++)
+			if (report_diag_at(f, i)->severity == DIAG_ERROR)
+				report_diag_line(f, report_diag_at(f, i), line, sizeof line);
+		if (f->a->analysed)
+			fprintf(out, "      <error type=\"input\" message=\"%zu error%s", errors,
+				errors == 1 ? "" : "s");
+		else
+			fprintf(out, "      <error type=\"netlist\" message=\"not checked: %s",
+				report_not_checked(f, why, sizeof why));
+		fputs(line[0] ? "; the first: " : "", out);
+		report_xml_text(out, line);
+		fputs("\">", out);
+		diag_lines(out, f, 1);
+		fputs("</error>\n", out);
+	}
+	if (others) {
+		fputs("      <system-out>", out);
+		diag_lines(out, f, 0);
+		fputs("</system-out>\n", out);
+	}
+	fputs("    </testcase>\n", out);
+}
+
 void report_junit_file(FILE *out, const struct check_file *f,
 		       const struct profile *p, int first)
 {
+	size_t errors = report_diag_count(f, DIAG_ERROR);
+	size_t erred = errors || !f->a->analysed;
 	if (first)
 		fputs("<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n<testsuites name=\"headroom\">\n", out);
 	fputs("  <testsuite name=\"", out);
 	report_xml_text(out, f->path);
 	if (!f->a->analysed) {
 		fputs("\" tests=\"1\" failures=\"0\" errors=\"1\" skipped=\"0\">\n", out);
-		fputs("    <testcase classname=\"", out);
-		report_xml_text(out, f->path);
-		fputs("\" name=\"netlist\"><error type=\"netlist\" message=\"the netlist has errors\"/></testcase>\n  </testsuite>\n", out);
+		netlist_case(out, f, errors);
+		fputs("  </testsuite>\n", out);
 		return;
 	}
 	size_t tests, fails, skips;
 	counts(f, &tests, &fails, &skips);
-	fprintf(out, "\" tests=\"%zu\" failures=\"%zu\" errors=\"0\" skipped=\"%zu\">\n", tests, fails, skips);
+	fprintf(out, "\" tests=\"%zu\" failures=\"%zu\" errors=\"%zu\" skipped=\"%zu\">\n",
+		tests + 1, fails, erred, skips);
 	properties(out, p, NULL);
+	netlist_case(out, f, errors);
 	for (size_t i = 0; i < f->stress->n; i++)
 		for (const char *const *r = rules_for(f, &f->stress->s[i]); *r; r++)
 			testcase(out, f, &f->stress->s[i], *r);
@@ -187,6 +244,29 @@ void report_junit_file(FILE *out, const struct check_file *f,
 		fputs("    <system-out>", out);
 		report_xml_text(out, f->caution);
 		fputs("</system-out>\n", out);
+	}
+	fputs("  </testsuite>\n", out);
+}
+
+/* The run's own testsuite: the counts of files as properties, a skipped
+ * testcase per entry of a folder that was not checked. */
+static void files_suite(FILE *out, const struct check_totals *t)
+{
+	struct report_counts c = report_counts_of(t);
+	fprintf(out, "  <testsuite name=\"files\" tests=\"%zu\" failures=\"0\" errors=\"0\" skipped=\"%zu\">\n"
+		     "    <properties>\n"
+		     "      <property name=\"files_seen\" value=\"%zu\"/>\n"
+		     "      <property name=\"files_checked\" value=\"%zu\"/>\n"
+		     "      <property name=\"files_not_checked\" value=\"%zu\"/>\n"
+		     "      <property name=\"files_skipped\" value=\"%zu\"/>\n"
+		     "    </properties>\n",
+		c.skipped, c.skipped, c.seen, c.checked, c.not_checked, c.skipped);
+	for (size_t i = 0; i < t->nskipped; i++) {
+		fputs("    <testcase classname=\"", out);
+		report_xml_text(out, t->skipped[i].path);
+		fputs("\" name=\"skipped\" time=\"0\">\n      <skipped message=\"", out);
+		report_xml_text(out, t->skipped[i].why);
+		fputs("\"/>\n    </testcase>\n", out);
 	}
 	fputs("  </testsuite>\n", out);
 }
@@ -205,5 +285,7 @@ void report_junit_end(FILE *out, const struct profile *p, const struct check_tot
 	properties(out, p, t);
 	for (size_t i = 0; i < n; i++)
 		finding_case(out, diag_file_name(t->run_d, t->run->f[i].loc.file), &t->run->f[i]);
-	fputs("  </testsuite>\n</testsuites>\n", out);
+	fputs("  </testsuite>\n", out);
+	files_suite(out, t);
+	fputs("</testsuites>\n", out);
 }

@@ -9,6 +9,7 @@
 
 #include <math.h>
 #include <stdint.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "report_parts.h"
@@ -144,12 +145,59 @@ static void caution(FILE *out, const struct check_file *f, int first)
 		(unsigned long long)fnv("caution", f->path, NULL));
 }
 
+/* One notification: a diagnostic of a file (g), or a file as a whole
+ * (g NULL, the message in text). Each starts with a comma; the end drops
+ * the first. */
+static void notification(FILE *out, const struct check_file *f, const struct diag *g,
+			 const char *lvl, const char *text, const char *path)
+{
+	fprintf(out, ",\n        {\"level\": \"%s\", \"message\": {\"text\": ", lvl);
+	report_json_string(out, g ? g->message : text);
+	fputs("}", out);
+	if (g) {
+		fputs(", \"descriptor\": {\"id\": ", out);
+		report_json_string(out, g->code);
+		fputs("}", out);
+	}
+	fputs(",\n          \"locations\": [{\"physicalLocation\": {\"artifactLocation\": {\"uri\": ", out);
+	uri(out, g ? report_diag_file(f, g) : path);
+	fputc('}', out);
+	if (g && g->loc.line)
+		fprintf(out, ", \"region\": {\"startLine\": %u, \"startColumn\": %u}", g->loc.line,
+			g->loc.col ? g->loc.col : 1);
+	fputs("}}]}", out);
+}
+
+/* The file's diagnostics, and a not-checked file as a whole, as
+ * notifications kept for the end (they belong to the invocation). */
+static void defer_diags(const struct check_file *f, struct check_totals *t)
+{
+	char *buf = NULL;
+	size_t n = 0;
+	FILE *m = open_memstream(&buf, &n);
+	if (!m)
+		return;
+	if (!f->a->analysed) {
+		char why[64], text[96];
+		snprintf(text, sizeof text, "not checked: %s", report_not_checked(f, why, sizeof why));
+		notification(m, f, NULL, "error", text, f->path);
+	}
+	for (size_t i = 0; i < report_diag_n(f); i++) {
+		const struct diag *g = report_diag_at(f, i);
+		notification(m, f, g, level(g->severity), NULL, NULL);
+	}
+	if (fclose(m) == 0)
+		report_totals_defer(t, buf, n);
+	free(buf);
+}
+
 void report_sarif_file(FILE *out, const struct check_file *f,
 		       const struct profile *p, int first, struct check_totals *t)
 {
 	(void)p;
 	if (first)
 		head(out, t->docs_uri);
+	defer_diags(f, t);
 	if (!f->a->analysed)
 		return;
 	/* every result but the very first is preceded by a comma; a later
@@ -165,6 +213,38 @@ void report_sarif_file(FILE *out, const struct check_file *f,
 	}
 }
 
+/* The invocation: successful unless a file has netlist errors or was not
+ * checked (the exit status is 2 then), every file's diagnostics and each
+ * skipped entry as notifications, and the counts of files. */
+static void invocation(FILE *out, const struct check_totals *t, const char *draft)
+{
+	struct report_counts c = report_counts_of(t);
+	int ok = c.not_checked == 0 && t->read_errors == 0;
+	fprintf(out, "],\n    \"invocations\": [{\"executionSuccessful\": %s,\n", ok ? "true" : "false");
+	if (draft[0]) {
+		/* shown by viewers as a note about how the tool was set up */
+		fputs("      \"toolConfigurationNotifications\": [{\"level\": \"warning\", \"message\": {\"text\": ", out);
+		report_json_string(out, draft);
+		fputs("}}],\n", out);
+	}
+	fputs("      \"toolExecutionNotifications\": [", out);
+	if (t->deferred)
+		fputs(t->deferred + 1, out); /* without the first comma */
+	for (size_t i = 0; i < t->nskipped; i++) {
+		char text[512];
+		snprintf(text, sizeof text, "skipped: %s", t->skipped[i].why);
+		fputs(i || t->deferred ? "," : "", out);
+		fputs("\n        {\"level\": \"note\", \"message\": {\"text\": ", out);
+		report_json_string(out, text);
+		fputs("},\n          \"locations\": [{\"physicalLocation\": {\"artifactLocation\": {\"uri\": ", out);
+		uri(out, t->skipped[i].path);
+		fputs("}}}]}", out);
+	}
+	fprintf(out, "],\n      \"properties\": {\"filesSeen\": %zu, \"filesChecked\": %zu, "
+		     "\"filesNotChecked\": %zu, \"filesSkipped\": %zu}}]", c.seen, c.checked,
+		c.not_checked, c.skipped);
+}
+
 void report_sarif_end(FILE *out, const struct profile *p,
 		      const struct check_totals *t)
 {
@@ -172,16 +252,9 @@ void report_sarif_end(FILE *out, const struct profile *p,
 		head(out, t->docs_uri);
 	for (size_t i = 0; t->run && i < t->run->n; i++)
 		result(out, t->run_d, &t->run->f[i], t->emitted + i == 0);
-	fputs("]", out);
 	char draft[512];
 	report_draft_line(draft, sizeof draft, p);
-	if (draft[0]) {
-		/* shown by viewers as a note about how the tool was set up */
-		fputs(",\n    \"invocations\": [{\"executionSuccessful\": true, "
-		      "\"toolConfigurationNotifications\": [{\"level\": \"warning\", \"message\": {\"text\": ", out);
-		report_json_string(out, draft);
-		fputs("}}]}]", out);
-	}
+	invocation(out, t, draft);
 	fputs(",\n    \"properties\": {\"profile\": ", out);
 	report_json_string(out, p->name);
 	fprintf(out, ", \"profileDraft\": %s, \"baselineHidden\": ",

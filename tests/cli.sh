@@ -132,7 +132,8 @@ check "each finding suggests a fix" grep -q "^    fix:    use a part rated 450 V
 check "a number the analysis cannot prove says so: simulated, with the reason" grep -q "simulated, not proven: LSEC adds inductance" "$tmp/out"
 check "the stress table is printed" grep -q "^  X2.CAC  S1   voltage         ladder stage 2, coupling column" "$tmp/out"
 check "hazardous voltages carry the caution" grep -q "^caution: this design involves voltages above the hazard level" "$tmp/out"
-check "a summary closes the report" grep -q "^6 files checked: " "$tmp/out"
+check "a summary closes the report: files seen, checked, not checked, skipped" grep -q "^7 files seen: 6 checked, 0 not checked, 1 skipped$" "$tmp/out"
+check "the folder's parts table is listed as skipped, with the reason" grep -q "examples/parts.csv: skipped: name does not end in a netlist extension (see --netlist-ext)$" "$tmp/out"
 check "the mains doubler's bleeder fix gives the value and its dissipation" grep -q "fix:    add a bleeder of at most 2.435 kohm across CM1 (2.384 kohm in all: R <= t / (C ln(V / 60 V)) with t 2 s); it dissipates 52.5 W at 357.5 V" "$tmp/out"
 check "the mains doubler's stack is named by its output" grep -q "warning: the stack of 2 capacitors in series from pos to neg (output of S1) holds 715 V" "$tmp/out"
 
@@ -174,7 +175,9 @@ check "bad --fail-on is a usage error" test $rc -eq 2
 run check --profile nosuch "$ex/charge_pump.cir"
 check "unknown profile is a usage error" test $rc -eq 2
 run check "$data/two_errors.cir"
-check "netlist errors: exit 2 and the file is reported unchecked" bash -c "test $rc -eq 2 && grep -q 'not checked' '$tmp/out'"
+check "netlist errors: exit 2 and the file is reported unchecked" bash -c "test $rc -eq 2 && grep -q 'two_errors.cir: not checked: 2 netlist errors$' '$tmp/out'"
+check "the report itself lists each netlist error, located" bash -c "grep -q 'two_errors.cir:2:12: error: bad number' '$tmp/out' && grep -q 'two_errors.cir:3:11: error: syntax error, unexpected }' '$tmp/out'"
+check "the summary counts the file as not checked" grep -q "^1 file seen: 0 checked, 1 not checked, 0 skipped$" "$tmp/out"
 run check --source-tol 0 --profile basic "$ex/mains_doubler.cir"
 check "source tolerance 0: the doubler caps see 325 V" grep -q "CM2 sees 357.5 V" "$tmp/out"
 run rules
@@ -575,6 +578,76 @@ for name,t in texts.items():
             bad.append((name, m.group(0)))
 assert not bad, bad
 " "$here/.." "$bin"
+
+# Folder walks (docs/check.md): every entry under a folder is checked or
+# listed as skipped with the reason; --netlist-ext sets the endings.
+files=$data/files
+skipped_as() { # report, file name, reason: the JSON report lists it so
+	python3 -c "
+import json,sys
+d=json.load(open(sys.argv[1]))
+sys.exit(0 if [sys.argv[3]] == [k['reason'] for k in d['skipped'] if k['path'].endswith('/' + sys.argv[2])] else 1)
+" "$@"
+}
+checked_as() { # report, file name, status
+	python3 -c "
+import json,sys
+d=json.load(open(sys.argv[1]))
+sys.exit(0 if [sys.argv[3]] == [f['status'] for f in d['files'] if f['path'].endswith('/' + sys.argv[2])] else 1)
+" "$@"
+}
+export -f skipped_as checked_as
+run check --format json --fail-on never "$files"
+cp "$tmp/out" "$tmp/walk.json"
+check "a folder: a file with another ending is skipped, with the reason" skipped_as "$tmp/walk.json" notes.txt "name does not end in a netlist extension (see --netlist-ext)"
+check "a folder: a .sim file is skipped by default" skipped_as "$tmp/walk.json" pump.sim "name does not end in a netlist extension (see --netlist-ext)"
+check "a folder: a hidden file is skipped as such" skipped_as "$tmp/walk.json" .hidden.cir "hidden file"
+check "a folder: the netlists are checked, one with errors not checked" bash -c "checked_as '$tmp/walk.json' good.cir checked && checked_as '$tmp/walk.json' dc_only.sp checked && checked_as '$tmp/walk.json' broken.cir not_checked"
+run check --format json --fail-on never --netlist-ext +.sim "$files"
+cp "$tmp/out" "$tmp/walk2.json"
+check "--netlist-ext +.sim adds .sim to the endings" bash -c "checked_as '$tmp/walk2.json' pump.sim checked && checked_as '$tmp/walk2.json' good.cir checked"
+run check --format json --fail-on never --netlist-ext .SIM "$files"
+cp "$tmp/out" "$tmp/walk3.json"
+check "--netlist-ext .SIM replaces the endings, matched without regard to case" bash -c "checked_as '$tmp/walk3.json' pump.sim checked && ! checked_as '$tmp/walk3.json' good.cir checked"
+check "and the default endings are then skipped" skipped_as "$tmp/walk3.json" good.cir "name does not end in a netlist extension (see --netlist-ext)"
+mkdir -p "$tmp/walk/.svn" "$tmp/walk/sub"
+cp "$files/good.cir" "$tmp/walk/.svn/kept.cir"
+cp "$files/good.cir" "$tmp/walk/sub/run.cir.out"
+run check --format json --fail-on never "$tmp/walk"
+cp "$tmp/out" "$tmp/walk4.json"
+check "a hidden folder is one skipped entry, not walked" bash -c "grep -q 'kept.cir' '$tmp/walk4.json' && exit 1; python3 -c \"import json; d=json.load(open('$tmp/walk4.json')); assert [k['reason'] for k in d['skipped'] if k['path'].endswith('/.svn')] == ['hidden folder: not walked']\""
+check "a .cir.out file is skipped by default" skipped_as "$tmp/walk4.json" run.cir.out "name does not end in a netlist extension (see --netlist-ext)"
+run check --format json --fail-on never --netlist-ext +.cir.out "$tmp/walk"
+cp "$tmp/out" "$tmp/walk5.json"
+check "--netlist-ext takes an ending with two dots (+.cir.out)" checked_as "$tmp/walk5.json" run.cir.out checked
+deep=$tmp/deep
+for i in $(seq 1 34); do deep=$deep/d; done
+mkdir -p "$deep"
+cp "$files/good.cir" "$deep/deep.cir"
+run check --format json --fail-on never "$tmp/deep"
+check "a folder nested too deep is a skipped entry, not a silent stop" bash -c "python3 -c \"import json; d=json.load(open('$tmp/out')); assert [k['reason'] for k in d['skipped']] == ['folder nested too deep: not walked'] and d['files'] == []\""
+mkdir -p "$tmp/nonet"
+cp "$files/notes.txt" "$tmp/nonet/"
+run check "$tmp/nonet"
+check "a folder with no netlist says so on standard error and lists what it skipped" bash -c "grep -q 'no netlist found: 1 entry skipped (see --netlist-ext)' '$tmp/err' && grep -q 'notes.txt: skipped: ' '$tmp/out' && grep -q '^1 file seen: 0 checked, 0 not checked, 1 skipped$' '$tmp/out'"
+run check --format json --fail-on never "$files/notes.txt"
+check "a file named on the command line is checked whatever its ending" checked_as "$tmp/out" notes.txt checked
+for bad in cir "" + ".cir,,.sp" ".a/b" "."; do
+	run check --netlist-ext "$bad" "$files"
+	check "--netlist-ext '$bad' is a usage error that says why" bash -c "test $rc -eq 2 && grep -q -- \"--netlist-ext takes endings such as .cir,.sp or +.sim, not '$bad'\" '$tmp/err' && test ! -s '$tmp/out'"
+done
+run --help
+check "help lists --netlist-ext with the default endings" grep -q -- "--netlist-ext LIST .*" "$tmp/out"
+check "help gives the default endings" grep -q "(default .cir,.sp,.spice,.net,.ckt,.cdl)" "$tmp/out"
+if [ "$(id -u)" -ne 0 ]; then
+	mkdir -p "$tmp/locked/inner"
+	chmod 000 "$tmp/locked/inner"
+	run check --format json --fail-on never "$tmp/locked"
+	check "a folder that cannot be read is a skipped entry with the reason" skipped_as "$tmp/out" inner "folder cannot be read: permission denied"
+	chmod 700 "$tmp/locked/inner"
+else
+	echo "cli: note: running as root, so a chmod 000 folder is readable; the unreadable-folder case is not run"
+fi
 
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

@@ -2,8 +2,10 @@
 """The JSON report of `headroom check` validated against docs/report.schema.json
 (and `headroom rules --format json` against docs/rules.schema.json)
 with the jsonschema package (Debian: python3-jsonschema), on the examples
-(with their parts table), on every hand-written structure netlist, and on a
-file with netlist errors. Prints one line per document."""
+(with their parts table), on every hand-written structure netlist, on a
+file with netlist errors, and on a folder with skipped files and a reader
+warning; the summary is recomputed from the lists. Prints one line per
+document."""
 import json
 import os
 import subprocess
@@ -30,6 +32,7 @@ runs = [
     ["--parts", os.path.join(HERE, "data", "inputs", "parts_shared.csv"),
      "--waivers", os.path.join(HERE, "data", "inputs", "unused.waivers"),
      os.path.join(HERE, "data", "inputs", "batch", "probe_clamp.cir")],
+    [os.path.join(HERE, "data", "files")],
 ]
 
 
@@ -52,6 +55,26 @@ def summary_agrees(doc):
         raise ValueError("summary per_rule %s, findings give %s" % (sm["per_rule"], per_rule))
     if (sm["errors"], sm["warnings"], sm["notes"]) != (sev["error"], sev["warning"], sev["note"]):
         raise ValueError("summary counts disagree with the findings")
+    # the files: every one read is listed with its status, every skipped
+    # entry with its reason; the counts add up; the diagnostics are counted
+    status = [f["status"] for f in doc["files"]]
+    files = (sm["seen"], sm["checked"], sm["not_checked"], sm["skipped"])
+    if files != (len(status) + len(doc["skipped"]), status.count("checked"),
+                 status.count("not_checked"), len(doc["skipped"])):
+        raise ValueError("summary counts files %s, the lists give others" % (files,))
+    if sm["not_checked"] != sm["netlist_errors"] or sm["files"] != len(status):
+        raise ValueError("not_checked, netlist_errors and files disagree")
+    diags = [g["severity"] for f in doc["files"] for g in f["errors"] + f["warnings"]]
+    want = {"errors": diags.count("error"), "warnings": diags.count("warning"),
+            "notes": diags.count("note")}
+    if sm["diagnostics"] != want:
+        raise ValueError("summary diagnostics %s, the files give others" % sm["diagnostics"])
+    for f in doc["files"]:
+        if any(g["severity"] != "error" for g in f["errors"]) or \
+                any(g["severity"] == "error" for g in f["warnings"]):
+            raise ValueError("%s: an error among the warnings or the reverse" % f["path"])
+        if (f["status"] == "not_checked") != ("not_checked" in f):
+            raise ValueError("%s: not_checked given without the status or the reverse" % f["path"])
     top = sorted(ratios, reverse=True)[:5]
     got = [t["ratio"] for t in sm["most_stressed"]]
     if len(got) != len(top) or any(abs(a - b) > 1e-6 * max(1, b) for a, b in zip(got, top)):

@@ -7,6 +7,10 @@
 #    warnings; JUnit well formed (xmllint); CSV rectangular;
 #  - exit codes for each --fail-on level, a baseline round trip, waivers
 #    and their expiry (--today), an output file left alone by a failed run;
+#  - every file seen, every netlist error and reader warning in every format
+#    (tests/data/files, read back by tests/report_files.py), and the counts
+#    of files seen, checked, not checked and skipped alike in every format
+#    over the third-party corpus;
 #  - -j 1 and -j 4 byte-identical over the third-party corpus.
 # Ends with "reports: N passed, N failed".
 set -u
@@ -56,6 +60,44 @@ import csv,sys
 rows=list(csv.reader(open('$tmp/out.csv')))
 sys.exit(0 if len(rows) > 1 and len({len(r) for r in rows}) == 1 else 1)"
 
+# Files, netlist errors and reader warnings in every format: tests/data/files
+# holds a good netlist, one with two errors, one whose noise source is read
+# as DC only (a reader warning), a .txt and a .sim file and a hidden one.
+for fmt in json sarif junit csv html text; do
+	"$bin" check --format "$fmt" --fail-on never tests/data/files > "$tmp/files.$fmt" 2>/dev/null
+done
+check "the JSON report of the folder: counts, errors and the warning located, skipped files with reasons" python3 -c "
+import json,subprocess,sys
+r=json.loads(subprocess.run([sys.executable, 'tests/report_files.py', 'json', '$tmp/files.json'], capture_output=True, text=True).stdout)
+assert r['counts'] == [6, 2, 1, 3], r['counts']
+assert r['diags'] == [
+    \"tests/data/files/broken.cir:6:18: error: bad number '4.7k7': digits after the letters of a number with a decimal point or exponent\",
+    'tests/data/files/broken.cir:7:18: error: syntax error, unexpected end of line',
+    \"tests/data/files/dc_only.sp:14:16: warning: waveform 'TRNOISE' is not understood: only its DC value is used\"], r['diags']
+other = 'name does not end in a netlist extension (see --netlist-ext)'
+assert r['skipped'] == [['tests/data/files/.hidden.cir', 'hidden file'], ['tests/data/files/notes.txt', other], ['tests/data/files/pump.sim', other]], r['skipped']
+assert r['not_checked'] == ['tests/data/files/broken.cir']
+"
+for fmt in sarif junit csv html text; do
+	check "$fmt carries the same counts, each error and warning located, each skipped file with its reason" \
+		python3 tests/report_files.py compare "$tmp/files.json" "$fmt:$tmp/files.$fmt"
+done
+check "SARIF: a run with netlist errors is not executionSuccessful; the examples' run is" python3 -c "
+import json
+assert json.load(open('$tmp/files.sarif'))['runs'][0]['invocations'][0]['executionSuccessful'] is False
+assert json.load(open('$tmp/out.sarif'))['runs'][0]['invocations'][0]['executionSuccessful'] is True"
+check "JUnit: the file not checked is an <error> with the first error's location and message" grep -q '<error type="netlist" message="not checked: 2 netlist errors; the first: tests/data/files/broken.cir:6:18: error: bad number' "$tmp/files.junit"
+check "JUnit of the folder is well formed XML" xmllint --noout "$tmp/files.junit"
+check "CSV of the folder: every row has the header's columns" python3 -c "
+import csv,sys
+rows=list(csv.reader(open('$tmp/files.csv')))
+sys.exit(0 if len(rows) > 1 and len({len(r) for r in rows}) == 1 else 1)"
+check "text: the file not checked says why, on standard output" grep -q '^tests/data/files/broken.cir: not checked: 2 netlist errors$' "$tmp/files.text"
+if [ -x "$validator" ]; then
+	"$validator" validate "$tmp/files.sarif" > "$tmp/validate2.txt" 2>&1
+	check "the official SARIF validator accepts the notifications: no error, no warning" bash -c "! grep -q -E '(error|warning) SARIF' '$tmp/validate2.txt'"
+fi
+
 # exit codes
 "$bin" check $ex/sensor_restorer.cir >/dev/null 2>&1; check "error level: warnings only -> 0" test $? -eq 0
 "$bin" check --fail-on warning $ex/sensor_restorer.cir >/dev/null 2>&1; check "warning level -> 1" test $? -eq 1
@@ -84,7 +126,7 @@ cp $ex/sensor_restorer.cir $ex/mains_doubler.cir "$tmp/proj/dir/"
 (cd "$tmp/proj" && HEADROOM_RULES="$root/rules" "$abs_bin" check --fail-on never --write-baseline ci/base.json dir/ > /dev/null 2>&1)
 (cd "$tmp/proj/dir" && HEADROOM_RULES="$root/rules" "$abs_bin" check --baseline ../ci/base.json . > "$tmp/bl.txt" 2>&1)
 rc=$?
-check "a baseline written as dir/ hides the same findings when used from inside dir" bash -c "test $rc -eq 0 && grep -q '^2 files checked: 0 errors, 0 warnings, 0 notes' '$tmp/bl.txt' && grep -q '^  baseline: 6 known findings not shown' '$tmp/bl.txt'"
+check "a baseline written as dir/ hides the same findings when used from inside dir" bash -c "test $rc -eq 0 && grep -q '^2 files seen: 2 checked, 0 not checked, 0 skipped' '$tmp/bl.txt' && grep -q ' 0 errors, 0 warnings, 0 notes' '$tmp/bl.txt' && grep -q '^  baseline: 6 known findings not shown' '$tmp/bl.txt'"
 (cd "$tmp/proj/dir" && for f in json sarif junit; do HEADROOM_RULES="$root/rules" "$abs_bin" check --format $f --baseline ../ci/base.json . > "$tmp/bl.$f" 2>/dev/null; done)
 check "JSON, SARIF and JUnit say how many known findings the baseline hid" python3 -c "
 import json,sys
@@ -152,8 +194,35 @@ if [ -d "$corpus" ]; then
 	check "-j 1 and -j 4 give byte-identical reports over the corpus" cmp -s "$tmp/j1.json" "$tmp/j4.json"
 	check "and byte-identical diagnostics" cmp -s "$tmp/j1.err" "$tmp/j4.err"
 	check "the corpus report is valid JSON" python3 -c "import json; json.load(open('$tmp/j4.json'))"
+	# Every entry under the corpus is checked or skipped with a reason, and
+	# every format says so with the same numbers. One run per format (about
+	# 13 s each with -j 2 on two processors); HTML included.
+	start=$(date +%s)
+	for fmt in sarif junit csv html text; do
+		"$bin" check -j 2 --format "$fmt" --fail-on never "$corpus" > "$tmp/corpus.$fmt" 2>/dev/null
+	done
+	echo "reports: the corpus in five more formats: $(( $(date +%s) - start )) s"
+	check "over the corpus seen = the entries a walk of our own finds, netlists = checked + not checked" python3 -c "
+import json,os,sys
+d=json.load(open(sys.argv[1]))['summary']
+seen=netlists=0
+ends=('.cir', '.sp', '.spice', '.net', '.ckt', '.cdl')
+for root, dirs, files in os.walk(sys.argv[2]):
+    seen += sum(1 for x in dirs if x.startswith('.'))
+    dirs[:] = [x for x in dirs if not x.startswith('.')]
+    seen += len(files)
+    netlists += sum(1 for x in files if not x.startswith('.') and x.lower().endswith(ends))
+assert (d['seen'], d['checked'] + d['not_checked']) == (seen, netlists), (d, seen, netlists)
+assert d['seen'] == d['checked'] + d['not_checked'] + d['skipped']
+" "$tmp/j4.json" "$corpus"
+	for fmt in sarif junit csv html text; do
+		check "corpus: $fmt gives the JSON report's counts, errors, warnings and skipped entries" \
+			python3 tests/report_files.py compare "$tmp/j4.json" "$fmt:$tmp/corpus.$fmt"
+	done
 elif [ -n "${CI:-}" ]; then
 	check "the corpus is present" false
+else
+	echo "reports: SKIPPED the corpus tests (determinism, file counts in every format): no corpus at $corpus; set HEADROOM_CORPUS"
 fi
 
 echo "reports: $pass passed, $fail failed"

@@ -2,7 +2,7 @@
  * structures (audit) -> ratings -> stresses -> the transient solver
  * (--verify on circuits of up to 200 parts, held to 20 periods and 4,000
  * Newton iterations) -> rules -> waivers
- * -> the JSON and HTML reports (written to /dev/null). Includes are refused, so the
+ * -> the reports in every format (written to /dev/null). Includes are refused, so the
  * input alone decides what is read. Profile: rules/industrial.profile. */
 #include "fuzz.h"
 
@@ -44,13 +44,18 @@ static void check(const char *path, struct profile *p, FILE *sink)
 	o.verify_lim = (struct verify_limits){20, 4000};
 	o.verify_max_parts = 200; /* the solver's time grows with the circuit */
 	if (check_file_run(path, &o, &h, &r) != CHECK_OOM) {
-		struct check_totals t;
-		memset(&t, 0, sizeof t);
-		report_check_file(sink, RC_JSON, &r.f, r.profile, 1, &t);
-		report_check_end(sink, RC_JSON, r.profile, &t);
-		memset(&t, 0, sizeof t);
-		report_check_file(sink, RC_HTML, &r.f, r.profile, 1, &t);
-		report_check_end(sink, RC_HTML, r.profile, &t);
+		static const enum report_check_format fmts[] = {RC_TEXT, RC_JSON, RC_CSV,
+								 RC_JUNIT, RC_SARIF, RC_HTML};
+		const struct check_skip skip = {"notes.txt", "a skipped entry"};
+		for (size_t i = 0; i < sizeof fmts / sizeof fmts[0]; i++) {
+			struct check_totals t;
+			memset(&t, 0, sizeof t);
+			report_check_file(sink, fmts[i], &r.f, r.profile, 1, &t);
+			t.skipped = &skip;
+			t.nskipped = 1;
+			report_check_end(sink, fmts[i], r.profile, &t);
+			report_totals_free(&t);
+		}
 	}
 	check_free(&r);
 }
