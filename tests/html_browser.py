@@ -151,7 +151,7 @@ def body(exe, tmp):
     subprocess.run([BIN, "check", "--format", "html", "--fail-on", "never",
                     "--parts", "examples/parts.csv", "-o", short,
                     "examples/mains_doubler.cir"], cwd=ROOT, capture_output=True)
-    for name, size in (("desktop", "1280,3000"), ("phone", "390,6000")):
+    for name, size in (("desktop", "1280,6000"), ("phone", "390,16000")):
         shot = os.path.join(tmp, name + ".png")
         r = run_browser(exe, ["--screenshot=" + shot, "--window-size=" + size,
                               "--hide-scrollbars"], "file://" + short)
