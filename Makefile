@@ -114,6 +114,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_sim.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_families.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/verify_families.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_powerup.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_charge.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py

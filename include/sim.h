@@ -35,6 +35,7 @@ struct sim_opts {
 				   (each one a factorisation and solve);
 				   0: 20,000,000 */
 	int ideal_diodes;  /* every diode nearly ideal (SIM_IDEAL_IS, _N) */
+	int no_shooting;   /* sim_settle: plain settling only */
 };
 
 /* The nearly ideal diode: IS 1e-9 A per unit area, N 0.05 (about 27 mV
@@ -98,6 +99,8 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 struct sim_stats {
 	unsigned long points, rejected, newton, fresh_lu, refactor_lu;
 	size_t unknowns;
+	unsigned long jumps; /* sim_settle: shooting-Newton periods that
+				started from a new trial state */
 	double residual;   /* sim_settle: the last period's change of the state,
 			      relative to its largest value */
 	double settled_from; /* sim_settle: when the sources' non-repeating

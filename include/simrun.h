@@ -21,6 +21,8 @@ struct simrun_opts {
 	const unsigned char *leave_out; /* parts left out (open), or NULL */
 	double gshunt;         /* S from every node to ground (sim.h) */
 	int ideal_diodes;      /* nearly ideal diodes (sim.h) */
+	double *cap_end;       /* per part, or NULL: each capacitor's voltage
+				  where the run ends (simrun_peaks, _track) */
 	/* simrun_peaks: parts whose voltage (pin 0 minus pin 1) is sampled at
 	   trace_points even times over the recorded period (first and last
 	   included) into trace[k * trace_points + j] */
@@ -56,13 +58,15 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		  const struct hr_alloc *h, double *vmin, double *vmax,
 		  double *node_min, double *node_max, struct simrun_result *r);
 
-/* Power-up: the circuit from its zero state (every capacitor at its ic=
- * or 0, whatever o->cap_v0 says) at the corner in o, run until its steady
- * state or for max_periods; vmin and vmax (one per part) get the extremes
- * of each two-pin part's voltage over the whole run. */
-void simrun_powerup(const struct nl_circuit *c, const struct simrun_opts *o,
-		    unsigned max_periods, const struct hr_alloc *h, double *vmin,
-		    double *vmax, struct simrun_result *r);
+/* The way to the steady state: the circuit from the capacitor voltages
+ * in o->cap_v0 (NULL: the zero state, each at its ic= or 0) at the corner
+ * in o, run (plain periods: the trajectory itself is wanted) until its
+ * steady state or for max_periods; vmin and vmax (one per part) get the
+ * extremes of each two-pin part's voltage over the whole run. Power-up
+ * is this from the zero state. */
+void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
+		  unsigned max_periods, const struct hr_alloc *h, double *vmin,
+		  double *vmax, struct simrun_result *r);
 
 /* Conductance from every node to ground when parts are left out, so that
  * a node they leave floating stays defined (S). */

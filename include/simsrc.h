@@ -32,6 +32,12 @@ double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp);
 double simsrc_settled_from(const struct nl_source *src,
 			   const struct simsrc_span *sp);
 
+/* The lowest and highest value of src over one period from when it
+ * repeats (its corners and 2000 points between; a source that does not
+ * repeat: over [0, stop] or its settled part). */
+void simsrc_range(const struct nl_source *src, const struct simsrc_span *sp,
+		  double *lo, double *hi);
+
 /* The steady-state mean of src: the time average over one period of a
  * repeating source (SIN and SFFM: their offset), else the value it settles
  * at. Corner runs scale a source's mean and its variation apart. */

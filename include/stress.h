@@ -96,6 +96,9 @@ struct stress {
 	/* --verify: a pin shares a node with a part the solver left open, so
 	   the simulated value is shown but not compared with the bound */
 	int sim_near_open;
+	/* --verify: the simulated value came from the corner with the offsets
+	   and rails at the bottom of their band (else the top) */
+	int sim_low;
 };
 
 /* A simulated stress above its analytic bound by more than this (relative,
@@ -168,6 +171,11 @@ struct stress_verify {
 	size_t holds;           /* simulated further below their bound */
 	size_t gaps;            /* simulated above their bound */
 	size_t uncompared;      /* simulated beside a part left open */
+	size_t slow;            /* slow rails taken quasi-statically */
+	const char *slow_names; /* their names, comma-separated */
+	unsigned corners;       /* corners simulated: 1, or 2 with offsets and
+				   rails at the bottom of their band too */
+	int low_settled;        /* the second corner reached its steady state */
 	int powerup;            /* the power-up run ran (from the zero state) */
 	unsigned powerup_periods; /* its periods (steady, or the cap) */
 	size_t powerup_above;   /* stresses whose power-up peak tops their

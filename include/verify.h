@@ -27,6 +27,11 @@ struct verify_limits {
  * below, which the steady-state run covers). */
 #define VERIFY_POWERUP_PERIODS 100
 
+/* A source that repeats this many times more slowly than the fastest is
+ * a slow rail: held at its extremes and moved between them (quasi-static)
+ * rather than simulated through its period. */
+#define VERIFY_SLOW 20
+
 /* Simulates a's circuit and fills sim_worst of every voltage and reverse
  * stress in sr, and sr->verify. A circuit the solver cannot take (no
  * repeating source, no convergence, past the limits) is reported in

@@ -197,3 +197,47 @@ if [ $have_ngspice -eq 1 ]; then
 			"$(awk -v a="$(cat "$work/ourpk")" -v b="$(cat "$work/ngpk2")" 'BEGIN{print (b!=0)?100*(a-b)/b:0}')"
 	done
 fi
+
+# ---- the periodic steady state against ngspice's transient (docs/solver.md) ----
+# headroom sim from zero to the steady state (shooting-Newton), against the
+# time ngspice's transient from zero needs until every later period's peak
+# is within 0.3 % of the steady state (read off one long ngspice run of
+# NG periods, its time prorated to the periods needed).
+pss_vs_ngspice() { # n ngperiods
+	local n=$1 ng=$2 per=5e-05
+	cw_deck "$n" > "$work/pss$n.cir"
+	read -r ts _ < <(measure "$bin" sim "$work/pss$n.cir" --node "d$n")
+	"$bin" sim "$work/pss$n.cir" --node "d$n" 2> "$work/pss.err" |
+		awk -F, 'NR > 1 { v = $2 < 0 ? -$2 : $2; if (v > m) m = v } END { print m }' > "$work/psspk"
+	local p
+	p=$(sed -n 's/.*steady after \([0-9]*\) periods.*/\1/p' "$work/pss.err")
+	sed -e 's/^\.end$//' "$work/pss$n.cir" > "$work/ngl.cir"
+	printf '.tran %s %s 0 %s uic\n.control\nrun\nwrdata %s v(d%s)\n.endc\n.end\n' \
+		"$(awk -v t="$per" 'BEGIN{print t/200}')" "$(awk -v t="$per" -v k="$ng" 'BEGIN{print t*k}')" \
+		"$(awk -v t="$per" 'BEGIN{print t/200}')" "$work/ngl.txt" "$n" >> "$work/ngl.cir"
+	read -r tn _ < <(BENCH_RUNS=1 measure ngspice -b "$work/ngl.cir")
+	# per-period peaks; the first period from which all stay within 0.3 %
+	awk -v per="$per" -v ref="$(cat "$work/psspk")" -v ng="$ng" '
+		{ k = int($1 / per); v = $2 < 0 ? -$2 : $2; if (v > pk[k]) pk[k] = v; if (k > last) last = k }
+		END { need = -1; for (k = last - 1; k >= 0; k--) { if (pk[k] < ref * 0.997 || pk[k] > ref * 1.003) { need = k + 1; break } }
+		      if (need < 0) need = 0; printf "%d %.6g\n", need, pk[last - 1] }' "$work/ngl.txt" > "$work/ngneed"
+	read -r need ngpk < "$work/ngneed"
+	local tneed
+	tneed=$(awk -v t="$tn" -v k="$need" -v ng="$ng" 'BEGIN{print t*k/ng}')
+	printf 'ladder-%-2d-stages pss    headroom sim from zero: steady after %d periods, %.3f s, output peak %.6g V\n' \
+		"$n" "$p" "$ts" "$(cat "$work/psspk")"
+	printf '                       ngspice from zero: within 0.3 %% of it after %d periods (%.3f s of a %d-period run of %.3f s; its last peak %.6g V, %+.3f %%);\n' \
+		"$need" "$tneed" "$ng" "$tn" "$ngpk" "$(awk -v a="$(cat "$work/psspk")" -v b="$ngpk" 'BEGIN{print (b!=0)?100*(a-b)/b:0}')"
+	printf '                       ngspice / headroom = %.1fx (target >= 20x)\n' \
+		"$(awk -v a="$tneed" -v b="$ts" 'BEGIN{print (b>0)?a/b:0}')"
+}
+
+if [ $have_ngspice -eq 1 ]; then
+	echo "bench: periodic steady state against ngspice's transient from zero"
+	pss_vs_ngspice 4 2000
+	pss_vs_ngspice 20 5000
+fi
+# A 50 Hz transformer-fed full-wave doubler (tests/data/powerup): the whole
+# check with --verify (steady state and power-up).
+read -r tx mx < <(measure "$bin" check --verify --fail-on never tests/data/powerup/xfmr_fullwave_doubler.cir)
+printf 'xfmr-doubler-50Hz      check --verify %.3f s %d KB (target < 1 s)\n' "$tx" "$mx"

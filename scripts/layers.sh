@@ -47,6 +47,7 @@ simdev solver
 simsrc solver
 simmat solver
 simrun solver
+simpss solver
 profile check
 rating check
 stress check
@@ -85,6 +86,7 @@ HEADERS='
 report_formats reports
 lexctx front
 elab_state front
+simint solver
 cli program
 version base
 cli_* program

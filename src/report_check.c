@@ -78,6 +78,12 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 	if (v->left_out)
 		fprintf(out, "  left open in the simulation (no solver model): %s; %zu stresses "
 			     "beside them not compared\n", v->left_out_names, v->uncompared);
+	if (v->slow)
+		fprintf(out, "  slow rails (--verify): %s held at their lowest and highest and moved "
+			     "between them (quasi-static)\n", v->slow_names);
+	if (v->corners == 2)
+		fprintf(out, "  corners (--verify): amplitudes at +tol with the offsets and rails at the "
+			     "top and at the bottom of their band\n");
 	if (v->powerup)
 		fprintf(out, "  power-up (--verify): %u periods from the zero state; %zu stresses peak "
 			     "above their steady state\n", v->powerup_periods, v->powerup_above);
@@ -310,8 +316,11 @@ static void json_file(FILE *out, const struct check_file *f, const struct profil
 			v->started, v->confirmed, v->holds, v->gaps, v->uncompared, v->points, v->unknowns,
 			v->left_out);
 		jstr(out, v->left_out ? v->left_out_names : NULL);
-		fprintf(out, ", \"powerup\": %s, \"powerup_periods\": %u, \"powerup_above\": %zu}",
-			v->powerup ? "true" : "false", v->powerup_periods, v->powerup_above);
+		fprintf(out, ", \"powerup\": %s, \"powerup_periods\": %u, \"powerup_above\": %zu, "
+			     "\"corners\": %u, \"slow_rails\": ",
+			v->powerup ? "true" : "false", v->powerup_periods, v->powerup_above, v->corners);
+		jstr(out, v->slow ? v->slow_names : NULL);
+		fputc('}', out);
 	}
 	const struct stress_fallback *fb = f->a->analysed ? f->stress->fallback : NULL;
 	if (fb) {

@@ -174,7 +174,8 @@ static const char *simulation(struct ctx *x, const struct stress *s)
 {
 	if (!isfinite(s->sim_worst))
 		return "";
-	return str(x, "; simulated %s%s: %s", v(x, s->sim_worst, "V"), powerup(x, s),
+	return str(x, "; simulated %s%s%s: %s", v(x, s->sim_worst, "V"),
+		   s->sim_low ? " (offsets and rails at the bottom of their band)" : "", powerup(x, s),
 		   s->sim_near_open ? "not compared (beside a part the solver left open)"
 		   : stress_gap(s) ? "ABOVE the analytic bound (analysis-gap)"
 		   : stress_confirmed(s) ? "confirmed by simulation"

@@ -9,6 +9,7 @@
 
 #include "dmodel.h"
 #include "simdev.h"
+#include "simint.h"
 #include "simmat.h"
 #include "simsrc.h"
 
@@ -18,25 +19,6 @@
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
 
-struct sim {
-	struct hr_alloc h;
-	struct arena *ar;
-	const struct nl_circuit *c;
-	struct sim_opts o;
-	struct simsrc_span span;
-	size_t nnodes, n;        /* circuit nodes; unknowns */
-	struct simdev *dev;
-	size_t ndev;
-	struct simmat *m;
-	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
-	long *shunt;             /* matrix handle of each node's diagonal */
-	double t, hstep;
-	int after_corner;        /* next step is backward Euler */
-	unsigned nhist;          /* accepted points in the error history */
-	double hprev;            /* the last accepted step */
-	double period;
-	struct sim_stats st;
-};
 
 /* ---- setup ---- */
 
@@ -276,7 +258,7 @@ static double shortest_period(struct sim *s, double *longest)
 	double lo = INFINITY;
 	*longest = 0;
 	for (size_t i = 0; i < s->ndev; i++) {
-		if (!s->dev[i].src)
+		if (!s->dev[i].src || s->dev[i].ac_k == 0) /* held at a value */
 			continue;
 		double per = simsrc_period(s->dev[i].src, &s->span);
 		if (per > 0) {
@@ -378,7 +360,7 @@ void sim_destroy(struct sim *s)
 
 /* ---- one time point ---- */
 
-static void node_voltages(struct sim *s)
+void sim_node_voltages(struct sim *s)
 {
 	s->v[0] = 0;
 	for (size_t k = 1; k < s->nnodes; k++)
@@ -480,7 +462,7 @@ static void accept(struct sim *s, double h)
 		d->f0 = d->f;
 	}
 	memcpy(s->xprev, s->x, s->n * sizeof *s->x);
-	node_voltages(s);
+	sim_node_voltages(s);
 	s->st.points++;
 	s->nhist++;
 }
@@ -535,6 +517,8 @@ static enum sim_status step(struct sim *s, double t_end)
 		enum sim_status r = newton(s, &st);
 		double allowed = r == SIM_OK && s->nhist >= 3 && !be ? lte_step(s, h) : 2 * h;
 		if (r == SIM_OK && allowed >= 0.9 * h) {
+			if (s->on_step)
+				s->on_step(s, &st);
 			accept(s, h);
 			s->after_corner = hits;
 			if (hits)
@@ -556,7 +540,7 @@ static enum sim_status step(struct sim *s, double t_end)
 enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud)
 {
 	if (s->st.points == 0) {
-		node_voltages(s);
+		sim_node_voltages(s);
 		s->hstep = s->o.max_step / 10;
 		s->st.points = 1;
 	}
@@ -585,81 +569,6 @@ double sim_time(const struct sim *s)
 const double *sim_voltages(const struct sim *s)
 {
 	return s->v;
-}
-
-/* ---- periodic steady state ---- */
-
-/* The circuit's state: each capacitor's voltage and each inductor's
- * current (node voltages would do badly: a node on a fast edge at the
- * period boundary moves with the step placement, not with the state). */
-static void state_of(const struct sim *s, double *st)
-{
-	for (size_t i = 0; i < s->ndev; i++) {
-		const struct simdev *d = &s->dev[i];
-		st[i] = d->kind == SD_C && d->val != 0 ? d->q0 / d->val
-		      : d->kind == SD_L ? s->xprev[d->br] : 0;
-	}
-}
-
-/* Largest change of the state since prev, relative to the largest value
- * of its kind (capacitor voltages, inductor currents). */
-static double state_change(const struct sim *s, const double *now, const double *prev)
-{
-	double scale[2] = {1e-3, 1e-9}, change[2] = {0, 0};
-	int caps = 0;
-	for (size_t i = 0; i < s->ndev; i++) {
-		int k = s->dev[i].kind == SD_L;
-		caps |= s->dev[i].kind == SD_C;
-		scale[k] = fmax(scale[k], fabs(now[i]));
-		change[k] = fmax(change[k], fabs(now[i] - prev[i]));
-	}
-	/* with capacitors, their voltages carry the state that sets the
-	   stresses (an LC's energy swings through them too); an inductor
-	   across an ideal source keeps whatever DC current the start gave it
-	   and integration error walks it without limit or consequence */
-	return caps ? change[0] / scale[0] : change[1] / scale[1];
-}
-
-enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
-			   double tol, unsigned *periods, int *settled,
-			   sim_point_fn fn, void *ud)
-{
-	double *prev = arena_alloc(s->ar, (s->ndev + 1) * sizeof *prev);
-	double *now = arena_alloc(s->ar, (s->ndev + 1) * sizeof *now);
-	if (!prev || !now)
-		return SIM_OOM;
-	*settled = 0;
-	*periods = 0;
-	double from = 0;
-	for (size_t i = 0; i < s->ndev; i++)
-		if (s->dev[i].src)
-			from = fmax(from, simsrc_settled_from(s->dev[i].src, &s->span));
-	s->st.settled_from = from;
-	s->st.residual = NAN;
-	enum sim_status r = sim_run(s, s->t, NULL, NULL);
-	double last_change = INFINITY;
-	state_of(s, now);
-	while (r == SIM_OK && *periods < max_periods) {
-		memcpy(prev, now, s->ndev * sizeof *prev);
-		r = sim_run(s, s->t + period, fn, ud);
-		++*periods;
-		state_of(s, now);
-		double change = state_change(s, now, prev);
-		double ratio = change / last_change;
-		/* geometric decay: what is still to come is change r/(1-r) */
-		double to_come = ratio < 0.98 ? change * ratio / (1 - ratio) : INFINITY;
-		last_change = change;
-		s->st.residual = change;
-		/* a decay needs two changes to be seen: three periods at least,
-		   the first of them after the sources' delays */
-		if (r == SIM_OK && *periods >= 3 && s->t - 2 * period >= from * (1 - 1e-9) &&
-		    change < tol &&
-		    (to_come < tol || change < tol / 10)) {
-			*settled = 1;
-			break;
-		}
-	}
-	return r;
 }
 
 void sim_stats(const struct sim *s, struct sim_stats *out)

@@ -211,6 +211,7 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 	junction_charge(dm, v, id, gd, &q, &c);
 	double ic = st->a * (q - d->q0) - st->b * d->f0;
 	d->q = q; /* the charge and its current where the last stamp was made */
+	d->cj = c;
 	d->f = ic;
 	double g = gd + st->gmin + st->a * c;
 	double i = id + st->gmin * v + ic;

@@ -38,6 +38,7 @@ struct simdev {
 	 * same at the iterate */
 	double q0, f0, q, f;
 	double vd;            /* diode: junction voltage of the linearisation */
+	double cj;            /* diode: its charge's derivative there (F) */
 	double qh[3], th[3];  /* charge history for the error estimate */
 };
 

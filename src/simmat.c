@@ -179,6 +179,15 @@ const double *simmat_solve(struct simmat *m)
 	return m->b;
 }
 
+int simmat_solve_more(struct simmat *m, double *b, size_t nrhs)
+{
+	if (m->n == 0 || nrhs == 0)
+		return 1;
+	if (!m->num)
+		return 0;
+	return klu_solve(m->sym, m->num, (int)m->n, (int)nrhs, b, &m->common) != 0;
+}
+
 void simmat_counts(const struct simmat *m, unsigned long *fresh,
 		   unsigned long *refactor)
 {

@@ -40,6 +40,11 @@ void simmat_rhs(struct simmat *m, long row, double v);
  * returned. NULL when the matrix is singular or out of memory. */
 const double *simmat_solve(struct simmat *m);
 
+/* Solves the last factorised matrix for nrhs more right-hand sides, b
+ * holding them column after column (n each) and getting the solutions.
+ * Returns 0 on failure. */
+int simmat_solve_more(struct simmat *m, double *b, size_t nrhs);
+
 /* Factorisations done (fresh, numeric refactorisations). */
 void simmat_counts(const struct simmat *m, unsigned long *fresh,
 		   unsigned long *refactor);

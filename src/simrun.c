@@ -74,6 +74,17 @@ static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o
 	return s;
 }
 
+/* Each capacitor's voltage where the run stands, into end (per part). */
+static void cap_voltages(const struct nl_circuit *c, const struct sim *s, double *end)
+{
+	const double *v = sim_voltages(s);
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		const uint32_t *pin = nl_pins(c, p);
+		end[i] = p->kind == NL_C && p->npins == 2 ? v[pin[0]] - v[pin[1]] : NAN;
+	}
+}
+
 static void finish(struct sim *s, struct simrun_result *r)
 {
 	if (s) {
@@ -188,32 +199,36 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 			memcpy(vprev, sim_voltages(s), nn * sizeof *vprev);
 		track(&e, sim_time(s), sim_voltages(s));
 		r->status = sim_run(s, sim_time(s) + span, track, &e);
+		if (o->cap_end)
+			cap_voltages(c, s, o->cap_end);
 	}
 	hr_free(h, vprev);
 	finish(s, r);
 }
 
-void simrun_powerup(const struct nl_circuit *c, const struct simrun_opts *o,
-		    unsigned max_periods, const struct hr_alloc *h, double *vmin,
-		    double *vmax, struct simrun_result *r)
+void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
+		  unsigned max_periods, const struct hr_alloc *h, double *vmin,
+		  double *vmax, struct simrun_result *r)
 {
 	size_t np = nl_part_count(c);
 	for (size_t i = 0; i < np; i++)
 		vmin[i] = INFINITY, vmax[i] = -INFINITY;
 	struct simrun_opts zero = *o;
-	zero.cap_v0 = NULL;
 	zero.ntrace = 0;
 	zero.until = 0;
 	struct sim_opts so;
 	struct sim *s = NULL;
 	memset(r, 0, sizeof *r);
 	opts_of(&zero, 0, &so);
+	so.no_shooting = 1; /* the trajectory itself is wanted */
 	r->status = sim_create(c, &so, h, &s, &r->refusal);
 	if (r->status == SIM_OK && (r->period = sim_period(s)) > 0) {
 		struct extremes e = {c, vmin, vmax, NULL, NULL, &zero, 0, 0, 0, NULL, 0};
 		r->status = sim_settle(s, r->period, max_periods,
 				       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
 				       &r->periods, &r->settled, track, &e);
+		if (o->cap_end)
+			cap_voltages(c, s, o->cap_end);
 	}
 	finish(s, r);
 }

@@ -285,6 +285,26 @@ double simsrc_settled_from(const struct nl_source *src,
 	}
 }
 
+void simsrc_range(const struct nl_source *src, const struct simsrc_span *sp,
+		  double *lo, double *hi)
+{
+	double per = simsrc_period(src, sp);
+	double t0 = per > 0 ? simsrc_settled_from(src, sp) : 0;
+	double span = per > 0 ? per : fmax(sp->stop, simsrc_settled_from(src, sp));
+	if (!isfinite(t0))
+		t0 = 0;
+	*lo = *hi = simsrc_value(src, sp, t0);
+	for (int k = 1; k <= 2000; k++) {
+		double v = simsrc_value(src, sp, t0 + span * k / 2000);
+		*lo = fmin(*lo, v), *hi = fmax(*hi, v);
+	}
+	for (double t = simsrc_next_corner(src, sp, t0); t < t0 + span;
+	     t = simsrc_next_corner(src, sp, t)) {
+		double v = simsrc_value(src, sp, t);
+		*lo = fmin(*lo, v), *hi = fmax(*hi, v);
+	}
+}
+
 /* Mean of a waveform that is linear between its corners, over one period
  * from t0 (trapezoids between corners, each taken just inside its ends so
  * that a jump at a corner counts on the right side). */

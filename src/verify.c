@@ -7,32 +7,50 @@
 
 #include "num.h"
 #include "simrun.h"
+#include "simsrc.h"
 
 
-/* The corner: per part source scales and capacitor start voltages. */
+/* A pulse or piecewise-linear source scales whole: its low level stays
+ * where it is (docs/check.md, per-waveform tolerance). */
+static int scales_whole(const struct nl_part *pt)
+{
+	const struct nl_source *s = pt->ext ? pt->ext->src : NULL;
+	return s && (s->wave == NL_WAVE_PULSE || s->wave == NL_WAVE_PWL);
+}
+
+/* The corners (VERIFY_CORNERS): every amplitude at +tol; the offsets and
+ * rails at the top of their band (low 0) or at the bottom (low 1). Per
+ * part source scales and capacitor start voltages; *moves is set when the
+ * low corner differs from the high one. */
 static int corner(const struct audit *a, struct arena *ar, const struct profile *p,
 		  const struct stress_result *sr, struct simrun_opts *o,
-		  size_t *started)
+		  size_t *started, int low, int *moves)
 {
 	const struct nl_circuit *c = a->er.circuit;
 	size_t np = nl_part_count(c);
 	double *k = arena_alloc(ar, (np + 1) * sizeof *k);
+	double *dk = arena_alloc(ar, (np + 1) * sizeof *dk);
 	double *set = arena_alloc(ar, (np + 1) * sizeof *set);
 	double *v0 = arena_alloc(ar, (np + 1) * sizeof *v0);
-	if (!k || !set || !v0)
+	if (!k || !dk || !set || !v0)
 		return 0;
 	*started = 0;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		k[i] = pt->kind == NL_V ? 1 + stress_tolerance(a, p, (uint32_t)i) : 1;
-		set[i] = pt->kind == NL_V ? a->sources[i].max : NAN;
+		double tol = pt->kind == NL_V ? stress_tolerance(a, p, (uint32_t)i) : 0;
+		int whole = scales_whole(pt);
+		k[i] = 1 + tol;
+		dk[i] = low && !whole ? 1 - tol : 1 + tol;
+		set[i] = pt->kind != NL_V ? NAN : low ? a->sources[i].min : a->sources[i].max;
+		if (pt->kind == NL_V && ((tol > 0 && !whole) || isfinite(a->sources[i].min)))
+			*moves = 1;
 		v0[i] = pt->kind == NL_C && pt->npins == 2 ? stress_low_dc(a, sr, ar, pt) : NAN;
 		if (isfinite(v0[i]))
 			(*started)++;
 	}
 	memset(o, 0, sizeof *o);
 	o->ac_scale = k;
-	o->dc_scale = k;
+	o->dc_scale = dk;
 	o->dc_set = set;
 	o->cap_v0 = v0;
 	return 1;
@@ -69,7 +87,7 @@ static int near_open(const struct nl_circuit *c, uint32_t part,
 
 static void record(struct stress_result *sr, const double *vmin, const double *vmax,
 		   const struct nl_circuit *c, const struct simrun_opts *o,
-		   const unsigned char *open_node)
+		   const unsigned char *open_node, const unsigned char *low)
 {
 	for (size_t i = 0, k = 0; i < sr->n; i++) {
 		struct stress *s = &sr->s[i];
@@ -84,7 +102,47 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 		s->sim_worst = diode ? fmax(-vmin[s->part], 0)
 				     : fmax(vmax[s->part], -vmin[s->part]);
 		s->sim_near_open = near_open(c, s->part, open_node);
+		s->sim_low = low && low[s->part];
 	}
+}
+
+/* The second corner: amplitudes at +tol, offsets and rails at the bottom
+ * of their band. Its extremes join vmin and vmax part by part; the mask
+ * it returns (NULL on out-of-memory) marks the parts whose extreme it set.
+ * A run that fails leaves the first corner's values and says so in v. */
+static unsigned char *low_corner(const struct audit *a, struct arena *ar,
+				 const struct profile *p, const struct stress_result *sr,
+				 const struct verify_limits *lim, const struct simrun_opts *hi,
+				 double *vmin, double *vmax, struct stress_verify *v)
+{
+	const struct nl_circuit *c = a->er.circuit;
+	size_t np = nl_part_count(c), started;
+	struct simrun_opts o;
+	int moves = 0;
+	double *lo_min = arena_alloc(ar, (np + 1) * sizeof *lo_min);
+	double *lo_max = arena_alloc(ar, (np + 1) * sizeof *lo_max);
+	unsigned char *won = arena_zalloc(ar, np + 1);
+	if (!lo_min || !lo_max || !won || !corner(a, ar, p, sr, &o, &started, 1, &moves))
+		return NULL;
+	o.leave_out = hi->leave_out;
+	o.gshunt = hi->gshunt;
+	o.max_periods = lim ? lim->max_periods : 0;
+	o.max_work = lim ? lim->max_work : 0;
+	struct hr_alloc h = hr_alloc_default();
+	struct simrun_result r;
+	simrun_peaks(c, &o, &h, lo_min, lo_max, NULL, NULL, &r);
+	v->corners = 1;
+	if (r.status != SIM_OK)
+		return won;
+	v->corners = 2;
+	v->low_settled = r.settled;
+	for (size_t i = 0; i < np; i++) {
+		double before = fmax(vmax[i], -vmin[i]);
+		vmin[i] = fmin(vmin[i], lo_min[i]);
+		vmax[i] = fmax(vmax[i], lo_max[i]);
+		won[i] = fmax(vmax[i], -vmin[i]) > before;
+	}
+	return won;
 }
 
 /* The counts, once both runs are in. */
@@ -121,7 +179,10 @@ static void powerup(const struct audit *a, const struct verify_limits *lim,
 		cap = lim->max_periods;
 	struct simrun_result r;
 	if (lo && hi) {
-		simrun_powerup(c, o, cap, &h, lo, hi, &r);
+		struct simrun_opts zero = *o;
+		zero.cap_v0 = NULL;
+		zero.cap_end = NULL;
+		simrun_track(c, &zero, cap, &h, lo, hi, &r);
 		if (r.status == SIM_OK) {
 			v->powerup = 1;
 			v->powerup_periods = r.periods;
@@ -138,6 +199,101 @@ static void powerup(const struct audit *a, const struct verify_limits *lim,
 	}
 	hr_free(&h, lo);
 	hr_free(&h, hi);
+}
+
+/* The sources that repeat VERIFY_SLOW times more slowly than the fastest
+ * (a supply rail sagging at 2 Hz under a 5 kHz signal): held at their
+ * extremes instead of simulated through (quasi-static, docs/solver.md).
+ * Marks them in slow; returns how many there are. */
+static size_t slow_sources(const struct nl_circuit *c, unsigned char *slow)
+{
+	const struct simsrc_span span = {0, 0};
+	double fastest = INFINITY;
+	size_t np = nl_part_count(c), n = 0;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		const struct nl_source *s = pt->ext ? pt->ext->src : NULL;
+		double per = pt->kind == NL_V && s ? simsrc_period(s, &span) : 0;
+		if (per > 0)
+			fastest = fmin(fastest, per);
+	}
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		const struct nl_source *s = pt->ext ? pt->ext->src : NULL;
+		double per = pt->kind == NL_V && s ? simsrc_period(s, &span) : 0;
+		slow[i] = per > VERIFY_SLOW * fastest;
+		n += slow[i];
+	}
+	return n;
+}
+
+/* The held values of the slow sources at the corner in o: each one's
+ * lowest (lo) and highest (hi) value, the corner's scales applied; o is
+ * changed to hold them at hi. Names them in v. Returns 0 on
+ * out-of-memory. */
+static int hold_slow(const struct nl_circuit *c, struct arena *ar, const unsigned char *slow,
+		     struct simrun_opts *o, double **lo, double **hi, struct stress_verify *v)
+{
+	const struct simsrc_span span = {0, 0};
+	size_t np = nl_part_count(c), len = 0;
+	double *ac = arena_alloc(ar, (np + 1) * sizeof *ac);
+	*lo = arena_alloc(ar, (np + 1) * sizeof **lo);
+	*hi = arena_alloc(ar, (np + 1) * sizeof **hi);
+	char names[200] = "";
+	if (!ac || !*lo || !*hi)
+		return 0;
+	for (size_t i = 0; i < np; i++) {
+		ac[i] = o->ac_scale[i];
+		(*lo)[i] = (*hi)[i] = o->dc_set[i];
+		if (!slow[i])
+			continue;
+		const struct nl_source *s = nl_part_at(c, i)->ext->src;
+		double a, b, m = simsrc_mean(s, &span);
+		simsrc_range(s, &span, &a, &b);
+		double base = isnan(o->dc_set[i]) ? m * o->dc_scale[i] : o->dc_set[i];
+		(*lo)[i] = base + (a - m) * o->ac_scale[i];
+		(*hi)[i] = base + (b - m) * o->ac_scale[i];
+		ac[i] = 0;
+		if (len < sizeof names)
+			len += (size_t)snprintf(names + len, sizeof names - len, "%s%s",
+						len ? ", " : "", nl_part_at(c, i)->path);
+	}
+	o->ac_scale = ac;
+	o->dc_set = *hi;
+	v->slow_names = arena_strdup(ar, names);
+	return v->slow_names != NULL;
+}
+
+/* The excursion of the slow sources: from the steady state at their top
+ * (o, its capacitors' end voltages in end), moved to their bottom and run
+ * to that steady state, then moved back to the top; every point of both
+ * ways joins vmin and vmax. */
+static int excursion(const struct nl_circuit *c, struct arena *ar,
+		     const struct verify_limits *lim, const struct simrun_opts *o,
+		     double *lo, double *end, double *vmin, double *vmax)
+{
+	size_t np = nl_part_count(c);
+	double *a = arena_alloc(ar, (np + 1) * sizeof *a);
+	double *b = arena_alloc(ar, (np + 1) * sizeof *b);
+	double *end2 = arena_alloc(ar, (np + 1) * sizeof *end2);
+	if (!a || !b || !end2)
+		return 0;
+	struct hr_alloc h = hr_alloc_default();
+	unsigned cap = lim && lim->max_periods ? lim->max_periods : 0;
+	for (int leg = 0; leg < 2; leg++) {
+		struct simrun_opts x = *o;
+		struct simrun_result r;
+		x.ntrace = 0;
+		x.dc_set = leg == 0 ? lo : o->dc_set;
+		x.cap_v0 = leg == 0 ? end : end2;
+		x.cap_end = leg == 0 ? end2 : NULL;
+		simrun_track(c, &x, cap ? cap : 2000, &h, a, b, &r);
+		if (r.status != SIM_OK)
+			return r.status == SIM_OOM ? 0 : 1;
+		for (size_t i = 0; i < np; i++)
+			vmin[i] = fmin(vmin[i], a[i]), vmax[i] = fmax(vmax[i], b[i]);
+	}
+	return 1;
 }
 
 /* Parts the solver has no model for are left out (open) and named; a
@@ -190,11 +346,24 @@ int verify_run(const struct audit *a, const struct profile *p, const struct veri
 	struct simrun_opts o;
 	double *vmin = arena_alloc(ar, (np + 1) * sizeof *vmin);
 	double *vmax = arena_alloc(ar, (np + 1) * sizeof *vmax);
-	if (!vmin || !vmax || !corner(a, ar, p, sr, &o, &v->started) || !traces(ar, sr, &o))
+	int moves = 0;
+	if (!vmin || !vmax || !corner(a, ar, p, sr, &o, &v->started, 0, &moves) ||
+	    !traces(ar, sr, &o))
 		return 0;
 	if (lim) {
 		o.max_periods = lim->max_periods;
 		o.max_work = lim->max_work;
+	}
+	unsigned char *slow = arena_zalloc(ar, np + 1);
+	double *lo = NULL, *hi = NULL, *end = arena_alloc(ar, (np + 1) * sizeof *end);
+	if (!slow || !end)
+		return 0;
+	v->slow = slow_sources(c, slow);
+	if (v->slow) {
+		if (!hold_slow(c, ar, slow, &o, &lo, &hi, v))
+			return 0;
+		o.cap_end = end;
+		moves = 0; /* the excursion takes the rails to both ends */
 	}
 	struct hr_alloc h = hr_alloc_default();
 	struct simrun_result r;
@@ -240,7 +409,13 @@ int verify_run(const struct audit *a, const struct profile *p, const struct veri
 		return v->why != NULL;
 	}
 	v->simulated = 1;
-	record(sr, vmin, vmax, c, &o, open_node);
+	if (v->slow && !excursion(c, ar, lim, &o, lo, end, vmin, vmax))
+		return 0;
+	o.cap_end = NULL;
+	unsigned char *low = moves ? low_corner(a, ar, p, sr, lim, &o, vmin, vmax, v) : NULL;
+	if (moves && !low)
+		return 0;
+	record(sr, vmin, vmax, c, &o, open_node, low);
 	powerup(a, lim, &o, sr, v);
 	tally(sr, v);
 	return 1;

@@ -1,0 +1,50 @@
+/* simint.h: the solver's state, shared by sim.c (the time loop) and
+ * simpss.c (the periodic steady state) only. */
+#ifndef HEADROOM_SIMINT_H
+#define HEADROOM_SIMINT_H
+
+#include "arena.h"
+#include "sim.h"
+#include "simdev.h"
+#include "simmat.h"
+#include "simsrc.h"
+
+/* Sensitivities of the charge-storing devices' history to the state at
+ * the start of a shooting period (simpss.c): per device, m entries each. */
+struct sim_sens {
+	size_t m;                /* state entries (capacitors, inductors) */
+	uint32_t *dev_of;        /* state entry -> device */
+	double *dq0, *df0, *dqh1; /* ndev x m: d q0, d f0, d qh[1] */
+	double *dqn;             /* ndev x m: the step's new d q */
+	double *rhs;             /* n x m: right-hand sides, then dx */
+	int broken;              /* a solve failed: the sensitivities are void */
+};
+
+struct sim {
+	struct hr_alloc h;
+	struct arena *ar;
+	const struct nl_circuit *c;
+	struct sim_opts o;
+	struct simsrc_span span;
+	size_t nnodes, n;        /* circuit nodes; unknowns */
+	struct simdev *dev;
+	size_t ndev;
+	struct simmat *m;
+	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
+	long *shunt;             /* matrix handle of each node's diagonal */
+	double t, hstep;
+	int after_corner;        /* next step is backward Euler */
+	unsigned nhist;          /* accepted points in the error history */
+	double hprev;            /* the last accepted step */
+	double period;
+	struct sim_stats st;
+	struct sim_sens *sens;    /* shooting: sensitivities to track, or NULL */
+	/* called at every accepted step before its charges become the
+	   history (simpss.c sets it while shooting), or NULL */
+	void (*on_step)(struct sim *s, const struct simdev_step *st);
+};
+
+/* Shared with simpss.c: node voltages from the iterate. */
+void sim_node_voltages(struct sim *s);
+
+#endif
