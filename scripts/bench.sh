@@ -177,12 +177,9 @@ if [ $have_ngspice -eq 1 ]; then
 		"$bin" check --verify --format json --fail-on never "$work/cw$n.cir" > "$work/v.json"
 		p=$(python3 -c "import json,sys; print(json.load(open(sys.argv[1]))['files'][0]['verify']['periods'])" "$work/v.json")
 		read -r tv mv < <(measure "$bin" check --verify --format json --fail-on never "$work/cw$n.cir")
-		tstop=$(awk -v p="$p" -v t="$per" 'BEGIN{print (p+1)*t}')
-		tn=$(ngspice_tran "$work/cw$n.cir" "$tstop" "$(awk -v t="$per" 'BEGIN{print t/200}')" "d$n" "$per" "$work/ngpk")
-		printf 'ladder-%-2d-stages       check --verify %6.3f s %6d KB: steady after %d periods from the analytic start;\n' \
+		printf 'ladder-%-2d-stages       check --verify %6.3f s %6d KB: steady after %d periods from the analytic start\n' \
 			"$n" "$tv" "$mv" "$p"
-		printf '                       ngspice over the same %g s from zero: %.3f s; ngspice / headroom = %.2fx (goal >= 1)\n' \
-			"$tstop" "$tn" "$(awk -v a="$tn" -v b="$tv" 'BEGIN{print (b>0)?a/b:0}')"
+		printf '                       (two corners and the power-up run included; against ngspice: the steady-state section below)\n'
 		# the solver alone, both from zero over the same time and step
 		T=$(awk -v t="$per" 'BEGIN{print 200*t}')
 		read -r ts _ < <(measure "$bin" sim "$work/cw$n.cir" --node "d$n" --until "$T")
