@@ -14,6 +14,8 @@
 
 enum el { EL_NONE, EL_CLAMP, EL_DET, EL_PUMP, EL_DC };
 
+#define TOPO_SLOW_RAIL 20 /* periods: a reference this much slower is a rail */
+
 struct ctx {
 	const struct nl_circuit *c;
 	const struct prop_result *p;
@@ -227,6 +229,16 @@ static uint32_t ref_of(const struct ctx *x, uint32_t node)
 	return other_end(x, P(x, node)->by, node);
 }
 
+/* A reference that moves TOPO_SLOW_RAIL times more slowly than the node
+ * it holds is a rail that sags or wobbles (a supply under a fast signal),
+ * not a clock: the element is a clamp to a moving rail. */
+static int slow_rail(const struct ctx *x, const struct form *node, const struct form *ref)
+{
+	int e1, e2;
+	double pn = form_period(&x->p->fc, node, &e1), pr = form_period(&x->p->fc, ref, &e2);
+	return pn > 0 && pr >= TOPO_SLOW_RAIL * pn;
+}
+
 static void classify(struct ctx *x)
 {
 	for (uint32_t id = 0; id < x->p->nnodes; id++) {
@@ -238,6 +250,8 @@ static void classify(struct ctx *x)
 		if (P(x, r)->state != PS_RESOLVED)
 			continue;
 		int ac = !form_is_dc(n->f), rac = !form_is_dc(P(x, r)->f);
+		if (ac && rac && slow_rail(x, n->f, P(x, r)->f))
+			rac = 0; /* a clamp on a slowly moving rail, not a pump */
 		x->el[id] = ac && rac ? EL_PUMP : ac ? EL_CLAMP : rac ? EL_DET : EL_DC;
 	}
 	for (uint32_t id = (uint32_t)x->p->nnodes; id-- > 0;) {

@@ -13,6 +13,7 @@
 #include <dirent.h>
 #include <math.h>
 #include <strings.h>
+#include <unistd.h>
 
 #include "audit.h"
 
@@ -193,6 +194,37 @@ static void test_hand_netlists(void **state)
 	assert_int_equal(bad, 0);
 }
 
+/* A rail written as a slow SIN (2 Hz under a 5 kHz signal) is a rail that
+ * sags, not a clock: the diode to it makes a clamp on a moving rail, not a
+ * pump stage (the rail 250 times slower than the node it holds). The
+ * ranges by hand: the rail 4.5 .. 5.5 V; C1 charges at the rail's bottom
+ * to 10 - 4.5 = 5.5 V and keeps it (nothing discharges it), so x = in -
+ * 5.5 V swings -15.5 .. 4.5 V, and D1 blocks up to 5.5 + 15.5 = 21 V. */
+static void test_slow_sin_rail(void **state)
+{
+	(void)state;
+	char path[] = "/tmp/headroom_topo_XXXXXX";
+	int fd = mkstemp(path);
+	assert_true(fd >= 0);
+	const char *deck =
+		"ceiling clamp on a sagging rail\n"
+		"*! structures 1\n"
+		"*! struct output=x kind=clamp-ceiling stages=0.5 polarity=negative drive=in reference=vdd\n"
+		"*! role C1 coupling cap\n"
+		"*! role D1 clamp diode\n"
+		"*! range vdd 4.5 5.5\n"
+		"*! range x -15.5 4.5\n"
+		"VDD vdd 0 SIN(5 0.5 2)\nV1 in 0 SIN(0 10 5k)\nC1 in x 10n\nD1 x vdd dideal\n"
+		".model dideal d(is=1e-9 n=0.05)\n.end\n";
+	assert_true(write(fd, deck, strlen(deck)) == (ssize_t)strlen(deck));
+	close(fd);
+	int checks = 0;
+	int bad = check_file(path, &checks);
+	unlink(path);
+	assert_int_equal(checks, 6);
+	assert_int_equal(bad, 0);
+}
+
 /* N-stage half-wave Cockcroft-Walton ladder, flat, driven by Vp = 10 V:
  * textbook (Kuffel, Zaengl & Kuffel, High Voltage Engineering
  * Fundamentals, 2nd ed., section 2.2, from memory; also docs/sources.md §3):
@@ -292,6 +324,7 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_hand_netlists),
 		cmocka_unit_test(test_ladders),
+		cmocka_unit_test(test_slow_sin_rail),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
