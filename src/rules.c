@@ -496,8 +496,22 @@ static void recovery(struct ctx *x, const struct stress *s)
 static void surge_rules(struct ctx *x, const struct stress *s)
 {
 	const struct rating *r = &x->r[s->part];
-	if (!s->bounded)
+	if (!s->bounded) {
+		/* no number is no verdict: said, never dropped */
+		struct finding *f = add(x, RULE_STRESS_UNSETTLED, s->part, s->structure);
+		if (f) {
+			f->unit = "A";
+			f->message = str(x, "the power-up surge through %s has no worst case (%s)",
+					 f->subject, where(x, s));
+			f->computation = str(x, "not proven: %s", s->unproven ? s->unproven
+				: "the surge is the peak drive over the series resistance, known only where the "
+				  "analysis settles the structure's nodes; the solver does not simulate it");
+			f->fix = "simulate the switch-on at the highest input with the source's real "
+				 "impedance and compare the peak current with the diode's surge rating, or "
+				 "waive this finding with the reason";
+		}
 		return;
+	}
 	if (s->series_r <= 0) {
 		struct finding *f = add(x, RULE_SURGE_UNBOUNDED, s->part, s->structure);
 		if (!f)

@@ -381,6 +381,29 @@ static void test_verify_delay(void **state)
 	checked_free(&c);
 }
 
+/* A stress without a number is never dropped: a bridge on a floating
+ * source (the analysis does not settle its nodes; the solver gives the
+ * reverse voltages) has no power-up surge figure, and each diode's surge
+ * is a stress-unsettled warning that says why. */
+static void test_surge_without_number(void **state)
+{
+	(void)state;
+	struct checked c;
+	check_text(&c, "bridge\nVS a b SIN(0 15 60)\nD1 0 a dm\nD2 a out dm\nD3 0 b dm\n"
+		       "D4 b out dm\nRL out 0 2k\n.model dm d is=1e-14\n", "industrial", 0.10, 0);
+	const struct stress *s = stress_of(&c, "D1", SQ_SURGE);
+	assert_non_null(s);
+	assert_false(s->bounded);
+	int n = 0;
+	for (size_t i = 0; i < c.run.rr.n; i++) {
+		const struct finding *f = &c.run.rr.f[i];
+		if (strcmp(f->rule->id, "stress-unsettled") == 0 && strstr(f->message, "power-up surge"))
+			n++;
+	}
+	assert_int_equal(n, 4);
+	checked_free(&c);
+}
+
 /* Every allocation of the whole check (analysis, ratings, stresses, the
  * solver, rules, waivers) fails in turn: each run must end CHECK_OOM, or
  * CHECK_OK once N is past the last allocation, never a crash or a leak
@@ -467,6 +490,7 @@ int main(void)
 		cmocka_unit_test(test_ladder_regulation),
 		cmocka_unit_test(test_verify),
 		cmocka_unit_test(test_verify_delay),
+		cmocka_unit_test(test_surge_without_number),
 		cmocka_unit_test(test_check_every_failure),
 		cmocka_unit_test(test_proof_basis),
 	};
