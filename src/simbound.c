@@ -196,6 +196,19 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 	return 1;
 }
 
+/* A part kept as opaque, its connections not known, could touch any node
+ * of its subcircuit instance (or, at the top level, of the circuit): every
+ * island with a part of that instance gets no simulated number. */
+static void block_instance(struct sb *b, const char *path)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	const char *dot = strrchr(path, '.');
+	size_t n = dot ? (size_t)(dot - path) + 1 : 0;
+	for (size_t i = 0; i < nl_part_count(c); i++)
+		if (strncmp(nl_part_at(c, i)->path, path, n) == 0 && b->sr->island[i] != NL_NONE)
+			b->acc.blocked[b->sr->island[i]] = 1;
+}
+
 /* Parts the solver has no model for are left open; their islands get no
  * simulated number (the circuit simulated would not be the real one). */
 static int leave_out(struct sb *b)
@@ -206,9 +219,12 @@ static int leave_out(struct sb *b)
 	unsigned char *mask = simrun_unsupported(c, b->ar, &count, &first);
 	if (!mask)
 		return 0;
-	for (size_t i = 0; i < nl_part_count(c); i++)
+	for (size_t i = 0; i < nl_part_count(c); i++) {
 		if (mask[i] && b->sr->island[i] != NL_NONE)
 			b->acc.blocked[b->sr->island[i]] = 1;
+		if (mask[i] && nl_part_at(c, i)->npins == 0)
+			block_instance(b, nl_part_at(c, i)->path);
+	}
 	if (count) {
 		char buf[1500];
 		snprintf(buf, sizeof buf, "%s has no model in the solver either (%s)",

@@ -296,6 +296,24 @@ static int excursion(const struct nl_circuit *c, struct arena *ar,
 	return 1;
 }
 
+/* A part kept as opaque, its connections not known, could touch any node
+ * of its subcircuit instance (at the top level: of the circuit): all of
+ * them count as beside a part left open. */
+static void open_instance(const struct nl_circuit *c, const char *path, unsigned char *nodes)
+{
+	const char *dot = strrchr(path, '.');
+	size_t n = dot ? (size_t)(dot - path) + 1 : 0;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		const uint32_t *pin = nl_pins(c, pt);
+		if (strncmp(pt->path, path, n) != 0)
+			continue;
+		for (uint8_t k = 0; k < pt->npins; k++)
+			if (pin[k] != NL_GROUND)
+				nodes[pin[k]] = 1;
+	}
+}
+
 /* Parts the solver has no model for are left out (open) and named; a
  * small shunt from every node to ground keeps what they leave floating
  * defined. The analysis ignores such parts too, so both judge the same
@@ -321,6 +339,8 @@ static int leave_out(const struct audit *a, struct arena *ar, struct simrun_opts
 		for (uint8_t k = 0; k < pt->npins; k++)
 			if (pin[k] != NL_GROUND)
 				nodes[pin[k]] = 1;
+		if (pt->npins == 0)
+			open_instance(c, pt->path, nodes);
 		if (v->left_out++ < 4 && len < sizeof names)
 			len += (size_t)snprintf(names + len, sizeof names - len, "%s%s",
 						len ? ", " : "", nl_part_at(c, i)->path);

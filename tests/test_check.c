@@ -404,6 +404,25 @@ static void test_surge_without_number(void **state)
 	checked_free(&c);
 }
 
+/* A part the reader keeps as opaque (an XSPICE switch: its connections
+ * not known) could touch any node of its subcircuit instance: no part of
+ * that instance may get a simulated number as if it were absent. */
+static void test_opaque_instance(void **state)
+{
+	(void)state;
+	struct checked c;
+	check_text(&c, "latch\n.subckt latch k g\nCL k n 1u\nRL n 0 1k\nAS n (k g) sw\n"
+		       ".model sw aswitch(cntl_off=0 cntl_on=1 r_on=1 r_off=1e12)\n.ends\n"
+		       "V1 a 0 sin(0 10 1k)\nCA a k 1u\nDA 0 k dm\nX1 k 0 latch\n.model dm d\n",
+		   "industrial", 0.10, 0);
+	const struct stress *s = stress_of(&c, "X1.CL", SQ_VOLTAGE);
+	assert_non_null(s);
+	assert_int_equal(s->basis, SB_NONE);
+	assert_false(s->bounded);
+	assert_true(fired(&c, "stress-unsettled", "X1.CL"));
+	checked_free(&c);
+}
+
 /* Every allocation of the whole check (analysis, ratings, stresses, the
  * solver, rules, waivers) fails in turn: each run must end CHECK_OOM, or
  * CHECK_OK once N is past the last allocation, never a crash or a leak
@@ -491,6 +510,7 @@ int main(void)
 		cmocka_unit_test(test_verify),
 		cmocka_unit_test(test_verify_delay),
 		cmocka_unit_test(test_surge_without_number),
+		cmocka_unit_test(test_opaque_instance),
 		cmocka_unit_test(test_check_every_failure),
 		cmocka_unit_test(test_proof_basis),
 	};
