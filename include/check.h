@@ -28,6 +28,7 @@ struct check_opts {
 	int profile_fixed;               /* 1: *@profile lines are not obeyed */
 	const char *argv0;               /* where named profiles are looked up */
 	const struct rating_table *parts;/* the parts table all files share, or NULL */
+	const struct bom *bom;           /* the BOM all files share, or NULL */
 	const struct waiver_file *waivers;/* --waivers, or NULL */
 	const struct baseline *baseline; /* --baseline, or NULL */
 	const char *today;               /* YYYY-MM-DD, for waiver expiry */
