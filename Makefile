@@ -107,6 +107,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@set -e; for t in $(TESTS); do echo "== $$t"; \
 		HEADROOM=$(BUILD)/headroom $$t; done
 	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/bom.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/hostile.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py

@@ -100,6 +100,7 @@ struct reader {
 	unsigned fline, fcol;    /* where the current field started */
 	size_t fat;
 	int need_start, row_end; /* a field starts at the next byte fed */
+	size_t quotes;           /* '"' bytes in the field so far */
 	struct cell cells[BOM_MAX_CELLS];
 	int ncells, too_many;
 	int map[BOM_MAX_CELLS];  /* header: the role of each column */
@@ -305,12 +306,11 @@ static void read_voltage(struct reader *r, struct row *w, const struct cell *c)
 	enum bomval_status st = bomval_voltage(c->text, c->len, 1, &v, &why);
 	w->rated |= st != BOMVAL_NONE;
 	if (st == BOMVAL_BAD)
-		row_issue(r, w, c->line, c->col, "voltage '%.*s' cannot be read: %s", (int)c->len, c->text,
-			  why);
+		row_issue(r, w, c->line, at_col(c, 0), "voltage '%s' cannot be read: %s", c->text, why);
 	if (st != BOMVAL_OK)
 		return;
 	w->e.v_rated = v;
-	w->e.v_loc = (struct diag_loc){0, c->line, c->col};
+	w->e.v_loc = (struct diag_loc){0, c->line, at_col(c, 0)};
 }
 
 /* A value, description or kind text: what it gives where the row has
@@ -321,10 +321,14 @@ static void read_text(struct reader *r, struct row *w, const struct cell *c, int
 	struct bomval_text t;
 	bomval_scan(c->text, c->len, kind_column, &t);
 	w->rated |= kind_column && c->len && t.nissues;
-	for (unsigned i = 0; i < t.nissues; i++)
-		row_issue(r, w, c->line, at_col(c, t.issue[i].off), "%s '%.*s' in '%.*s': %s", what,
-			  (int)t.issue[i].len, c->text + t.issue[i].off, (int)c->len, c->text,
-			  t.issue[i].why);
+	for (unsigned i = 0; i < t.nissues; i++) {
+		const struct bomval_item *it = &t.issue[i];
+		if (it->len == c->len)
+			row_issue(r, w, c->line, at_col(c, it->off), "%s '%s': %s", what, c->text, it->why);
+		else
+			row_issue(r, w, c->line, at_col(c, it->off), "%s '%.*s' in '%s': %s", what,
+				  (int)it->len, c->text + it->off, c->text, it->why);
+	}
 	if (!isnan(t.v) && isnan(w->e.v_rated)) {
 		w->e.v_rated = t.v;
 		w->e.v_loc = (struct diag_loc){0, c->line, at_col(c, t.v_at.off)};
@@ -522,14 +526,22 @@ static int parse(struct reader *r, const char *s, size_t n, struct diag_loc l)
 		if (r->need_start && !(r->row_end && (ch == '\r' || ch == '\n'))) {
 			r->fline = r->line, r->fcol = r->col, r->fat = i;
 			r->need_start = r->row_end = 0;
+			r->quotes = 0;
 		}
+		r->quotes += ch == '"';
 		r->at = i;
 		if (csv_parse(&p, s + i, 1, on_field, on_record, r) != 1)
 			r->oom = 1;
 		r->col = ch == '\n' ? 1 : r->col + 1;
 		r->line += ch == '\n';
 	}
-	int ok = !r->oom && csv_fini(&p, on_field, on_record, r) == 0;
+	/* libcsv reads an unclosed quote as a cell running to the end of the
+	 * file; an odd count of quotes in a cell that starts with one is that */
+	size_t q = r->fat;
+	while (!r->need_start && q < n && s[q] == ' ')
+		q++;
+	int open = !r->need_start && q < n && s[q] == '"' && r->quotes % 2;
+	int ok = !r->oom && !open && csv_fini(&p, on_field, on_record, r) == 0;
 	if (!ok && !r->oom) {
 		l.line = r->fline;
 		l.col = r->fcol;
