@@ -33,12 +33,12 @@ const char *bom_columns(const struct bom *b);
 
 /* What one BOM row says of a part. */
 struct bom_entry {
-	const char *from;       /* "BOM b.csv:4" */
-	double v_rated;         /* V; NaN: not given */
-	struct diag_loc v_loc;  /* where it was read (file: bom_use_file) */
-	const char *kind;       /* a profile kind, or NULL */
+	const char *from;      /* "BOM b.csv:4" */
+	double v_rated;        /* V; NaN: not given */
+	struct diag_loc v_loc; /* where it was read (file: bom_use_file) */
+	const char *kind;      /* a profile kind, or NULL */
 	struct diag_loc kind_loc;
-	const char *mpn;        /* or NULL */
+	const char *mpn; /* or NULL */
 };
 
 /* The BOM's use by one file's check. */

@@ -7,7 +7,9 @@
 
 #include <stddef.h>
 
-enum bomval_status { BOMVAL_OK, BOMVAL_NONE, BOMVAL_BAD };
+enum bomval_status { BOMVAL_OK,
+		     BOMVAL_NONE,
+		     BOMVAL_BAD };
 
 /* Reads a voltage rating from s[0..n): "50V", "50 V", "1.5kV", "6V3"
  * (6.3 V), "63VDC", "35WV"; a bare number ("50") only when bare_ok. Empty
@@ -36,7 +38,7 @@ int bomval_neutral_word(const char *s, size_t n);
  * length in the text) and what. */
 struct bomval_item {
 	size_t off, len;
-	const char *why;   /* static; NULL for a value that was read */
+	const char *why; /* static; NULL for a value that was read */
 };
 
 /* What a value text ("100n/50V", "10uF 25V X7R", "4.7u 63V electrolytic")
@@ -44,9 +46,9 @@ struct bomval_item {
  * token that looks like a voltage but cannot be read, or a second voltage
  * or kind that disagrees with the first, is an issue (at most 4 kept). */
 struct bomval_text {
-	double v;                 /* NaN: none */
+	double v; /* NaN: none */
 	struct bomval_item v_at;
-	const char *kind;         /* NULL: none */
+	const char *kind; /* NULL: none */
 	struct bomval_item kind_at;
 	struct bomval_item issue[4];
 	unsigned nissues;
@@ -62,11 +64,11 @@ void bomval_scan(const char *s, size_t n, int kind_column, struct bomval_text *o
 /* A designator list is read token by token. A token is a designator
  * ("C7", "XDRV.C1") or a range ("C1-C4", "C1-4", "C01-C04"). */
 struct bomval_token {
-	size_t off, len;   /* in the text */
-	size_t plen;       /* a range: length of its prefix ("C") */
+	size_t off, len;      /* in the text */
+	size_t plen;          /* a range: length of its prefix ("C") */
 	unsigned long lo, hi; /* a range: its numbers; lo == hi for one name */
-	int width;         /* digits written of lo (zero padding kept) */
-	int range;         /* 1: a range to expand */
+	int width;            /* digits written of lo (zero padding kept) */
+	int range;            /* 1: a range to expand */
 };
 
 /* The next token of s[0..n) from *pos (separators: comma, semicolon,

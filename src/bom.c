@@ -19,9 +19,17 @@
 
 #define BOM_MAX_BYTES (64u << 20) /* a guard: a BOM is kilobytes */
 #define BOM_MAX_CELLS 256
-#define BOM_HEADER_SEARCH 20      /* rows that may stand above the header */
+#define BOM_HEADER_SEARCH 20 /* rows that may stand above the header */
 
-enum role { R_DES, R_VALUE, R_DESC, R_VOLT, R_KIND, R_MPN, R_QTY, NROLES, R_NONE };
+enum role { R_DES,
+	    R_VALUE,
+	    R_DESC,
+	    R_VOLT,
+	    R_KIND,
+	    R_MPN,
+	    R_QTY,
+	    NROLES,
+	    R_NONE };
 static const char *const role_names[NROLES] = {"designator", "value", "description", "voltage",
 					       "kind", "mpn", "quantity"};
 
@@ -31,22 +39,64 @@ static const struct {
 	const char *name;
 	enum role role;
 } aliases[] = {
-	{"designator", R_DES}, {"designators", R_DES}, {"reference", R_DES}, {"references", R_DES},
-	{"refdes", R_DES}, {"ref des", R_DES}, {"ref", R_DES}, {"refs", R_DES},
-	{"part reference", R_DES}, {"reference designator", R_DES}, {"reference designators", R_DES},
-	{"part ref", R_DES}, {"value", R_VALUE}, {"values", R_VALUE}, {"val", R_VALUE},
-	{"comment", R_VALUE}, {"part value", R_VALUE}, {"description", R_DESC}, {"desc", R_DESC},
-	{"part description", R_DESC}, {"voltage", R_VOLT}, {"rated voltage", R_VOLT},
-	{"voltage rating", R_VOLT}, {"v", R_VOLT}, {"v rated", R_VOLT}, {"vrated", R_VOLT},
-	{"rating", R_VOLT}, {"max voltage", R_VOLT}, {"working voltage", R_VOLT}, {"wv", R_VOLT},
-	{"vdc", R_VOLT}, {"vr", R_VOLT}, {"vrrm", R_VOLT}, {"part kind", R_KIND}, {"kind", R_KIND},
-	{"type", R_KIND}, {"part type", R_KIND}, {"component type", R_KIND}, {"dielectric", R_KIND},
-	{"technology", R_KIND}, {"tech", R_KIND}, {"material", R_KIND},
-	{"manufacturer part number", R_MPN}, {"manufacturer part no", R_MPN},
-	{"manufacturer pn", R_MPN}, {"mfr part number", R_MPN}, {"mfr part no", R_MPN},
-	{"mfr pn", R_MPN}, {"mfg part number", R_MPN}, {"mfg pn", R_MPN}, {"mpn", R_MPN},
-	{"part number", R_MPN}, {"part no", R_MPN}, {"pn", R_MPN}, {"p/n", R_MPN},
-	{"quantity", R_QTY}, {"qty", R_QTY}, {"count", R_QTY},
+	{"designator", R_DES},
+	{"designators", R_DES},
+	{"reference", R_DES},
+	{"references", R_DES},
+	{"refdes", R_DES},
+	{"ref des", R_DES},
+	{"ref", R_DES},
+	{"refs", R_DES},
+	{"part reference", R_DES},
+	{"reference designator", R_DES},
+	{"reference designators", R_DES},
+	{"part ref", R_DES},
+	{"value", R_VALUE},
+	{"values", R_VALUE},
+	{"val", R_VALUE},
+	{"comment", R_VALUE},
+	{"part value", R_VALUE},
+	{"description", R_DESC},
+	{"desc", R_DESC},
+	{"part description", R_DESC},
+	{"voltage", R_VOLT},
+	{"rated voltage", R_VOLT},
+	{"voltage rating", R_VOLT},
+	{"v", R_VOLT},
+	{"v rated", R_VOLT},
+	{"vrated", R_VOLT},
+	{"rating", R_VOLT},
+	{"max voltage", R_VOLT},
+	{"working voltage", R_VOLT},
+	{"wv", R_VOLT},
+	{"vdc", R_VOLT},
+	{"vr", R_VOLT},
+	{"vrrm", R_VOLT},
+	{"part kind", R_KIND},
+	{"kind", R_KIND},
+	{"type", R_KIND},
+	{"part type", R_KIND},
+	{"component type", R_KIND},
+	{"dielectric", R_KIND},
+	{"technology", R_KIND},
+	{"tech", R_KIND},
+	{"material", R_KIND},
+	{"manufacturer part number", R_MPN},
+	{"manufacturer part no", R_MPN},
+	{"manufacturer pn", R_MPN},
+	{"mfr part number", R_MPN},
+	{"mfr part no", R_MPN},
+	{"mfr pn", R_MPN},
+	{"mfg part number", R_MPN},
+	{"mfg pn", R_MPN},
+	{"mpn", R_MPN},
+	{"part number", R_MPN},
+	{"part no", R_MPN},
+	{"pn", R_MPN},
+	{"p/n", R_MPN},
+	{"quantity", R_QTY},
+	{"qty", R_QTY},
+	{"count", R_QTY},
 };
 
 struct issue {
@@ -59,25 +109,25 @@ struct row {
 	unsigned line, des_line, des_col;
 	struct issue *issues;
 	unsigned nissues, cap;
-	const char *no_des;   /* why no designator was read, or NULL */
-	int rated;            /* gives (or tried to give) a voltage or kind */
+	const char *no_des; /* why no designator was read, or NULL */
+	int rated;          /* gives (or tried to give) a voltage or kind */
 };
 
 struct des {
 	const char *name, *key; /* as written; folded */
 	uint32_t row;
 	unsigned line, col;
-	int dup;                /* listed again: the first row rates it */
+	int dup; /* listed again: the first row rates it */
 };
 
 struct bom {
 	const char *path;
-	uint32_t file;          /* in the load sink */
+	uint32_t file; /* in the load sink */
 	struct row *rows;
 	size_t nrows, rcap;
 	struct des *des;
 	size_t ndes, dcap;
-	atomic_uchar *used;     /* per designator */
+	atomic_uchar *used; /* per designator */
 	const char *columns;
 	unsigned header_line;
 };
@@ -95,17 +145,17 @@ struct reader {
 	struct arena *ar;
 	struct diag_sink *d;
 	const char *buf;
-	unsigned line, col;      /* of the byte being fed */
-	size_t at;               /* its offset */
-	unsigned fline, fcol;    /* where the current field started */
+	unsigned line, col;   /* of the byte being fed */
+	size_t at;            /* its offset */
+	unsigned fline, fcol; /* where the current field started */
 	size_t fat;
 	int need_start, row_end; /* a field starts at the next byte fed */
 	size_t quotes;           /* '"' bytes in the field so far */
 	struct cell cells[BOM_MAX_CELLS];
 	int ncells, too_many;
-	int map[BOM_MAX_CELLS];  /* header: the role of each column */
-	int have[NROLES];        /* 1-based column of each role, 0: none */
-	unsigned searched;       /* records read before the header */
+	int map[BOM_MAX_CELLS]; /* header: the role of each column */
+	int have[NROLES];       /* 1-based column of each role, 0: none */
+	unsigned searched;      /* records read before the header */
 	char delim;
 	int oom;
 };
@@ -584,7 +634,8 @@ static struct bom *loaded(struct reader *r, struct diag_loc l)
 	if (!r->oom && !b->header_line) {
 		diag_add(r->d, DIAG_ERROR, "bom", l,
 			 "no header row with a designator column (Designator, Reference, RefDes, Ref, "
-			 "Part Reference...) in the first %u rows", BOM_HEADER_SEARCH);
+			 "Part Reference...) in the first %u rows",
+			 BOM_HEADER_SEARCH);
 		return NULL;
 	}
 	if (r->too_many)
@@ -643,7 +694,7 @@ struct bom_use {
 	const struct bom *b;
 	struct diag_sink *d;
 	uint32_t file;
-	uint8_t *present;       /* per row: names a part of this file */
+	uint8_t *present; /* per row: names a part of this file */
 };
 
 struct bom_use *bom_use_begin(const struct bom *b, struct arena *ar, struct diag_sink *d)

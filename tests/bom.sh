@@ -113,6 +113,10 @@ assert w == [(2, 17, 'bom'), (3, 10, 'bom'), (4, 10, 'bom'), (4, 17, 'bom'), (5,
 r = sorted((x['rule'], x['line'], x['col'], x['part']) for x in d['run_findings'])
 assert r == [('parts-unmatched', 6, 1, None), ('parts-unmatched', 7, 1, 'C99')], r
 " "$tmp/out"
+check "json: the report with BOM warnings fits docs/report.schema.json" python3 -c "
+import json, sys, jsonschema
+jsonschema.validate(json.load(open(sys.argv[1])), json.load(open(sys.argv[2])))
+" "$tmp/out" "$here/../docs/report.schema.json"
 run check --fail-on never --format sarif --bom "$data/warnings.csv" "$ex/charge_pump.cir"
 check "sarif: the unknown designator is a result in the BOM" grep -q "BOM designator 'C99' matches no part" "$tmp/out"
 run check --bom "$data/warnings.csv" "$ex/charge_pump.cir"

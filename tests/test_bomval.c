@@ -57,8 +57,8 @@ static void test_voltages(void **state)
 struct text_row {
 	const char *text;
 	int kind_column;
-	double v;           /* NaN: none */
-	const char *kind;   /* NULL: none */
+	double v;         /* NaN: none */
+	const char *kind; /* NULL: none */
 	unsigned nissues;
 };
 
@@ -120,7 +120,7 @@ static void test_kinds_are_profile_kinds(void **state)
 
 struct des_row {
 	const char *text;
-	const char *names;  /* expanded, space-separated; '!' marks a bad token */
+	const char *names; /* expanded, space-separated; '!' marks a bad token */
 };
 
 static const struct des_row des[] = {
