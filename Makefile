@@ -12,7 +12,7 @@ OPT     ?= -O2 -g
 SAN     ?=
 CPPFLAGS := -Iinclude -Isrc -Igrammar -I$(BUILD) -I/usr/include/suitesparse -D_XOPEN_SOURCE=700
 CFLAGS  := $(CSTD) $(OPT) $(SAN)
-LDLIBS  := -lklu -lm -lpthread
+LDLIBS  := -lklu -lcsv -lm -lpthread
 # Generated scanner/parser code gets the exemptions flex output needs.
 GENWARN := -Wall -Wno-unused-function -Wno-sign-compare -Wno-unused-parameter
 
@@ -107,6 +107,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@set -e; for t in $(TESTS); do echo "== $$t"; \
 		HEADROOM=$(BUILD)/headroom $$t; done
 	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/bom.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/hostile.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py

@@ -28,6 +28,7 @@ struct check_opts {
 	int profile_fixed;               /* 1: *@profile lines are not obeyed */
 	const char *argv0;               /* where named profiles are looked up */
 	const struct rating_table *parts;/* the parts table all files share, or NULL */
+	const struct bom *bom;           /* the BOM all files share, or NULL */
 	const struct waiver_file *waivers;/* --waivers, or NULL */
 	const struct baseline *baseline; /* --baseline, or NULL */
 	const char *today;               /* YYYY-MM-DD, for waiver expiry */
@@ -79,7 +80,8 @@ void check_free(struct check_run *r);
 
 /* What a whole run found that belongs to no single netlist, located in the
  * file it concerns: parts-table rows that rated no capacitor or diode of
- * any file checked (parts-unmatched), --waivers lines that matched no
+ * any file checked and BOM designators that no file has (parts-unmatched),
+ * --waivers lines that matched no
  * finding anywhere (waiver-unused). Call once, after every file's check;
  * names of locations are those of the sink the table and waivers were
  * loaded with. Appends to out, allocating in ar; 0 on out-of-memory. */

@@ -1,7 +1,7 @@
 /* rating.h: part ratings from the three places of docs/design.md §4, later ones
- * overriding earlier ones field by field: a diode model's BV, the parts
- * table (--parts FILE.csv, rows matched by path or glob), and *@part
- * annotations. Each field remembers where it came from. */
+ * overriding earlier ones field by field: a diode model's BV, a bill of
+ * materials (--bom, bom.h), the parts table (--parts FILE.csv, rows matched
+ * by path or glob), and *@part annotations. Each field remembers where it came from. */
 #ifndef HEADROOM_RATING_H
 #define HEADROOM_RATING_H
 
@@ -9,6 +9,7 @@
 
 #include "annot.h"
 #include "arena.h"
+#include "bom.h"
 #include "diag.h"
 #include "nl.h"
 
@@ -44,10 +45,12 @@ int rating_table_row(const struct rating_table *t, size_t k, const char **ref,
 		     struct diag_loc *loc);
 
 /* Ratings for every part of c (array of nl_part_count entries, in ar).
- * table may be NULL. Kinds that do not fit the part (a diode kind on a
+ * table and bom may be NULL. Field by field, later sources override
+ * earlier ones: model BV, the BOM, the parts table, *@part lines. The
+ * BOM's problems in rows that name parts of c become warnings in d. Kinds that do not fit the part (a diode kind on a
  * capacitor) and unknown kinds are errors reported to d. */
 struct rating *rating_resolve(const struct nl_circuit *c,
-			      const struct rating_table *table,
+			      const struct rating_table *table, const struct bom *bom,
 			      const struct annot *annots, uint32_t nannots,
 			      struct arena *ar, struct diag_sink *d);
 

@@ -49,6 +49,8 @@ simmat solver
 simrun solver
 simpss solver
 profile check
+bomval check
+bom check
 rating check
 stress check
 discharge check

@@ -94,7 +94,7 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 static int judge(const struct check_opts *o, struct check_run *r)
 {
 	const struct audit *a = &r->a;
-	const struct rating *rt = rating_resolve(a->er.circuit, o->parts, a->annots,
+	const struct rating *rt = rating_resolve(a->er.circuit, o->parts, o->bom, a->annots,
 						 a->nannots, a->ar, r->d);
 	r->f.ratings = rt;
 	int sim = o->verify && (!o->verify_max_parts ||
@@ -182,8 +182,33 @@ static int unmatched_rows(const struct rating_table *t, struct arena *ar,
 	return 1;
 }
 
+/* A BOM designator that no file has, or a BOM row whose designators
+ * cannot be read: the same concern as an unmatched parts-table row. */
+static int unmatched_bom(const struct bom *b, struct arena *ar, struct rules_result *out)
+{
+	for (size_t k = 0; k < bom_unused_count(b); k++) {
+		char msg[512];
+		const char *subject;
+		struct diag_loc loc;
+		if (!bom_unused(b, k, msg, sizeof msg, &subject, &loc))
+			continue;
+		struct finding *g = rules_add(out, ar, RULE_PARTS_UNMATCHED);
+		if (!g)
+			return 0;
+		g->loc = loc;
+		g->subject = subject;
+		g->message = arena_strdup(ar, msg);
+		if (!g->message)
+			return 0;
+		g->fix = "correct the designator to the part's name in the netlist (as the stress table "
+			 "prints it) or leave the part out of the BOM given to --bom";
+	}
+	return 1;
+}
+
 int check_batch_end(const struct check_opts *o, struct arena *ar,
 		    struct rules_result *out)
 {
-	return unmatched_rows(o->parts, ar, out) && waiver_unused(o->waivers, ar, out);
+	return unmatched_rows(o->parts, ar, out) && unmatched_bom(o->bom, ar, out) &&
+	       waiver_unused(o->waivers, ar, out);
 }

@@ -182,6 +182,10 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 		return 0;
 	if (c->parts && !(o->parts = rating_table_load(c->parts, ar, d)))
 		return 0;
+	if (c->bom && !(o->bom = bom_load(c->bom, ar, d)))
+		return 0;
+	if (o->bom && !c->quiet)
+		fprintf(stderr, "headroom: %s\n", bom_columns(o->bom));
 	if (c->write_baseline && !baseline_paths_from(c->write_baseline, b->paths_from,
 						      sizeof b->paths_from)) {
 		fprintf(stderr, "headroom: cannot resolve the folder of '%s'\n", c->write_baseline);

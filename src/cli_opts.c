@@ -43,6 +43,9 @@ static const struct opt_def opts[] = {
 	 "--profile NAME|FILE  derating profile: basic, industrial (default),\n"
 	 "flight, or a profile file"},
 	{"--parts", NULL, STR(parts), "--parts FILE         parts table (CSV) with ratings"},
+	{"--bom", NULL, STR(bom),
+	 "--bom FILE           check: ratings from a bill of materials (CSV) as\n"
+	 "a schematic tool exports it; --parts and *@part\nlines override it"},
 	{"--fail-on", NULL, OPT_FAIL, 0, CO_NONE, 0,
 	 "--fail-on LEVEL      exit 1 on findings at or above error (default),\n"
 	 "warning, note; never: always 0"},

@@ -1,6 +1,7 @@
 /* rating.c: ratings of parts, and the parts-table reader. The table is a
  * header row then one row per part or pattern; columns ref, kind, v_rated,
- * i_surge, i_avg, trr, tol, note in any order and case; others ignored. */
+ * i_surge, i_avg, trr, tol, note in any order and case; others ignored.
+ * A BOM's rows (bom.h) come in below the table's, above the model's BV. */
 #include "rating.h"
 
 #include "dmodel.h"
@@ -361,6 +362,24 @@ static void from_row(struct rating *r, const struct nl_part *p,
 		r->note = row->cell[COL_NOTE];
 }
 
+/* A BOM row's voltage and kind; problems are located in the BOM's cells. */
+static void from_bom(struct rating *r, const struct nl_part *p, const struct bom_entry *e,
+		     uint32_t bom_file, struct source *src)
+{
+	src->from = e->from;
+	if (!isnan(e->v_rated)) {
+		r->v_rated.value = e->v_rated;
+		r->v_rated.from = e->from;
+	}
+	if (e->kind) {
+		src->loc = e->kind_loc;
+		src->loc.file = bom_file;
+		set_kind(r, p, e->kind, src);
+	}
+	if (e->mpn && !r->note)
+		r->note = e->mpn;
+}
+
 static void from_annot(struct rating *r, const struct nl_part *p,
 		       const struct annot *a, struct source *src)
 {
@@ -388,7 +407,7 @@ static void init(struct rating *r)
 }
 
 struct rating *rating_resolve(const struct nl_circuit *c,
-			      const struct rating_table *table,
+			      const struct rating_table *table, const struct bom *bom,
 			      const struct annot *annots, uint32_t nannots,
 			      struct arena *ar, struct diag_sink *d)
 {
@@ -397,15 +416,19 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 	uint8_t *an_used = arena_zalloc(ar, nannots + 1);
 	/* the table may be shared by many files, each with its own sink */
 	uint32_t tfile = table ? diag_add_file(d, table->path) : 0;
-	if (!out || !an_used)
+	struct bom_use *bu = bom ? bom_use_begin(bom, ar, d) : NULL;
+	if (!out || !an_used || (bom && !bu))
 		return NULL;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
+		const struct bom_entry *be = bu ? bom_use_part(bu, p) : NULL;
 		init(&out[i]);
 		if (p->kind != NL_C && p->kind != NL_D)
 			continue;
 		from_model(&out[i], p);
 		struct source src = {NULL, {0, 0, 0}, tfile, d, ar};
+		if (be)
+			from_bom(&out[i], p, be, bom_use_file(bu), &src);
 		for (size_t k = 0; table && k < table->n; k++)
 			if (table->rows[k].cell[COL_REF] && annot_glob(table->rows[k].cell[COL_REF], p->path)) {
 				from_row(&out[i], p, table, &table->rows[k], &src);
@@ -426,6 +449,8 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 		if (annots[k].kind == AN_PART && !an_used[k])
 			diag_add(d, DIAG_WARNING, "annotation", annots[k].loc,
 				 "*@part names '%s', which matches no capacitor or diode", annots[k].target);
+	if (bu)
+		bom_use_end(bu);
 	/* a row that matches nothing here may rate a part of another file:
 	 * unmatched rows are judged once the whole run is checked */
 	return out;
