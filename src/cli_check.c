@@ -14,6 +14,7 @@
 
 #include "check.h"
 #include "cli_batch.h"
+#include "cli_config.h"
 #include "cli_out.h"
 #include "num.h"
 #include "report_check.h"
@@ -468,5 +469,9 @@ static int check_with(const struct cli *c)
 
 int cli_check(const struct cli *c)
 {
-	return check_with(c);
+	struct cli_config cfg;
+	struct cli settled;
+	int rc = cli_config_settle(c, &settled, &cfg) ? check_with(&settled) : EXIT_USAGE;
+	cli_config_free(&cfg);
+	return rc;
 }
