@@ -176,42 +176,9 @@ static void today_of(char *buf, size_t n, const char *given)
 	strftime(buf, n, "%Y-%m-%d", &tm);
 }
 
-const char *const cli_check_formats[CLI_CHECK_NFORMATS] = {"text",  "json",  "csv",
-							    "junit", "sarif", "html"};
 _Static_assert(RC_TEXT == 0 && RC_JSON == 1 && RC_CSV == 2 && RC_JUNIT == 3 && RC_SARIF == 4 &&
 		       RC_HTML + 1 == CLI_CHECK_NFORMATS,
-	       "cli_check_formats follows enum report_check_format");
-#define FORMAT_LIST "text, json, csv, junit, sarif or html" /* as cli_check_formats */
-
-const char *cli_report_spec(const char *spec, size_t *fmt, const char **file, char *why,
-			    size_t n)
-{
-	const char *eq = strchr(spec, '=');
-	char name[SUGGEST_MAX_LEN + 1], hint[SUGGEST_HINT_SIZE];
-	if (!eq) {
-		snprintf(why, n, "'%s' is not FORMAT=FILE (FORMAT: " FORMAT_LIST ")", spec);
-		return why;
-	}
-	snprintf(name, sizeof name, "%.*s", (int)(eq - spec), spec);
-	for (size_t i = 0; i < CLI_CHECK_NFORMATS; i++) {
-		if (strcmp(name, cli_check_formats[i]) != 0)
-			continue;
-		*fmt = i;
-		*file = eq + 1;
-		if (!eq[1])
-			snprintf(why, n, "'%s' names no file", spec);
-		return eq[1] ? NULL : why;
-	}
-	for (size_t i = 0; i < CLI_CHECK_NFORMATS; i++)
-		if (strcmp(eq + 1, cli_check_formats[i]) == 0) { /* FILE=FORMAT */
-			snprintf(why, n, "no report format '%s'; did you mean '%s=%s'?", name,
-				 eq + 1, name);
-			return why;
-		}
-	snprintf(why, n, "no report format '%s' (" FORMAT_LIST ")%s", name,
-		 cli_hint(name, cli_check_formats, CLI_CHECK_NFORMATS, hint, sizeof hint));
-	return why;
-}
+	       "cli_check_formats (cli_opts.c) follows enum report_check_format");
 
 /* The same file by two names: the same inode when both exist (devices
  * such as /dev/null excepted: nothing is replaced there), else the same

@@ -170,6 +170,42 @@ int cli_format(const struct cli *c, const char *const *names, size_t n, size_t *
 	return 0;
 }
 
+/* The formats of check, in the order of enum report_check_format (the
+ * order is asserted in cli_check.c). */
+const char *const cli_check_formats[CLI_CHECK_NFORMATS] = {"text",  "json",  "csv",
+							    "junit", "sarif", "html"};
+#define FORMAT_LIST "text, json, csv, junit, sarif or html" /* as cli_check_formats */
+
+const char *cli_report_spec(const char *spec, size_t *fmt, const char **file, char *why,
+			    size_t n)
+{
+	const char *eq = strchr(spec, '=');
+	char name[SUGGEST_MAX_LEN + 1], hint[SUGGEST_HINT_SIZE];
+	if (!eq) {
+		snprintf(why, n, "'%s' is not FORMAT=FILE (FORMAT: " FORMAT_LIST ")", spec);
+		return why;
+	}
+	snprintf(name, sizeof name, "%.*s", (int)(eq - spec), spec);
+	for (size_t i = 0; i < CLI_CHECK_NFORMATS; i++) {
+		if (strcmp(name, cli_check_formats[i]) != 0)
+			continue;
+		*fmt = i;
+		*file = eq + 1;
+		if (!eq[1])
+			snprintf(why, n, "'%s' names no file", spec);
+		return eq[1] ? NULL : why;
+	}
+	for (size_t i = 0; i < CLI_CHECK_NFORMATS; i++)
+		if (strcmp(eq + 1, cli_check_formats[i]) == 0) { /* FILE=FORMAT */
+			snprintf(why, n, "no report format '%s'; did you mean '%s=%s'?", name,
+				 eq + 1, name);
+			return why;
+		}
+	snprintf(why, n, "no report format '%s' (" FORMAT_LIST ")%s", name,
+		 cli_hint(name, cli_check_formats, CLI_CHECK_NFORMATS, hint, sizeof hint));
+	return why;
+}
+
 /* An unknown option: says so, with the closest option's name when one is
  * close (the name part of --opt=value). */
 static void unknown_option(const char *a)
