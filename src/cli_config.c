@@ -136,6 +136,13 @@ static uint32_t column_of(const struct parse *p, const char *what, size_t from)
 	return (uint32_t)(at - p->raw) + 1;
 }
 
+/* The column of a key's value in the current line (after the first '='
+ * or ':'; on a continuation line, its first non-blank). */
+static uint32_t value_col(const struct parse *p, const char *val)
+{
+	return column_of(p, val, strcspn(p->raw, "=:") + 1);
+}
+
 /* libinih's line reader (fgets' contract): counts lines, keeps the raw
  * text and the last section header's line; a line longer than libinih's
  * buffer is an error and is given as an empty line. */
@@ -181,8 +188,8 @@ static const char *existing(struct parse *p, const struct key *k, const char *va
 {
 	const char *path = resolve(p, val);
 	if (path && access(path, R_OK) != 0) {
-		located(p, p->line, column_of(p, val, 0), "%s: cannot read '%s' (paths are from this "
-							  "file's folder)",
+		located(p, p->line, value_col(p, val), "%s: cannot read '%s' (paths are from this "
+						       "file's folder)",
 			k->name, path);
 		return NULL;
 	}
@@ -211,7 +218,7 @@ static void set_report(struct parse *p, const char *val)
 	const char *file;
 	size_t fmt;
 	if (cli_report_spec(val, &fmt, &file, why, sizeof why)) {
-		located(p, p->line, column_of(p, val, 0), "reports: %s", why);
+		located(p, p->line, value_col(p, val), "reports: %s", why);
 		return;
 	}
 	const char *path = resolve(p, file);
@@ -243,7 +250,7 @@ static void set_key(struct parse *p, const struct key *k, const char *val)
 {
 	char why[SUGGEST_HINT_SIZE + 160];
 	const char *v = arena_strdup(p->cfg->ar, val), *bad; /* val is libinih's buffer */
-	uint32_t col = column_of(p, val, strcspn(p->raw, "=:") + 1);
+	uint32_t col = value_col(p, val);
 	switch (k->kind) {
 	case KEY_REPORTS:
 		set_report(p, val);

@@ -709,9 +709,9 @@ check "config: errors quote the line with a caret" grep -qx "    fail-on = eror"
 printf 'jobs = 2\n' > "$proj/lib/sub/headroom.ini"
 inproj "$proj/lib/sub" check nl
 check "config: a key outside [check] is a located error" grep -q "^headroom.ini:1:1: error: 'jobs' is outside a section" "$tmp/err"
-printf '[check]\nreports = sarf=x.sarif\nreports = html=\nreports = out.json\n' > "$proj/lib/sub/headroom.ini"
+printf '[check]\nreports = sarf=x.sarif\nreports = html=\nreports = out.json\n  jsn=y.json\n' > "$proj/lib/sub/headroom.ini"
 inproj "$proj/lib/sub" check nl
-check "config: bad reports entries are located errors (did-you-mean, empty file, no FORMAT=)" bash -c "test $rc -eq 2 && grep -q \"^headroom.ini:2:11: error: reports: no report format 'sarf' .*did you mean 'sarif'\" '$tmp/err' && grep -q \"^headroom.ini:3:11: error: reports: 'html=' names no file\" '$tmp/err' && grep -q \"^headroom.ini:4:11: error: reports: 'out.json' is not FORMAT=FILE\" '$tmp/err'"
+check "config: bad reports entries are located errors (did-you-mean, empty file, no FORMAT=, on a continuation line)" bash -c "test $rc -eq 2 && grep -q \"^headroom.ini:2:11: error: reports: no report format 'sarf' .*did you mean 'sarif'\" '$tmp/err' && grep -q \"^headroom.ini:3:11: error: reports: 'html=' names no file\" '$tmp/err' && grep -q \"^headroom.ini:4:11: error: reports: 'out.json' is not FORMAT=FILE\" '$tmp/err' && grep -q \"^headroom.ini:5:3: error: reports: no report format 'jsn' .*did you mean 'json'\" '$tmp/err'"
 printf '[check]\nparts = %0300d\n' 1 > "$proj/lib/sub/headroom.ini"
 inproj "$proj/lib/sub" check nl
 check "config: a line longer than libinih reads is a located error" grep -q "^headroom.ini:2:1: error: line longer than [0-9]* bytes" "$tmp/err"
