@@ -5,6 +5,7 @@
  * command line's own code (cli_set_option, cli_report_spec). */
 #include "cli_config.h"
 
+#include <errno.h>
 #include <ini.h>
 #include <limits.h>
 #include <math.h>
@@ -353,10 +354,13 @@ static int read_file(struct cli_config *cfg)
 		return 0;
 	}
 	p->cfg = cfg;
-	p->f = is_file(cfg->path) ? fopen(cfg->path, "r") : NULL;
+	struct stat st;
+	int there = stat(cfg->path, &st) == 0;
+	p->f = there && S_ISREG(st.st_mode) ? fopen(cfg->path, "r") : NULL;
 	if (!p->f) {
-		fprintf(stderr, "headroom: cannot read the configuration '%s'%s\n", cfg->path,
-			is_file(cfg->path) ? "" : ": no such file");
+		fprintf(stderr, "headroom: cannot read the configuration '%s': %s\n", cfg->path,
+			!there ? "no such file" : !S_ISREG(st.st_mode) ? "not a file"
+								       : strerror(errno));
 		return 0;
 	}
 	int bad = ini_parse_stream(read_line, p, on_key, p);
