@@ -12,7 +12,7 @@ OPT     ?= -O2 -g
 SAN     ?=
 CPPFLAGS := -Iinclude -Isrc -Igrammar -I$(BUILD) -I/usr/include/suitesparse -D_XOPEN_SOURCE=700
 CFLAGS  := $(CSTD) $(OPT) $(SAN)
-LDLIBS  := -lklu -lcsv -lm -lpthread
+LDLIBS  := -lklu -lcsv -lm -lpthread -linih
 # Generated scanner/parser code gets the exemptions flex output needs.
 GENWARN := -Wall -Wno-unused-function -Wno-sign-compare -Wno-unused-parameter
 

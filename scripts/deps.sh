@@ -5,6 +5,7 @@
 #   libcmocka-dev        unit-test framework (tests/)
 #   libsuitesparse-dev   KLU, the sparse LU of the transient solver (src/simmat.c)
 #   libcsv-dev           the CSV reader of --bom (src/bom.c)
+#   libinih-dev          INI reader of the project configuration (src/cli_config.c)
 #   ngspice              reference simulator for the comparison tests
 #   libxml2-utils        xmllint, to check XML reports are well formed
 #   python3              runs the comparison scripts in tests/
@@ -23,6 +24,7 @@ command -v bison >/dev/null 2>&1 || need+=(bison)
 [ -f /usr/include/cmocka.h ] || need+=(libcmocka-dev)
 [ -f /usr/include/suitesparse/klu.h ] || need+=(libsuitesparse-dev)
 [ -f /usr/include/csv.h ] || need+=(libcsv-dev)
+[ -f /usr/include/ini.h ] || need+=(libinih-dev)
 command -v ngspice >/dev/null 2>&1 || need+=(ngspice)
 command -v xmllint >/dev/null 2>&1 || need+=(libxml2-utils)
 command -v python3 >/dev/null 2>&1 || need+=(python3)

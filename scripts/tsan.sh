@@ -36,6 +36,10 @@ for fmt in text csv junit sarif html; do
 	tsan_run "--format $fmt" --format $fmt --parts "$root/examples/parts.csv" \
 		--waivers "$tmp/w.txt" --baseline "$tmp/base.json" --today 2026-12-01 "${inputs[@]}"
 done
+# --report: every format from one analysis, each job writing six buffers
+tsan_run "--report" --format json --parts "$root/examples/parts.csv" --today 2026-12-01 \
+	--report text="$tmp/r.txt" --report csv="$tmp/r.csv" --report junit="$tmp/r.xml" \
+	--report sarif="$tmp/r.sarif" --report html="$tmp/r.html" "${inputs[@]}"
 # --verify: the solver (and KLU) on four threads at once
 tsan_run "--verify" --verify --format json "$root/examples" "$root/tests/data/sim" "$root/tests/data/topo"
 echo "tsan: $runs batch runs with -j 4 over ${#inputs[@]} input trees: $([ $fail = 0 ] && echo 'no reports' || echo 'REPORTS FOUND')"

@@ -18,6 +18,11 @@ struct cli {
 	unsigned max_errors;
 	const char **files;
 	int nfiles;
+	const char **reports;        /* --report FORMAT=FILE, in order (malloc'd) */
+	size_t nreports;
+	const char *config;          /* --config FILE, or NULL: looked for */
+	int no_config;               /* --no-config */
+	int fail_on_given;           /* --fail-on was given */
 	const char *profile;         /* name or path */
 	const char *parts;           /* parts table */
 	const char *bom;             /* --bom: a bill of materials (CSV) */
@@ -30,7 +35,8 @@ struct cli {
 	const char *argv0;
 };
 
-/* Fills c from argv (c->files allocated with malloc: free it). Prints the
+/* Fills c from argv (c->files and c->reports allocated with malloc: free
+ * them). Prints the
  * problem and returns 0 on a usage error. */
 int cli_parse(struct cli *c, int argc, char **argv);
 
@@ -53,6 +59,25 @@ int cli_load_profile(const struct cli *c, struct diag_sink *d, struct profile *p
 
 /* The --help text, written from the option table. */
 void cli_usage(FILE *out);
+
+/* The formats of check's reports, in the order of enum
+ * report_check_format (report_check.h). */
+#define CLI_CHECK_NFORMATS 6
+extern const char *const cli_check_formats[CLI_CHECK_NFORMATS];
+
+/* Reads a report wish FORMAT=FILE (--report, the configuration's
+ * reports): *fmt the index of FORMAT in cli_check_formats, *file points
+ * into spec. Returns NULL, or what is wrong (written into why: a name
+ * that is no format, with a "did you mean"; no '='; an empty FILE). */
+const char *cli_report_spec(const char *spec, size_t *fmt, const char **file, char *why,
+			    size_t n);
+
+/* Sets the value of the option named name (as on the command line:
+ * "--parts", "-j") from val, with the command line's checks. Returns NULL,
+ * or what is wrong with val (written into why, naming the option as
+ * shown: "fail-on takes error, ..."), for callers that locate it. */
+const char *cli_set_option(struct cli *c, const char *name, const char *shown,
+			   const char *val, char *why, size_t n);
 
 /* headroom check: returns the exit status. */
 int cli_check(const struct cli *c);

@@ -219,26 +219,28 @@ int cli_files_expand(struct cli_files *l, const char *const *paths, size_t n)
 struct pool {
 	const struct cli_batch *b;
 	struct cli_job *jobs;
+	char **bufs;             /* n * nout buffers, job by job */
+	size_t *lens;
 	size_t n, next;
 	pthread_mutex_t mu;
 	pthread_cond_t cv;
 };
 
+/* Runs job j into memory: one stream per output and one for stderr. */
 static void run_job(const struct cli_batch *b, struct cli_job *j)
 {
-	FILE *out = open_memstream(&j->out, &j->outn);
+	FILE **out = calloc(b->nout, sizeof *out);
 	FILE *err = open_memstream(&j->err, &j->errn);
-	FILE *aux = b->want_aux ? open_memstream(&j->aux, &j->auxn) : NULL;
-	if (!out || !err || (b->want_aux && !aux))
-		j->rc = 2;
-	else
-		j->rc = b->run(b->ud, j, out, err, aux);
-	if (out)
-		fclose(out);
+	int ok = out && err;
+	for (size_t k = 0; ok && k < b->nout; k++)
+		ok = (out[k] = open_memstream(&j->out[k], &j->outn[k])) != NULL;
+	j->rc = ok ? b->run(b->ud, j, out, err) : 2;
+	for (size_t k = 0; out && k < b->nout; k++)
+		if (out[k])
+			fclose(out[k]);
 	if (err)
 		fclose(err);
-	if (aux)
-		fclose(aux);
+	free(out);
 }
 
 static void *worker(void *arg)
@@ -259,7 +261,7 @@ static void *worker(void *arg)
 }
 
 /* Waits for job i, writes it out in order and frees its buffers. */
-static int drain(struct pool *pl, size_t i, FILE *out, FILE *aux)
+static int drain(struct pool *pl, size_t i, FILE *const *out)
 {
 	const struct cli_batch *b = pl->b;
 	struct cli_job *j = &pl->jobs[i];
@@ -267,15 +269,16 @@ static int drain(struct pool *pl, size_t i, FILE *out, FILE *aux)
 	while (!j->done)
 		pthread_cond_wait(&pl->cv, &pl->mu);
 	pthread_mutex_unlock(&pl->mu);
-	b->emit(b->ud, j, out, aux);
+	b->emit(b->ud, j, out);
 	if (b->progress)
 		fputs("\r\033[K", stderr);
-	fwrite(j->err, 1, j->errn, stderr);
+	if (j->err)
+		fwrite(j->err, 1, j->errn, stderr);
 	if (b->progress)
 		fprintf(stderr, "[%zu/%zu] %s", j->index + 1, pl->n, j->path);
-	free(j->out);
+	for (size_t k = 0; k < b->nout; k++)
+		free(j->out[k]);
 	free(j->err);
-	free(j->aux);
 	return j->rc;
 }
 
@@ -287,22 +290,48 @@ static size_t thread_count(const struct cli_batch *b, size_t n)
 	return t > n ? n : t;
 }
 
+/* The pool's jobs and their output buffers; 0 on out-of-memory. */
+static int pool_init(struct pool *pl, const struct cli_batch *b, char *const *files, size_t n)
+{
+	size_t m = n ? n : 1;
+	pl->b = b;
+	pl->n = n;
+	pl->jobs = calloc(m, sizeof *pl->jobs);
+	pl->bufs = calloc(m * b->nout, sizeof *pl->bufs);
+	pl->lens = calloc(m * b->nout, sizeof *pl->lens);
+	if (!pl->jobs || !pl->bufs || !pl->lens)
+		return 0;
+	for (size_t i = 0; i < n; i++) {
+		pl->jobs[i].path = files[i];
+		pl->jobs[i].index = i;
+		pl->jobs[i].out = pl->bufs + i * b->nout;
+		pl->jobs[i].outn = pl->lens + i * b->nout;
+	}
+	return 1;
+}
+
+static void pool_free(struct pool *pl)
+{
+	free(pl->jobs);
+	free(pl->bufs);
+	free(pl->lens);
+}
+
 int cli_batch_run(const struct cli_batch *b, char *const *files, size_t n,
-		  FILE *out, FILE *aux)
+		  FILE *const *out)
 {
 	if (n == 1) {
-		struct cli_job j = {files[0], 0, NULL, NULL, NULL, 0, 0, 0, 0, 0};
-		j.rc = b->run(b->ud, &j, out, stderr, aux);
-		b->emit(b->ud, &j, out, aux);
+		struct cli_job j = {files[0], 0, NULL, 0, NULL, NULL, 0, 0};
+		j.rc = b->run(b->ud, &j, out, stderr);
+		b->emit(b->ud, &j, out);
 		return j.rc;
 	}
-	struct pool pl = {b, calloc(n ? n : 1, sizeof *pl.jobs), n, 0,
-			  PTHREAD_MUTEX_INITIALIZER, PTHREAD_COND_INITIALIZER};
-	if (!pl.jobs)
+	struct pool pl = {0};
+	pl.mu = (pthread_mutex_t)PTHREAD_MUTEX_INITIALIZER;
+	pl.cv = (pthread_cond_t)PTHREAD_COND_INITIALIZER;
+	if (!pool_init(&pl, b, files, n)) {
+		pool_free(&pl);
 		return 2;
-	for (size_t i = 0; i < n; i++) {
-		pl.jobs[i].path = files[i];
-		pl.jobs[i].index = i;
 	}
 	size_t nthreads = n ? thread_count(b, n) : 0, started = 0;
 	pthread_t *th = calloc(nthreads ? nthreads : 1, sizeof *th);
@@ -312,7 +341,7 @@ int cli_batch_run(const struct cli_batch *b, char *const *files, size_t n,
 		worker(&pl); /* no threads: do it here */
 	int rc = 0;
 	for (size_t i = 0; i < n; i++) {
-		int r = drain(&pl, i, out, aux);
+		int r = drain(&pl, i, out);
 		rc = r > rc ? r : rc;
 	}
 	if (b->progress && n)
@@ -320,6 +349,6 @@ int cli_batch_run(const struct cli_batch *b, char *const *files, size_t n,
 	for (size_t i = 0; i < started; i++)
 		pthread_join(th[i], NULL);
 	free(th);
-	free(pl.jobs);
+	pool_free(&pl);
 	return rc;
 }

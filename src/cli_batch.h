@@ -56,29 +56,31 @@ void cli_skips_free(struct cli_skips *s);
 struct cli_job {
 	const char *path;
 	size_t index;
-	char *out, *err, *aux;   /* buffered outputs (batch mode) */
-	size_t outn, errn, auxn;
+	char *err;               /* buffered standard error (batch mode) */
+	size_t errn;
+	char **out;              /* buffered output streams, nout of each */
+	size_t *outn;            /* (batch mode; NULL otherwise) */
 	int rc;
 	int done;
 };
 
 struct cli_batch {
-	/* Does one file's work, writing to out, err and aux (aux NULL when
-	 * not wanted); returns the file's exit-status contribution. Called
-	 * from worker threads. */
-	int (*run)(void *ud, const struct cli_job *j, FILE *out, FILE *err, FILE *aux);
+	/* Does one file's work, writing to out[0..nout) and err; returns the
+	 * file's exit-status contribution. Called from worker threads. */
+	int (*run)(void *ud, const struct cli_job *j, FILE *const *out, FILE *err);
 	/* Called on the main thread, in file order, after a job: writes its
-	 * buffered out and aux (NULL in single-file mode, already written). */
-	void (*emit)(void *ud, const struct cli_job *j, FILE *out, FILE *aux);
+	 * buffered outputs j->out[k] to out[k] (j->out NULL in single-file
+	 * mode: already written). */
+	void (*emit)(void *ud, const struct cli_job *j, FILE *const *out);
 	void *ud;
+	size_t nout;             /* output streams per job, at least 1 */
 	size_t threads;          /* 0: one per processor */
-	int want_aux;
 	int progress;            /* a progress line on stderr */
 };
 
 /* Runs every file; returns the largest exit-status contribution, or 2 when
  * the batch itself cannot run. */
 int cli_batch_run(const struct cli_batch *b, char *const *files, size_t n,
-		  FILE *out, FILE *aux);
+		  FILE *const *out);
 
 #endif

@@ -8,26 +8,41 @@
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 #include <time.h>
 #include <unistd.h>
 
 #include "check.h"
 #include "cli_batch.h"
+#include "cli_config.h"
 #include "cli_out.h"
 #include "num.h"
 #include "report_check.h"
 #include "suggest.h"
 
+/* One report of the run: the standard output (or -o), a --report, or the
+ * --write-baseline JSON. */
+struct rep {
+	enum report_check_format fmt;
+	const char *path;              /* NULL: standard output */
+	const char *label;             /* how it was asked for, for messages */
+	struct cli_out out;
+	int color;
+	const char *paths_from;        /* --write-baseline: where its paths start */
+	struct check_totals *t;        /* per job, by index (batch mode) */
+	struct check_totals sum;       /* merged in file order */
+};
+
 /* What every file's check shares: read-only once the batch starts. */
 struct batch {
 	const struct cli *c;
 	struct check_opts o;
-	enum report_check_format fmt;
 	const char *docs;
-	struct report_inputs in; /* what the run reads, for the reports */
+	struct report_inputs in;       /* what the run reads, for the reports */
 	int color, quiet;
-	struct check_totals *t, *tj;   /* per job, by index (batch mode) */
-	struct check_totals sum, sumj; /* merged in file order */
+	struct rep *rep;               /* every report, the primary one first */
+	size_t nrep;
+	FILE **f;                      /* their streams, by report */
 	char paths_from[1024];         /* --write-baseline: where its paths start */
 };
 
@@ -46,27 +61,25 @@ int cli_load_profile(const struct cli *c, struct diag_sink *d, struct profile *p
 	return profile_load(path, d, p);
 }
 
-static void totals_init(const struct batch *b, struct check_totals *t, struct check_totals *tj)
+static void totals_init(const struct batch *b, const struct rep *r, struct check_totals *t)
 {
 	memset(t, 0, sizeof *t);
-	memset(tj, 0, sizeof *tj);
-	t->color = tj->color = b->color;
+	t->color = r->color;
 	t->quiet = b->quiet;
-	t->docs_uri = tj->docs_uri = b->docs;
-	t->inputs = tj->inputs = &b->in;
-	tj->paths_from = b->paths_from[0] ? b->paths_from : NULL;
+	t->docs_uri = b->docs;
+	t->inputs = &b->in;
+	t->paths_from = r->paths_from;
 }
 
-/* One file: checks it, writes its reports, returns its exit-status part. */
-static int check_job(void *ud, const struct cli_job *j, FILE *out, FILE *err, FILE *json)
+/* One file: checks it once, writes it into every report, returns its
+ * exit-status part. */
+static int check_job(void *ud, const struct cli_job *j, FILE *const *out, FILE *err)
 {
 	struct batch *b = ud;
 	const struct cli *c = b->c;
-	struct check_totals *t = &b->t[j->index], *tj = &b->tj[j->index];
 	struct hr_alloc hook = hr_alloc_default();
 	struct check_run r;
 	int rc = 0;
-	totals_init(b, t, tj);
 	enum check_status st = check_file_run(j->path, &b->o, &hook, &r);
 	if (st == CHECK_OK && c->fail_on >= 0 && check_worst_level(&r) >= c->fail_on)
 		rc = 1;
@@ -82,36 +95,41 @@ static int check_job(void *ud, const struct cli_job *j, FILE *out, FILE *err, FI
 		memset(&none, 0, sizeof none);
 		f = &oom;
 	}
-	report_check_file(out, b->fmt, f, r.profile, j->index == 0, t);
-	if (json)
-		report_check_file(json, RC_JSON, f, r.profile, j->index == 0, tj);
+	for (size_t k = 0; k < b->nrep; k++) {
+		struct check_totals *t = &b->rep[k].t[j->index];
+		totals_init(b, &b->rep[k], t);
+		report_check_file(out[k], b->rep[k].fmt, f, r.profile, j->index == 0, t);
+	}
 	if (r.d)
 		diag_render(r.d, UINT32_MAX, err);
 	check_free(&r);
 	return rc;
 }
 
-/* Writes a job's buffered outputs in order; SARIF results of a file whose
- * predecessors wrote none must not start with the separating comma. */
-static void check_emit(void *ud, const struct cli_job *j, FILE *out, FILE *json)
+/* Writes a job's buffered output of one report; SARIF results of a file
+ * whose predecessors wrote none must not start with the separating comma. */
+static void emit_one(struct rep *r, const struct cli_job *j, size_t k, FILE *out)
 {
-	struct batch *b = ud;
-	const struct check_totals *t = &b->t[j->index], *tj = &b->tj[j->index];
-	const char *o = j->out;
-	size_t on = j->outn;
-	if (b->fmt == RC_SARIF && j->index > 0 && b->sum.emitted == 0 && on && o[0] == ',') {
+	const char *o = j->out ? j->out[k] : NULL;
+	size_t on = j->out ? j->outn[k] : 0;
+	if (r->fmt == RC_SARIF && j->index > 0 && r->sum.emitted == 0 && on && o[0] == ',') {
 		o++;
 		on--;
 	}
 	if (o)
 		fwrite(o, 1, on, out);
-	if (json && j->aux)
-		fwrite(j->aux, 1, j->auxn, json);
-	b->sum.emitted += t->emitted;
-	if (!report_totals_merge(&b->sum, t) || !report_totals_merge(&b->sumj, tj))
+	r->sum.emitted += r->t[j->index].emitted;
+	if (!report_totals_merge(&r->sum, &r->t[j->index]))
 		fprintf(stderr, "%s: error: out of memory while writing the report\n", j->path);
-	report_totals_free(&b->t[j->index]);
-	report_totals_free(&b->tj[j->index]);
+	report_totals_free(&r->t[j->index]);
+}
+
+/* Writes a job's buffered outputs in order. */
+static void check_emit(void *ud, const struct cli_job *j, FILE *const *out)
+{
+	struct batch *b = ud;
+	for (size_t k = 0; k < b->nrep; k++)
+		emit_one(&b->rep[k], j, k, out[k]);
 }
 
 /* file:// URI of the documentation folder next to the program (the build
@@ -158,17 +176,102 @@ static void today_of(char *buf, size_t n, const char *given)
 	strftime(buf, n, "%Y-%m-%d", &tm);
 }
 
-static int choose_format(const struct cli *c, enum report_check_format *fmt)
+_Static_assert(RC_TEXT == 0 && RC_JSON == 1 && RC_CSV == 2 && RC_JUNIT == 3 && RC_SARIF == 4 &&
+		       RC_HTML + 1 == CLI_CHECK_NFORMATS,
+	       "cli_check_formats (cli_opts.c) follows enum report_check_format");
+
+/* The same file by two names: the same inode when both exist (devices
+ * such as /dev/null excepted: nothing is replaced there), else the same
+ * real folder and name. */
+static int same_file(const char *a, const char *b)
 {
-	static const char *const names[] = {"text", "json", "csv", "junit", "sarif", "html"};
-	static const enum report_check_format fmts[] = {RC_TEXT, RC_JSON, RC_CSV,
-							RC_JUNIT, RC_SARIF, RC_HTML};
-	_Static_assert(sizeof names / sizeof names[0] == sizeof fmts / sizeof fmts[0], "one per format");
-	size_t i;
-	if (!cli_format(c, names, sizeof names / sizeof names[0], &i))
+	struct stat sa, sb;
+	int ea = stat(a, &sa) == 0, eb = stat(b, &sb) == 0;
+	if (ea && eb)
+		return S_ISREG(sa.st_mode) && sa.st_dev == sb.st_dev && sa.st_ino == sb.st_ino;
+	if (ea || eb)
 		return 0;
-	*fmt = fmts[i];
+	const char *ba = strrchr(a, '/') ? strrchr(a, '/') + 1 : a;
+	const char *bb = strrchr(b, '/') ? strrchr(b, '/') + 1 : b;
+	char *da = strndup(a, (size_t)(ba - a)), *db = strndup(b, (size_t)(bb - b));
+	char *ra = da ? realpath(*da ? da : ".", NULL) : NULL;
+	char *rb = db ? realpath(*db ? db : ".", NULL) : NULL;
+	int same = strcmp(ba, bb) == 0 && (ra && rb ? strcmp(ra, rb) == 0 : strcmp(a, b) == 0);
+	free(da), free(db), free(ra), free(rb);
+	return same;
+}
+
+/* Two reports into one file would overwrite each other: a usage error. */
+static int no_clash(const struct batch *b)
+{
+	for (size_t i = 0; i < b->nrep; i++)
+		for (size_t k = i + 1; k < b->nrep; k++)
+			if (b->rep[i].path && b->rep[k].path &&
+			    same_file(b->rep[i].path, b->rep[k].path)) {
+				fprintf(stderr, "headroom: two reports would write the same file: "
+						"'%s' and '%s'\n", b->rep[i].label, b->rep[k].label);
+				return 0;
+			}
 	return 1;
+}
+
+/* The reports the run writes: the primary one (--format, to -o or the
+ * standard output), each --report, the --write-baseline JSON; 0 on a
+ * usage error (printed). */
+static int plan_reports(const struct cli *c, struct batch *b)
+{
+	size_t i, n = 1 + c->nreports + (c->write_baseline != NULL);
+	const char *file;
+	char why[SUGGEST_HINT_SIZE + 160];
+	b->rep = calloc(n, sizeof *b->rep);
+	b->f = calloc(n, sizeof *b->f);
+	if (!b->rep || !b->f) {
+		fprintf(stderr, "headroom: out of memory\n");
+		return 0;
+	}
+	if (!cli_format(c, cli_check_formats, CLI_CHECK_NFORMATS, &i))
+		return 0;
+	b->rep[b->nrep++] = (struct rep){.fmt = (enum report_check_format)i, .path = c->out_path,
+					 .label = "-o", .color = b->color};
+	for (size_t k = 0; k < c->nreports; k++) {
+		if (cli_report_spec(c->reports[k], &i, &file, why, sizeof why)) {
+			fprintf(stderr, "headroom: --report: %s\n", why);
+			return 0;
+		}
+		b->rep[b->nrep++] = (struct rep){.fmt = (enum report_check_format)i,
+						 .path = file, .label = c->reports[k]};
+	}
+	if (c->write_baseline)
+		b->rep[b->nrep++] = (struct rep){.fmt = RC_JSON, .path = c->write_baseline,
+						 .label = "--write-baseline", .paths_from = b->paths_from};
+	return no_clash(b);
+}
+
+/* Opens every report's file (the primary one may be the standard output);
+ * 0 when one cannot be opened (printed). */
+static int open_reports(struct batch *b)
+{
+	for (size_t k = 0; k < b->nrep; k++) {
+		struct rep *r = &b->rep[k];
+		if (r->path && !cli_out_open(&r->out, r->path))
+			return 0;
+		b->f[k] = r->path ? r->out.f : stdout;
+	}
+	return 1;
+}
+
+/* Closes the report files: with ok and every one written, all replace
+ * their old files; otherwise none does. Returns 0 when one failed. */
+static int close_reports(struct batch *b, int ok)
+{
+	int good = 1;
+	for (size_t k = 0; ok && k < b->nrep; k++)
+		if (b->rep[k].out.f && (fflush(b->rep[k].out.f) != 0 || ferror(b->rep[k].out.f)))
+			ok = 0, good = 0;
+	for (size_t k = 0; k < b->nrep; k++)
+		if (b->rep[k].out.f && !cli_out_close(&b->rep[k].out, ok))
+			good = 0;
+	return good;
 }
 
 /* Loads what the batch shares; 0 on a usage error (reported). */
@@ -176,7 +279,7 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 		   struct arena *ar, struct diag_sink *d)
 {
 	struct check_opts *o = &b->o;
-	if (!choose_format(c, &b->fmt) || !cli_load_profile(c, d, p))
+	if (!cli_load_profile(c, d, p))
 		return 0;
 	if (c->waivers && !(o->waivers = waiver_load(c->waivers, ar, d)))
 		return 0;
@@ -213,7 +316,7 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 	return 1;
 }
 
-/* The run's own findings (check_batch_end) go to both reports; returns
+/* The run's own findings (check_batch_end) go to every report; returns
  * their exit-status part (1 when one reaches --fail-on, 2 out of memory). */
 static int run_findings(struct batch *b, struct arena *ar, struct diag_sink *d,
 			struct rules_result *run)
@@ -222,8 +325,10 @@ static int run_findings(struct batch *b, struct arena *ar, struct diag_sink *d,
 		fprintf(stderr, "headroom: error: out of memory\n");
 		return EXIT_USAGE;
 	}
-	b->sum.run = b->sumj.run = run;
-	b->sum.run_d = b->sumj.run_d = d;
+	for (size_t k = 0; k < b->nrep; k++) {
+		b->rep[k].sum.run = run;
+		b->rep[k].sum.run_d = d;
+	}
 	int worst = -1;
 	for (size_t i = 0; i < run->n; i++)
 		if (!run->f[i].waived && (int)run->f[i].rule->severity > worst)
@@ -241,49 +346,58 @@ static struct check_skip *skips_view(const struct cli_skips *s)
 	return v;
 }
 
-/* Runs the batch into the open outputs; returns the exit status. */
+/* Closes every report after the files and the run's findings. */
+static void end_reports(struct batch *b, const struct check_skip *sv, size_t nskipped)
+{
+	for (size_t k = 0; k < b->nrep; k++) {
+		b->rep[k].sum.skipped = sv;
+		b->rep[k].sum.nskipped = nskipped;
+		report_check_end(b->f[k], b->rep[k].fmt, b->o.profile, &b->rep[k].sum);
+	}
+}
+
+/* Runs the batch into the open reports and closes them; returns the exit
+ * status. */
 static int run_files(struct batch *b, const struct cli_files *files,
-		     const struct cli_skips *skips, struct cli_out *out,
-		     struct cli_out *json, struct arena *ar, struct diag_sink *d)
+		     const struct cli_skips *skips, struct arena *ar, struct diag_sink *d)
 {
 	const struct cli *c = b->c;
-	struct cli_batch cb = {check_job, check_emit, b, c->jobs, json->f != NULL,
+	struct cli_batch cb = {check_job, check_emit, b, b->nrep, c->jobs,
 			       !c->quiet && files->n > 1 && isatty(STDERR_FILENO)};
-	FILE *o = out->f ? out->f : stdout;
+	int ok = 1, rc = EXIT_USAGE;
 	b->in.files = (const char *const *)files->v;
 	b->in.nfiles = files->n;
-	b->t = calloc(files->n ? files->n : 1, sizeof *b->t);
-	b->tj = calloc(files->n ? files->n : 1, sizeof *b->tj);
+	for (size_t k = 0; k < b->nrep; k++) {
+		ok &= (b->rep[k].t = calloc(files->n ? files->n : 1, sizeof *b->rep[k].t)) != NULL;
+		totals_init(b, &b->rep[k], &b->rep[k].sum);
+	}
 	struct check_skip *sv = skips_view(skips);
-	int rc = EXIT_USAGE;
-	if (b->t && b->tj && (sv || !skips->n)) {
-		totals_init(b, &b->sum, &b->sumj);
+	ok &= sv || !skips->n;
+	if (ok) {
 		struct rules_result run = {0};
-		rc = cli_batch_run(&cb, files->v, files->n, o, json->f);
+		rc = cli_batch_run(&cb, files->v, files->n, b->f);
 		int rr = run_findings(b, ar, d, &run);
 		rc = rr > rc ? rr : rc;
 		if (files->n == 0)
 			fprintf(stderr, "headroom: no netlist found: %zu entr%s skipped (see --netlist-ext)\n",
 				skips->n, skips->n == 1 ? "y" : "ies");
-		b->sum.skipped = b->sumj.skipped = sv;
-		b->sum.nskipped = b->sumj.nskipped = skips->n;
-		report_check_end(o, b->fmt, b->o.profile, &b->sum);
-		if (json->f)
-			report_check_end(json->f, RC_JSON, b->o.profile, &b->sumj);
+		end_reports(b, sv, skips->n);
+	} else {
+		fprintf(stderr, "headroom: out of memory\n");
 	}
-	if (out->f && !cli_out_close(out, 1))
+	if (!close_reports(b, ok))
 		rc = EXIT_USAGE;
-	if (json->f && !cli_out_close(json, 1))
-		rc = EXIT_USAGE;
-	report_totals_free(&b->sum);
-	report_totals_free(&b->sumj);
+	for (size_t k = 0; k < b->nrep; k++) {
+		report_totals_free(&b->rep[k].sum);
+		free(b->rep[k].t);
+	}
 	free(sv);
-	free(b->t);
-	free(b->tj);
 	return rc;
 }
 
-int cli_check(const struct cli *c)
+/* headroom check with the settings final (command line over the project
+ * configuration). */
+static int check_with(const struct cli *c)
 {
 	struct hr_alloc hook = hr_alloc_default();
 	struct arena *ar = arena_create(&hook);
@@ -291,7 +405,6 @@ int cli_check(const struct cli *c)
 	struct profile *p = malloc(sizeof *p);
 	struct cli_files files = {0};
 	struct cli_skips skips = {0};
-	struct cli_out out = {0}, json = {0};
 	struct batch b;
 	char today[32];
 	int rc = EXIT_USAGE;
@@ -304,13 +417,12 @@ int cli_check(const struct cli *c)
 	b.o.today = today;
 	b.in = (struct report_inputs){today, c->today != NULL, c->parts, c->waivers, c->baseline,
 				      NULL, 0};
-	if (d && p && prepare(c, &b, p, ar, d) &&
+	if (d && p && plan_reports(c, &b) && prepare(c, &b, p, ar, d) &&
 	    cli_files_walk(&files, &skips, c->netlist_ext, c->files, (size_t)c->nfiles) &&
-	    (!c->out_path || cli_out_open(&out, c->out_path)) &&
-	    (!c->write_baseline || cli_out_open(&json, c->write_baseline)))
-		rc = run_files(&b, &files, &skips, &out, &json, ar, d);
-	else if (out.f)
-		cli_out_close(&out, 0);
+	    open_reports(&b))
+		rc = run_files(&b, &files, &skips, ar, d);
+	else if (b.rep)
+		close_reports(&b, 0);
 	if (files.unreadable)
 		rc = EXIT_USAGE; /* a folder given was not checked */
 	if (d)
@@ -318,8 +430,19 @@ int cli_check(const struct cli *c)
 	cli_files_free(&files);
 	cli_skips_free(&skips);
 	free((char *)b.docs);
+	free(b.rep);
+	free(b.f);
 	free(p);
 	diag_destroy(d);
 	arena_destroy(ar);
+	return rc;
+}
+
+int cli_check(const struct cli *c)
+{
+	struct cli_config cfg;
+	struct cli settled;
+	int rc = cli_config_settle(c, &settled, &cfg) ? check_with(&settled) : EXIT_USAGE;
+	cli_config_free(&cfg);
 	return rc;
 }

@@ -4,6 +4,7 @@
  * commands. */
 #include "cli.h"
 
+#include <assert.h>
 #include <errno.h>
 #include <math.h>
 #include <stdint.h>
@@ -14,7 +15,7 @@
 #include "diag.h"
 #include "suggest.h"
 
-enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_FAIL };
+enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_FAIL, OPT_REPORT };
 
 /* Options that take a positive whole number. */
 enum count_id { CO_PARTS, CO_NODES, CO_LINE, CO_TOKEN, CO_INCLUDE, CO_DEPTH,
@@ -52,6 +53,15 @@ static const struct opt_def opts[] = {
 	{"-o", NULL, STR(out_path),
 	 "-o FILE              write the report to FILE (replaced only when the\n"
 	 "run succeeds)"},
+	{"--report", NULL, OPT_REPORT, 0, CO_NONE, 0,
+	 "--report FMT=FILE    check: also write the report as FMT to FILE\n"
+	 "(text, json, csv, junit, sarif, html); give it\n"
+	 "again for more: one analysis, every report"},
+	{"--config", NULL, STR(config),
+	 "--config FILE        check: settings from FILE instead of the\n"
+	 "headroom.ini found from the current folder up"},
+	{"--no-config", NULL, FLAG(no_config),
+	 "--no-config          check: read no headroom.ini"},
 	{"-j", NULL, COUNT(CO_JOBS, 1024),
 	 "-j N                 check N files at once (default: one per processor)"},
 	{"--netlist-ext", NULL, STR(netlist_ext),
@@ -163,6 +173,42 @@ int cli_format(const struct cli *c, const char *const *names, size_t n, size_t *
 	return 0;
 }
 
+/* The formats of check, in the order of enum report_check_format (the
+ * order is asserted in cli_check.c). */
+const char *const cli_check_formats[CLI_CHECK_NFORMATS] = {"text",  "json",  "csv",
+							    "junit", "sarif", "html"};
+#define FORMAT_LIST "text, json, csv, junit, sarif or html" /* as cli_check_formats */
+
+const char *cli_report_spec(const char *spec, size_t *fmt, const char **file, char *why,
+			    size_t n)
+{
+	const char *eq = strchr(spec, '=');
+	char name[SUGGEST_MAX_LEN + 1], hint[SUGGEST_HINT_SIZE];
+	if (!eq) {
+		snprintf(why, n, "'%s' is not FORMAT=FILE (FORMAT: " FORMAT_LIST ")", spec);
+		return why;
+	}
+	snprintf(name, sizeof name, "%.*s", (int)(eq - spec), spec);
+	for (size_t i = 0; i < CLI_CHECK_NFORMATS; i++) {
+		if (strcmp(name, cli_check_formats[i]) != 0)
+			continue;
+		*fmt = i;
+		*file = eq + 1;
+		if (!eq[1])
+			snprintf(why, n, "'%s' names no file", spec);
+		return eq[1] ? NULL : why;
+	}
+	for (size_t i = 0; i < CLI_CHECK_NFORMATS; i++)
+		if (strcmp(eq + 1, cli_check_formats[i]) == 0) { /* FILE=FORMAT */
+			snprintf(why, n, "no report format '%s'; did you mean '%s=%s'?", name,
+				 eq + 1, name);
+			return why;
+		}
+	snprintf(why, n, "no report format '%s' (" FORMAT_LIST ")%s", name,
+		 cli_hint(name, cli_check_formats, CLI_CHECK_NFORMATS, hint, sizeof hint));
+	return why;
+}
+
 /* An unknown option: says so, with the closest option's name when one is
  * close (the name part of --opt=value). */
 static void unknown_option(const char *a)
@@ -212,7 +258,7 @@ static int parse_count(const char *s, size_t *out)
 }
 
 /* --source-tol 10 or 10%: a percentage from 0 to 100. */
-static int set_tol(struct cli *c, const char *val)
+static int set_tol(struct cli *c, const char *shown, const char *val, char *why, size_t n)
 {
 	char *end;
 	errno = 0;
@@ -220,14 +266,14 @@ static int set_tol(struct cli *c, const char *val)
 	if (*end == '%')
 		end++;
 	if (errno || *end || end == val || !(v >= 0 && v <= 100)) {
-		fprintf(stderr, "headroom: --source-tol takes a percentage from 0 to 100, not '%s'\n", val);
+		snprintf(why, n, "%s takes a percentage from 0 to 100, not '%s'", shown, val);
 		return 0;
 	}
 	c->source_tol = v / 100;
 	return 1;
 }
 
-static int set_fail_on(struct cli *c, const char *val)
+static int set_fail_on(struct cli *c, const char *shown, const char *val, char *why, size_t n)
 {
 	static const struct {
 		const char *name;
@@ -236,6 +282,7 @@ static int set_fail_on(struct cli *c, const char *val)
 	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
 		if (strcmp(val, tab[i].name) == 0) {
 			c->fail_on = tab[i].level;
+			c->fail_on_given = 1;
 			return 1;
 		}
 	struct suggest s;
@@ -243,8 +290,8 @@ static int set_fail_on(struct cli *c, const char *val)
 	suggest_init(&s, val, strlen(val));
 	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
 		suggest_offer(&s, tab[i].name);
-	fprintf(stderr, "headroom: --fail-on takes error, warning, note or never, not '%s'%s\n", val,
-		suggest_hint(&s, hint, sizeof hint));
+	snprintf(why, n, "%s takes error, warning, note or never, not '%s'%s", shown, val,
+		 suggest_hint(&s, hint, sizeof hint));
 	return 0;
 }
 
@@ -267,42 +314,66 @@ static void set_count(struct cli *c, enum count_id id, size_t n)
 	}
 }
 
-/* An option with a value; returns 0 on a usage error (printed). */
-static int set_value(struct cli *c, const struct opt_def *o, const char *val)
+/* An option with a value; returns 0 on a bad value (why says so, naming
+ * the option as shown). */
+static int set_value(struct cli *c, const struct opt_def *o, const char *shown,
+		     const char *val, char *why, size_t wn)
 {
 	size_t n;
-	if (!val) {
-		fprintf(stderr, "headroom: %s needs a value\n", o->name);
-		return 0;
-	}
 	switch (o->kind) {
 	case OPT_STR:
 		*(const char **)(void *)((char *)c + o->off) = val;
 		return 1;
+	case OPT_REPORT:
+		c->reports[c->nreports++] = val;
+		return 1;
 	case OPT_TOL:
-		return set_tol(c, val);
+		return set_tol(c, shown, val, why, wn);
 	case OPT_FAIL:
-		return set_fail_on(c, val);
+		return set_fail_on(c, shown, val, why, wn);
 	default:
 		break;
 	}
 	if (!parse_count(val, &n)) {
-		fprintf(stderr, "headroom: %s takes a positive whole number, not '%s'\n",
-			o->name, val);
+		snprintf(why, wn, "%s takes a positive whole number, not '%s'", shown, val);
 		return 0;
 	}
 	if (n > o->max) {
-		fprintf(stderr, "headroom: %s is at most %zu, not '%s'\n", o->name, o->max, val);
+		snprintf(why, wn, "%s is at most %zu, not '%s'", shown, o->max, val);
 		return 0;
 	}
 	set_count(c, o->count, n);
 	return 1;
 }
 
+const char *cli_set_option(struct cli *c, const char *name, const char *shown,
+			   const char *val, char *why, size_t n)
+{
+	const struct opt_def *o = opt_find(name);
+	assert(o && o->kind != OPT_FLAG && o->kind != OPT_REPORT);
+	return set_value(c, o, shown, val, why, n) ? NULL : why;
+}
+
+/* An option with a value on the command line; prints the problem and
+ * returns 0 on a usage error. */
+static int set_arg(struct cli *c, const struct opt_def *o, const char *val)
+{
+	char why[SUGGEST_HINT_SIZE + 160];
+	if (!val) {
+		fprintf(stderr, "headroom: %s needs a value\n", o->name);
+		return 0;
+	}
+	if (set_value(c, o, o->name, val, why, sizeof why))
+		return 1;
+	fprintf(stderr, "headroom: %s\n", why);
+	return 0;
+}
+
 int cli_parse(struct cli *c, int argc, char **argv)
 {
 	c->files = calloc((size_t)argc, sizeof *c->files);
-	if (!c->files)
+	c->reports = calloc((size_t)argc, sizeof *c->reports);
+	if (!c->files || !c->reports)
 		return 0;
 	for (int i = 1; i < argc; i++) {
 		const char *a = argv[i];
@@ -312,13 +383,13 @@ int cli_parse(struct cli *c, int argc, char **argv)
 			*(int *)(void *)((char *)c + o->off) = 1;
 		} else if (o && eq) {
 			/* --opt=value, as --opt value */
-			if (o->kind == OPT_FLAG || !set_value(c, o, eq + 1)) {
+			if (o->kind == OPT_FLAG || !set_arg(c, o, eq + 1)) {
 				if (o->kind == OPT_FLAG)
 					fprintf(stderr, "headroom: %s takes no value\n", o->name);
 				return 0;
 			}
 		} else if (o) {
-			if (!set_value(c, o, i + 1 < argc ? argv[i + 1] : NULL))
+			if (!set_arg(c, o, i + 1 < argc ? argv[i + 1] : NULL))
 				return 0;
 			i++;
 		} else if (a[0] == '-' && a[1] != '\0') {

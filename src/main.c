@@ -214,5 +214,6 @@ int main(int argc, char **argv)
 	c.argv0 = argv[0];
 	rc = cli_parse(&c, argc, argv) ? dispatch(&c) : EXIT_USAGE;
 	free(c.files);
+	free(c.reports);
 	return rc;
 }

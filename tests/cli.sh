@@ -649,5 +649,81 @@ else
 	echo "cli: note: running as root, so a chmod 000 folder is readable; the unreadable-folder case is not run"
 fi
 
+# The project configuration (headroom.ini): found from the current folder
+# up to a repository's root; paths from its own folder; the command line
+# over it; every problem located.
+abs_bin=$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")
+proj=$tmp/proj
+mkdir -p "$proj/.git" "$proj/nl" "$proj/lib" "$proj/out"
+cp "$here/../examples/"*.cir "$proj/nl/"
+cp "$here/../examples/sensor_restorer.cir" "$proj/nl/extra.sim"
+cp "$here/../examples/parts.csv" "$proj/lib/parts.csv"
+printf '%s\n' '; settings of the invented project' '[check]' 'profile = flight' \
+	'parts = lib/parts.csv' 'fail-on = never' 'source-tol = 5%' 'jobs = 2' 'netlist-ext = +.sim' \
+	'reports = sarif=out/r.sarif' '          junit=out/r.xml' > "$proj/headroom.ini"
+inproj() { # folder, args...: runs headroom there; sets rc (output in $tmp/out, $tmp/err)
+	local dir=$1
+	shift
+	# HEADROOM_RULES: a sanitizer build (build/asan) finds the shipped
+	# profiles from the current folder only
+	(cd "$dir" && HEADROOM_RULES=$here/../rules "$abs_bin" "$@") >"$tmp/out" 2>"$tmp/err"
+	rc=$?
+}
+inproj "$proj/nl" check --format json --today 2026-12-01 .
+cp "$tmp/out" "$tmp/cfg.json"
+check "config: a run from a subfolder uses the headroom.ini above it (exit 0: fail-on never)" test $rc -eq 0
+check "config: one line on stderr names the file used" grep -qx "headroom: settings from ../headroom.ini (the command line overrides them; --no-config ignores the file)" "$tmp/err"
+check "config: its reports are written, paths from the file's folder" bash -c "test -s '$proj/out/r.sarif' && xmllint --noout '$proj/out/r.xml'"
+inproj "$proj/nl" check --no-config --format json --today 2026-12-01 --profile flight --parts ../lib/parts.csv --fail-on never --source-tol 5 -j 2 --netlist-ext +.sim .
+check "config: the same JSON report, byte for byte, as the options it stands for" cmp "$tmp/cfg.json" "$tmp/out"
+inproj "$proj/nl" check --no-config --format json --today 2026-12-01 .
+check "config: --no-config ignores it (a different report, no settings line)" bash -c "! cmp -s '$tmp/cfg.json' '$tmp/out' && ! grep -q 'settings from' '$tmp/err'"
+check "config: the .sim file is checked only with the file's netlist-ext" python3 -c "
+import json,sys
+st=lambda p: {f['path']: f['status'] for f in json.load(open(p))['files']}.get('./extra.sim')
+assert (st(sys.argv[1]), st(sys.argv[2])) == ('checked', None)" "$tmp/cfg.json" "$tmp/out"
+rm -f "$proj/out/"*
+inproj "$proj/nl" check --report json="$tmp/cl.json" --fail-on error --today 2026-12-01 .
+check "config: the command line overrides it (--fail-on error: exit 1; --report replaces its reports)" \
+	bash -c "test $rc -eq 1 && test -s '$tmp/cl.json' && ! test -e '$proj/out/r.sarif'"
+mkdir -p "$proj/lib/sub"
+printf '[check]\nparts = parts.csv\nprofile = basic\n' > "$proj/lib/other.ini"
+inproj "$proj" check --config lib/other.ini --format json --today 2026-12-01 nl/mains_doubler.cir
+cp "$tmp/out" "$tmp/other.json"
+cp "$tmp/err" "$tmp/other.err"
+inproj "$proj" check --no-config --parts lib/parts.csv --profile basic --format json --today 2026-12-01 nl/mains_doubler.cir
+check "config: --config FILE, its paths from FILE's folder (lib/parts.csv)" bash -c "cmp '$tmp/other.json' '$tmp/out' && grep -q '^headroom: settings from lib/other.ini ' '$tmp/other.err'"
+printf '[check]\nparts = parts.csv\nprts = x\n' > "$proj/lib/sub/headroom.ini"
+inproj "$proj/lib/sub" check nl
+check "config: an unknown key is a located error with a did-you-mean (exit 2)" \
+	bash -c "test $rc -eq 2 && grep -qx \"headroom.ini:3:1: error: unknown key 'prts'; did you mean 'parts'? \[config\]\" '$tmp/err'"
+check "config: a path that is not there, from the file's folder, located at its value" grep -qx "headroom.ini:2:9: error: parts: cannot read 'parts.csv' (paths are from this file's folder) \[config\]" "$tmp/err"
+printf '[chek]\njobs = 2\n[check]\nfail-on = eror\nsource-tol = 200\njobs = 2\njobs = 3\nthis line\n' > "$proj/lib/sub/headroom.ini"
+inproj "$proj/lib/sub" check nl
+check "config: an unknown section, located, with a did-you-mean" grep -qx "headroom.ini:1:2: error: unknown section \[chek\] (the settings go under \[check\]); did you mean 'check'? \[config\]" "$tmp/err"
+check "config: a bad value, located, checked as its option" grep -qx "headroom.ini:4:11: error: fail-on takes error, warning, note or never, not 'eror'; did you mean 'error'? \[config\]" "$tmp/err"
+check "config: a percentage out of range, located" grep -q "^headroom.ini:5:14: error: source-tol takes a percentage from 0 to 100, not '200'" "$tmp/err"
+check "config: a key set twice, located" grep -q "^headroom.ini:7:1: error: 'jobs' is set again (first on line 6)" "$tmp/err"
+check "config: a line that is no INI, located" grep -q "^headroom.ini:8:1: error: expected '\[section\]' or 'key = value'" "$tmp/err"
+check "config: errors quote the line with a caret" grep -qx "    fail-on = eror" "$tmp/err"
+printf 'jobs = 2\n' > "$proj/lib/sub/headroom.ini"
+inproj "$proj/lib/sub" check nl
+check "config: a key outside [check] is a located error" grep -q "^headroom.ini:1:1: error: 'jobs' is outside a section" "$tmp/err"
+printf '[check]\nreports = sarf=x.sarif\nreports = html=\nreports = out.json\n  jsn=y.json\n' > "$proj/lib/sub/headroom.ini"
+inproj "$proj/lib/sub" check nl
+check "config: bad reports entries are located errors (did-you-mean, empty file, no FORMAT=, on a continuation line)" bash -c "test $rc -eq 2 && grep -q \"^headroom.ini:2:11: error: reports: no report format 'sarf' .*did you mean 'sarif'\" '$tmp/err' && grep -q \"^headroom.ini:3:11: error: reports: 'html=' names no file\" '$tmp/err' && grep -q \"^headroom.ini:4:11: error: reports: 'out.json' is not FORMAT=FILE\" '$tmp/err' && grep -q \"^headroom.ini:5:3: error: reports: no report format 'jsn' .*did you mean 'json'\" '$tmp/err'"
+printf '[check]\nparts = %0300d\n' 1 > "$proj/lib/sub/headroom.ini"
+inproj "$proj/lib/sub" check nl
+check "config: a line longer than libinih reads is a located error" grep -q "^headroom.ini:2:1: error: line longer than [0-9]* bytes" "$tmp/err"
+rm "$proj/lib/sub/headroom.ini"
+mkdir -p "$tmp/outer/repo/.git" "$tmp/outer/plain"
+printf '[check]\nbogus = 1\n' > "$tmp/outer/headroom.ini"
+inproj "$tmp/outer/repo" check "$here/../examples/sensor_restorer.cir"
+check "config: the walk stops at a repository's root (.git)" bash -c "test $rc -eq 0 && ! grep -q headroom.ini '$tmp/err'"
+inproj "$tmp/outer/plain" check "$here/../examples/sensor_restorer.cir"
+check "config: and goes on above a folder that is no repository" bash -c "test $rc -eq 2 && grep -q \"^../headroom.ini:2:1: error: unknown key 'bogus'\" '$tmp/err'"
+inproj "$tmp/outer/plain" check --config nosuch.ini "$here/../examples/sensor_restorer.cir"
+check "config: --config naming no file is a usage error" bash -c "test $rc -eq 2 && grep -qx \"headroom: cannot read the configuration 'nosuch.ini': no such file\" '$tmp/err'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

@@ -11,7 +11,10 @@
 #    (tests/data/files, read back by tests/report_files.py), and the counts
 #    of files seen, checked, not checked and skipped alike in every format
 #    over the third-party corpus;
-#  - -j 1 and -j 4 byte-identical over the third-party corpus.
+#  - -j 1 and -j 4 byte-identical over the third-party corpus;
+#  - --report: several reports from one run, each byte-identical to a run
+#    of its own; usage errors (bad FORMAT, empty FILE, one file twice)
+#    leave every old report alone.
 # Ends with "reports: N passed, N failed".
 set -u
 bin=${HEADROOM:-build/headroom}
@@ -186,6 +189,56 @@ chmod 640 "$tmp/report.txt"
 "$bin" check -o "$tmp/report.txt" $ex/sensor_restorer.cir > /dev/null 2>&1
 check "a replaced report keeps its mode" bash -c "test \"\$(stat -c %a '$tmp/report.txt')\" = 640"
 
+# --report FORMAT=FILE: several reports from one analysis, each the same
+# bytes as a run of its own (--today pins the HTML page's date)
+same=(--today 2026-12-01 --fail-on never --parts $ex/parts.csv)
+for fmt in sarif junit html; do
+	"$bin" check "${same[@]}" --format $fmt -o "$tmp/alone.$fmt" $ex 2>/dev/null
+done
+"$bin" check "${same[@]}" --report sarif="$tmp/one.sarif" --report junit="$tmp/one.junit" \
+	--report html="$tmp/one.html" $ex > "$tmp/one.txt" 2>/dev/null
+check "--report: one run writes SARIF, JUnit and HTML, each byte-identical to a run of its own" \
+	bash -c "cmp '$tmp/alone.sarif' '$tmp/one.sarif' && cmp '$tmp/alone.junit' '$tmp/one.junit' && cmp '$tmp/alone.html' '$tmp/one.html'"
+"$bin" check "${same[@]}" $ex > "$tmp/alone.txt" 2>/dev/null
+check "--report: the standard output still carries the --format report" cmp "$tmp/alone.txt" "$tmp/one.txt"
+"$bin" check "${same[@]}" -j 1 --format sarif --report junit="$tmp/j1.junit" --report json="$tmp/j1.json" $ex > "$tmp/j1.sarif" 2>/dev/null
+"$bin" check "${same[@]}" -j 4 --format sarif --report junit="$tmp/j4.junit" --report json="$tmp/j4r.json" $ex > "$tmp/j4.sarif" 2>/dev/null
+"$bin" check "${same[@]}" --format json $ex > "$tmp/alone.json" 2>/dev/null
+check "--report: -j 1 and -j 4 write the same bytes into every report" \
+	bash -c "cmp '$tmp/j1.sarif' '$tmp/j4.sarif' && cmp '$tmp/j1.junit' '$tmp/j4.junit' && cmp '$tmp/j1.json' '$tmp/j4r.json' && cmp '$tmp/j1.json' '$tmp/alone.json' && cmp '$tmp/j1.sarif' '$tmp/alone.sarif'"
+"$bin" check "${same[@]}" --report csv="$tmp/s.csv" --report text="$tmp/s.txt" $ex/sensor_restorer.cir > /dev/null 2>&1
+"$bin" check "${same[@]}" --format csv $ex/sensor_restorer.cir > "$tmp/s1.csv" 2>/dev/null
+"$bin" check "${same[@]}" $ex/sensor_restorer.cir > "$tmp/s1.txt" 2>/dev/null
+check "--report: one file (written straight, no pool) gives the same bytes too" \
+	bash -c "cmp '$tmp/s.csv' '$tmp/s1.csv' && cmp '$tmp/s.txt' '$tmp/s1.txt'"
+"$bin" check "${same[@]}" --write-baseline "$tmp/wb.json" $ex > /dev/null 2>&1
+"$bin" check "${same[@]}" --report json="$tmp/wbr.json" --write-baseline "$tmp/wb2.json" $ex > /dev/null 2>&1
+check "--report with --write-baseline: the baseline unchanged, the JSON report without its paths_from" \
+	bash -c "cmp '$tmp/wb.json' '$tmp/wb2.json' && cmp '$tmp/wbr.json' '$tmp/alone.json'"
+# a failed run (usage error, exit 2) leaves every existing report alone
+for f in k.sarif k.junit k.html; do echo "old $f" > "$tmp/$f"; done
+kept() { # exit status $1 was 2 and every old report is still there
+	[ "$1" -eq 2 ] || return 1
+	for f in k.sarif k.junit k.html; do grep -qx "old $f" "$tmp/$f" || return 1; done
+	! ls "$tmp" | grep -q '\.tmp'
+}
+"$bin" check "${same[@]}" --report sarif="$tmp/k.sarif" --report junit="$tmp/k.junit" --report html="$tmp/k.html" --profile nosuch $ex > /dev/null 2> "$tmp/k.err"
+check "--report: a run failing on a usage error (exit 2) leaves every old report" kept $?
+"$bin" check "${same[@]}" --report sarif="$tmp/k.sarif" --report junit="$tmp/k.junit" --report htm="$tmp/k.html" $ex > /dev/null 2> "$tmp/k.err"
+check "--report: a bad FORMAT is a usage error, nothing written" kept $?
+check "--report: a bad FORMAT gets a did-you-mean" grep -qx "headroom: --report: no report format 'htm' (text, json, csv, junit, sarif or html); did you mean 'html'?" "$tmp/k.err"
+"$bin" check "${same[@]}" --report sarif= $ex > /dev/null 2> "$tmp/k.err"
+check "--report: an empty FILE is a usage error" bash -c "test $? -eq 2 && grep -qx \"headroom: --report: 'sarif=' names no file\" '$tmp/k.err'"
+"$bin" check "${same[@]}" --report "$tmp/k.sarif" $ex > /dev/null 2> "$tmp/k.err"
+check "--report: a value without FORMAT= is a usage error" bash -c "test $? -eq 2 && grep -q 'is not FORMAT=FILE' '$tmp/k.err'"
+"$bin" check "${same[@]}" --report sarif="$tmp/k.sarif" --report junit="$tmp/./k.sarif" $ex > /dev/null 2> "$tmp/k.err"
+check "--report: two reports into one file are a usage error, nothing written" kept $?
+check "--report: two reports into one file: the message says so" grep -q "two reports would write the same file: 'sarif=.*k.sarif' and 'junit=.*k.sarif'" "$tmp/k.err"
+"$bin" check "${same[@]}" -o "$tmp/new.one" --report json="$tmp/new.one" $ex > /dev/null 2> "$tmp/k.err"
+check "--report: a report onto -o's new file is a usage error too" bash -c "test $? -eq 2 && ! test -e '$tmp/new.one'"
+"$bin" check "${same[@]}" --report sarif="$tmp/k.sarif" --report junit="$tmp/nodir/k.junit" $ex > /dev/null 2> "$tmp/k.err"
+check "--report: a report that cannot be created leaves the others' old files" kept $?
+
 # determinism over the corpus
 corpus=${HEADROOM_CORPUS:-$root/../shared/corpus/real}
 if [ -d "$corpus" ]; then
@@ -195,13 +248,15 @@ if [ -d "$corpus" ]; then
 	check "and byte-identical diagnostics" cmp -s "$tmp/j1.err" "$tmp/j4.err"
 	check "the corpus report is valid JSON" python3 -c "import json; json.load(open('$tmp/j4.json'))"
 	# Every entry under the corpus is checked or skipped with a reason, and
-	# every format says so with the same numbers. One run per format (about
-	# 13 s each with -j 2 on two processors); HTML included.
+	# every format says so with the same numbers. One run writes the five
+	# other formats (--report); HTML included.
 	start=$(date +%s)
-	for fmt in sarif junit csv html text; do
-		"$bin" check -j 2 --format "$fmt" --fail-on never "$corpus" > "$tmp/corpus.$fmt" 2>/dev/null
-	done
-	echo "reports: the corpus in five more formats: $(( $(date +%s) - start )) s"
+	# one analysis, five reports (--report)
+	"$bin" check -j 2 --format json --fail-on never --report sarif="$tmp/corpus.sarif" \
+		--report junit="$tmp/corpus.junit" --report csv="$tmp/corpus.csv" \
+		--report html="$tmp/corpus.html" --report text="$tmp/corpus.text" "$corpus" > "$tmp/corpus.json" 2>/dev/null
+	echo "reports: the corpus in five more formats, one run: $(( $(date +%s) - start )) s"
+	check "corpus: the JSON of the run with five more reports is the -j 4 run's" cmp -s "$tmp/j4.json" "$tmp/corpus.json"
 	check "over the corpus seen = the entries a walk of our own finds, netlists = checked + not checked" python3 -c "
 import json,os,sys
 d=json.load(open(sys.argv[1]))['summary']
