@@ -37,6 +37,7 @@ static const struct key {
 } keys[] = {
 	{"profile", "--profile", KEY_PROFILE},
 	{"parts", "--parts", KEY_PATH},
+	{"bom", "--bom", KEY_PATH},
 	{"waivers", "--waivers", KEY_PATH},
 	{"baseline", "--baseline", KEY_PATH},
 	{"fail-on", "--fail-on", KEY_VALUE},
@@ -379,6 +380,7 @@ static void merge(const struct cli *c, const struct cli_config *cfg, struct cli 
 	*out = *c;
 	out->profile = c->profile ? c->profile : s->profile;
 	out->parts = c->parts ? c->parts : s->parts;
+	out->bom = c->bom ? c->bom : s->bom;
 	out->waivers = c->waivers ? c->waivers : s->waivers;
 	out->baseline = c->baseline ? c->baseline : s->baseline;
 	out->netlist_ext = c->netlist_ext ? c->netlist_ext : s->netlist_ext;

@@ -686,6 +686,13 @@ rm -f "$proj/out/"*
 inproj "$proj/nl" check --report json="$tmp/cl.json" --fail-on error --today 2026-12-01 .
 check "config: the command line overrides it (--fail-on error: exit 1; --report replaces its reports)" \
 	bash -c "test $rc -eq 1 && test -s '$tmp/cl.json' && ! test -e '$proj/out/r.sarif'"
+bomf=$(ls "$here/data/bom/"*.csv | grep -v equiv_parts | head -1)
+cp "$bomf" "$proj/lib/board_bom.csv"
+printf '[check]\nbom = board_bom.csv\n' > "$proj/lib/bom.ini"
+inproj "$proj" check --config lib/bom.ini --format json --today 2026-12-01 nl/mains_doubler.cir
+cp "$tmp/out" "$tmp/bomcfg.json"
+inproj "$proj" check --no-config --bom lib/board_bom.csv --format json --today 2026-12-01 nl/mains_doubler.cir
+check "config: bom = FILE gives the report --bom FILE gives" bash -c "cmp '$tmp/bomcfg.json' '$tmp/out' && grep -q 'BOM' '$tmp/out'"
 mkdir -p "$proj/lib/sub"
 printf '[check]\nparts = parts.csv\nprofile = basic\n' > "$proj/lib/other.ini"
 inproj "$proj" check --config lib/other.ini --format json --today 2026-12-01 nl/mains_doubler.cir
