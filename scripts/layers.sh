@@ -89,6 +89,7 @@ elab_state front
 simint solver
 cli program
 version base
+version_git base
 cli_* program
 testutil -
 '
