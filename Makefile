@@ -141,6 +141,8 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/doc_profiles.py
 	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/ci_recipe.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/build.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_report.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py
 
@@ -177,6 +179,7 @@ install: $(BUILD)/headroom
 		$(DESTDIR)$(PREFIX)/share/man/man1 $(DESTDIR)$(PREFIX)/share/doc/headroom/rules
 	install -m 755 $(BUILD)/headroom $(DESTDIR)$(PREFIX)/bin/headroom
 	install -m 644 rules/*.profile $(DESTDIR)$(PREFIX)/share/headroom/rules/
+	install -m 755 scripts/pre-commit $(DESTDIR)$(PREFIX)/share/headroom/pre-commit
 	install -m 644 docs/headroom.1 $(DESTDIR)$(PREFIX)/share/man/man1/headroom.1
 	install -m 644 docs/*.md docs/report.schema.json docs/rules.schema.json $(DESTDIR)$(PREFIX)/share/doc/headroom/
 	install -m 644 docs/rules/*.md $(DESTDIR)$(PREFIX)/share/doc/headroom/rules/
