@@ -106,6 +106,8 @@ git -C "$repo" config user.email designer@example.org
 git -C "$repo" config user.name Designer
 install -m 755 "$root/scripts/pre-commit" "$repo/.git/hooks/pre-commit"
 export HEADROOM=$abs_bin
+# A sanitizer build (build/asan/headroom) does not find rules/ beside it.
+export HEADROOM_RULES=$root/rules
 clamp() { # RATING: a clamp whose capacitor sees 12.6 V worst case
 	printf '%s\n' 'Level shifter for a bench probe: a clamp on a 12 V peak drive' \
 		'VDRV drv 0 SIN(0 12 1k)' 'RS   drv a  220' 'CSH  a   out 1u' \
