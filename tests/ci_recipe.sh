@@ -10,7 +10,8 @@
 #  - scripts/pre-commit installed in a temporary git repository: a clean
 #    netlist is committed, one with a part over its rating is refused, the
 #    staged copy is what is checked, a netlist with errors is refused, the
-#    parts table is used, a commit with no netlist needs no headroom.
+#    parts table and the git config settings are used, a commit with no
+#    netlist needs no headroom.
 # Ends with "ci_recipe: N passed, N failed".
 set -u
 bin=${HEADROOM:-build/headroom}
@@ -152,14 +153,36 @@ check "the hook uses parts.csv at the top folder" \
 git -C "$repo" reset -q
 rm "$repo/hw/bare.cir" "$repo/parts.csv"
 
+# headroom.options: a part over its derated limit but under its rating is a
+# warning, refused only with --fail-on warning.
+clamp 16V > "$repo/hw/warn.cir"
+git -C "$repo" config headroom.options "--fail-on warning"
+commit "warning, refused"
+check "headroom.options reaches headroom (--fail-on warning refuses a warning)" \
+	bash -c "test \"\$(git -C '$repo' rev-list --count HEAD)\" = 2 && grep -q 'cap-derating' '$tmp/hook.err'"
+git -C "$repo" config --unset headroom.options
+commit "warning, allowed"
+check "without it a warning does not stop the commit" test "$(commits)" = 3
+
+# headroom.netlistExt: a .sim file is checked only once its ending is added.
+clamp 6.3V > "$repo/hw/bench.sim"
+commit "sim, not a netlist ending"
+check "a staged file with another ending is not checked" test "$(commits)" = 4
+clamp 4V > "$repo/hw/bench.sim"
+git -C "$repo" config headroom.netlistExt +.sim
+commit "sim, checked"
+check "headroom.netlistExt +.sim adds the ending" \
+	bash -c "test \"\$(git -C '$repo' rev-list --count HEAD)\" = 4 && grep -q 'bench.sim:.*above its 4 V rating' '$tmp/hook.err'"
+git -C "$repo" reset -q --hard
+
 echo "notes" > "$repo/README"
 git -C "$repo" add README
 (cd "$repo" && HEADROOM=/nonexistent/headroom git commit -q -m "readme") > /dev/null 2>&1
-check "a commit with no netlist needs no headroom" test "$(commits)" = 3
+check "a commit with no netlist needs no headroom" test "$(commits)" = 5
 clamp 50V > "$repo/hw/second.cir"
 (cd "$repo" && git add hw && HEADROOM=/nonexistent/headroom git commit -q -m "second") > /dev/null 2> "$tmp/hook.err"
 check "a netlist with no headroom to check it is refused, saying why" \
-	bash -c "test \"\$(git -C '$repo' rev-list --count HEAD)\" = 3 && grep -q 'not found' '$tmp/hook.err'"
+	bash -c "test \"\$(git -C '$repo' rev-list --count HEAD)\" = 5 && grep -q 'not found' '$tmp/hook.err'"
 
 echo "ci_recipe: $pass passed, $fail failed"
 [ $fail -eq 0 ]
