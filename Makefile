@@ -1,6 +1,9 @@
-# headroom: plain Makefile. `make` builds build/headroom; `make check` runs
-# every test; `make asan` the same under ASan+UBSan; `make bench` the
-# benchmark; `make demo` the tool on the shipped examples.
+# headroom: plain Makefile. `make` builds build/headroom with what is
+# installed (a missing tool stops it with the Debian package to install; it
+# never runs a package manager); `make check` installs what the tests need
+# (scripts/deps.sh) and runs every test; `make asan` the same under
+# ASan+UBSan; `make bench` the benchmark; `make demo` the tool on the shipped
+# examples; `make install` puts it under PREFIX.
 
 CC      ?= cc
 BUILD   ?= build
@@ -22,8 +25,10 @@ LIB_OBJ := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIB_SRC)) \
            $(BUILD)/obj/spice.tab.o $(BUILD)/obj/spice.lex.o
 TESTS   := $(patsubst tests/%.c,$(BUILD)/%,$(wildcard tests/test_*.c))
 DEPS_STAMP := $(BUILD)/.deps-ok
+TOOLS_STAMP := $(BUILD)/.tools-ok
+VERSION_H := $(BUILD)/version_git.h
 
-.PHONY: all deps check asan tsan memcheck fuzz fuzz-replay bench demo clean install test-run expected
+.PHONY: FORCE all deps check asan tsan memcheck fuzz fuzz-replay bench demo clean install test-run expected
 all: $(BUILD)/headroom
 
 deps: $(DEPS_STAMP)
@@ -32,7 +37,23 @@ $(DEPS_STAMP): scripts/deps.sh
 	bash scripts/deps.sh
 	@touch $@
 
-$(BUILD)/spice.tab.c $(BUILD)/spice.tab.h: grammar/spice.y | $(DEPS_STAMP)
+# What building needs, checked once per build folder: scripts/build-tools.sh
+# names the Debian package of a missing tool and installs nothing.
+$(TOOLS_STAMP): scripts/build-tools.sh
+	@mkdir -p $(BUILD)
+	@sh scripts/build-tools.sh "$(CC)"
+	@touch $@
+
+# The version from `git describe` of this checkout (none outside git: then
+# include/version.h's number), rewritten only when it changes so that only
+# the files that print the version are compiled again.
+FORCE:
+$(VERSION_H): FORCE
+	@mkdir -p $(BUILD)
+	@sh scripts/version.sh . > $@.new && { cmp -s $@.new $@ || mv $@.new $@; }; rm -f $@.new
+$(patsubst src/%.c,$(BUILD)/obj/%.o,$(shell grep -l '"version.h"' src/*.c)): $(VERSION_H)
+
+$(BUILD)/spice.tab.c $(BUILD)/spice.tab.h: grammar/spice.y | $(TOOLS_STAMP)
 	@mkdir -p $(BUILD)
 	bison -Wall -Werror --defines=$(BUILD)/spice.tab.h -o $(BUILD)/spice.tab.c $<
 
@@ -121,6 +142,8 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/doc_profiles.py
 	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/ci_recipe.sh
+	@HEADROOM=$(BUILD)/headroom bash tests/build.sh
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_report.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py
 
@@ -157,6 +180,7 @@ install: $(BUILD)/headroom
 		$(DESTDIR)$(PREFIX)/share/man/man1 $(DESTDIR)$(PREFIX)/share/doc/headroom/rules
 	install -m 755 $(BUILD)/headroom $(DESTDIR)$(PREFIX)/bin/headroom
 	install -m 644 rules/*.profile $(DESTDIR)$(PREFIX)/share/headroom/rules/
+	install -m 755 scripts/pre-commit $(DESTDIR)$(PREFIX)/share/headroom/pre-commit
 	install -m 644 docs/headroom.1 $(DESTDIR)$(PREFIX)/share/man/man1/headroom.1
 	install -m 644 docs/*.md docs/report.schema.json docs/rules.schema.json $(DESTDIR)$(PREFIX)/share/doc/headroom/
 	install -m 644 docs/rules/*.md $(DESTDIR)$(PREFIX)/share/doc/headroom/rules/

@@ -15,6 +15,7 @@
 #                        @microsoft/sarif-multitool) into .tools/
 #   chromium             headless browser for the HTML report test
 #   valgrind             make memcheck
+#   git                  the version (scripts/version.sh) and the hook tests
 #   clang                make fuzz only (libFuzzer): with --fuzz
 set -euo pipefail
 
@@ -32,6 +33,7 @@ command -v python3 >/dev/null 2>&1 || need+=(python3)
 [ -x /usr/bin/time ] || need+=(time)
 command -v cc >/dev/null 2>&1 || need+=(gcc)
 command -v make >/dev/null 2>&1 || need+=(make)
+command -v git >/dev/null 2>&1 || need+=(git)
 command -v npm >/dev/null 2>&1 || need+=(npm)
 command -v chromium >/dev/null 2>&1 || need+=(chromium)
 command -v valgrind >/dev/null 2>&1 || need+=(valgrind)

@@ -91,6 +91,7 @@ elab_state front
 simint solver
 cli program
 version base
+version_git base
 cli_* program
 testutil -
 '

@@ -27,6 +27,7 @@ struct cli {
 	const char *parts;           /* parts table */
 	const char *bom;             /* --bom: a bill of materials (CSV) */
 	const char *netlist_ext;     /* --netlist-ext, or NULL */
+	const char *docs_url;        /* --docs-url, or NULL */
 	const char *waivers, *baseline, *write_baseline, *today, *out_path;
 	size_t jobs;                 /* -j; 0: one per processor */
 	int quiet;

@@ -164,6 +164,28 @@ static char *docs_uri(void)
 	return NULL;
 }
 
+/* --docs-url URL as the base of the rule links (a slash added when it has
+ * none); NULL, with the reason on standard error, unless it is an absolute
+ * URI (scheme:...) of the characters RFC 3986 allows, less ? and # (the
+ * page's path is appended) and quotes. Returned owned (free). */
+static char *docs_base(const char *url)
+{
+	static const char scheme[] = "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789+-.";
+	static const char uri[] = "abcdefghijklmnopqrstuvwxyzABCDEFGHIJKLMNOPQRSTUVWXYZ0123456789"
+				  "-._~:/[]@!$&()*+,;=%";
+	size_t n = strlen(url), s = strspn(url, scheme);
+	if (!isalpha((unsigned char)url[0]) || url[s] != ':' || !url[s + 1] || strspn(url, uri) != n) {
+		fprintf(stderr, "headroom: --docs-url takes an absolute URL such as "
+				"https://example.org/headroom/ (no spaces, quotes, ? or #), not '%s'\n",
+			url);
+		return NULL;
+	}
+	char *out = malloc(n + 2);
+	if (out)
+		snprintf(out, n + 2, "%s%s", url, url[n - 1] == '/' ? "" : "/");
+	return out;
+}
+
 static void today_of(char *buf, size_t n, const char *given)
 {
 	if (given) {
@@ -410,14 +432,14 @@ static int check_with(const struct cli *c)
 	int rc = EXIT_USAGE;
 	memset(&b, 0, sizeof b);
 	b.c = c;
-	b.docs = docs_uri();
+	b.docs = c->docs_url ? docs_base(c->docs_url) : docs_uri();
 	b.quiet = c->quiet;
 	b.color = !c->out_path && isatty(STDOUT_FILENO) && !getenv("NO_COLOR");
 	today_of(today, sizeof today, c->today);
 	b.o.today = today;
 	b.in = (struct report_inputs){today, c->today != NULL, c->parts, c->waivers, c->baseline,
 				      NULL, 0};
-	if (d && p && plan_reports(c, &b) && prepare(c, &b, p, ar, d) &&
+	if (d && p && plan_reports(c, &b) && (b.docs || !c->docs_url) && prepare(c, &b, p, ar, d) &&
 	    cli_files_walk(&files, &skips, c->netlist_ext, c->files, (size_t)c->nfiles) &&
 	    open_reports(&b))
 		rc = run_files(&b, &files, &skips, ar, d);

@@ -75,6 +75,10 @@ static const struct opt_def opts[] = {
 	{"--write-baseline", NULL, STR(write_baseline),
 	 "--write-baseline FILE  also write the JSON report to FILE"},
 	{"--today", NULL, STR(today), "--today YYYY-MM-DD   the date waiver expiry is judged against"},
+	{"--docs-url", NULL, STR(docs_url),
+	 "--docs-url URL       check: where the rule pages are published; SARIF\n"
+	 "links each rule to URL/rules/RULE.md (default: the\n"
+	 "installed docs, a file:// URL)"},
 	{"--verify", NULL, FLAG(verify),
 	 "--verify             check: also simulate each netlist to its periodic\n"
 	 "steady state at the worst corner and set each\n"

@@ -163,7 +163,7 @@ static int info_option(int argc, char **argv)
 			return 0;
 		}
 		if (strcmp(argv[i], "--version") == 0) {
-			printf("headroom %s\n", HEADROOM_VERSION);
+			printf("headroom %s\n", HEADROOM_BUILD_VERSION);
 			return 0;
 		}
 	}

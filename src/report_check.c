@@ -361,7 +361,7 @@ static void json_profile_status(FILE *out, const struct profile *p)
 
 static void json_head(FILE *out, const struct profile *p, const struct check_totals *t)
 {
-	fputs("{\"schema\": 1, \"tool\": {\"name\": \"headroom\", \"version\": \"" HEADROOM_VERSION "\"},\n", out);
+	fputs("{\"schema\": 1, \"tool\": {\"name\": \"headroom\", \"version\": \"" HEADROOM_BUILD_VERSION "\"},\n", out);
 	if (t->paths_from) {
 		fputs("  \"paths_from\": ", out);
 		jstr(out, t->paths_from);

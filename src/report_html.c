@@ -35,7 +35,7 @@ static void fact(FILE *out, const char *name, const char *value, const char *not
 static void run_facts(FILE *out, const struct profile *p, const struct report_inputs *in)
 {
 	fputs("<dl class=\"run\">\n", out);
-	fact(out, "headroom", "version " HEADROOM_VERSION, NULL);
+	fact(out, "headroom", "version " HEADROOM_BUILD_VERSION, NULL);
 	if (in)
 		fact(out, "date", in->today,
 		     in->today_given ? "(given with --today; waiver expiry is judged on it)"

@@ -62,7 +62,7 @@ static void json_limits(FILE *out, const struct profile *p)
 
 static void json(FILE *out, const struct profile *p)
 {
-	fputs("{\n  \"schema\": 1,\n  \"tool\": {\"name\": \"headroom\", \"version\": \"" HEADROOM_VERSION
+	fputs("{\n  \"schema\": 1,\n  \"tool\": {\"name\": \"headroom\", \"version\": \"" HEADROOM_BUILD_VERSION
 	      "\"},\n",
 	      out);
 	json_rules(out);

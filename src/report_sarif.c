@@ -87,7 +87,7 @@ static void head(FILE *out, const char *docs)
 {
 	fputs("{\"$schema\": \"https://raw.githubusercontent.com/oasis-tcs/sarif-spec/master/Schemata/sarif-schema-2.1.0.json\",\n"
 	      "  \"version\": \"2.1.0\",\n  \"runs\": [{\n    \"tool\": {\"driver\": {\"name\": \"headroom\", "
-	      "\"version\": \"" HEADROOM_VERSION "\", \"semanticVersion\": \"" HEADROOM_VERSION "\",\n        ", out);
+	      "\"version\": \"" HEADROOM_BUILD_VERSION "\", \"semanticVersion\": \"" HEADROOM_VERSION "\",\n        ", out);
 	if (docs)
 		fprintf(out, "\"informationUri\": \"%scheck.md\",\n        ", docs);
 	rules(out, docs);

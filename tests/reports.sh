@@ -32,8 +32,16 @@ check() {
 cd "$root" || exit 1
 abs_bin=$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")
 
-# The help links in SARIF point at this checkout's docs: made neutral here.
-neutral() { sed -e "s|file://[^\"]*/docs/|file:///DOCS/|g" "$1"; }
+# The help links in SARIF point at this checkout's docs, and the tool's
+# version is the build's (git describe, as --version prints it): both made
+# neutral here, the version read as include/version.h's release number.
+release=$(sed -n 's/^#define HEADROOM_VERSION "\(.*\)"$/\1/p' include/version.h)
+build_version=$("$bin" --version | awk '{print $2}')
+version_re=$(printf '%s' "$build_version" | sed 's/[.]/[.]/g')
+neutral() {
+	sed -e "s|file://[^\"]*/docs/|file:///DOCS/|g" \
+		-e "s|\"version\": \"$version_re\"|\"version\": \"$release\"|g" "$1"
+}
 
 update=${UPDATE_EXPECTED:-}
 for fmt in text json csv junit sarif; do
@@ -44,6 +52,34 @@ for fmt in text json csv junit sarif; do
 	fi
 	check "$fmt report matches tests/expected/examples.$fmt" diff -u "tests/expected/examples.$fmt" "$tmp/n.$fmt"
 done
+
+check "the JSON and SARIF reports name the build's version; SARIF's semanticVersion is the release number" python3 -c "
+import json
+assert json.load(open('$tmp/out.json'))['tool']['version'] == '$build_version'
+d = json.load(open('$tmp/out.sarif'))['runs'][0]['tool']['driver']
+assert (d['version'], d['semanticVersion']) == ('$build_version', '$release'), d
+"
+
+# --docs-url: the rule links under a published copy of docs/ (a slash added
+# when the URL has none); the default stays a file:// URL of the docs.
+"$bin" check --format sarif --fail-on never --docs-url https://docs.example.org/headroom/1.0 $ex/sensor_restorer.cir > "$tmp/url.sarif" 2>/dev/null
+check "--docs-url: every rule's helpUri is URL/rules/RULE.md, informationUri URL/check.md" python3 -c "
+import json
+d = json.load(open('$tmp/url.sarif'))['runs'][0]['tool']['driver']
+base = 'https://docs.example.org/headroom/1.0/'
+assert d['informationUri'] == base + 'check.md', d['informationUri']
+assert len(d['rules']) > 5
+for r in d['rules']:
+    assert r['helpUri'] == base + 'rules/' + r['id'] + '.md', r
+"
+check "without --docs-url the helpUri is a file:// URL of the docs" python3 -c "
+import json
+for r in json.load(open('$tmp/out.sarif'))['runs'][0]['tool']['driver']['rules']:
+    assert r['helpUri'].startswith('file:///') and r['helpUri'].endswith('/docs/rules/' + r['id'] + '.md'), r
+"
+"$bin" check --format sarif --docs-url 'docs/rules page' $ex/sensor_restorer.cir > "$tmp/badurl.out" 2> "$tmp/badurl.err"
+check "--docs-url with a relative URL or a space is a usage error (exit 2, no report)" \
+	bash -c "test $? -eq 2 && test ! -s '$tmp/badurl.out' && grep -q \"docs-url takes an absolute URL.*not 'docs/rules page'\" '$tmp/badurl.err'"
 
 validator=$root/.tools/node_modules/@microsoft/sarif-multitool-linux/Sarif.Multitool
 if [ -x "$validator" ]; then
