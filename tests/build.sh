@@ -28,7 +28,7 @@ check() {
 }
 # A make above this one (make check, make asan) must not hand its variables
 # (BUILD, SAN) or job server to the makes here.
-unset MAKEFLAGS MFLAGS MAKELEVEL
+unset MAKEFLAGS MFLAGS MAKELEVEL MAKEOVERRIDES BUILD SAN OPT
 export GIT_CEILING_DIRECTORIES=$tmp
 release=$(sed -n 's/^#define HEADROOM_VERSION "\(.*\)"$/\1/p' "$root/include/version.h")
 

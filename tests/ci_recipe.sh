@@ -28,7 +28,7 @@ check() {
 }
 # A make above this one (make check, make asan) must not hand its variables
 # (BUILD, SAN) or job server to the job's own make.
-unset MAKEFLAGS MFLAGS MAKELEVEL
+unset MAKEFLAGS MFLAGS MAKELEVEL MAKEOVERRIDES BUILD SAN OPT
 
 # --- the CI job ---------------------------------------------------------
 awk '/^```sh ci-job$/ { on = 1; next } on && /^```/ { exit } on' "$root/docs/ci.md" > "$tmp/job.sh"
