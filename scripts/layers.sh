@@ -16,6 +16,7 @@ set -u -o pipefail
 
 MODULES='
 arena base
+dense base
 diag base
 num base
 utf8 base

@@ -9,6 +9,8 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "dense.h"
+
 struct work {
 	const struct audit *a;
 	const struct nl_circuit *c;
@@ -103,40 +105,6 @@ static void stamp(struct work *w, uint32_t b, uint32_t m)
 	}
 }
 
-/* Solves g x = rhs in place (Gaussian elimination, partial pivoting);
- * 0 when the matrix is singular. */
-static int solve(double *g, double *x, uint32_t m)
-{
-	for (uint32_t k = 0; k < m; k++) {
-		uint32_t p = k;
-		for (uint32_t i = k + 1; i < m; i++)
-			if (fabs(g[i * m + k]) > fabs(g[p * m + k]))
-				p = i;
-		if (!(fabs(g[p * m + k]) > 0))
-			return 0;
-		for (uint32_t j = 0; j < m && p != k; j++) {
-			double t = g[k * m + j];
-			g[k * m + j] = g[p * m + j];
-			g[p * m + j] = t;
-		}
-		double t = x[k];
-		x[k] = x[p];
-		x[p] = t;
-		for (uint32_t i = k + 1; i < m; i++) {
-			double f = g[i * m + k] / g[k * m + k];
-			for (uint32_t j = k; j < m; j++)
-				g[i * m + j] -= f * g[k * m + j];
-			x[i] -= f * x[k];
-		}
-	}
-	for (uint32_t k = m; k-- > 0;) {
-		for (uint32_t j = k + 1; j < m; j++)
-			x[k] -= g[k * m + j] * x[j];
-		x[k] /= g[k * m + k];
-	}
-	return 1;
-}
-
 /* The resistance between nodes a and b through resistors alone: 1 A into
  * a, out of b, and the voltage that takes. INFINITY when no resistor path
  * joins them or the network is past the bound. */
@@ -150,7 +118,7 @@ static double between(struct work *w, uint32_t a, uint32_t b)
 		stamp(w, ib, m);
 		memset(w->rhs, 0, m * sizeof *w->rhs);
 		w->rhs[row(0, ib)] = 1;
-		if (solve(w->g, w->rhs, m) && w->rhs[row(0, ib)] > 0)
+		if (dense_solve(w->g, w->rhs, m, 0) && w->rhs[row(0, ib)] > 0)
 			r = w->rhs[row(0, ib)];
 	}
 	forget(w);

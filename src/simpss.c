@@ -10,6 +10,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "dense.h"
 #include "simint.h"
 
 #define PSS_MAX_STATES 400  /* shooting up to this many state entries */
@@ -324,42 +325,6 @@ static void sens_jacobian(const struct sim *s, double *jac)
 
 /* ---- shooting ---- */
 
-/* Solves a x = b in place (a: m x m row-major, destroyed; b becomes x)
- * by Gaussian elimination with partial pivoting. Returns 0 when a is
- * singular to working precision. */
-static int dense_solve(double *a, double *b, size_t m)
-{
-	for (size_t k = 0; k < m; k++) {
-		size_t p = k;
-		for (size_t i = k + 1; i < m; i++)
-			if (fabs(a[i * m + k]) > fabs(a[p * m + k]))
-				p = i;
-		if (!(fabs(a[p * m + k]) > 1e-12))
-			return 0;
-		if (p != k) {
-			for (size_t j = 0; j < m; j++) {
-				double t = a[k * m + j];
-				a[k * m + j] = a[p * m + j], a[p * m + j] = t;
-			}
-			double t = b[k];
-			b[k] = b[p], b[p] = t;
-		}
-		for (size_t i = k + 1; i < m; i++) {
-			double f = a[i * m + k] / a[k * m + k];
-			for (size_t j = k; j < m; j++)
-				a[i * m + j] -= f * a[k * m + j];
-			b[i] -= f * b[k];
-		}
-	}
-	for (size_t k = m; k-- > 0;) {
-		double v = b[k];
-		for (size_t j = k + 1; j < m; j++)
-			v -= a[k * m + j] * b[j];
-		b[k] = v / a[k * m + k];
-	}
-	return 1;
-}
-
 /* Work space of the shooting iteration (state vectors of ndev entries,
  * the m x m Jacobian, the m-entry Newton step). */
 struct shot {
@@ -395,7 +360,7 @@ static int newton_step(const struct sim *s, struct shot *w, const double *x)
 			w->jac[i * m + j] = (i == j) - w->jac[i * m + j];
 		w->dx[i] = w->x1[z->dev_of[i]] - x[z->dev_of[i]];
 	}
-	return dense_solve(w->jac, w->dx, m);
+	return dense_solve(w->jac, w->dx, m, 1e-12);
 }
 
 /* The largest change a Newton step makes to an entry, relative to the

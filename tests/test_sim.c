@@ -18,6 +18,7 @@
 
 #include <math.h>
 
+#include "dense.h"
 #include "sim.h"
 #include "simsrc.h"
 
@@ -217,6 +218,21 @@ static void test_refusals(void **state)
 /* A 0-ohm resistor is a short (1 mOhm, as SPICE takes it); diode
  * parameters outside their range (IS = 0, N = 0, VJ = 0, M = 1, FC = 1)
  * fall back to defaults instead of dividing by zero. */
+/* The dense solve behind the shooting step: a 3 x 3 system that needs a
+ * row exchange (first pivot 0), solution by hand (1, 2, 3); a singular one
+ * refused. */
+static void test_dense_solve(void **state)
+{
+	(void)state;
+	double a[9] = {0, 2, 1, 1, 1, 1, 2, 0, 3}, b[3] = {7, 6, 11};
+	assert_true(dense_solve(a, b, 3, 1e-12));
+	near(b[0], 1, 1e-12, __LINE__);
+	near(b[1], 2, 1e-12, __LINE__);
+	near(b[2], 3, 1e-12, __LINE__);
+	double s[4] = {1, 2, 2, 4}, r[2] = {1, 2};
+	assert_false(dense_solve(s, r, 2, 1e-12));
+}
+
 static void test_degenerate_values(void **state)
 {
 	(void)state;
@@ -241,6 +257,7 @@ int main(void)
 		cmocka_unit_test(test_sources),
 		cmocka_unit_test(test_refusals),
 		cmocka_unit_test(test_degenerate_values),
+		cmocka_unit_test(test_dense_solve),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
