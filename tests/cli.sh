@@ -649,6 +649,12 @@ else
 	echo "cli: note: running as root, so a chmod 000 folder is readable; the unreadable-folder case is not run"
 fi
 
+# A Ctrl-Z line (the DOS end-of-file mark old editors leave after .ends) is
+# no part: no opaque element with an empty name, no warning.
+printf 'dos file\r\nV1 a 0 sin(0 5 1k)\r\nC1 a b 1u\r\nD1 0 b dm\r\n.model dm d\r\n\032' > "$tmp/ctrlz.cir"
+run parts "$tmp/ctrlz.cir"
+check "a Ctrl-Z line is the DOS end-of-file mark, not an opaque part" bash -c "test $rc -eq 0 && ! grep -q opaque '$tmp/out' && ! grep -q 'unknown element' '$tmp/err' && grep -q '^D1 ' '$tmp/out'"
+
 # The project configuration (headroom.ini): found from the current folder
 # up to a repository's root; paths from its own folder; the command line
 # over it; every problem located.
