@@ -24,6 +24,14 @@ enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE, SQ_COUNT };
 const char *stress_qty_name(enum stress_qty q);
 /* Its unit: "V" or "A". */
 const char *stress_qty_unit(enum stress_qty q);
+/* Whether q is a voltage (a capacitor's |V| or a diode's reverse voltage):
+ * the quantities the analysis bounds and the solver confirms. */
+int stress_qty_is_voltage(enum stress_qty q);
+/* The rating field q is judged against (v_rated for voltages, i_surge for
+ * the surge). */
+const struct rating_field *stress_rating(const struct rating *r, enum stress_qty q);
+/* The profile's derating field for q ("voltage", "surge"). */
+const char *stress_qty_derating(enum stress_qty q);
 
 /* Where a stress's number comes from [stress-basis]. */
 enum stress_basis {

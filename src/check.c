@@ -81,7 +81,7 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);
 	for (size_t i = 0; i < r->sr.n; i++) {
 		struct stress *s = &r->sr.s[i];
-		if (s->unproven && s->qty != SQ_SURGE) {
+		if (s->unproven && stress_qty_is_voltage(s->qty)) {
 			s->bounded = 0;
 			s->basis = SB_NONE;
 			s->worst = s->best = NAN;

@@ -146,7 +146,7 @@ static void own_paths(struct work *w)
 		s->drain = SD_NONE;
 		s->discharge_r = INFINITY;
 		s->discharge_s = NAN;
-		if (p->kind != NL_C || s->qty == SQ_SURGE || !s->bounded || !(s->worst > w->hz))
+		if (p->kind != NL_C || !stress_qty_is_voltage(s->qty) || !s->bounded || !(s->worst > w->hz))
 			continue;
 		const uint32_t *q = nl_pins(w->c, p);
 		s->discharge_r = between(w, q[0], q[1]);
@@ -160,7 +160,7 @@ static void own_paths(struct work *w)
 static struct stress *cap_stress(struct work *w, uint32_t part)
 {
 	for (size_t i = 0; i < w->sr->n; i++)
-		if (w->sr->s[i].part == part && w->sr->s[i].qty != SQ_SURGE)
+		if (w->sr->s[i].part == part && stress_qty_is_voltage(w->sr->s[i].qty))
 			return &w->sr->s[i];
 	return NULL;
 }
@@ -362,7 +362,7 @@ static void through_output(struct work *w)
 	for (size_t i = 0; i < w->sr->n; i++) {
 		struct stress *s = &w->sr->s[i];
 		if (s->drain != SD_NONE || s->stack >= 0 || s->structure < 0 || !(s->worst > w->hz) ||
-		    nl_part_at(w->c, s->part)->kind != NL_C || s->qty == SQ_SURGE)
+		    nl_part_at(w->c, s->part)->kind != NL_C || !stress_qty_is_voltage(s->qty))
 			continue;
 		const struct topo_struct *t = &w->a->topo.s[s->structure];
 		double r = t->output != NL_NONE ? between(w, t->output, NL_GROUND) : INFINITY;

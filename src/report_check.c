@@ -111,13 +111,13 @@ static void text_table(FILE *out, const struct check_file *f)
 		const struct stress *s = &sr->s[i];
 		const struct nl_part *p = nl_part_at(c, s->part);
 		const struct rating *r = &f->ratings[s->part];
-		double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+		double rated = stress_rating(r, s->qty)->value;
 		char st[16] = "-", wv[24] = "unbounded", bv[24] = "-", rv[24] = "-", ratio[16] = "-";
 		if (s->structure >= 0)
 			snprintf(st, sizeof st, "S%d", s->structure + 1);
 		if (s->bounded && isfinite(s->worst))
 			num_format_eng(s->worst, qty_unit(s), wv, sizeof wv);
-		if (s->bounded && isfinite(s->best) && s->qty != SQ_SURGE)
+		if (s->bounded && isfinite(s->best) && stress_qty_is_voltage(s->qty))
 			num_format_eng(s->best, qty_unit(s), bv, sizeof bv);
 		if (!isnan(rated))
 			num_format_eng(rated, qty_unit(s), rv, sizeof rv);
@@ -215,7 +215,7 @@ static void json_stress(FILE *out, const struct check_file *f,
 {
 	const struct nl_part *p = nl_part_at(f->a->er.circuit, s->part);
 	const struct rating *r = &f->ratings[s->part];
-	const struct rating_field *rf = s->qty == SQ_SURGE ? &r->i_surge : &r->v_rated;
+	const struct rating_field *rf = stress_rating(r, s->qty);
 	char sid[16];
 	snprintf(sid, sizeof sid, "S%d", s->structure + 1);
 	fputs("{\"part\": ", out);
@@ -243,7 +243,7 @@ static void json_stress(FILE *out, const struct check_file *f,
 	jstr(out, rf->from);
 	fputs(", \"ratio\": ", out);
 	jnum(out, s->bounded && !isnan(rf->value) ? s->worst / rf->value : NAN);
-	if (s->qty == SQ_SURGE) {
+	if (!stress_qty_is_voltage(s->qty)) {
 		fputs(", \"series_r\": ", out);
 		jnum(out, s->series_r);
 	}
@@ -406,7 +406,7 @@ static void top_file(struct check_totals *t, const struct check_file *f)
 	for (size_t i = 0; i < f->stress->n; i++) {
 		const struct stress *s = &f->stress->s[i];
 		const struct rating *r = &f->ratings[s->part];
-		double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+		double rated = stress_rating(r, s->qty)->value;
 		if (!s->bounded || !(rated > 0))
 			continue;
 		struct totals_part x;

@@ -56,8 +56,8 @@ double report_limit(const struct check_file *f, const struct profile *p,
 	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
 	const struct rating *r = &f->ratings[s->part];
 	const char *cls = pt->kind == NL_D ? "diode" : "cap";
-	double factor = profile_kind(p, cls, r->kind, s->qty == SQ_SURGE ? "surge" : "voltage", NULL);
-	double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+	double factor = profile_kind(p, cls, r->kind, stress_qty_derating(s->qty), NULL);
+	double rated = stress_rating(r, s->qty)->value;
 	return rated * (isnan(factor) ? 1 : factor);
 }
 
@@ -85,7 +85,7 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 {
 	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
 	const struct rating *r = &f->ratings[s->part];
-	const struct rating_field *rf = s->qty == SQ_SURGE ? &r->i_surge : &r->v_rated;
+	const struct rating_field *rf = stress_rating(r, s->qty);
 	double worst = s->bounded ? s->worst : NAN, limit = report_limit(f, p, s);
 	char st[16] = "";
 	if (s->structure >= 0)
@@ -100,7 +100,7 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	fprintf(out, ",%s,", stress_qty_name(s->qty));
 	num(out, worst);
 	fputc(',', out);
-	num(out, s->bounded && s->qty != SQ_SURGE ? s->best : NAN);
+	num(out, s->bounded && stress_qty_is_voltage(s->qty) ? s->best : NAN);
 	fprintf(out, ",%s,", stress_qty_unit(s->qty));
 	report_csv_field(out, s->corner ? s->corner : "");
 	fputc(',', out);
@@ -195,7 +195,7 @@ void report_csv_file(FILE *out, const struct check_file *f,
 	for (size_t i = 0; i < f->stress->n; i++) {
 		const struct stress *s = &f->stress->s[i];
 		const struct rating *r = &f->ratings[s->part];
-		double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+		double rated = stress_rating(r, s->qty)->value;
 		if (s->bounded || !isnan(rated) || s->structure >= 0)
 			row(out, f, p, s);
 	}

@@ -168,7 +168,7 @@ static void sketch(FILE *out, const struct check_file *f, const struct topo_stru
 static const struct stress *stress_of(const struct check_file *f, uint32_t part)
 {
 	for (size_t i = 0; i < f->stress->n; i++)
-		if (f->stress->s[i].part == part && f->stress->s[i].qty != SQ_SURGE)
+		if (f->stress->s[i].part == part && stress_qty_is_voltage(f->stress->s[i].qty))
 			return &f->stress->s[i];
 	return NULL;
 }
@@ -472,9 +472,9 @@ static void stress_row(FILE *out, const struct check_file *f, const struct profi
 {
 	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
 	const struct rating *r = &f->ratings[s->part];
-	double rated = s->qty == SQ_SURGE ? r->i_surge.value : r->v_rated.value;
+	double rated = stress_rating(r, s->qty)->value;
 	double worst = s->bounded ? s->worst : NAN, limit = report_limit(f, p, s);
-	const char *unit = s->qty == SQ_SURGE ? "A" : "V";
+	const char *unit = stress_qty_unit(s->qty);
 	enum over ov = over_of(worst, rated, limit);
 	fputs(ov != OV_NONE ? "<tr class=\"over\" data-part=\"" : "<tr data-part=\"", out);
 	x(out, pt->path);

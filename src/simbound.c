@@ -42,7 +42,7 @@ static int needs_run(const struct stress_result *sr, const unsigned char *blocke
 	for (size_t i = 0; i < sr->n; i++) {
 		const struct stress *s = &sr->s[i];
 		uint32_t is = sr->island ? sr->island[s->part] : NL_NONE;
-		if (s->unproven && s->qty != SQ_SURGE && !(blocked && is != NL_NONE && blocked[is]))
+		if (s->unproven && stress_qty_is_voltage(s->qty) && !(blocked && is != NL_NONE && blocked[is]))
 			return 1;
 	}
 	return 0;
@@ -98,7 +98,7 @@ static void take(struct sb *b, const char *corner, int real)
 	for (size_t i = 0; i < b->sr->n; i++) {
 		const struct stress *s = &b->sr->s[i];
 		uint32_t k = s->part;
-		if (s->qty == SQ_SURGE || !s->unproven || !isfinite(b->vmin[k]))
+		if (!stress_qty_is_voltage(s->qty) || !s->unproven || !isfinite(b->vmin[k]))
 			continue;
 		double v = peak_of(c, k, b->vmin, b->vmax);
 		if (!x->seen[k] || v > x->worst[k]) {
@@ -133,7 +133,7 @@ static int under_ideal(const struct sb *b, const double *imin, const double *ima
 	for (size_t i = 0; i < b->sr->n; i++) {
 		const struct stress *s = &b->sr->s[i];
 		uint32_t k = s->part;
-		if (s->qty == SQ_SURGE || !s->unproven || !isfinite(b->vmin[k]))
+		if (!stress_qty_is_voltage(s->qty) || !s->unproven || !isfinite(b->vmin[k]))
 			continue;
 		double real = peak_of(c, k, b->vmin, b->vmax), ideal = peak_of(c, k, imin, imax);
 		if (!(real <= ideal * (1 + 1e-3) + 1e-3))
@@ -298,7 +298,7 @@ static void fill(struct sb *b)
 	for (size_t i = 0; i < b->sr->n; i++) {
 		struct stress *s = &b->sr->s[i];
 		uint32_t k = s->part, is = b->sr->island[k];
-		if (s->qty == SQ_SURGE || !s->unproven)
+		if (!stress_qty_is_voltage(s->qty) || !s->unproven)
 			continue;
 		int blocked = is != NL_NONE && x->blocked[is];
 		if (blocked || !x->seen[k]) {
@@ -369,7 +369,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 		forget(&b);
 	fill(&b);
 	for (size_t i = 0; i < sr->n; i++)
-		if (sr->s[i].bounded && sr->s[i].qty != SQ_SURGE)
+		if (sr->s[i].bounded && stress_qty_is_voltage(sr->s[i].qty))
 			sr->max_voltage = fmax(sr->max_voltage, sr->s[i].worst);
 	return 1;
 }

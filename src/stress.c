@@ -162,6 +162,21 @@ const char *stress_qty_unit(enum stress_qty q)
 	return q < SQ_COUNT ? qty_names[q].unit : "?";
 }
 
+int stress_qty_is_voltage(enum stress_qty q)
+{
+	return q == SQ_VOLTAGE || q == SQ_REVERSE;
+}
+
+const struct rating_field *stress_rating(const struct rating *r, enum stress_qty q)
+{
+	return q == SQ_SURGE ? &r->i_surge : &r->v_rated;
+}
+
+const char *stress_qty_derating(enum stress_qty q)
+{
+	return q == SQ_SURGE ? "surge" : "voltage";
+}
+
 const char *stress_basis_name(enum stress_basis b)
 {
 	return b < SB_COUNT ? basis_names[b] : "?";

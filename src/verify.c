@@ -64,7 +64,7 @@ static int traces(struct arena *ar, struct stress_result *sr, struct simrun_opts
 	if (!parts)
 		return 0;
 	for (size_t i = 0; i < sr->n; i++)
-		if (sr->s[i].qty != SQ_SURGE)
+		if (stress_qty_is_voltage(sr->s[i].qty))
 			parts[n++] = sr->s[i].part;
 	double *tr = arena_alloc(ar, (n * STRESS_TRACE_POINTS + 1) * sizeof *tr);
 	if (!tr)
@@ -91,7 +91,7 @@ static void record(struct stress_result *sr, const double *vmin, const double *v
 {
 	for (size_t i = 0, k = 0; i < sr->n; i++) {
 		struct stress *s = &sr->s[i];
-		if (s->qty == SQ_SURGE)
+		if (!stress_qty_is_voltage(s->qty))
 			continue;
 		const double *w = o->trace + k++ * STRESS_TRACE_POINTS;
 		if (!isfinite(vmin[s->part]))
@@ -188,7 +188,7 @@ static void powerup(const struct audit *a, const struct verify_limits *lim,
 			v->powerup_periods = r.periods;
 			for (size_t i = 0; i < sr->n; i++) {
 				struct stress *s = &sr->s[i];
-				if (s->qty == SQ_SURGE || !isfinite(s->sim_worst) || !isfinite(lo[s->part]))
+				if (!stress_qty_is_voltage(s->qty) || !isfinite(s->sim_worst) || !isfinite(lo[s->part]))
 					continue;
 				int diode = nl_part_at(c, s->part)->kind == NL_D;
 				s->sim_powerup = diode ? fmax(-lo[s->part], 0)
