@@ -55,6 +55,7 @@ bom check
 rating check
 stress check
 discharge check
+life check
 verify check
 rules check
 waiver check
