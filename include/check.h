@@ -33,6 +33,8 @@ struct check_opts {
 	const struct baseline *baseline; /* --baseline, or NULL */
 	const char *today;               /* YYYY-MM-DD, for waiver expiry */
 	int verify;                      /* simulate too */
+	int ambient_set;                 /* --ambient given: ambient_c overrides the profile */
+	double ambient_c;                /* degC */
 	struct verify_limits verify_lim; /* zeros: the solver's defaults */
 	size_t verify_max_parts;         /* simulate only up to this many parts (0: any) */
 	struct simbound_limits sim_lim;  /* simulated numbers for unproven stresses */

@@ -84,4 +84,20 @@ double profile_value(const struct profile *p, const char *key,
  * tolerances, limits), "V" or "s". */
 const char *profile_key_unit(const char *key);
 
+/* Sets key to value with its note, adding the entry when it is missing
+ * (line 0: not from the file). Returns 0 when the profile is full. */
+int profile_set(struct profile *p, const char *key, double value, const char *note);
+
+/* The ambient temperature of a run, degC: override_c when finite, else the
+ * profile's ambient, else PROFILE_AMBIENT_DEFAULT (docs/profiles.md). */
+#define PROFILE_AMBIENT_DEFAULT 40.0
+double profile_ambient(const struct profile *p, double override_c);
+
+/* Applies the temperature derating of each capacitor kind at ambient_c:
+ * where cap.<kind>.derate_from, derate_to and voltage_at_max are set and the
+ * ambient is past derate_from, cap.<kind>.voltage becomes the factor times
+ * the share of the rating left at that temperature, with a note saying so.
+ * Returns 0 when the profile has no room for the entry. */
+int profile_at_ambient(struct profile *p, double ambient_c);
+
 #endif

@@ -11,6 +11,8 @@ hazard_voltage = 60V             # IEC 62368-1 ES1 limit of 60 V DC (from memory
 discharge_time = 2s              # IEC 62368-1 5.5.2.2: voltage measured 2 s after disconnection (seen in a test-report excerpt, docs/sources.md §6)
 droop_limit = 5%                 # common practice, no source
 recovery_fraction = 5%           # common practice, no source
+ambient = 55                    # common practice, no source: air around the parts, degC (docs/life.md)
+life_required = 50000           # common practice, no source: hours each electrolytic must last (docs/life.md)
 
 cap.default.voltage = 70%        # common practice, no source
 cap.ceramic-c0g.voltage = 80%    # common practice, no source: class 1 ceramics lose no capacitance with bias
@@ -22,6 +24,9 @@ cap.glass.voltage = 60%          # common practice, no source
 cap.alu-electrolytic.voltage = 80%   # rated V >= DC + peak ripple (seen in the Chemi-Con guide, docs/sources.md §1f) with 20 % margin (common practice)
 cap.alu-electrolytic.reverse_v = 1.0V  # about 1 V DC reverse, intermittent only (seen in Nippon Chemi-Con guidance; docs/sources.md §2)
 cap.tantalum.voltage = 50%       # MnO2 tantalum <= 50 % of rated up to 85 C (seen in KEMET T491; docs/sources.md §1f)
+cap.tantalum.derate_from = 85     # MnO2 tantalum: category voltage falls linearly from UR at 85 C (seen in the KEMET B45196 datasheet cautions, docs/sources.md §1)
+cap.tantalum.derate_to = 125      # ... to 2/3 UR at 125 C (same source)
+cap.tantalum.voltage_at_max = 67%  # 2/3 of UR at 125 C (same source)
 cap.tantalum.reverse_v = 0.5V    # <= 3 % of UR and <= 0.5 V at 85 C (seen only in a secondary source, docs/sources.md §2)
 cap.tantalum.reverse_fraction = 3%   # same source as the line above
 cap.polymer.voltage = 80%        # polymer tantalum: 20 % derating (seen only in a secondary source: KEMET; docs/sources.md §1f)

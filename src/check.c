@@ -71,6 +71,27 @@ static int file_profile(const struct check_opts *o, struct check_run *r)
 	return 1;
 }
 
+/* The effective profile at the run's ambient temperature: a copy with the
+ * ambient recorded and every capacitor kind's temperature derating applied
+ * (docs/profiles.md), so rules and reports read the same limits. Returns 0
+ * on out-of-memory. */
+static int at_ambient(const struct check_opts *o, struct check_run *r)
+{
+	struct profile *p = arena_alloc(r->ar, sizeof *p);
+	if (!p)
+		return 0;
+	*p = *r->profile;
+	double t = profile_ambient(p, o->ambient_set ? o->ambient_c : NAN);
+	const char *why = o->ambient_set ? "--ambient"
+			  : isnan(profile_value(p, "ambient", NULL)) ? "default: no ambient in the profile"
+								     : NULL;
+	if (why)
+		profile_set(p, "ambient", t, why);
+	profile_at_ambient(p, t);
+	r->profile = p;
+	return 1;
+}
+
 /* The solver gives numbers where the analysis cannot prove one, in a
  * circuit small enough to simulate. Returns 0 on out-of-memory. */
 static int simulate_unproven(const struct check_opts *o, struct check_run *r)
@@ -122,6 +143,8 @@ enum check_status check_file_run(const char *path, const struct check_opts *o,
 	enum audit_status st = audit_file(path, &o->audit, hook, r->d, &r->a);
 	r->status = st == AUDIT_OK ? CHECK_OK : st == AUDIT_OOM ? CHECK_OOM : CHECK_ERRORS;
 	if (r->status == CHECK_OK && !o->profile_fixed && !file_profile(o, r))
+		r->status = CHECK_OOM;
+	if (r->status == CHECK_OK && !at_ambient(o, r))
 		r->status = CHECK_OOM;
 	if (r->status == CHECK_OK)
 		waiver_check_rules(r->a.annots, r->a.nannots, r->d);

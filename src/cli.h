@@ -15,6 +15,7 @@ struct cli {
 	const char *fmt_name;        /* --format, checked by the command */
 	struct elab_opts eo;
 	double source_tol;           /* fraction; NaN: not given */
+	double ambient;              /* degC; NaN: not given */
 	unsigned max_errors;
 	const char **files;
 	int nfiles;

@@ -5,6 +5,7 @@
 #include "cli.h"
 
 #include <ctype.h>
+#include <math.h>
 #include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
@@ -335,6 +336,10 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 	o->profile_fixed = c->profile != NULL;
 	o->argv0 = c->argv0;
 	o->verify = c->verify;
+	o->ambient_set = !isnan(c->ambient);
+	o->ambient_c = c->ambient;
+	if (o->ambient_set && !profile_set(p, "ambient", c->ambient, "--ambient"))
+		return 0;
 	return 1;
 }
 

@@ -43,6 +43,7 @@ static const struct key {
 	{"fail-on", "--fail-on", KEY_VALUE},
 	{"netlist-ext", "--netlist-ext", KEY_EXT},
 	{"source-tol", "--source-tol", KEY_VALUE},
+	{"ambient", "--ambient", KEY_VALUE},
 	{"jobs", "-j", KEY_VALUE},
 	{"reports", NULL, KEY_REPORTS},
 };
@@ -386,6 +387,7 @@ static void merge(const struct cli *c, const struct cli_config *cfg, struct cli 
 	out->netlist_ext = c->netlist_ext ? c->netlist_ext : s->netlist_ext;
 	out->jobs = c->jobs ? c->jobs : s->jobs;
 	out->source_tol = isnan(c->source_tol) ? s->source_tol : c->source_tol;
+	out->ambient = isnan(c->ambient) ? s->ambient : c->ambient;
 	if (!c->fail_on_given && s->fail_on_given)
 		out->fail_on = s->fail_on;
 	if (!c->nreports) {
@@ -409,6 +411,7 @@ int cli_config_settle(const struct cli *c, struct cli *out, struct cli_config *c
 		return 0;
 	}
 	cfg->set.source_tol = NAN;
+	cfg->set.ambient = NAN;
 	cfg->set.argv0 = c->argv0;
 	int ok = read_file(cfg);
 	diag_render(cfg->d, UINT32_MAX, stderr);

@@ -15,7 +15,7 @@
 #include "diag.h"
 #include "suggest.h"
 
-enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_FAIL, OPT_REPORT };
+enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_TEMP, OPT_FAIL, OPT_REPORT };
 
 /* Options that take a positive whole number. */
 enum count_id { CO_PARTS, CO_NODES, CO_LINE, CO_TOKEN, CO_INCLUDE, CO_DEPTH,
@@ -91,6 +91,9 @@ static const struct opt_def opts[] = {
 	{"--source-tol", NULL, OPT_TOL, 0, CO_NONE, 0,
 	 "--source-tol PCT     tolerance of every source's amplitude and offset\n"
 	 "unless *@source gives one (e.g. 10 or 10%)"},
+	{"--ambient", NULL, OPT_TEMP, 0, CO_NONE, 0,
+	 "--ambient DEGC       air temperature around the parts (e.g. 55 or 55C):\n"
+	 "capacitor life and temperature derating (default: the\nprofile's, else 40)"},
 	{"--max-line", NULL, COUNT(CO_LINE, UINT32_MAX - 1),
 	 "--max-line N         longest physical line read, in bytes\n(default 1048576)"},
 	{"--max-token", NULL, COUNT(CO_TOKEN, UINT32_MAX - 1),
@@ -277,6 +280,23 @@ static int set_tol(struct cli *c, const char *shown, const char *val, char *why,
 	return 1;
 }
 
+/* --ambient 55 or 55C: degrees Celsius from -100 to 300. */
+static int set_temp(struct cli *c, const char *shown, const char *val, char *why, size_t n)
+{
+	char *end;
+	errno = 0;
+	double v = strtod(val, &end);
+	if (*end == 'C' || *end == 'c')
+		end++;
+	if (errno || *end || end == val || !(v >= -100 && v <= 300)) {
+		snprintf(why, n, "%s takes a temperature in degrees C from -100 to 300, not '%s'",
+			 shown, val);
+		return 0;
+	}
+	c->ambient = v;
+	return 1;
+}
+
 static int set_fail_on(struct cli *c, const char *shown, const char *val, char *why, size_t n)
 {
 	static const struct {
@@ -333,6 +353,8 @@ static int set_value(struct cli *c, const struct opt_def *o, const char *shown,
 		return 1;
 	case OPT_TOL:
 		return set_tol(c, shown, val, why, wn);
+	case OPT_TEMP:
+		return set_temp(c, shown, val, why, wn);
 	case OPT_FAIL:
 		return set_fail_on(c, shown, val, why, wn);
 	default:

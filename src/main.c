@@ -210,6 +210,7 @@ int main(int argc, char **argv)
 	memset(&c, 0, sizeof c);
 	c.max_errors = 50;
 	c.source_tol = NAN;
+	c.ambient = NAN;
 	c.fail_on = DIAG_ERROR;
 	c.argv0 = argv[0];
 	rc = cli_parse(&c, argc, argv) ? dispatch(&c) : EXIT_USAGE;

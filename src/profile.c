@@ -28,8 +28,9 @@ const char *const profile_diode_kinds[] = {
 	"default", NULL};
 
 static const char *const top_keys[] = {"source_tol", "hazard_voltage", "hazard_charge",
-	"discharge_time", "droop_limit", "recovery_fraction", NULL};
-static const char *const cap_fields[] = {"voltage", "reverse_v", "reverse_fraction", NULL};
+	"discharge_time", "droop_limit", "recovery_fraction", "ambient", "life_required", NULL};
+static const char *const cap_fields[] = {"voltage", "reverse_v", "reverse_fraction",
+	"derate_from", "derate_to", "voltage_at_max", NULL};
 static const char *const diode_fields[] = {"voltage", "surge", NULL};
 
 int profile_polarised(const char *kind)
@@ -135,7 +136,17 @@ static int is_fraction(const char *key)
 	const char *f = dot ? dot + 1 : key;
 	return strcmp(f, "voltage") == 0 || strcmp(f, "surge") == 0 ||
 	       strcmp(f, "reverse_fraction") == 0 || strcmp(key, "source_tol") == 0 ||
-	       strcmp(key, "droop_limit") == 0 || strcmp(key, "recovery_fraction") == 0;
+	       strcmp(key, "droop_limit") == 0 || strcmp(key, "recovery_fraction") == 0 ||
+	       strcmp(f, "voltage_at_max") == 0;
+}
+
+/* Keys whose value is a temperature in degC. */
+static int is_temperature(const char *key)
+{
+	const char *dot = strrchr(key, '.');
+	const char *f = dot ? dot + 1 : key;
+	return strcmp(key, "ambient") == 0 || strcmp(f, "derate_from") == 0 ||
+	       strcmp(f, "derate_to") == 0;
 }
 
 const char *profile_key_unit(const char *key)
@@ -144,6 +155,10 @@ const char *profile_key_unit(const char *key)
 		return "fraction";
 	if (strcmp(key, "hazard_charge") == 0)
 		return "C";
+	if (is_temperature(key))
+		return "degC";
+	if (strcmp(key, "life_required") == 0)
+		return "h";
 	return strcmp(key, "discharge_time") == 0 ? "s" : "V";
 }
 
@@ -193,7 +208,7 @@ static void entry(struct reader *r, char *line)
 		snprintf(msg, sizeof msg, "unknown key '%s' (see docs/profiles.md)%s", key,
 			 near_key(key, hint, sizeof hint));
 		fail(r, line, line + strspn(line, " \t"), "%s", msg);
-	} else if (!number(val, &v) || v < 0) {
+	} else if (!number(val, &v) || (v < 0 && !is_temperature(key))) {
 		fail(r, line, vat, "'%s' is not a non-negative number", val);
 	} else if (is_fraction(key) && v > 1) {
 		fail(r, line, vat, "'%s' is a share of the rating: at most 100%%", val);
@@ -354,4 +369,60 @@ double profile_hazard(const struct profile *p)
 {
 	double v = profile_value(p, "hazard_voltage", NULL);
 	return isnan(v) ? 60.0 : v;
+}
+
+int profile_set(struct profile *p, const char *key, double value, const char *note)
+{
+	size_t k = 0;
+	while (k < p->n && strcmp(p->e[k].key, key) != 0)
+		k++;
+	if (k == p->n) {
+		if (p->n == PROFILE_MAX_ENTRIES)
+			return 0;
+		p->n++;
+		copy_cut(p->e[k].key, sizeof p->e[k].key, key);
+		p->e[k].line = 0;
+	}
+	p->e[k].value = value;
+	copy_cut(p->e[k].note, sizeof p->e[k].note, note);
+	return 1;
+}
+
+double profile_ambient(const struct profile *p, double override_c)
+{
+	if (isfinite(override_c))
+		return override_c;
+	double t = profile_value(p, "ambient", NULL);
+	return isnan(t) ? PROFILE_AMBIENT_DEFAULT : t;
+}
+
+/* The share of the voltage factor left at t degC for one capacitor kind:
+ * 1 up to derate_from, falling in a straight line to voltage_at_max at
+ * derate_to and held there; 1 when the kind sets none of the three. */
+static double temp_share(const struct profile *p, const char *kind, double t)
+{
+	double from = profile_kind(p, "cap", kind, "derate_from", NULL);
+	double to = profile_kind(p, "cap", kind, "derate_to", NULL);
+	double at = profile_kind(p, "cap", kind, "voltage_at_max", NULL);
+	if (isnan(from) || isnan(to) || isnan(at) || !(to > from) || !(t > from))
+		return 1;
+	return 1 - (1 - at) * fmin((t - from) / (to - from), 1);
+}
+
+int profile_at_ambient(struct profile *p, double ambient_c)
+{
+	char key[64], note[160];
+	for (int i = 0; profile_cap_kinds[i]; i++) {
+		const char *kind = profile_cap_kinds[i], *n0;
+		double share = temp_share(p, kind, ambient_c);
+		double f = profile_kind(p, "cap", kind, "voltage", &n0);
+		if (!(share < 1) || isnan(f))
+			continue;
+		snprintf(key, sizeof key, "cap.%s.voltage", kind);
+		snprintf(note, sizeof note, "x%.0f%% at %.0f C, cap.%s.derate_*; %s", share * 100,
+			 ambient_c, kind, n0);
+		if (!profile_set(p, key, f * share, note))
+			return 0;
+	}
+	return 1;
 }

@@ -375,6 +375,10 @@ static void json_head(FILE *out, const struct profile *p, const struct check_tot
 	jnum(out, profile_value(p, "source_tol", NULL));
 	fputs(", \"hazard_voltage\": ", out);
 	jnum(out, profile_hazard(p));
+	fputs(", \"ambient_c\": ", out);
+	jnum(out, profile_ambient(p, NAN));
+	fputs(", \"life_required_h\": ", out);
+	jnum(out, profile_value(p, "life_required", NULL));
 	fputs(", \"diodes\": \"ideal for the worst case; forward drop at 1 mA for the best\", "
 	      "\"load\": \"none for node waveforms; loads used for droop, ladder regulation and discharge\"},\n"
 	      "  \"files\": [\n", out);

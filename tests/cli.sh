@@ -738,5 +738,24 @@ check "config: and goes on above a folder that is no repository" bash -c "test $
 inproj "$tmp/outer/plain" check --config nosuch.ini "$here/../examples/sensor_restorer.cir"
 check "config: --config naming no file is a usage error" bash -c "test $rc -eq 2 && grep -qx \"headroom: cannot read the configuration 'nosuch.ini': no such file\" '$tmp/err'"
 
+# Ambient temperature: the MnO2 tantalum category voltage falls linearly from
+# UR at 85 C to 2/3 UR at 125 C (KEMET B45196 datasheet cautions, docs/sources.md);
+# at 105 C the profile's 50 % becomes 50 % x (1 - 1/3 x 20/40) = 42 %.
+run check --profile basic --fail-on never "$data/tantalum_hot.cir"
+check "ambient: at the default 40 C the tantalum at 46 % is within 50 %" bash -c "! grep -q 'cap-derating' '$tmp/out'"
+run check --profile basic --fail-on never --ambient 105 "$data/tantalum_hot.cir"
+check "ambient: at 105 C the tantalum limit falls to 42 %" grep -q "46% of its 25 V rating (limit 42%) \[cap-derating\]" "$tmp/out"
+run check --profile basic --fail-on never --ambient 84C "$data/tantalum_hot.cir"
+check "ambient: below 85 C nothing changes" bash -c "test $rc -eq 0 && ! grep -q 'cap-derating' '$tmp/out'"
+run check --profile basic --format json --ambient 105 "$data/tantalum_hot.cir"
+check "ambient: the JSON report states it" grep -q '"ambient_c": 105' "$tmp/out"
+run check --ambient hot "$data/tantalum_hot.cir"
+check "ambient: a bad value is a usage error" bash -c "test $rc -eq 2 && grep -q \"ambient takes a temperature in degrees C from -100 to 300, not 'hot'\" '$tmp/err'"
+mkdir -p "$tmp/amb"
+printf '[check]\nprofile = basic\nambient = 105\nfail-on = never\n' > "$tmp/amb/headroom.ini"
+cp "$data/tantalum_hot.cir" "$tmp/amb/"
+inproj "$tmp/amb" check tantalum_hot.cir
+check "ambient: the config key gives the same limit" grep -q "(limit 42%) \[cap-derating\]" "$tmp/out"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]

@@ -92,10 +92,10 @@ def rules_values(profile):
 
 def parse_value(text):
     """A profile value as the page writes it: 80%, 60V, 2s, 1.0 V, 0.5."""
-    t = text.strip().replace(" ", "")
+    t = text.strip().replace(" ", "").replace(",", "")
     if t.endswith("%"):
         return float(t[:-1]) / 100
-    t = re.sub(r"[Vs]$", "", t)
+    t = re.sub(r"([Vsh]|°C)$", "", t)
     return float(t)
 
 
