@@ -56,6 +56,7 @@ rating check
 stress check
 discharge check
 life check
+capbias base
 verify check
 rules check
 waiver check
