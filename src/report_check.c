@@ -121,8 +121,8 @@ static void text_table(FILE *out, const struct check_file *f)
 			num_format_eng(s->best, qty_unit(s), bv, sizeof bv);
 		if (!isnan(rated))
 			num_format_eng(rated, qty_unit(s), rv, sizeof rv);
-		if (!isnan(rated) && s->bounded && isfinite(s->worst))
-			snprintf(ratio, sizeof ratio, "%.0f%%", 100 * s->worst / rated);
+		if (isfinite(stress_ratio(s, r)))
+			snprintf(ratio, sizeof ratio, "%.0f%%", 100 * stress_ratio(s, r));
 		char sv[24] = "-";
 		if (isfinite(s->sim_worst))
 			num_format_eng(s->sim_worst, qty_unit(s), sv, sizeof sv);
@@ -210,6 +210,23 @@ static void jstr(FILE *out, const char *s)
 		fputs("null", out);
 }
 
+/* A surge's pulse and the rating's (docs/check.md, "Power-up surge"). */
+static void json_surge(FILE *out, const struct stress *s, const struct rating *r)
+{
+	fputs(", \"surge_i2t\": ", out);
+	jnum(out, s->surge_i2t);
+	fputs(", \"surge_width\": ", out);
+	jnum(out, s->surge_width);
+	fputs(", \"surge_phase\": ", out);
+	jnum(out, s->surge_phase);
+	fputs(", \"surge_judged\": ", out);
+	jnum(out, stress_surge_judged(s, r));
+	fputs(", \"rating_surge_width\": ", out);
+	jnum(out, stress_surge_width(r));
+	fputs(", \"rating_i2t\": ", out);
+	jnum(out, stress_surge_rated_i2t(r));
+}
+
 static void json_stress(FILE *out, const struct check_file *f,
 			const struct stress *s)
 {
@@ -242,10 +259,11 @@ static void json_stress(FILE *out, const struct check_file *f,
 	fputs(", \"rating_from\": ", out);
 	jstr(out, rf->from);
 	fputs(", \"ratio\": ", out);
-	jnum(out, s->bounded && !isnan(rf->value) ? s->worst / rf->value : NAN);
+	jnum(out, stress_ratio(s, r));
 	if (!stress_qty_is_voltage(s->qty)) {
 		fputs(", \"series_r\": ", out);
 		jnum(out, s->series_r);
+		json_surge(out, s, r);
 	}
 	if (p->kind == NL_C && s->bounded) {
 		fputs(", \"energy\": ", out);
@@ -329,6 +347,17 @@ static void json_file(FILE *out, const struct check_file *f, const struct profil
 		jstr(out, fb->why);
 		fputc('}', out);
 	}
+	const struct stress_surge *sg = f->a->analysed ? f->stress->surge : NULL;
+	if (sg) {
+		fprintf(out, ",\n      \"surge_simulation\": {\"simulated\": %s, \"why\": ",
+			sg->simulated ? "true" : "false");
+		jstr(out, sg->why);
+		fprintf(out, ", \"runs\": %u, \"instants\": %u, \"period\": ", sg->runs, sg->instants);
+		jnum(out, sg->period);
+		fputs(", \"span\": ", out);
+		jnum(out, sg->span);
+		fputc('}', out);
+	}
 	fputs(",\n      \"stresses\": [", out);
 	size_t n = f->a->analysed ? f->stress->n : 0;
 	for (size_t i = 0; i < n; i++) {
@@ -406,14 +435,14 @@ static void top_file(struct check_totals *t, const struct check_file *f)
 	for (size_t i = 0; i < f->stress->n; i++) {
 		const struct stress *s = &f->stress->s[i];
 		const struct rating *r = &f->ratings[s->part];
-		double rated = stress_rating(r, s->qty)->value;
-		if (!s->bounded || !(rated > 0))
+		double ratio = stress_ratio(s, r);
+		if (!s->bounded || !isfinite(ratio))
 			continue;
 		struct totals_part x;
 		snprintf(x.file, sizeof x.file, "%s", f->path);
 		snprintf(x.part, sizeof x.part, "%s", nl_part_at(f->a->er.circuit, s->part)->path);
 		x.qty = stress_qty_name(s->qty);
-		x.ratio = s->worst / rated;
+		x.ratio = ratio;
 		top_add(t, &x);
 	}
 }

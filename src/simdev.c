@@ -117,7 +117,7 @@ static double source_at(const struct simdev *d, const struct simdev_step *st)
 {
 	if (!d->src)
 		return 0;
-	double v = simsrc_value(d->src, st->span, st->t);
+	double v = simsrc_value(d->src, st->span, st->t_src);
 	return d->dc_v + (v - d->mean) * d->ac_k;
 }
 
@@ -219,6 +219,13 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 	stamp_i(m, d->p, d->b, i - g * v);
 	if (d->p != d->a)
 		stamp_g(m, d->h + 4, 1 / dm->rs);
+}
+
+double simdev_diode_current(const struct simdev *d)
+{
+	double id, gd;
+	junction(d->dm, d->vd, &id, &gd);
+	return id + d->f0;
 }
 
 /* ---- the rest ---- */

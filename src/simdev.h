@@ -53,6 +53,8 @@ struct simdev_step {
 	   (variable step); gear 0 means backward Euler for them this step */
 	int gear;
 	double ga, g1, g2;
+	double t_src;         /* time the sources are evaluated at: t plus the
+				 run's switch-on shift (sim_opts.t_shift) */
 };
 
 /* Registers the matrix positions of d. Returns 0 on out-of-memory. */
@@ -67,6 +69,10 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
  * (a diode's are those of its last stamp, at the converged iterate). */
 void simdev_update(struct simdev *d, const struct simdev_step *st,
 		   const double *x);
+
+/* A diode's current (anode to cathode) at its last accepted point: the
+ * junction's static current plus its charge current. */
+double simdev_diode_current(const struct simdev *d);
 
 /* Fills the derived diode parameters. */
 void simdev_diode_init(struct simdev_diode *m);
