@@ -183,6 +183,12 @@ static const char *simulation(struct ctx *x, const struct stress *s)
 			 100 * (1 - s->sim_worst / s->worst)));
 }
 
+/* I^2 t without a prefix: "3.772 A^2 s" (a "mA2s" would read as mA squared) */
+static const char *i2t_text(struct ctx *x, double i2t)
+{
+	return str(x, "%.4g A^2 s", i2t);
+}
+
 /* The analytic bound, and the simulated pulse with how it is judged. */
 static const char *surge_computation(struct ctx *x, const struct stress *s)
 {
@@ -198,7 +204,7 @@ static const char *surge_computation(struct ctx *x, const struct stress *s)
 		      "equivalent half-sine width 2 I2t / peak^2 = %s; as a half-sine of the rating's "
 		      "%s with the same I2t: sqrt(2 I2t / %s) = %s (I2t scaling: common practice, no "
 		      "source); %s",
-		   where(x, s), s->corner, v(x, s->worst, "A"), v(x, s->surge_i2t, "A2s"),
+		   where(x, s), s->corner, v(x, s->worst, "A"), i2t_text(x, s->surge_i2t),
 		   v(x, s->surge_width, "s"), v(x, t, "s"), v(x, t, "s"),
 		   v(x, stress_surge_judged(s, r), "A"), bound);
 }
@@ -520,18 +526,18 @@ static const char *surge_pulse(struct ctx *x, const struct stress *s)
 		return str(x, "%s (analytic bound, its width not known: judged as if it lasted the "
 			      "rating's whole pulse)", v(x, s->worst, "A"));
 	return str(x, "a pulse of %s peak, %s wide (equivalent half-sine), I2t %s (simulated)",
-		   v(x, s->worst, "A"), v(x, s->surge_width, "s"), v(x, s->surge_i2t, "A2s"));
+		   v(x, s->worst, "A"), v(x, s->surge_width, "s"), i2t_text(x, s->surge_i2t));
 }
 
-/* "30 A for a half-sine of 8.3 ms (I2t 3.735 A2s)" */
+/* "30 A for a half-sine of 8.3 ms (I2t 3.735 A^2 s)" */
 static const char *surge_rating(struct ctx *x, const struct rating *r)
 {
 	double t = stress_surge_width(r), i2t = stress_surge_rated_i2t(r);
 	if (isnan(r->i_surge.value))
-		return str(x, "I2t %s (a half-sine of %s peaking at %s)", v(x, i2t, "A2s"), v(x, t, "s"),
+		return str(x, "I2t %s (a half-sine of %s peaking at %s)", i2t_text(x, i2t), v(x, t, "s"),
 			   v(x, stress_surge_rated(r), "A"));
 	return str(x, "%s for a half-sine of %s (I2t %s%s)", v(x, r->i_surge.value, "A"), v(x, t, "s"),
-		   v(x, i2t, "A2s"), r->i2t.value <= i2t ? ", its own I2t rating" : "");
+		   i2t_text(x, i2t), r->i2t.value <= i2t ? ", its own I2t rating" : "");
 }
 
 static void surge_rules(struct ctx *x, const struct stress *s)
@@ -555,9 +561,9 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 		}
 		return;
 	}
-	/* a simulated pulse is limited by whatever the circuit holds (a
-	   winding's leakage, the diode's own resistance): judged as it is */
-	if (s->series_r <= 0 && s->basis != SB_SIMULATED) {
+	/* no resistance in the path: a simulated figure then depends on
+	   little more than the diode model's exponential, so none is judged */
+	if (s->series_r <= 0) {
 		struct finding *f = add(x, RULE_SURGE_UNBOUNDED, s->part, s->structure);
 		if (!f)
 			return;

@@ -574,7 +574,7 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 			struct stress sg;
 			surge(&x, (size_t)s.structure, i, &sg);
 			sg.basis = sg.bounded ? SB_ANALYSIS : SB_NONE;
-			sg.analytic = sg.worst;
+			sg.analytic = sg.bounded ? sg.worst : NAN;
 			if (!push(&x, out, &cap, &sg))
 				return 0;
 		}
