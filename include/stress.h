@@ -261,6 +261,12 @@ double stress_surge_judged(const struct stress *s, const struct rating *r);
 /* The surge current r allows, in the same terms: IFSM, or the half-sine
  * peak of its I^2 t when that is lower (NaN: no rating). */
 double stress_surge_rated(const struct rating *r);
+/* The rating q is judged against, in the terms of the judged value: the
+ * rating's value for a voltage, stress_surge_rated for a surge (NaN: none). */
+double stress_rated(const struct rating *r, enum stress_qty q);
+/* What the rules judge s as (stress_judged for a voltage,
+ * stress_surge_judged for a surge; NaN without a number). */
+double stress_judged_as(const struct stress *s, const struct rating *r);
 /* The ratio of s to its rating r (the figure reports sort by): worst over
  * the rating for a voltage, stress_surge_judged over stress_surge_rated
  * for a surge. NaN when s has no number or r no rating. */

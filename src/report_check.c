@@ -89,6 +89,39 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 			     "above their steady state\n", v->powerup_periods, v->powerup_above);
 }
 
+/* The surge line: how the switch-on was simulated, or why not; then one
+ * line per simulated pulse (docs/check.md, "Power-up surge"). */
+static void text_surge(FILE *out, const struct check_file *f)
+{
+	const struct stress_surge *sg = f->stress->surge;
+	if (!sg)
+		return;
+	char per[24], span[24];
+	num_format_eng(sg->period, "s", per, sizeof per);
+	num_format_eng(sg->span, "s", span, sizeof span);
+	if (!sg->simulated) {
+		fprintf(out, "  surge not simulated: %s; the analytic bounds (peak drive over the series "
+			     "resistance) stand\n", sg->why ? sg->why : "?");
+		return;
+	}
+	fprintf(out, "  surge (simulated): %u switch-on instant%s from the zero state at the high "
+		     "corner, %s each\n", sg->instants, sg->instants == 1 ? " (as written)" : "s", span);
+	for (size_t i = 0; i < f->stress->n; i++) {
+		const struct stress *s = &f->stress->s[i];
+		char pk[24], w[24], an[24], at[64] = "";
+		if (s->qty != SQ_SURGE || !isfinite(s->surge_i2t))
+			continue;
+		num_format_eng(s->worst, "A", pk, sizeof pk);
+		num_format_eng(s->surge_width, "s", w, sizeof w);
+		num_format_eng(s->analytic, "A", an, sizeof an);
+		if (isfinite(s->surge_phase))
+			snprintf(at, sizeof at, ", on at %.0f deg of %s", s->surge_phase, per);
+		fprintf(out, "    %s: pulse %s peak, %s wide (half-sine), I2t %.4g A^2 s%s; analytic "
+			     "bound %s\n", nl_part_at(f->a->er.circuit, s->part)->path, pk, w, s->surge_i2t,
+			at, isfinite(s->analytic) ? an : "none");
+	}
+}
+
 static void text_table(FILE *out, const struct check_file *f)
 {
 	const struct stress_result *sr = f->stress;
@@ -96,6 +129,7 @@ static void text_table(FILE *out, const struct check_file *f)
 	if (!sr)
 		return;
 	text_verify(out, sr->verify);
+	text_surge(out, f);
 	if (sr->n == 0)
 		return;
 	size_t w = 4;

@@ -211,6 +211,20 @@ double stress_surge_judged(const struct stress *s, const struct rating *r)
 	return s->worst;
 }
 
+double stress_rated(const struct rating *r, enum stress_qty q)
+{
+	return q == SQ_SURGE ? stress_surge_rated(r) : stress_rating(r, q)->value;
+}
+
+double stress_judged_as(const struct stress *s, const struct rating *r)
+{
+	if (!s->bounded)
+		return NAN;
+	return s->qty == SQ_SURGE ? stress_surge_judged(s, r) : stress_judged(s);
+}
+
+/* Reports sort by the bound (worst), the rules judge a simulated peak
+ * above it: the ratio stays the bound's for voltages, as before. */
 double stress_ratio(const struct stress *s, const struct rating *r)
 {
 	if (!s->bounded)
