@@ -565,7 +565,7 @@ long sim_diode_handle(const struct sim *s, uint32_t part)
 
 double sim_diode_current(const struct sim *s, long k)
 {
-	return simdev_diode_current(&s->dev[k]);
+	return simdev_diode_current(&s->dev[k], s->x);
 }
 
 double sim_period(const struct sim *s)

@@ -217,15 +217,15 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 	double i = id + st->gmin * v + ic;
 	stamp_g(m, d->h, g);
 	stamp_i(m, d->p, d->b, i - g * v);
+	d->ieq = i - g * v;
+	d->geq = g;
 	if (d->p != d->a)
 		stamp_g(m, d->h + 4, 1 / dm->rs);
 }
 
-double simdev_diode_current(const struct simdev *d)
+double simdev_diode_current(const struct simdev *d, const double *x)
 {
-	double id, gd;
-	junction(d->dm, d->vd, &id, &gd);
-	return id + d->f0;
+	return d->ieq + d->geq * (at(x, d->p) - at(x, d->b));
 }
 
 /* ---- the rest ---- */
