@@ -561,9 +561,11 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 		}
 		return;
 	}
-	/* no resistance in the path: a simulated figure then depends on
-	   little more than the diode model's exponential, so none is judged */
-	if (s->series_r <= 0) {
+	/* the analysis settled the path and found no resistance in it: a
+	   simulated figure then depends on little more than the diode model's
+	   exponential, so none is judged (where the analysis did not settle
+	   the path, analytic is NaN and the simulated pulse is judged) */
+	if (s->series_r <= 0 && !isnan(s->analytic)) {
 		struct finding *f = add(x, RULE_SURGE_UNBOUNDED, s->part, s->structure);
 		if (!f)
 			return;
