@@ -18,10 +18,10 @@ struct sv {
 	struct arena *ar;
 	struct stress_result *sr;
 	struct stress_surge *out;
-	uint32_t *parts;          /* the surge stresses' diodes */
+	uint32_t *parts; /* the surge stresses' diodes */
 	size_t n;
 	struct simrun_pulse *best, *run;
-	double *phase;            /* per diode: the instant of its best */
+	double *phase; /* per diode: the instant of its best */
 	struct simrun_opts o;
 	unsigned long work, total, per_run, size;
 };
@@ -136,11 +136,12 @@ static const char *corner_text(struct sv *x, double phase)
 	num_format_eng(x->out->period, "s", per, sizeof per);
 	if (isnan(phase))
 		snprintf(buf, sizeof buf, "simulated power-up from the zero state, every source at "
-			 "its high end, switched on as written (the sources fix their start)");
+					  "its high end, switched on as written (the sources fix their start)");
 	else
 		snprintf(buf, sizeof buf, "simulated power-up from the zero state, every source at "
-			 "its high end, switched on at %.0f deg of the %s period (the worst of %u "
-			 "instants %.0f deg apart)", phase, per, x->out->instants, 360.0 / SURGE_INSTANTS);
+					  "its high end, switched on at %.0f deg of the %s period (the worst of %u "
+					  "instants %.0f deg apart)",
+			 phase, per, x->out->instants, 360.0 / SURGE_INSTANTS);
 	return arena_strdup(x->ar, buf);
 }
 
