@@ -155,17 +155,17 @@ struct stress_result {
 	const struct stress_verify *verify; /* --verify's run, or NULL */
 	const uint32_t *island;     /* per part: its island (proof.h) */
 	const struct stress_fallback *fallback; /* the simulation of unproven parts, or NULL */
-	const struct stress_surge *surge; /* the surge simulation (surge.h), or NULL */
+	const struct stress_surge *surge;       /* the surge simulation (surge.h), or NULL */
 };
 
 /* What the surge simulation (surge.h) did for a file. */
 struct stress_surge {
-	int simulated;          /* the surges come from the solver */
-	const char *why;        /* when not: the reason */
-	unsigned runs;          /* solver runs made */
-	unsigned instants;      /* switch-on instants tried (1: as written) */
-	double period;          /* the longest source period, s */
-	double span;            /* time run after each switch-on, s */
+	int simulated;     /* the surges come from the solver */
+	const char *why;   /* when not: the reason */
+	unsigned runs;     /* solver runs made */
+	unsigned instants; /* switch-on instants tried (1: as written) */
+	double period;     /* the longest source period, s */
+	double span;       /* time run after each switch-on, s */
 };
 
 /* Index in runs of the corner with amplitudes and offsets at +tol, and of

@@ -101,11 +101,13 @@ static void text_surge(FILE *out, const struct check_file *f)
 	num_format_eng(sg->span, "s", span, sizeof span);
 	if (!sg->simulated) {
 		fprintf(out, "  surge not simulated: %s; the analytic bounds (peak drive over the series "
-			     "resistance) stand\n", sg->why ? sg->why : "?");
+			     "resistance) stand\n",
+			sg->why ? sg->why : "?");
 		return;
 	}
 	fprintf(out, "  surge (simulated): %u switch-on instant%s from the zero state at the high "
-		     "corner, %s each\n", sg->instants, sg->instants == 1 ? " (as written)" : "s", span);
+		     "corner, %s each\n",
+		sg->instants, sg->instants == 1 ? " (as written)" : "s", span);
 	for (size_t i = 0; i < f->stress->n; i++) {
 		const struct stress *s = &f->stress->s[i];
 		char pk[24], w[24], an[24], at[64] = "";
@@ -117,7 +119,8 @@ static void text_surge(FILE *out, const struct check_file *f)
 		if (isfinite(s->surge_phase))
 			snprintf(at, sizeof at, ", on at %.0f deg of %s", s->surge_phase, per);
 		fprintf(out, "    %s: pulse %s peak, %s wide (half-sine), I2t %.4g A^2 s%s; analytic "
-			     "bound %s\n", nl_part_at(f->a->er.circuit, s->part)->path, pk, w, s->surge_i2t,
+			     "bound %s\n",
+			nl_part_at(f->a->er.circuit, s->part)->path, pk, w, s->surge_i2t,
 			at, isfinite(s->analytic) ? an : "none");
 	}
 }

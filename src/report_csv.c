@@ -61,10 +61,10 @@ double report_limit(const struct check_file *f, const struct profile *p,
 	return rated * (isnan(factor) ? 1 : factor);
 }
 
-#define CSV_HEADER                                                                   \
-	"file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"     \
-	"rating,rating_from,limit,ratio,margin,surge_i2t,surge_width,surge_phase,"         \
-	"basis,unproven,profile,profile_status,"                                         \
+#define CSV_HEADER                                                                 \
+	"file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"   \
+	"rating,rating_from,limit,ratio,margin,surge_i2t,surge_width,surge_phase," \
+	"basis,unproven,profile,profile_status,"                                   \
 	"record,line,col,code,message\n"
 
 static void num(FILE *out, double v)

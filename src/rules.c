@@ -193,9 +193,9 @@ static const char *i2t_text(struct ctx *x, double i2t)
 static const char *surge_computation(struct ctx *x, const struct stress *s)
 {
 	const char *bound = isfinite(s->analytic) && s->series_r > 0
-		? str(x, "analytic bound = peak drive %s / series %s = %s",
-		      v(x, s->analytic * s->series_r, "V"), v(x, s->series_r, "ohm"), v(x, s->analytic, "A"))
-		: "no analytic bound";
+				    ? str(x, "analytic bound = peak drive %s / series %s = %s",
+					  v(x, s->analytic * s->series_r, "V"), v(x, s->series_r, "ohm"), v(x, s->analytic, "A"))
+				    : "no analytic bound";
 	if (!isfinite(s->surge_i2t))
 		return str(x, "%s: power-up surge: %s (%s)", where(x, s), bound, s->corner);
 	const struct rating *r = &x->r[s->part];
@@ -524,7 +524,8 @@ static const char *surge_pulse(struct ctx *x, const struct stress *s)
 {
 	if (!isfinite(s->surge_i2t))
 		return str(x, "%s (analytic bound, its width not known: judged as if it lasted the "
-			      "rating's whole pulse)", v(x, s->worst, "A"));
+			      "rating's whole pulse)",
+			   v(x, s->worst, "A"));
 	return str(x, "a pulse of %s peak, %s wide (equivalent half-sine), I2t %s (simulated)",
 		   v(x, s->worst, "A"), v(x, s->surge_width, "s"), i2t_text(x, s->surge_i2t));
 }
@@ -551,10 +552,12 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 			f->message = str(x, "the power-up surge through %s has no worst case (%s)",
 					 f->subject, where(x, s));
 			const struct stress_surge *sg = x->s->surge;
-			f->computation = str(x, "not proven: %s; not simulated: %s", s->unproven ? s->unproven
-				: "the analytic surge is the peak drive over the series resistance, known only "
-				  "where the analysis settles the structure's nodes",
-				sg && sg->why ? sg->why : "the solver gave this diode no current");
+			const char *why = s->unproven ? s->unproven
+							: "the analytic surge is the peak drive over the series "
+							  "resistance, known only where the analysis settles the "
+							  "structure's nodes";
+			f->computation = str(x, "not proven: %s; not simulated: %s", why,
+					     sg && sg->why ? sg->why : "the solver gave this diode no current");
 			f->fix = "simulate the switch-on at the highest input with the source's real "
 				 "impedance and compare the peak current with the diode's surge rating, or "
 				 "waive this finding with the reason";
@@ -599,12 +602,13 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	f->limits = str(x, "surge rating %s (%s); limit %s (profile %s, %s)", surge_rating(x, r),
 			r->i_surge.from ? r->i_surge.from : r->i2t.from, v(x, f->limit, "A"), x->p->name, key);
 	f->fix = isfinite(s->surge_i2t)
-		? str(x, "add series resistance or an inrush limiter (the pulse's I2t falls as the "
-			 "resistance in its path rises), or use a diode whose surge rating is at least %s "
-			 "for %s", v(x, judged / factor, "A"), v(x, stress_surge_width(r), "s"))
-		: str(x, "raise the series resistance to at least %s, or use a diode with a higher surge "
-			 "rating; or let the solver run the circuit (the pulse's width then counts)",
-		      v(x, s->worst * s->series_r / f->limit, "ohm"));
+			 ? str(x, "add series resistance or an inrush limiter (the pulse's I2t falls as the "
+				  "resistance in its path rises), or use a diode whose surge rating is at least %s "
+				  "for %s",
+			       v(x, judged / factor, "A"), v(x, stress_surge_width(r), "s"))
+			 : str(x, "raise the series resistance to at least %s, or use a diode with a higher surge "
+				  "rating; or let the solver run the circuit (the pulse's width then counts)",
+			       v(x, s->worst * s->series_r / f->limit, "ohm"));
 }
 
 /* A diode driven into reverse breakdown on purpose: a zener (by kind), or

@@ -479,7 +479,8 @@ static double next_corner(const struct sim *s)
 	for (size_t i = 0; i < s->ndev; i++)
 		if (s->dev[i].src)
 			t = fmin(t, simsrc_next_corner(s->dev[i].src, &s->span,
-						       s->t + s->o.t_shift) - s->o.t_shift);
+						       s->t + s->o.t_shift) -
+					    s->o.t_shift);
 	return t;
 }
 

@@ -55,7 +55,7 @@ struct simdev_step {
 	   (variable step); gear 0 means backward Euler for them this step */
 	int gear;
 	double ga, g1, g2;
-	double t_src;         /* time the sources are evaluated at: t plus the
+	double t_src; /* time the sources are evaluated at: t plus the
 				 run's switch-on shift (sim_opts.t_shift) */
 };
 

@@ -238,7 +238,7 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 
 struct surge_track {
 	const struct sim *s;
-	long *dev;                    /* solver handle per diode, -1: none */
+	long *dev; /* solver handle per diode, -1: none */
 	size_t n;
 	struct simrun_pulse *best, *cur;
 	double *iprev, tprev;
