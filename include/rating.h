@@ -21,10 +21,21 @@ struct rating_field {
 struct rating {
 	struct rating_field v_rated; /* cap DC rating; diode repetitive reverse */
 	struct rating_field i_surge, i_avg, trr, tol;
+	/* the surge rating's pulse: the width of the half-sine i_surge is
+	   given for (s), and the I^2 t the diode takes (A^2 s) */
+	struct rating_field surge_width, i2t;
 	const char *kind;            /* one of profile_*_kinds, or NULL */
 	const char *kind_from;
 	const char *note;
 };
+
+/* The width of the half-sine a surge rating (IFSM) is given for, when the
+ * parts table does not say: 8.3 ms, one half-cycle at 60 Hz (at 50 Hz it is
+ * 10 ms; the shorter is the stricter when judged by I^2 t). IFSM as the
+ * peak of one half-sine of 8.3 ms or 10 ms: Journal of Electrical Systems
+ * and Information Technology 2022, article s43067-022-00051-4, "Diode
+ * selection". */
+#define RATING_SURGE_WIDTH 8.3e-3
 
 /* A parsed parts table. rating_resolve only marks which rows it used, so
  * one table can serve many files checked at once, on several threads. */

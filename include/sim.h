@@ -36,6 +36,10 @@ struct sim_opts {
 				   0: 20,000,000 */
 	int ideal_diodes;  /* every diode nearly ideal (SIM_IDEAL_IS, _N) */
 	int no_shooting;   /* sim_settle: plain settling only */
+	double t_shift;    /* s: every independent source is evaluated at t +
+			      t_shift, so a run from the zero state switches
+			      the circuit on at that instant of the sources'
+			      waveforms (0: as written) */
 };
 
 /* The nearly ideal diode: IS 1e-9 A per unit area, N 0.05 (about 27 mV
@@ -77,6 +81,13 @@ typedef int (*sim_point_fn)(void *ud, double t, const double *v);
 
 /* Runs from the current time to t_end. */
 enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud);
+
+/* The solver's handle of diode part, or -1 when part is no diode of the
+ * solver (left out, or another kind). */
+long sim_diode_handle(const struct sim *s, uint32_t part);
+/* The current through the diode of handle k (from sim_diode_handle; anode
+ * to cathode, A: junction plus charge current) at the time reached. */
+double sim_diode_current(const struct sim *s, long k);
 
 /* The longest repetition period among the sources (0 if none repeats). */
 double sim_period(const struct sim *s);

@@ -21,6 +21,7 @@ struct simrun_opts {
 	const unsigned char *leave_out; /* parts left out (open), or NULL */
 	double gshunt;         /* S from every node to ground (sim.h) */
 	int ideal_diodes;      /* nearly ideal diodes (sim.h) */
+	double t_shift;        /* switch-on instant of the sources (sim.h) */
 	double *cap_end;       /* per part, or NULL: each capacitor's voltage
 				  where the run ends (simrun_peaks, _track) */
 	/* simrun_peaks: parts whose voltage (pin 0 minus pin 1) is sampled at
@@ -67,6 +68,29 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 		  unsigned max_periods, const struct hr_alloc *h, double *vmin,
 		  double *vmax, struct simrun_result *r);
+
+/* One forward current pulse of a diode (simrun_surge): a stretch of time
+ * in which its current stays above 0 and above SIMRUN_PULSE_END of the
+ * pulse's own peak so far. */
+struct simrun_pulse {
+	double peak_a;         /* its largest current, A */
+	double i2t;            /* the integral of i^2 over it, A^2 s */
+	double t_peak;         /* when the peak came, s after switch-on */
+	double t_start, t_end; /* s after switch-on */
+};
+
+/* A pulse ends where its current falls below this share of its peak: the
+ * tail beyond carries less than a millionth of its I^2 t per unit time. */
+#define SIMRUN_PULSE_END 1e-3
+
+/* Power-up: the circuit from the zero state (every capacitor at its ic=
+ * or 0; o->cap_v0 is not used) at the corner and switch-on instant in o,
+ * run for span seconds. Each diode parts[k] gets in pulse[k] the forward
+ * current pulse with the largest I^2 t of the run (all zero when it never
+ * conducts; NaN when the solver has no such diode). */
+void simrun_surge(const struct nl_circuit *c, const struct simrun_opts *o, double span,
+		  const uint32_t *parts, size_t n, const struct hr_alloc *h,
+		  struct simrun_pulse *pulse, struct simrun_result *r);
 
 /* Conductance from every node to ground when parts are left out, so that
  * a node they leave floating stays defined (S). */

@@ -92,6 +92,12 @@ struct stress {
 	int32_t stack;          /* its series stack in stacks[], -1 when none */
 	/* surge: the series resistance that limits it (0: nothing) */
 	double series_r;
+	/* surge, simulated (surge.h; NaN when not): the pulse's I^2 t (A^2
+	   s), its equivalent half-sine width 2 I^2t / peak^2 (s: the
+	   half-sine of the same peak and I^2 t lasts that long), and the
+	   switch-on instant as a phase of the longest source period
+	   (degrees; NaN: the sources as written) */
+	double surge_i2t, surge_width, surge_phase;
 	/* --verify: the same quantity in the steady-state simulation at the
 	   +tol corner, NaN when not simulated (verify.h) */
 	double sim_worst;
@@ -149,6 +155,17 @@ struct stress_result {
 	const struct stress_verify *verify; /* --verify's run, or NULL */
 	const uint32_t *island;     /* per part: its island (proof.h) */
 	const struct stress_fallback *fallback; /* the simulation of unproven parts, or NULL */
+	const struct stress_surge *surge;       /* the surge simulation (surge.h), or NULL */
+};
+
+/* What the surge simulation (surge.h) did for a file. */
+struct stress_surge {
+	int simulated;     /* the surges come from the solver */
+	const char *why;   /* when not: the reason */
+	unsigned runs;     /* solver runs made */
+	unsigned instants; /* switch-on instants tried (1: as written) */
+	double period;     /* the longest source period, s */
+	double span;       /* time run after each switch-on, s */
 };
 
 /* Index in runs of the corner with amplitudes and offsets at +tol, and of
@@ -228,6 +245,33 @@ int stress_powerup_above(const struct stress *s);
 /* What the rating rules judge: the bound, or the simulated peak (steady
  * state or power-up) when that is higher and compared. */
 double stress_judged(const struct stress *s);
+/* A surge rating's pulse: IFSM is the peak of one half-sine of the
+ * rating's width (rating surge_width, default RATING_SURGE_WIDTH); the I^2
+ * t it allows is the smaller of the rating's own i2t and that half-sine's
+ * IFSM^2 t / 2. NaN when neither is given. */
+double stress_surge_rated_i2t(const struct rating *r);
+/* The width of r's surge rating (s). */
+double stress_surge_width(const struct rating *r);
+/* What a surge stress is judged as, in amperes: with a simulated pulse
+ * (surge_i2t known), the peak of a half-sine of the rating's width that
+ * carries the same I^2 t, sqrt(2 I^2t / width); the scaling by I^2 t is
+ * common practice, no source. Without one, the peak itself (the bound
+ * then counts as lasting the rating's whole pulse). */
+double stress_surge_judged(const struct stress *s, const struct rating *r);
+/* The surge current r allows, in the same terms: IFSM, or the half-sine
+ * peak of its I^2 t when that is lower (NaN: no rating). */
+double stress_surge_rated(const struct rating *r);
+/* The rating q is judged against, in the terms of the judged value: the
+ * rating's value for a voltage, stress_surge_rated for a surge (NaN: none). */
+double stress_rated(const struct rating *r, enum stress_qty q);
+/* What the rules judge s as (stress_judged for a voltage,
+ * stress_surge_judged for a surge; NaN without a number). */
+double stress_judged_as(const struct stress *s, const struct rating *r);
+/* The ratio of s to its rating r (the figure reports sort by): worst over
+ * the rating for a voltage, stress_surge_judged over stress_surge_rated
+ * for a surge. NaN when s has no number or r no rating. */
+double stress_ratio(const struct stress *s, const struct rating *r);
+
 /* 1 when s was simulated, compared and lies within STRESS_CONFIRM_BAND
  * below its bound (or above it: see stress_gap). */
 int stress_confirmed(const struct stress *s);

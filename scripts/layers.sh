@@ -62,6 +62,7 @@ rules check
 waiver check
 check check
 simbound check
+surge check
 defects check
 report_parts reports
 report_topo reports

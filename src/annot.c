@@ -20,7 +20,7 @@ struct directive {
 };
 
 static const struct directive directives[] = {
-	{"part", AN_PART, 1, "v_rated kind tol i_surge i_avg trr note"},
+	{"part", AN_PART, 1, "v_rated kind tol i_surge i_avg trr note surge_width i2t"},
 	{"source", AN_SOURCE, 1, "tol min max"},
 	{"waive", AN_WAIVE, 2, "reason until"},
 	{"expect", AN_EXPECT, 1, "min max"},

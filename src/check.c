@@ -14,6 +14,7 @@
 #include "discharge.h"
 #include "num.h"
 #include "suggest.h"
+#include "surge.h"
 
 const char check_caution[] =
 	"caution: this design involves voltages above the hazard level. Stored charge "
@@ -99,7 +100,8 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 	size_t cap = o->sim_max_parts ? o->sim_max_parts : 20000;
 	size_t np = nl_part_count(r->a.er.circuit);
 	if (np <= cap)
-		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);
+		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr) &&
+		       surge_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);
 	for (size_t i = 0; i < r->sr.n; i++) {
 		struct stress *s = &r->sr.s[i];
 		if (s->unproven && stress_qty_is_voltage(s->qty)) {

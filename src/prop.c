@@ -177,10 +177,13 @@ static void transformer(struct run *u, uint32_t kpart)
 			u->oom = 1;
 			return;
 		}
-		if (known(u, b[1]))
-			settle(u, b[0], form_lin(fc->ar, 1, N(u, b[1])->f, 1, ac), PH_XFMR, kpart);
-		else
-			settle(u, b[1], form_lin(fc->ar, 1, N(u, b[0])->f, -1, ac), PH_XFMR, kpart);
+		uint32_t to = known(u, b[1]) ? b[0] : b[1], from = to == b[0] ? b[1] : b[0];
+		settle(u, to, form_lin(fc->ar, 1, N(u, from)->f, to == b[0] ? 1 : -1, ac), PH_XFMR,
+		       kpart);
+		/* the primary's series resistance seen from the secondary: times
+		   the turns ratio squared (the winding resistances and a series
+		   limiter on the primary limit a secondary's surge too) */
+		N(u, to)->zs = N(u, from)->zs + n * n * (N(u, a[0])->zs + N(u, a[1])->zs);
 		return;
 	}
 }

@@ -1,6 +1,7 @@
 /* rating.c: ratings of parts, and the parts-table reader. The table is a
  * header row then one row per part or pattern; columns ref, kind, v_rated,
- * i_surge, i_avg, trr, tol, note in any order and case; others ignored.
+ * i_surge, i_avg, trr, tol, note, surge_width, i2t in any order and case;
+ * others are an error.
  * A BOM's rows (bom.h) come in below the table's, above the model's BV. */
 #include "rating.h"
 
@@ -17,9 +18,11 @@
 #include "num.h"
 #include "profile.h"
 
-enum col { COL_REF, COL_KIND, COL_V, COL_ISURGE, COL_IAVG, COL_TRR, COL_TOL, COL_NOTE, NCOLS };
+enum col { COL_REF, COL_KIND, COL_V, COL_ISURGE, COL_IAVG, COL_TRR, COL_TOL, COL_NOTE,
+	   COL_SURGE_WIDTH, COL_I2T, NCOLS };
 static const char *const col_names[NCOLS] = {"ref", "kind", "v_rated", "i_surge",
-					     "i_avg", "trr", "tol", "note"};
+					     "i_avg", "trr", "tol", "note",
+					     "surge_width", "i2t"};
 
 struct row {
 	const char *cell[NCOLS];
@@ -108,7 +111,8 @@ static int unknown_columns(struct diag_sink *d, struct diag_loc l, const char *c
 		if (map[i] < 0) {
 			l.col = starts[i];
 			diag_add(d, DIAG_ERROR, "parts", l,
-				 "unknown column '%s' (ref, kind, v_rated, i_surge, i_avg, trr, tol, note)",
+				 "unknown column '%s' (ref, kind, v_rated, i_surge, i_avg, trr, tol, note, "
+				 "surge_width, i2t)",
 				 cells[i]);
 			ok = 0;
 		}
@@ -290,6 +294,11 @@ static void set_field(struct rating_field *f, const char *text, int pct,
 			 "%s '%s': write a tolerance with %% (10%%) or as a fraction below 1", what, text);
 		return;
 	}
+	if (v == 0 && strcmp(what, "surge_width") == 0) {
+		diag_add(src->d, DIAG_ERROR, "rating", src->loc,
+			 "surge_width '%s': a surge rating's pulse lasts longer than 0 s", text);
+		return;
+	}
 	f->value = v;
 	f->from = src->from;
 }
@@ -355,6 +364,12 @@ static void from_row(struct rating *r, const struct nl_part *p,
 	cell_loc(t, row, COL_TOL, &src->loc);
 	src->loc.file = src->table_file;
 	set_field(&r->tol, row->cell[COL_TOL], 1, src, "tol");
+	cell_loc(t, row, COL_SURGE_WIDTH, &src->loc);
+	src->loc.file = src->table_file;
+	set_field(&r->surge_width, row->cell[COL_SURGE_WIDTH], 0, src, "surge_width");
+	cell_loc(t, row, COL_I2T, &src->loc);
+	src->loc.file = src->table_file;
+	set_field(&r->i2t, row->cell[COL_I2T], 0, src, "i2t");
 	cell_loc(t, row, COL_KIND, &src->loc);
 	src->loc.file = src->table_file;
 	set_kind(r, p, row->cell[COL_KIND], src);
@@ -383,10 +398,12 @@ static void from_bom(struct rating *r, const struct nl_part *p, const struct bom
 static void from_annot(struct rating *r, const struct nl_part *p,
 		       const struct annot *a, struct source *src)
 {
-	static const char *const keys[] = {"v_rated", "i_surge", "i_avg", "trr", "tol"};
-	struct rating_field *f[] = {&r->v_rated, &r->i_surge, &r->i_avg, &r->trr, &r->tol};
+	static const char *const keys[] = {"v_rated", "i_surge", "i_avg", "trr", "tol",
+					   "surge_width", "i2t"};
+	struct rating_field *f[] = {&r->v_rated, &r->i_surge, &r->i_avg, &r->trr, &r->tol,
+				    &r->surge_width, &r->i2t};
 	src->loc = a->loc;
-	for (int i = 0; i < 5; i++) {
+	for (int i = 0; i < 7; i++) {
 		const struct annot_kv *kv = annot_get(a, keys[i]);
 		if (kv)
 			set_field(f[i], kv->text, i == 4, src, keys[i]);
@@ -404,6 +421,7 @@ static void init(struct rating *r)
 	memset(r, 0, sizeof *r);
 	r->v_rated.value = r->i_surge.value = r->i_avg.value = NAN;
 	r->trr.value = r->tol.value = NAN;
+	r->surge_width.value = r->i2t.value = NAN;
 }
 
 struct rating *rating_resolve(const struct nl_circuit *c,

@@ -89,6 +89,42 @@ static void text_verify(FILE *out, const struct stress_verify *v)
 			     "above their steady state\n", v->powerup_periods, v->powerup_above);
 }
 
+/* The surge line: how the switch-on was simulated, or why not; then one
+ * line per simulated pulse (docs/check.md, "Power-up surge"). */
+static void text_surge(FILE *out, const struct check_file *f)
+{
+	const struct stress_surge *sg = f->stress->surge;
+	if (!sg)
+		return;
+	char per[24], span[24];
+	num_format_eng(sg->period, "s", per, sizeof per);
+	num_format_eng(sg->span, "s", span, sizeof span);
+	if (!sg->simulated) {
+		fprintf(out, "  surge not simulated: %s; the analytic bounds (peak drive over the series "
+			     "resistance) stand\n",
+			sg->why ? sg->why : "?");
+		return;
+	}
+	fprintf(out, "  surge (simulated): %u switch-on instant%s from the zero state at the high "
+		     "corner, %s each\n",
+		sg->instants, sg->instants == 1 ? " (as written)" : "s", span);
+	for (size_t i = 0; i < f->stress->n; i++) {
+		const struct stress *s = &f->stress->s[i];
+		char pk[24], w[24], an[24], at[64] = "";
+		if (s->qty != SQ_SURGE || !isfinite(s->surge_i2t))
+			continue;
+		num_format_eng(s->worst, "A", pk, sizeof pk);
+		num_format_eng(s->surge_width, "s", w, sizeof w);
+		num_format_eng(s->analytic, "A", an, sizeof an);
+		if (isfinite(s->surge_phase))
+			snprintf(at, sizeof at, ", on at %.0f deg of %s", s->surge_phase, per);
+		fprintf(out, "    %s: pulse %s peak, %s wide (half-sine), I2t %.4g A^2 s%s; analytic "
+			     "bound %s\n",
+			nl_part_at(f->a->er.circuit, s->part)->path, pk, w, s->surge_i2t,
+			at, isfinite(s->analytic) ? an : "none");
+	}
+}
+
 static void text_table(FILE *out, const struct check_file *f)
 {
 	const struct stress_result *sr = f->stress;
@@ -96,6 +132,7 @@ static void text_table(FILE *out, const struct check_file *f)
 	if (!sr)
 		return;
 	text_verify(out, sr->verify);
+	text_surge(out, f);
 	if (sr->n == 0)
 		return;
 	size_t w = 4;
@@ -121,8 +158,8 @@ static void text_table(FILE *out, const struct check_file *f)
 			num_format_eng(s->best, qty_unit(s), bv, sizeof bv);
 		if (!isnan(rated))
 			num_format_eng(rated, qty_unit(s), rv, sizeof rv);
-		if (!isnan(rated) && s->bounded && isfinite(s->worst))
-			snprintf(ratio, sizeof ratio, "%.0f%%", 100 * s->worst / rated);
+		if (isfinite(stress_ratio(s, r)))
+			snprintf(ratio, sizeof ratio, "%.0f%%", 100 * stress_ratio(s, r));
 		char sv[24] = "-";
 		if (isfinite(s->sim_worst))
 			num_format_eng(s->sim_worst, qty_unit(s), sv, sizeof sv);
@@ -210,6 +247,23 @@ static void jstr(FILE *out, const char *s)
 		fputs("null", out);
 }
 
+/* A surge's pulse and the rating's (docs/check.md, "Power-up surge"). */
+static void json_surge(FILE *out, const struct stress *s, const struct rating *r)
+{
+	fputs(", \"surge_i2t\": ", out);
+	jnum(out, s->surge_i2t);
+	fputs(", \"surge_width\": ", out);
+	jnum(out, s->surge_width);
+	fputs(", \"surge_phase\": ", out);
+	jnum(out, s->surge_phase);
+	fputs(", \"surge_judged\": ", out);
+	jnum(out, stress_surge_judged(s, r));
+	fputs(", \"rating_surge_width\": ", out);
+	jnum(out, stress_surge_width(r));
+	fputs(", \"rating_i2t\": ", out);
+	jnum(out, stress_surge_rated_i2t(r));
+}
+
 static void json_stress(FILE *out, const struct check_file *f,
 			const struct stress *s)
 {
@@ -242,10 +296,11 @@ static void json_stress(FILE *out, const struct check_file *f,
 	fputs(", \"rating_from\": ", out);
 	jstr(out, rf->from);
 	fputs(", \"ratio\": ", out);
-	jnum(out, s->bounded && !isnan(rf->value) ? s->worst / rf->value : NAN);
+	jnum(out, stress_ratio(s, r));
 	if (!stress_qty_is_voltage(s->qty)) {
 		fputs(", \"series_r\": ", out);
 		jnum(out, s->series_r);
+		json_surge(out, s, r);
 	}
 	if (p->kind == NL_C && s->bounded) {
 		fputs(", \"energy\": ", out);
@@ -329,6 +384,17 @@ static void json_file(FILE *out, const struct check_file *f, const struct profil
 		jstr(out, fb->why);
 		fputc('}', out);
 	}
+	const struct stress_surge *sg = f->a->analysed ? f->stress->surge : NULL;
+	if (sg) {
+		fprintf(out, ",\n      \"surge_simulation\": {\"simulated\": %s, \"why\": ",
+			sg->simulated ? "true" : "false");
+		jstr(out, sg->why);
+		fprintf(out, ", \"runs\": %u, \"instants\": %u, \"period\": ", sg->runs, sg->instants);
+		jnum(out, sg->period);
+		fputs(", \"span\": ", out);
+		jnum(out, sg->span);
+		fputc('}', out);
+	}
 	fputs(",\n      \"stresses\": [", out);
 	size_t n = f->a->analysed ? f->stress->n : 0;
 	for (size_t i = 0; i < n; i++) {
@@ -410,14 +476,14 @@ static void top_file(struct check_totals *t, const struct check_file *f)
 	for (size_t i = 0; i < f->stress->n; i++) {
 		const struct stress *s = &f->stress->s[i];
 		const struct rating *r = &f->ratings[s->part];
-		double rated = stress_rating(r, s->qty)->value;
-		if (!s->bounded || !(rated > 0))
+		double ratio = stress_ratio(s, r);
+		if (!s->bounded || !isfinite(ratio))
 			continue;
 		struct totals_part x;
 		snprintf(x.file, sizeof x.file, "%s", f->path);
 		snprintf(x.part, sizeof x.part, "%s", nl_part_at(f->a->er.circuit, s->part)->path);
 		x.qty = stress_qty_name(s->qty);
-		x.ratio = s->worst / rated;
+		x.ratio = ratio;
 		top_add(t, &x);
 	}
 }

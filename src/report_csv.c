@@ -57,13 +57,14 @@ double report_limit(const struct check_file *f, const struct profile *p,
 	const struct rating *r = &f->ratings[s->part];
 	const char *cls = pt->kind == NL_D ? "diode" : "cap";
 	double factor = profile_kind(p, cls, r->kind, stress_qty_derating(s->qty), NULL);
-	double rated = stress_rating(r, s->qty)->value;
+	double rated = stress_rated(r, s->qty);
 	return rated * (isnan(factor) ? 1 : factor);
 }
 
-#define CSV_HEADER                                                                   \
-	"file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"     \
-	"rating,rating_from,limit,ratio,margin,basis,unproven,profile,profile_status,"     \
+#define CSV_HEADER                                                                 \
+	"file,part,element,kind,structure,role,quantity,worst,best,unit,corner,"   \
+	"rating,rating_from,limit,ratio,margin,surge_i2t,surge_width,surge_phase," \
+	"basis,unproven,profile,profile_status,"                                   \
 	"record,line,col,code,message\n"
 
 static void num(FILE *out, double v)
@@ -110,9 +111,15 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	fputc(',', out);
 	num(out, limit);
 	fputc(',', out);
-	num(out, worst / rf->value);
+	num(out, stress_ratio(s, r));
 	fputc(',', out);
-	num(out, limit - worst);
+	num(out, limit - (s->qty == SQ_SURGE ? stress_surge_judged(s, r) : worst));
+	fputc(',', out);
+	num(out, s->surge_i2t);
+	fputc(',', out);
+	num(out, s->surge_width);
+	fputc(',', out);
+	num(out, s->surge_phase);
 	fprintf(out, ",%s,", stress_basis_name(s->basis));
 	report_csv_field(out, s->unproven ? s->unproven : "");
 	profile_cols(out, p);
@@ -125,7 +132,7 @@ static void other_row(FILE *out, const struct profile *p, const char *file, cons
 		      uint32_t line, uint32_t col, const char *code, const char *message)
 {
 	report_csv_field(out, file);
-	fputs(",,,,,,,,,,,,,,,,,", out);
+	fputs(",,,,,,,,,,,,,,,,,,,,", out);
 	profile_cols(out, p);
 	fprintf(out, ",%s,", record);
 	if (line)
@@ -153,7 +160,7 @@ static void caution_row(FILE *out, const struct check_file *f, const struct prof
 	num(out, f->stress->max_voltage);
 	fputs(",,V,,,,", out);
 	num(out, profile_hazard(p));
-	fputs(",,,,", out);
+	fputs(",,,,,,,", out);
 	profile_cols(out, p);
 	fputs(",caution,,,,\n", out);
 }

@@ -472,10 +472,11 @@ static void stress_row(FILE *out, const struct check_file *f, const struct profi
 {
 	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
 	const struct rating *r = &f->ratings[s->part];
-	double rated = stress_rating(r, s->qty)->value;
+	double rated = stress_rated(r, s->qty);
 	double worst = s->bounded ? s->worst : NAN, limit = report_limit(f, p, s);
 	const char *unit = stress_qty_unit(s->qty);
-	enum over ov = over_of(worst, rated, limit);
+	/* a simulated surge is judged by its I2t (stress.h), the rest by the bound */
+	enum over ov = over_of(s->qty == SQ_SURGE ? stress_surge_judged(s, r) : worst, rated, limit);
 	fputs(ov != OV_NONE ? "<tr class=\"over\" data-part=\"" : "<tr data-part=\"", out);
 	x(out, pt->path);
 	fprintf(out, "\" data-qty=\"%s\"><td>", qty_names[s->qty].id);
@@ -489,12 +490,20 @@ static void stress_row(FILE *out, const struct check_file *f, const struct profi
 		fprintf(out, "</td><td>S%d</td>", s->structure + 1);
 	else
 		fputs("</td><td>-</td>", out);
-	fprintf(out, "<td>%s</td>", qty_names[s->qty].shown);
+	fprintf(out, "<td>%s", qty_names[s->qty].shown);
+	if (isfinite(s->surge_i2t)) {
+		char w[24];
+		num_format_eng(s->surge_width, "s", w, sizeof w);
+		fprintf(out, "<br><span class=\"small\">pulse I2t %.4g A^2 s, %s wide (half-sine)</span>",
+			s->surge_i2t, w);
+	}
+	fputs("</td>", out);
 	num_cell(out, worst, unit);
 	num_cell(out, rated, unit);
 	num_cell(out, limit, unit);
-	if (isfinite(worst / rated))
-		fprintf(out, "<td class=\"num\" data-v=\"%.10g\">%.0f%%</td>", worst / rated, 100 * worst / rated);
+	double ratio = stress_ratio(s, r);
+	if (isfinite(ratio))
+		fprintf(out, "<td class=\"num\" data-v=\"%.10g\">%.0f%%</td>", ratio, 100 * ratio);
 	else
 		fputs("<td class=\"num\">-</td>", out);
 	fprintf(out, "<td>%s</td><td%s>%s</td></tr>\n", stress_basis_name(s->basis),

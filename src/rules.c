@@ -183,6 +183,32 @@ static const char *simulation(struct ctx *x, const struct stress *s)
 			 100 * (1 - s->sim_worst / s->worst)));
 }
 
+/* I^2 t without a prefix: "3.772 A^2 s" (a "mA2s" would read as mA squared) */
+static const char *i2t_text(struct ctx *x, double i2t)
+{
+	return str(x, "%.4g A^2 s", i2t);
+}
+
+/* The analytic bound, and the simulated pulse with how it is judged. */
+static const char *surge_computation(struct ctx *x, const struct stress *s)
+{
+	const char *bound = isfinite(s->analytic) && s->series_r > 0
+				    ? str(x, "analytic bound = peak drive %s / series %s = %s",
+					  v(x, s->analytic * s->series_r, "V"), v(x, s->series_r, "ohm"), v(x, s->analytic, "A"))
+				    : "no analytic bound";
+	if (!isfinite(s->surge_i2t))
+		return str(x, "%s: power-up surge: %s (%s)", where(x, s), bound, s->corner);
+	const struct rating *r = &x->r[s->part];
+	double t = stress_surge_width(r);
+	return str(x, "%s: %s: forward pulse peak %s, I2t = integral of i^2 over the pulse = %s, "
+		      "equivalent half-sine width 2 I2t / peak^2 = %s; as a half-sine of the rating's "
+		      "%s with the same I2t: sqrt(2 I2t / %s) = %s (I2t scaling: common practice, no "
+		      "source); %s",
+		   where(x, s), s->corner, v(x, s->worst, "A"), i2t_text(x, s->surge_i2t),
+		   v(x, s->surge_width, "s"), v(x, t, "s"), v(x, t, "s"),
+		   v(x, stress_surge_judged(s, r), "A"), bound);
+}
+
 static const char *computation(struct ctx *x, const struct stress *s)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
@@ -190,8 +216,7 @@ static const char *computation(struct ctx *x, const struct stress *s)
 	const uint32_t *q = nl_pins(c, p);
 	const char *n0 = nl_node_at(c, q[0])->name, *n1 = nl_node_at(c, q[1])->name;
 	if (s->qty == SQ_SURGE)
-		return str(x, "%s: power-up surge = peak drive %s / series %s (%s)", where(x, s),
-			   v(x, s->worst * s->series_r, "V"), v(x, s->series_r, "ohm"), s->corner);
+		return surge_computation(x, s);
 	const char *simulated = simulation(x, s);
 	if (s->basis == SB_SIMULATED)
 		simulated = str(x, "%s; simulated, not proven: %s", simulated, s->unproven);
@@ -493,6 +518,29 @@ static void recovery(struct ctx *x, const struct stress *s)
 	f->fix = "use a faster diode (fast-recovery or Schottky) or a lower drive frequency";
 }
 
+/* "a pulse of 51.41 A peak, 2.855 ms wide (equivalent half-sine), I2t
+ * 3.772 A2s", or for the bound "108.5 A (analytic bound; ...)". */
+static const char *surge_pulse(struct ctx *x, const struct stress *s)
+{
+	if (!isfinite(s->surge_i2t))
+		return str(x, "%s (analytic bound, its width not known: judged as if it lasted the "
+			      "rating's whole pulse)",
+			   v(x, s->worst, "A"));
+	return str(x, "a pulse of %s peak, %s wide (equivalent half-sine), I2t %s (simulated)",
+		   v(x, s->worst, "A"), v(x, s->surge_width, "s"), i2t_text(x, s->surge_i2t));
+}
+
+/* "30 A for a half-sine of 8.3 ms (I2t 3.735 A^2 s)" */
+static const char *surge_rating(struct ctx *x, const struct rating *r)
+{
+	double t = stress_surge_width(r), i2t = stress_surge_rated_i2t(r);
+	if (isnan(r->i_surge.value))
+		return str(x, "I2t %s (a half-sine of %s peaking at %s)", i2t_text(x, i2t), v(x, t, "s"),
+			   v(x, stress_surge_rated(r), "A"));
+	return str(x, "%s for a half-sine of %s (I2t %s%s)", v(x, r->i_surge.value, "A"), v(x, t, "s"),
+		   i2t_text(x, i2t), r->i2t.value <= i2t ? ", its own I2t rating" : "");
+}
+
 static void surge_rules(struct ctx *x, const struct stress *s)
 {
 	const struct rating *r = &x->r[s->part];
@@ -503,16 +551,24 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 			f->unit = "A";
 			f->message = str(x, "the power-up surge through %s has no worst case (%s)",
 					 f->subject, where(x, s));
-			f->computation = str(x, "not proven: %s", s->unproven ? s->unproven
-				: "the surge is the peak drive over the series resistance, known only where the "
-				  "analysis settles the structure's nodes; the solver does not simulate it");
+			const struct stress_surge *sg = x->s->surge;
+			const char *why = s->unproven ? s->unproven
+							: "the analytic surge is the peak drive over the series "
+							  "resistance, known only where the analysis settles the "
+							  "structure's nodes";
+			f->computation = str(x, "not proven: %s; not simulated: %s", why,
+					     sg && sg->why ? sg->why : "the solver gave this diode no current");
 			f->fix = "simulate the switch-on at the highest input with the source's real "
 				 "impedance and compare the peak current with the diode's surge rating, or "
 				 "waive this finding with the reason";
 		}
 		return;
 	}
-	if (s->series_r <= 0) {
+	/* the analysis settled the path and found no resistance in it: a
+	   simulated figure then depends on little more than the diode model's
+	   exponential, so none is judged (where the analysis did not settle
+	   the path, analytic is NaN and the simulated pulse is judged) */
+	if (s->series_r <= 0 && !isnan(s->analytic)) {
 		struct finding *f = add(x, RULE_SURGE_UNBOUNDED, s->part, s->structure);
 		if (!f)
 			return;
@@ -525,28 +581,34 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 	}
 	const char *note, *key;
 	double factor = profile_kind_key(x->p, "diode", r->kind, "surge", &note, &key);
-	if (isnan(r->i_surge.value) || isnan(factor) || !(s->worst > r->i_surge.value * factor))
+	double judged = stress_surge_judged(s, r), rated = stress_surge_rated(r);
+	if (isnan(rated) || isnan(factor) || !(judged > rated * factor))
 		return;
 	/* above the rating itself the part is over-stressed (an error); between
 	   the profile's share and the rating it only lacks margin (a warning) */
-	int over = s->worst > r->i_surge.value;
+	int over = judged > rated;
 	struct finding *f = add(x, over ? RULE_SURGE_EXCESS : RULE_SURGE_DERATING, s->part, s->structure);
 	if (!f)
 		return;
-	f->worst = s->worst;
-	f->rating = r->i_surge.value;
-	f->limit = r->i_surge.value * factor;
+	f->worst = judged;
+	f->rating = rated;
+	f->limit = rated * factor;
 	f->unit = "A";
-	f->message = over ? str(x, "power-up surge through %s is %s, above its %s surge rating (%.0f%% of it)",
-				f->subject, v(x, s->worst, "A"), v(x, r->i_surge.value, "A"),
-				100 * s->worst / r->i_surge.value)
-			  : str(x, "power-up surge through %s is %s, above %.0f%% of its %s surge rating",
-				f->subject, v(x, s->worst, "A"), factor * 100, v(x, r->i_surge.value, "A"));
+	f->message = str(x, "power-up surge through %s: %s, %s its surge rating of %s (%.0f%% of it%s)",
+			 f->subject, surge_pulse(x, s), over ? "above" : str(x, "above %.0f%% of", factor * 100),
+			 surge_rating(x, r), 100 * judged / rated,
+			 isfinite(s->surge_i2t) ? ", by I2t" : "");
 	f->computation = computation(x, s);
-	f->limits = str(x, "i_surge %s (%s); limit %s (profile %s, %s)", v(x, r->i_surge.value, "A"),
-			r->i_surge.from, v(x, f->limit, "A"), x->p->name, key);
-	f->fix = str(x, "raise the series resistance to at least %s, or use a diode with a higher surge rating",
-		     v(x, s->worst * s->series_r / f->limit, "ohm"));
+	f->limits = str(x, "surge rating %s (%s); limit %s (profile %s, %s)", surge_rating(x, r),
+			r->i_surge.from ? r->i_surge.from : r->i2t.from, v(x, f->limit, "A"), x->p->name, key);
+	f->fix = isfinite(s->surge_i2t)
+			 ? str(x, "add series resistance or an inrush limiter (the pulse's I2t falls as the "
+				  "resistance in its path rises), or use a diode whose surge rating is at least %s "
+				  "for %s",
+			       v(x, judged / factor, "A"), v(x, stress_surge_width(r), "s"))
+			 : str(x, "raise the series resistance to at least %s, or use a diode with a higher surge "
+				  "rating; or let the solver run the circuit (the pulse's width then counts)",
+			       v(x, s->worst * s->series_r / f->limit, "ohm"));
 }
 
 /* A diode driven into reverse breakdown on purpose: a zener (by kind), or

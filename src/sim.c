@@ -478,7 +478,9 @@ static double next_corner(const struct sim *s)
 	double t = INFINITY;
 	for (size_t i = 0; i < s->ndev; i++)
 		if (s->dev[i].src)
-			t = fmin(t, simsrc_next_corner(s->dev[i].src, &s->span, s->t));
+			t = fmin(t, simsrc_next_corner(s->dev[i].src, &s->span,
+						       s->t + s->o.t_shift) -
+					    s->o.t_shift);
 	return t;
 }
 
@@ -512,7 +514,7 @@ static enum sim_status step(struct sim *s, double t_end)
 			h = corner - s->t;
 		int be = s->after_corner || s->nhist < 1;
 		struct simdev_step st = {s->t + h, be ? 1 / h : 2 / h, be ? 0 : 1,
-					 &s->span, 1e-12, 0, 0, 0, 0};
+					 &s->span, 1e-12, 0, 0, 0, 0, s->t + h + s->o.t_shift};
 		bdf2(s, h, be, &st);
 		enum sim_status r = newton(s, &st);
 		double allowed = r == SIM_OK && s->nhist >= 3 && !be ? lte_step(s, h) : 2 * h;
@@ -554,6 +556,17 @@ enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud)
 			return SIM_OK;
 	}
 	return SIM_OK;
+}
+
+long sim_diode_handle(const struct sim *s, uint32_t part)
+{
+	long k = device_of(s, part);
+	return k >= 0 && s->dev[k].kind == SD_D ? k : -1;
+}
+
+double sim_diode_current(const struct sim *s, long k)
+{
+	return simdev_diode_current(&s->dev[k], s->x);
 }
 
 double sim_period(const struct sim *s)

@@ -117,7 +117,7 @@ static double source_at(const struct simdev *d, const struct simdev_step *st)
 {
 	if (!d->src)
 		return 0;
-	double v = simsrc_value(d->src, st->span, st->t);
+	double v = simsrc_value(d->src, st->span, st->t_src);
 	return d->dc_v + (v - d->mean) * d->ac_k;
 }
 
@@ -217,8 +217,15 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 	double i = id + st->gmin * v + ic;
 	stamp_g(m, d->h, g);
 	stamp_i(m, d->p, d->b, i - g * v);
+	d->ieq = i - g * v;
+	d->geq = g;
 	if (d->p != d->a)
 		stamp_g(m, d->h + 4, 1 / dm->rs);
+}
+
+double simdev_diode_current(const struct simdev *d, const double *x)
+{
+	return d->ieq + d->geq * (at(x, d->p) - at(x, d->b));
 }
 
 /* ---- the rest ---- */

@@ -39,6 +39,8 @@ struct simdev {
 	double q0, f0, q, f;
 	double vd;            /* diode: junction voltage of the linearisation */
 	double cj;            /* diode: its charge's derivative there (F) */
+	double ieq, geq;      /* diode: its last stamp, the current ieq + geq v
+				 at junction voltage v (A, S) */
 	double qh[3], th[3];  /* charge history for the error estimate */
 };
 
@@ -53,6 +55,8 @@ struct simdev_step {
 	   (variable step); gear 0 means backward Euler for them this step */
 	int gear;
 	double ga, g1, g2;
+	double t_src; /* time the sources are evaluated at: t plus the
+				 run's switch-on shift (sim_opts.t_shift) */
 };
 
 /* Registers the matrix positions of d. Returns 0 on out-of-memory. */
@@ -67,6 +71,14 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
  * (a diode's are those of its last stamp, at the converged iterate). */
 void simdev_update(struct simdev *d, const struct simdev_step *st,
 		   const double *x);
+
+/* A diode's current (anode to cathode) at iterate x, as its last stamp
+ * has it: the junction's static current plus its charge current,
+ * linearised where the stamp was made. At a converged point this is the
+ * current the circuit's equations balance (the junction voltage may lie a
+ * solver tolerance away from the linearisation point, where the
+ * exponential alone would be far off). */
+double simdev_diode_current(const struct simdev *d, const double *x);
 
 /* Fills the derived diode parameters. */
 void simdev_diode_init(struct simdev_diode *m);

@@ -52,6 +52,7 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 	so->gshunt = o->gshunt;
 	so->max_work = o->max_work;
 	so->ideal_diodes = o->ideal_diodes;
+	so->t_shift = o->t_shift;
 }
 
 /* Creates the solver and, for the steady state, runs to it. */
@@ -230,6 +231,105 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 		if (o->cap_end)
 			cap_voltages(c, s, o->cap_end);
 	}
+	finish(s, r);
+}
+
+/* ---- power-up surge ---- */
+
+struct surge_track {
+	const struct sim *s;
+	long *dev; /* solver handle per diode, -1: none */
+	size_t n;
+	struct simrun_pulse *best, *cur;
+	double *iprev, tprev;
+};
+
+/* The pulse in cur ends: it is kept when its I^2 t tops the best. */
+static void pulse_end(struct simrun_pulse *cur, struct simrun_pulse *best, double t)
+{
+	cur->t_end = t;
+	if (cur->i2t > best->i2t)
+		*best = *cur;
+	memset(cur, 0, sizeof *cur);
+}
+
+/* One diode at a new point: the segment from the last point is integrated
+ * by the trapezoidal rule on i^2 (clipped at 0: reverse current is no
+ * surge). */
+static void pulse_step(struct surge_track *u, size_t k, double t, double i)
+{
+	struct simrun_pulse *cur = &u->cur[k];
+	double a = fmax(u->iprev[k], 0), b = fmax(i, 0);
+	u->iprev[k] = i;
+	if (cur->peak_a > 0 && (i <= 0 || i < SIMRUN_PULSE_END * cur->peak_a)) {
+		cur->i2t += (a * a + b * b) / 2 * (t - u->tprev);
+		pulse_end(cur, &u->best[k], t);
+		return;
+	}
+	if (!(i > 0))
+		return;
+	if (cur->peak_a == 0)
+		cur->t_start = u->tprev;
+	cur->i2t += (a * a + b * b) / 2 * (t - u->tprev);
+	if (i > cur->peak_a) {
+		cur->peak_a = i;
+		cur->t_peak = t;
+	}
+}
+
+static int surge_point(void *ud, double t, const double *v)
+{
+	struct surge_track *u = ud;
+	(void)v;
+	for (size_t k = 0; k < u->n; k++)
+		if (u->dev[k] >= 0)
+			pulse_step(u, k, t, sim_diode_current(u->s, u->dev[k]));
+	u->tprev = t;
+	return 0;
+}
+
+static void surge_run(struct sim *s, double span, const uint32_t *parts, struct surge_track *u,
+		      struct simrun_result *r)
+{
+	long *dev = u->dev;
+	for (size_t k = 0; k < u->n; k++) {
+		dev[k] = sim_diode_handle(s, parts[k]);
+		memset(&u->best[k], 0, sizeof u->best[k]);
+		memset(&u->cur[k], 0, sizeof u->cur[k]);
+		u->iprev[k] = 0;
+	}
+	u->s = s;
+	r->status = sim_run(s, span, surge_point, u);
+	for (size_t k = 0; k < u->n; k++) {
+		if (u->cur[k].peak_a > 0)
+			pulse_end(&u->cur[k], &u->best[k], sim_time(s));
+		if (dev[k] < 0)
+			u->best[k].peak_a = u->best[k].i2t = NAN;
+	}
+}
+
+void simrun_surge(const struct nl_circuit *c, const struct simrun_opts *o, double span,
+		  const uint32_t *parts, size_t n, const struct hr_alloc *h,
+		  struct simrun_pulse *pulse, struct simrun_result *r)
+{
+	struct simrun_opts zero = *o;
+	struct sim_opts so;
+	struct sim *s = NULL;
+	zero.cap_v0 = NULL;
+	memset(r, 0, sizeof *r);
+	opts_of(&zero, span, &so);
+	long *dev = hr_malloc(h, (n + 1) * sizeof *dev);
+	double *iprev = hr_malloc(h, (n + 1) * sizeof *iprev);
+	struct simrun_pulse *cur = hr_malloc(h, (n + 1) * sizeof *cur);
+	r->status = dev && iprev && cur ? sim_create(c, &so, h, &s, &r->refusal) : SIM_OOM;
+	if (r->status == SIM_OK) {
+		struct surge_track u = {s, dev, n, pulse, cur, iprev, 0};
+		r->period = sim_period(s);
+		surge_run(s, span, parts, &u, r);
+	}
+	hr_free(h, dev);
+	hr_free(h, iprev);
+	hr_free(h, cur);
 	finish(s, r);
 }
 

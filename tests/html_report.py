@@ -250,6 +250,11 @@ def one_row(name, row, s, limit):
               f"'{td[col].text_all()}' {value}")
     check(f"{name} {s['part']}: basis", td[7].text_all() == s["basis"], td[7].text_all())
     w, r = s["worst"], s["rating"]
+    if s["quantity"] == "surge_current" and w is not None:
+        # a surge is judged by its I2t: the half-sine of the rating's width
+        # with the pulse's I2t against the rating's own (docs/check.md)
+        w = s["surge_judged"]
+        r = (2 * s["rating_i2t"] / s["rating_surge_width"]) ** 0.5 if s["rating_i2t"] is not None else None
     verdict = ("no number" if w is None else "no rating" if r is None else "over rating" if w > r
                else "over limit" if limit is not None and w > limit else "within limit")
     check(f"{name} {s['part']}: verdict '{verdict}' in words", td[8].text_all() == verdict,

@@ -33,7 +33,30 @@ runs = [
      "--waivers", os.path.join(HERE, "data", "inputs", "unused.waivers"),
      os.path.join(HERE, "data", "inputs", "batch", "probe_clamp.cir")],
     [os.path.join(HERE, "data", "files")],
+    ["--source-tol", "10", os.path.join(HERE, "data", "powerup", "xfmr_fullwave_doubler.cir")],
 ]
+
+
+def surges_agree(doc):
+    """Each simulated surge's figures agree: width 2 I2t / peak^2, the
+    judged current the half-sine of the rating's width with the pulse's I2t,
+    and the ratio that over the rating's own half-sine peak. Returns how
+    many were simulated."""
+    n = 0
+    for f in doc["files"]:
+        for s in f.get("stresses", []):
+            if s["quantity"] != "surge_current" or s.get("surge_i2t") is None:
+                continue
+            n += 1
+            i2t, pk, tw = s["surge_i2t"], s["worst"], s["rating_surge_width"]
+            if pk > 0 and abs(s["surge_width"] - 2 * i2t / pk ** 2) > 1e-6 * s["surge_width"]:
+                raise ValueError("%s: surge_width is not 2 I2t / peak^2" % s["part"])
+            if abs(s["surge_judged"] - (2 * i2t / tw) ** 0.5) > 1e-6 * max(s["surge_judged"], 1e-12):
+                raise ValueError("%s: surge_judged is not sqrt(2 I2t / width)" % s["part"])
+            if s["rating_i2t"] is not None and s["ratio"] is not None and \
+                    abs(s["ratio"] - (i2t / s["rating_i2t"]) ** 0.5) > 1e-6 * max(s["ratio"], 1e-12):
+                raise ValueError("%s: the ratio is not sqrt(I2t / rated I2t)" % s["part"])
+    return n
 
 
 def summary_agrees(doc):
@@ -88,9 +111,10 @@ for args in runs:
         doc = json.loads(r.stdout)
         jsonschema.validate(doc, schema)
         summary_agrees(doc)
-        print("report-schema: %s: valid (%d files, %d findings)" % (
+        nsurge = surges_agree(doc)
+        print("report-schema: %s: valid (%d files, %d findings, %d simulated surges)" % (
             " ".join(os.path.relpath(a, ROOT) if os.path.isabs(a) else a for a in args),
-            len(doc["files"]), sum(len(f["findings"]) for f in doc["files"])))
+            len(doc["files"]), sum(len(f["findings"]) for f in doc["files"]), nsurge))
         passed += 1
     except (ValueError, jsonschema.ValidationError) as e:
         print("report-schema: FAIL %s: %s" % (args, str(e)[:400]))
