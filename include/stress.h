@@ -38,10 +38,12 @@ enum stress_basis {
 	SB_ANALYSIS,   /* the analysis proves it (docs/check.md) */
 	SB_SIMULATED,  /* the solver at the worst corners: simulated, not proven */
 	SB_NONE,       /* neither: no number */
+	SB_ESTIMATE,   /* a formula's figure, not proven: the power-up surge where
+			  the solver cannot run (Vpeak over the series resistance) */
 	SB_COUNT
 };
 
-/* Display names: "proven", "simulated", "none" [stress-basis]. */
+/* Display names: "proven", "simulated", "none", "estimate" [stress-basis]. */
 const char *stress_basis_name(enum stress_basis b);
 
 /* How a capacitor's charge drains once the circuit is off [stress-drain]. */

@@ -142,7 +142,7 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 	s->analytic = s->worst;
 }
 
-static const char *const basis_names[SB_COUNT] = {"proven", "simulated", "none"};
+static const char *const basis_names[SB_COUNT] = {"proven", "simulated", "none", "estimate"};
 
 /* [stress-qty] */
 static const struct {
@@ -587,7 +587,13 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 		if (first_stage_diode(&x, i)) {
 			struct stress sg;
 			surge(&x, (size_t)s.structure, i, &sg);
-			sg.basis = sg.bounded ? SB_ANALYSIS : SB_NONE;
+			/* the first pulse with the capacitors discharged: a later one can
+			   be larger (a pump's clock, a resonance, a reversed charge) */
+			sg.basis = sg.bounded ? SB_ESTIMATE : SB_NONE;
+			sg.unproven = sg.bounded ? "first-pulse formula, not simulated: the peak source "
+						   "voltage over the series resistance with the capacitors "
+						   "discharged; a later pulse can be larger"
+						 : NULL;
 			sg.analytic = sg.bounded ? sg.worst : NAN;
 			if (!push(&x, out, &cap, &sg))
 				return 0;

@@ -773,5 +773,12 @@ cp "$data/tantalum_hot.cir" "$tmp/amb/"
 inproj "$tmp/amb" check tantalum_hot.cir
 check "ambient: the config key gives the same limit" grep -q "(limit 42%) \[cap-derating\]" "$tmp/out"
 
+# A surge the solver cannot simulate (a transistor beside the rectifier) keeps
+# the first-pulse formula, labelled an estimate, not proven.
+run check --fail-on never "$data/surge_estimate.cir"
+check "surge: the formula's figure is an estimate" grep -q "^  D1 .* surge_current .* 11 A .* estimate" "$tmp/out"
+run check --format json --fail-on never "$data/surge_estimate.cir"
+check "surge: JSON basis estimate with its reason" bash -c "grep -q '\"basis\": \"estimate\", \"unproven\": \"first-pulse formula, not simulated' '$tmp/out'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
