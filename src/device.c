@@ -177,25 +177,50 @@ static enum dev_status rcl_value(struct build *b, const struct deck_field *f)
 	return st == DEV_STATE ? behavioural(b) : st;
 }
 
-/* A word where R, C or L take a value or a model: "R47" is ngspice's
- * letter code for 0.47 unless a model has that name (docs/netlist.md,
- * "Dialects"); models may be defined after their use, so the top-level
- * first pass waits for the whole file. */
+/* The value of a parameter named by word f, read quietly: 0 when f is
+ * not a plain name or names no parameter. */
+static int param_value(struct build *b, const struct deck_field *f, double *v)
+{
+	for (uint32_t i = 0; i < f->len; i++) {
+		char ch = (char)(f->text[i] | 32);
+		if (!(f->text[i] == '_' || (ch >= 'a' && ch <= 'z') ||
+		      (i > 0 && f->text[i] >= '0' && f->text[i] <= '9')))
+			return 0;
+	}
+	int oom = 0;
+	struct expr_error err = {0};
+	const struct expr *e = b->s->atom_expr ? b->s->atom_expr(b->s->ud, f, &oom) : NULL;
+	return e && b->s->eval(b->s->ud, e, v, &err) == EXPR_OK;
+}
+
+/* A word where R, C or L take a value or a model (docs/netlist.md,
+ * "Dialects"): a model of that name first; else, but in ngspice's
+ * reading, a parameter of that name (T-SPICE and HSPICE decks write
+ * "R1 a b rval"); else ngspice's letter code ("R47" = 0.47). Models may be
+ * defined after their use, so the top-level first pass waits for the whole
+ * file when the word could be read another way. */
 static enum dev_status model_or_code(struct build *b, const struct deck_field *f, int *have)
 {
 	enum dev_status st = DEV_OK;
-	double v;
-	if (!dialect_letter_first_codes(b->s->dialect) || !num_letter_first(f->text, f->len, &v)) {
+	double code = 0, pv = 0;
+	int is_code = dialect_letter_first_codes(b->s->dialect) &&
+		      num_letter_first(f->text, f->len, &code);
+	int params = b->s->dialect != DIALECT_NGSPICE;
+	if (b->s->defer_undefined && (is_code || params))
+		return DEV_DEFER; /* a parameter may also be defined later */
+	if (b->s->defer_undefined || (!is_code && !params)) {
 		b->part.model = need_model(b, f, &st);
 		return st;
 	}
-	if (b->s->defer_undefined)
-		return DEV_DEFER;
 	if ((b->part.model = b->s->model(b->s->ud, f)) != NULL)
 		return DEV_OK;
-	b->part.value = v;
-	*have = 1;
-	return DEV_OK;
+	if ((params && param_value(b, f, &pv)) || is_code) {
+		b->part.value = params && param_value(b, f, &pv) ? pv : code;
+		*have = 1;
+		return DEV_OK;
+	}
+	b->part.model = need_model(b, f, &st);
+	return st;
 }
 
 /* R, C, L: two nodes, then a value (positional or r=/c=/l=) and/or a model. */

@@ -49,6 +49,7 @@ struct scope {
 	struct smap *pending;        /* .param assignments that named a
 					parameter not yet defined (struct
 					pending_param), or NULL */
+	struct pending_param *pfirst, *plast; /* the same, in file order */
 };
 
 /* A parameter's value: a number, or what stands in for one that is not. */

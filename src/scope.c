@@ -75,6 +75,7 @@ struct pending_param {
 	uint32_t field;
 	struct scope *sc;
 	int state; /* 0 waiting, 1 being resolved, 2 settled */
+	struct pending_param *next;
 };
 
 static enum expr_status param_assign(struct elab *el, struct scope *sc,
@@ -439,10 +440,15 @@ static void add_pending(struct elab *el, struct scope *sc, const struct deck_car
 		el->oom = 1;
 		return;
 	}
-	*p = (struct pending_param){*c, i, sc, 0};
+	*p = (struct pending_param){*c, i, sc, 0, NULL};
 	const struct deck_field *f = &(*c)->fields[i];
 	if (!smap_put(sc->pending, f->text, f->len, p))
 		el->oom = 1;
+	if (sc->plast)
+		sc->plast->next = p;
+	else
+		sc->pfirst = p;
+	sc->plast = p;
 }
 
 void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c)
@@ -459,10 +465,7 @@ void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c)
 
 void scope_settle(struct elab *el, struct scope *sc)
 {
-	size_t pos = 0;
-	void *v;
-	while (sc->pending && smap_next(sc->pending, &pos, &v)) {
-		struct pending_param *p = v;
+	for (struct pending_param *p = sc->pfirst; p; p = p->next) {
 		const struct deck_field *f = &p->card->fields[p->field];
 		resolve_pending(el, sc, f->text, f->len);
 		if (p->state != 2) {
@@ -720,7 +723,7 @@ static enum dev_status expand(struct elab *el, struct scope *sc,
 	uint32_t *actual = arena_alloc(el->ar, (k ? k : 1) * sizeof *actual);
 	struct scope ns = {el, sc, def, smap_create(&el->hook),
 			   instance_prefix(el, sc, c), actual, sc->mult,
-			   sc->depth + 1, NULL};
+			   sc->depth + 1, NULL, NULL, NULL};
 	if (!actual || !ns.params || !ns.prefix) {
 		smap_destroy(ns.params);
 		el->oom = 1;
