@@ -6,9 +6,12 @@
 #include <strings.h>
 
 static const char *const names[DIALECT_COUNT] = {
-	[DIALECT_AUTO] = "auto",	 [DIALECT_NGSPICE] = "ngspice",
-	[DIALECT_PSPICE] = "pspice",	 [DIALECT_HSPICE] = "hspice",
-	[DIALECT_XYCE] = "xyce",	 [DIALECT_LTSPICE] = "ltspice",
+	[DIALECT_AUTO] = "auto",
+	[DIALECT_NGSPICE] = "ngspice",
+	[DIALECT_PSPICE] = "pspice",
+	[DIALECT_HSPICE] = "hspice",
+	[DIALECT_XYCE] = "xyce",
+	[DIALECT_LTSPICE] = "ltspice",
 };
 _Static_assert(sizeof names / sizeof names[0] == DIALECT_COUNT, "one name per dialect");
 
@@ -47,9 +50,12 @@ enum dialect dialect_of_path(const char *path)
 		const char *end;
 		enum dialect d;
 	} tab[] = {
-		{".pspice", DIALECT_PSPICE}, {".hspice", DIALECT_HSPICE},
-		{".xyce", DIALECT_XYCE},     {".asc.net", DIALECT_LTSPICE},
-		{".cir.out", DIALECT_NGSPICE}, {".deck", DIALECT_NGSPICE},
+		{".pspice", DIALECT_PSPICE},
+		{".hspice", DIALECT_HSPICE},
+		{".xyce", DIALECT_XYCE},
+		{".asc.net", DIALECT_LTSPICE},
+		{".cir.out", DIALECT_NGSPICE},
+		{".deck", DIALECT_NGSPICE},
 	};
 	for (size_t i = 0; i < sizeof tab / sizeof tab[0]; i++)
 		if (ends_with(path, tab[i].end))

@@ -412,9 +412,9 @@ static enum expr_status param_assign(struct elab *el, struct scope *sc,
 	struct cb cb = {el, sc, 0, c->loc};
 	struct expr_error e = {0};
 	enum expr_status st = cb_eval(&cb, f->value->expr, &v, &e);
+	enum param_kind kind = st == EXPR_STRING ? PARAM_STRING : PARAM_STATE;
 	if (st == EXPR_OK || st == EXPR_STRING || st == EXPR_STATE) {
-		set_param(el, sc, f->text, f->len, v,
-			  st == EXPR_OK ? PARAM_NUMBER : st == EXPR_STRING ? PARAM_STRING : PARAM_STATE);
+		set_param(el, sc, f->text, f->len, v, st == EXPR_OK ? PARAM_NUMBER : kind);
 		return st;
 	}
 	if (st == EXPR_UNDEFINED && !report)
@@ -533,7 +533,9 @@ static struct diag_loc at_field(const struct deck_card *c,
 
 static enum param_kind kind_of(enum dev_status st)
 {
-	return st == DEV_STRING ? PARAM_STRING : st == DEV_STATE ? PARAM_STATE : PARAM_NUMBER;
+	if (st == DEV_STRING)
+		return PARAM_STRING;
+	return st == DEV_STATE ? PARAM_STATE : PARAM_NUMBER;
 }
 
 /* Instance parameters, evaluated in the caller's scope; m= multiplies. */
@@ -796,7 +798,9 @@ static uint32_t find_part(struct elab *el, struct smap *paths,
 static void link_part(struct elab *el, struct smap *paths, struct nl_part *p)
 {
 	int k = p->kind == NL_K;
-	uint32_t n = k && p->ext->coupled ? p->ext->ncoupled : k ? 2 : 1;
+	uint32_t n = k ? 2 : 1;
+	if (k && p->ext->coupled)
+		n = p->ext->ncoupled;
 	enum nl_kind want = k ? NL_L : NL_V;
 	for (uint32_t i = 0; i < n; i++) {
 		const char *name = k && p->ext->coupled ? p->ext->coupled[i] : p->ext->ctrl[i];
