@@ -329,6 +329,13 @@ assigns
 assign
 	: IDENT '=' expr
 	  { $$ = assign_field(ctx, $1, &@1, expr_field(ctx, $3, &@3)); }
+	| IDENT '(' idlist ')' '=' expr
+	  {
+		/* HSPICE defines functions in .param: a .func */
+		$$ = assign_field(ctx, $1, &@1, expr_field(ctx, $6, &@6));
+		if ($$)
+			$$->args = list_array(ctx, $3, &$$->nargs);
+	  }
 	;
 
 idlist

@@ -177,16 +177,41 @@ static enum dev_status rcl_value(struct build *b, const struct deck_field *f)
 	return st == DEV_STATE ? behavioural(b) : st;
 }
 
-/* The value of a parameter named by word f, read quietly: 0 when f is
- * not a plain name or names no parameter. */
-static int param_value(struct build *b, const struct deck_field *f, double *v)
+static int is_word_char(char c)
 {
-	for (uint32_t i = 0; i < f->len; i++) {
-		char ch = (char)(f->text[i] | 32);
-		if (!(f->text[i] == '_' || (ch >= 'a' && ch <= 'z') ||
-		      (i > 0 && f->text[i] >= '0' && f->text[i] <= '9')))
+	char l = (char)(c | 32);
+	return c == '_' || c == '.' || (l >= 'a' && l <= 'z') || (c >= '0' && c <= '9');
+}
+
+/* A parameter name, or names and numbers joined by + - * / with no
+ * blank (HSPICE's "VAL1+VAL2"): what parses as an expression without
+ * a syntax error to report. */
+static int plain_expr_word(const char *s, uint32_t n)
+{
+	int letters = 0;
+	uint32_t i = 0;
+	for (;;) {
+		uint32_t start = i;
+		if (i < n && s[i] == '.')
+			return 0;
+		while (i < n && is_word_char(s[i]))
+			letters |= (s[i] | 32) >= 'a' && (s[i] | 32) <= 'z', i++;
+		if (i == start)
+			return 0;
+		if (i == n)
+			return letters;
+		if (!strchr("+-*/", s[i]) || ++i == n)
 			return 0;
 	}
+}
+
+/* The value of a parameter (or a blank-free expression of parameters)
+ * named by word f, read quietly: 0 when f is no such word or names no
+ * parameter. */
+static int param_value(struct build *b, const struct deck_field *f, double *v)
+{
+	if (num_looks_numeric(f->text, f->len) || !plain_expr_word(f->text, f->len))
+		return 0;
 	int oom = 0;
 	struct expr_error err = {0};
 	const struct expr *e = b->s->atom_expr ? b->s->atom_expr(b->s->ud, f, &oom) : NULL;

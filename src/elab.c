@@ -139,7 +139,7 @@ static FILE *open_input(struct elab *el, const char *path)
 
 /* Path of an included file: relative paths are taken from the folder of
  * the including file. */
-static char *include_path(struct elab *el, const char *given)
+static char *include_path_as_given(struct elab *el, const char *given)
 {
 	if (given[0] == '/' || !el->fr)
 		return arena_strdup(el->ar, given);
@@ -151,6 +151,18 @@ static char *include_path(struct elab *el, const char *given)
 		return NULL;
 	memcpy(p, el->fr->path, dl);
 	memcpy(p + dl, given, gl + 1);
+	return p;
+}
+
+static char *include_path(struct elab *el, const char *given)
+{
+	char *p = include_path_as_given(el, given);
+	/* a PSpice deck written on Windows names its includes ".\\x.lib":
+	 * the separator is the folder separator there */
+	if (p && elab_dialect(el) == DIALECT_PSPICE)
+		for (char *q = p; *q; q++)
+			if (*q == '\\')
+				*q = '/';
 	return p;
 }
 

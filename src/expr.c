@@ -243,6 +243,14 @@ static enum expr_status ev_user(struct eval *st, const struct expr *e,
 	return ev(&inner, fn->body, out);
 }
 
+/* HSPICE's statistical functions (agauss(nominal, variation, sigma) and
+ * the like): a Monte Carlo draw around the first argument. */
+static int is_statistical(const char *name)
+{
+	return strcasecmp(name, "agauss") == 0 || strcasecmp(name, "gauss") == 0 ||
+	       strcasecmp(name, "aunif") == 0 || strcasecmp(name, "unif") == 0;
+}
+
 static enum expr_status ev_call(struct eval *st, const struct expr *e,
 				double *out)
 {
@@ -264,6 +272,10 @@ static enum expr_status ev_call(struct eval *st, const struct expr *e,
 	if (e->nargs == 3 && (strcasecmp(e->name, "if") == 0 ||
 			      strcasecmp(e->name, "ternary_fcn") == 0)) {
 		*out = v[0] != 0 ? v[1] : v[2];
+		return EXPR_OK;
+	}
+	if (e->nargs >= 2 && is_statistical(e->name)) {
+		*out = v[0]; /* the nominal value: tolerances are the check's own */
 		return EXPR_OK;
 	}
 	if (e->nargs == 3 && strcasecmp(e->name, "limit") == 0) {

@@ -80,6 +80,7 @@ struct pending_param {
 
 static enum expr_status param_assign(struct elab *el, struct scope *sc,
 				     const struct deck_card *c, uint32_t i, int report);
+static void define_func(struct elab *el, const struct deck_field *head, const struct expr *body);
 
 /* A pending assignment of name in sc is resolved now: ngspice and PSpice
  * read .param cards in the order of their dependences, not of the file.
@@ -457,7 +458,9 @@ void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c)
 	 * assignment keeps a copy */
 	int copy = sc == &el->global;
 	for (uint32_t i = 0; i < c->nfields && !el->oom; i++)
-		if (param_assign(el, sc, c, i, 0) == EXPR_UNDEFINED) {
+		if (c->fields[i].nargs)
+			define_func(el, &c->fields[i], c->fields[i].value->expr);
+		else if (param_assign(el, sc, c, i, 0) == EXPR_UNDEFINED) {
 			add_pending(el, sc, &c, copy, i);
 			copy = 0;
 		}
@@ -477,12 +480,17 @@ void scope_settle(struct elab *el, struct scope *sc)
 
 void scope_func(struct elab *el, const struct deck_card *c)
 {
-	const struct deck_field *head = &c->fields[0];
+	define_func(el, &c->fields[0], c->fields[1].expr);
+}
+
+/* A function: head is name(params...), from .func or HSPICE's .param. */
+static void define_func(struct elab *el, const struct deck_field *head, const struct expr *body)
+{
 	struct expr_func *fn = arena_zalloc(el->ar, sizeof *fn);
 	if (fn) {
 		fn->name = arena_strndup(el->ar, head->text, head->len);
 		fn->params = arena_alloc(el->ar, (head->nargs + 1) * sizeof *fn->params);
-		fn->body = expr_clone(el->ar, c->fields[1].expr);
+		fn->body = expr_clone(el->ar, body);
 	}
 	if (!fn || !fn->name || !fn->params || !fn->body) {
 		el->oom = 1;

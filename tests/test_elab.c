@@ -497,6 +497,22 @@ static void test_dialect_reading(void **state)
 	assert_string_equal(r.diags,
 			    "top.cir:2:1: error: .lib section has no .endl before the end of the file [lib]\n");
 	run_free(&r);
+	/* HSPICE: functions in .param, .macro/.eom, statistical functions at
+	 * their nominal value, a blank-free expression where a value goes */
+	run_text(&r, "t\n.param twice(x) = '2*x' a3=1\n.macro blk p q r0=1\n.param v1=2 v2=3\n"
+		     "R1 p q r0\nR2 p q v1+v2\n.eom blk\nX1 a 0 blk r0=7\nR3 a 0 {twice(a3)}\n"
+		     "R4 a 0 {agauss(10, 1, 3)}\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "X1.R1")->value, 7);
+	assert_close(find_part(&r, "X1.R2")->value, 5);
+	assert_close(find_part(&r, "R3")->value, 2);
+	assert_close(find_part(&r, "R4")->value, 10);
+	run_free(&r);
+	/* PSpice: '\' in an include path is the folder separator */
+	run_dialect(&r, DIALECT_PSPICE, "t\n.include sub\\x.inc\n", "sub/x.inc", "R1 a 0 1k\n", NULL);
+	assert_string_equal(r.diags, "");
+	assert_non_null(find_part(&r, "R1"));
+	run_free(&r);
 	/* a letter code is ngspice's reading: no warning owed there */
 	run_text(&r, "t\nR1 1 0 4k7\n");
 	assert_string_equal(r.diags, "top.cir:2:8: warning: '4k7' is read as the letter code for 4700; plain SPICE readers take only the digits before the letter [letter-code]\n");
