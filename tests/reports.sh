@@ -159,6 +159,22 @@ sed -i "s|\"path\": \"$ex/sensor_restorer.cir\"|\"path\": \"$tmp/changed/sensor_
 "$bin" check --baseline "$tmp/base2.json" "$tmp/changed/sensor_restorer.cir" > "$tmp/new.txt" 2>/dev/null
 rc=$?
 check "after a change only the new finding is reported" bash -c "test $rc -eq 1 && grep -q 'cap-overvoltage' '$tmp/new.txt' && ! grep -q 'cap-derating' '$tmp/new.txt'"
+# a baseline rewritten by a tool that escapes every non-ASCII character
+# (Python's json.dump) names the same files: \u escapes are decoded
+mkdir -p "$tmp/uni"
+cp "$ex/mains_doubler.cir" "$tmp/uni/doubleur_µ.cir"
+"$bin" check --fail-on never --write-baseline "$tmp/uni/base.json" "$tmp/uni/doubleur_µ.cir" >/dev/null 2>&1
+python3 -c "import json,sys; json.dump(json.load(open(sys.argv[1])), open(sys.argv[2], 'w'))" "$tmp/uni/base.json" "$tmp/uni/ascii.json"
+"$bin" check --format json --baseline "$tmp/uni/ascii.json" "$tmp/uni/doubleur_µ.cir" > "$tmp/uni/again.json" 2>/dev/null
+check "a baseline with \\u escapes (doubleur_\\u00b5.cir) hides its findings" python3 -c "
+import json,sys
+assert '\\\\u00b5' in open(sys.argv[2]).read()
+d=json.load(open(sys.argv[1]))
+assert d['summary']['baseline_hidden'] > 0 and sum(len(f['findings']) for f in d['files']) == 0, d['summary']
+" "$tmp/uni/again.json" "$tmp/uni/ascii.json"
+printf '{"files": [{"path": "a\\ud800.cir", "findings": []}]}' > "$tmp/uni/half.json"
+"$bin" check --baseline "$tmp/uni/half.json" "$tmp/uni/doubleur_µ.cir" >/dev/null 2> "$tmp/uni/half.err"
+check "half a surrogate pair in a baseline is a located error" grep -q "half.json:1:23: error: .u escape names half of a surrogate pair \[baseline\]" "$tmp/uni/half.err"
 # a baseline written from one folder and used from another: files are
 # matched by real path, and every summary says how many findings it hid
 mkdir -p "$tmp/proj/dir" "$tmp/proj/ci"
