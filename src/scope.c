@@ -75,7 +75,7 @@ struct pending_param {
 	uint32_t field;
 	struct scope *sc;
 	int state; /* 0 waiting, 1 being resolved, 2 settled */
-	struct pending_param *next;
+	struct pending_param *next, *prev;
 };
 
 static enum expr_status param_assign(struct elab *el, struct scope *sc,
@@ -441,7 +441,7 @@ static void add_pending(struct elab *el, struct scope *sc, const struct deck_car
 		el->oom = 1;
 		return;
 	}
-	*p = (struct pending_param){*c, i, sc, 0, NULL};
+	*p = (struct pending_param){*c, i, sc, 0, NULL, sc->plast};
 	const struct deck_field *f = &(*c)->fields[i];
 	if (!smap_put(sc->pending, f->text, f->len, p))
 		el->oom = 1;
@@ -468,9 +468,13 @@ void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c)
 
 void scope_settle(struct elab *el, struct scope *sc)
 {
-	for (struct pending_param *p = sc->pfirst; p; p = p->next) {
+	/* last first: a chain of forward references (each naming the next)
+	 * then resolves one link at a time, never deeper than one */
+	for (struct pending_param *p = sc->plast; p; p = p->prev) {
 		const struct deck_field *f = &p->card->fields[p->field];
 		resolve_pending(el, sc, f->text, f->len);
+	}
+	for (struct pending_param *p = sc->pfirst; p; p = p->next) {
 		if (p->state != 2) {
 			p->state = 2;
 			param_assign(el, sc, p->card, p->field, 1);
