@@ -31,6 +31,7 @@ struct lex_ctx {
 	int ended;                /* .end seen: the rest is ignored */
 	int start_token;          /* returned once before anything else */
 	int paren_depth;          /* of '(' in a card, to drop a stray ')' */
+	int caret_xor;            /* '^' is exclusive or (dialect.h) */
 	struct expr *expr_result; /* parse_expr_text's result */
 	struct arena *scratch;
 	struct arena_mark mark;   /* scratch is reset here at each card head */

@@ -129,6 +129,26 @@ static void emit(struct lex_ctx *ctx, enum deck_card_kind kind,
 		ctx->stop = 1;
 }
 
+/* POLY(n) and its values as one call "poly" (no argument limit): it
+ * names the circuit's state, so it is never evaluated to a number. */
+static struct expr *poly_expr(struct lex_ctx *ctx, const YYLTYPE *loc,
+			      const struct field_list *args)
+{
+	uint32_t n = args ? args->n : 0, i = 0;
+	struct expr **v = arena_alloc(ctx->scratch, (n ? n : 1) * sizeof *v);
+	if (!v) {
+		ctx->oom = 1;
+		return NULL;
+	}
+	for (const struct deck_field *f = args ? args->first : NULL; f; f = f->next)
+		v[i++] = f->expr;
+	struct expr *e = expr_call(ctx->scratch, "poly", v, i, (uint32_t)loc->first_line,
+				   (uint32_t)loc->first_column);
+	if (!e)
+		ctx->oom = 1;
+	return e;
+}
+
 static struct expr *call_expr(struct lex_ctx *ctx, struct lex_text name,
 			      const YYLTYPE *loc, struct field_list *args)
 {
@@ -184,15 +204,20 @@ static struct expr *call_expr(struct lex_ctx *ctx, struct lex_text name,
 %token BADCHAR "invalid character"
 %token START_EXPR "expression start"
 %token <text> PROBE "probe"
+%token STRING "string"
+%token POLYHEAD "POLY(n)"
+%token <text> POLYBARE "POLY"
+%token XOR "^ (exclusive or)"
 
-%type <list> fields args assigns idlist exprlist
+%type <list> fields args assigns idlist exprlist polyargs
 %type <field> field value arg exprfield assign
-%type <expr> expr primary
+%type <expr> expr primary polyarg
 
 %precedence ATOM
 %precedence '('
 %right '?' ':'
 %left OROR
+%left XOR
 %left ANDAND
 %left EQ NE
 %left '<' '>' LE GE
@@ -271,6 +296,13 @@ value
 
 exprfield
 	: LBRACE expr RBRACE { $$ = expr_field(ctx, $2, &@1); }
+	| LBRACE POLYHEAD polyargs RBRACE { $$ = expr_field(ctx, poly_expr(ctx, &@2, $3), &@1); }
+	| LBRACE POLYBARE polyargs RBRACE
+	  {
+		struct expr *p = expr_var(ctx->scratch, $2.s, (uint32_t)@2.first_line, (uint32_t)@2.first_column);
+		struct field_list *l = list_add(ctx, list_new(ctx), expr_field(ctx, p, &@2));
+		$$ = expr_field(ctx, poly_expr(ctx, &@2, join(l, $3)), &@1);
+	  }
 	| QUOTE expr QUOTE { $$ = expr_field(ctx, $2, &@1); }
 	;
 
@@ -297,6 +329,13 @@ assigns
 assign
 	: IDENT '=' expr
 	  { $$ = assign_field(ctx, $1, &@1, expr_field(ctx, $3, &@3)); }
+	| IDENT '(' idlist ')' '=' expr
+	  {
+		/* HSPICE defines functions in .param: a .func */
+		$$ = assign_field(ctx, $1, &@1, expr_field(ctx, $6, &@6));
+		if ($$)
+			$$->args = list_array(ctx, $3, &$$->nargs);
+	  }
 	;
 
 idlist
@@ -313,6 +352,7 @@ opt_eq
 expr
 	: expr '?' expr ':' expr { $$ = expr_op(ctx->scratch, EXPR_COND, $1, $3, $5); }
 	| expr OROR expr { $$ = expr_op(ctx->scratch, EXPR_OR, $1, $3, NULL); }
+	| expr XOR expr { $$ = expr_op(ctx->scratch, EXPR_XOR, $1, $3, NULL); }
 	| expr ANDAND expr { $$ = expr_op(ctx->scratch, EXPR_AND, $1, $3, NULL); }
 	| expr EQ expr { $$ = expr_op(ctx->scratch, EXPR_EQ, $1, $3, NULL); }
 	| expr NE expr { $$ = expr_op(ctx->scratch, EXPR_NE, $1, $3, NULL); }
@@ -336,10 +376,30 @@ primary
 	: NUM { $$ = expr_num(ctx->scratch, $1, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
 	| IDENT { $$ = expr_var(ctx->scratch, $1.s, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
 	| PROBE { $$ = expr_var(ctx->scratch, $1.s, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| STRING { $$ = expr_str(ctx->scratch, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| IDENT LBRACE expr RBRACE
+	  { /* ngspice joins strings this way (or{and}): a string */
+		$$ = $3 ? expr_str(ctx->scratch, (uint32_t)@1.first_line, (uint32_t)@1.first_column) : NULL; }
 	| IDENT '(' exprlist ')' { $$ = call_expr(ctx, $1, &@1, $3); }
 	| '(' expr ')' { $$ = $2; }
 	| LBRACE expr RBRACE { $$ = $2; }
 	| QUOTE expr QUOTE { $$ = $2; }
+	;
+
+/* The controlling values and coefficients of POLY(n): probes, numbers
+ * with their signs, parameter names, braced expressions. */
+polyargs
+	: polyarg { $$ = list_add(ctx, list_new(ctx), expr_field(ctx, $1, &@1)); }
+	| polyargs polyarg { $$ = list_add(ctx, $1, expr_field(ctx, $2, &@2)); }
+	;
+
+polyarg
+	: NUM { $$ = expr_num(ctx->scratch, $1, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| '-' NUM { $$ = expr_num(ctx->scratch, -$2, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| '+' NUM { $$ = expr_num(ctx->scratch, $2, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| PROBE { $$ = expr_var(ctx->scratch, $1.s, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| IDENT { $$ = expr_var(ctx->scratch, $1.s, (uint32_t)@1.first_line, (uint32_t)@1.first_column); }
+	| LBRACE expr RBRACE { $$ = $2; }
 	;
 
 exprlist

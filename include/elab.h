@@ -11,6 +11,7 @@
 
 #include "arena.h"
 #include "diag.h"
+#include "dialect.h"
 #include "nl.h"
 
 struct elab_opts {
@@ -23,6 +24,8 @@ struct elab_opts {
 	unsigned max_expr_depth;   /* expression nesting; 0 = 1000 */
 	unsigned max_cond_depth;   /* .if nesting; 0 = 64 */
 	size_t max_nodes;          /* circuit nodes; 0 = 10,000,000 */
+	enum dialect dialect;      /* whose reading to follow; DIALECT_AUTO
+				      (0): from the ending, then the file */
 	uint32_t max_pwl_points;   /* time-value pairs per source; 0 = 100,000 */
 	/* Opens a file for reading; NULL = fopen. Lets tests and fuzzers serve
 	 * in-memory file sets. Sets errno on failure. */

@@ -28,7 +28,9 @@ enum expr_op {
 	EXPR_NE,
 	EXPR_AND,
 	EXPR_OR,
-	EXPR_COND
+	EXPR_COND,
+	EXPR_STR,   /* a string: "0001", or text joined to a name (or{and}) */
+	EXPR_XOR    /* exclusive or ('^' in LTspice's reading) */
 };
 
 struct expr {
@@ -51,6 +53,10 @@ struct expr *expr_op(struct arena *ar, enum expr_op op, struct expr *a,
 struct expr *expr_call(struct arena *ar, const char *name, struct expr **args,
 		       uint32_t nargs, uint32_t line, uint32_t col);
 
+/* A string literal or a joined string: kept for its place in the tree,
+ * never a number (evaluation gives EXPR_STRING). */
+struct expr *expr_str(struct arena *ar, uint32_t line, uint32_t col);
+
 /* Deep copy into ar. */
 struct expr *expr_clone(struct arena *ar, const struct expr *e);
 
@@ -63,7 +69,11 @@ struct expr_func {
 };
 
 /* Where names come from. lookup_var returns 1 and sets *v when the name is
- * known; lookup_func returns the function or NULL. */
+ * a number, EXPR_VAR_STRING when it holds a string, EXPR_VAR_STATE when
+ * its value depends on the circuit's state, 0 when it is not known;
+ * lookup_func returns the function or NULL. */
+#define EXPR_VAR_STRING 2
+#define EXPR_VAR_STATE 3
 struct expr_env {
 	int (*lookup_var)(void *ud, const char *name, double *v);
 	const struct expr_func *(*lookup_func)(void *ud, const char *name);
@@ -78,7 +88,11 @@ enum expr_status {
 	EXPR_UNDEFINED,   /* unknown name: err->name says which */
 	EXPR_BAD_CALL,    /* unknown function or wrong argument count */
 	EXPR_DOMAIN,      /* division by zero, result not finite */
-	EXPR_TOO_DEEP     /* nesting or function recursion past the limit */
+	EXPR_TOO_DEEP,    /* nesting or function recursion past the limit */
+	EXPR_STRING,      /* a string where a number is needed */
+	EXPR_STATE        /* the circuit's state (v(), i(), time, temper,
+			     hertz, or a parameter made of them): known only
+			     during a simulation */
 };
 
 struct expr_error {
@@ -94,6 +108,10 @@ enum expr_status expr_eval(const struct expr *e, const struct expr_env *env,
 
 /* A lower-case explanation of err, e.g. "undefined parameter 'vp'". */
 void expr_error_text(const struct expr_error *err, char *buf, unsigned n);
+
+/* True if name (any case) stands for the circuit's state rather than a
+ * constant: time, temper, hertz, and probes such as v(3) or i(v1). */
+int expr_is_state_name(const char *name);
 
 /* True if name (any case) is a built-in function. */
 int expr_is_builtin(const char *name);

@@ -51,8 +51,12 @@ struct nl_extra {
 	double ic;                 /* ic= for C and L, NaN when absent */
 	const struct nl_source *src; /* V, I */
 	const char *ctrl[2];       /* F, H: controlling source; K: two inductors */
+	const char **coupled;      /* K: every inductor named (ncoupled >= 2) */
+	uint32_t ncoupled;
 	uint32_t ctrl_part[2];     /* resolved part index of ctrl, or NL_NONE */
-	int behavioural;           /* E/G/F/H given by value=, poly(), table */
+	int behavioural;           /* E/G/F/H given by value=, poly(), table;
+				      R/C/L valued by the circuit's state; K over
+				      more than two inductors or with a core */
 	int off;                   /* D: "off" */
 };
 

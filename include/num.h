@@ -26,6 +26,11 @@ enum num_status {
  * character. */
 enum num_status num_parse(const char *s, size_t n, double *out, size_t *bad);
 
+/* Reads s[0..n) as a letter code that starts with its letter ("R47" =
+ * 0.47, "K22" = 220, "L5" = 5m): one letter of R L T G K M U N P F, then
+ * digits only. Returns 1 and sets *out when it is one. */
+int num_letter_first(const char *s, size_t n, double *out);
+
 /* True if s[0..n) starts the way a number does (digit, '.', or a sign
  * followed by one of those). */
 int num_looks_numeric(const char *s, size_t n);

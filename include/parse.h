@@ -21,6 +21,7 @@ struct parse_opts {
 	int has_title;          /* first line is the title (top-level file) */
 	uint32_t max_line_len;  /* longest physical line accepted, bytes */
 	uint32_t max_token_len; /* longest word or value, bytes; 0 = 64 KiB */
+	int caret_xor;          /* '^' is exclusive or, not the power */
 };
 
 enum parse_status {

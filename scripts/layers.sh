@@ -24,6 +24,7 @@ infile base
 smap base
 suggest base
 expr base
+dialect base
 deck front
 parse front
 spice.lex front

@@ -24,6 +24,7 @@ struct cli {
 	const char *config;          /* --config FILE, or NULL: looked for */
 	int no_config;               /* --no-config */
 	int fail_on_given;           /* --fail-on was given */
+	int dialect_given;           /* --dialect was given (eo.dialect) */
 	const char *profile;         /* name or path */
 	const char *parts;           /* parts table */
 	const char *bom;             /* --bom: a bill of materials (CSV) */

@@ -55,6 +55,21 @@ const char *cli_netlist_ext_check(const char *exts)
 	}
 }
 
+/* Why a file under a folder is not checked, by its ending (docs/check.md,
+ * "Files seen"). */
+static const char *skip_reason(const char *name)
+{
+	if (in_list(name, CLI_LIBRARY_EXT))
+		return "a library by its name: read through the .include and .lib cards of the "
+		       "netlists that use it (see --netlist-ext)";
+	if (in_list(name, CLI_OTHER_SIM_EXT))
+		return "another simulator's netlist by its name: checked when --netlist-ext adds "
+		       "its ending (--dialect follows the ending)";
+	if (in_list(name, CLI_FOREIGN_EXT))
+		return "a Spectre netlist by its name: headroom reads SPICE netlists only";
+	return "name does not end in a netlist extension (see --netlist-ext)";
+}
+
 static int add(struct cli_files *l, const char *path)
 {
 	if (l->n == l->cap) {
@@ -161,7 +176,7 @@ static int visit(const struct walk *w, const char *path, int depth)
 		return scan(w, path, depth + 1);
 	if (netlist_name(base, w->exts))
 		return add(w->files, path);
-	return skip(w->skips, path, "name does not end in a netlist extension (see --netlist-ext)");
+	return skip(w->skips, path, skip_reason(base));
 }
 
 /* Netlists under dir, recursively, in name order. Returns 0 on

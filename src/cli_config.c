@@ -42,6 +42,7 @@ static const struct key {
 	{"baseline", "--baseline", KEY_PATH},
 	{"fail-on", "--fail-on", KEY_VALUE},
 	{"netlist-ext", "--netlist-ext", KEY_EXT},
+	{"dialect", "--dialect", KEY_VALUE},
 	{"source-tol", "--source-tol", KEY_VALUE},
 	{"ambient", "--ambient", KEY_VALUE},
 	{"jobs", "-j", KEY_VALUE},
@@ -390,6 +391,8 @@ static void merge(const struct cli *c, const struct cli_config *cfg, struct cli 
 	out->ambient = isnan(c->ambient) ? s->ambient : c->ambient;
 	if (!c->fail_on_given && s->fail_on_given)
 		out->fail_on = s->fail_on;
+	if (!c->dialect_given && s->dialect_given)
+		out->eo.dialect = s->eo.dialect;
 	if (!c->nreports) {
 		out->reports = cfg->reports;
 		out->nreports = cfg->nreports;

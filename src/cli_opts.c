@@ -13,9 +13,10 @@
 
 #include "cli_batch.h"
 #include "diag.h"
+#include "dialect.h"
 #include "suggest.h"
 
-enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_TEMP, OPT_FAIL, OPT_REPORT };
+enum opt_kind { OPT_FLAG, OPT_STR, OPT_COUNT, OPT_TOL, OPT_TEMP, OPT_FAIL, OPT_REPORT, OPT_DIALECT };
 
 /* Options that take a positive whole number. */
 enum count_id { CO_PARTS, CO_NODES, CO_LINE, CO_TOKEN, CO_INCLUDE, CO_DEPTH,
@@ -69,6 +70,11 @@ static const struct opt_def opts[] = {
 	 "a folder (default " CLI_NETLIST_EXT ");\n"
 	 "+LIST adds to them (+.sim,.cir.out); the other\n"
 	 "files there are listed as skipped, with the reason"},
+	{"--dialect", NULL, OPT_DIALECT, 0, CO_NONE, 0,
+	 "--dialect NAME       whose reading to follow where simulators read the\n"
+	 "same text differently: auto (default: from the\n"
+	 "file's ending, then its contents), ngspice,\n"
+	 "pspice, hspice, xyce, ltspice"},
 	{"--waivers", NULL, STR(waivers), "--waivers FILE       *@waive lines that apply to every file"},
 	{"--baseline", NULL, STR(baseline),
 	 "--baseline FILE      report only findings not in this earlier JSON report"},
@@ -319,6 +325,23 @@ static int set_fail_on(struct cli *c, const char *shown, const char *val, char *
 	return 0;
 }
 
+static int set_dialect(struct cli *c, const char *shown, const char *val, char *why, size_t n)
+{
+	enum dialect d;
+	if (dialect_parse(val, &d)) {
+		c->eo.dialect = d;
+		c->dialect_given = 1;
+		return 1;
+	}
+	const char *names[DIALECT_COUNT];
+	char hint[SUGGEST_HINT_SIZE];
+	for (int i = 0; i < DIALECT_COUNT; i++)
+		names[i] = dialect_name((enum dialect)i);
+	snprintf(why, n, "%s takes %s, not '%s'%s", shown, dialect_list(), val,
+		 cli_hint(val, names, DIALECT_COUNT, hint, sizeof hint));
+	return 0;
+}
+
 static void set_count(struct cli *c, enum count_id id, size_t n)
 {
 	struct elab_opts *e = &c->eo;
@@ -357,6 +380,8 @@ static int set_value(struct cli *c, const struct opt_def *o, const char *shown,
 		return set_temp(c, shown, val, why, wn);
 	case OPT_FAIL:
 		return set_fail_on(c, shown, val, why, wn);
+	case OPT_DIALECT:
+		return set_dialect(c, shown, val, why, wn);
 	default:
 		break;
 	}

@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "devval.h"
+#include "dialect.h"
 #include "num.h"
 #include "suggest.h"
 #include "wave.h"
@@ -176,6 +177,77 @@ static enum dev_status rcl_value(struct build *b, const struct deck_field *f)
 	return st == DEV_STATE ? behavioural(b) : st;
 }
 
+static int is_word_char(char c)
+{
+	char l = (char)(c | 32);
+	return c == '_' || c == '.' || (l >= 'a' && l <= 'z') || (c >= '0' && c <= '9');
+}
+
+/* A parameter name, or names and numbers joined by + - * / with no
+ * blank (HSPICE's "VAL1+VAL2"): what parses as an expression without
+ * a syntax error to report. */
+static int plain_expr_word(const char *s, uint32_t n)
+{
+	int letters = 0;
+	uint32_t i = 0;
+	for (;;) {
+		uint32_t start = i;
+		if (i < n && s[i] == '.')
+			return 0;
+		while (i < n && is_word_char(s[i]))
+			letters |= (s[i] | 32) >= 'a' && (s[i] | 32) <= 'z', i++;
+		if (i == start)
+			return 0;
+		if (i == n)
+			return letters;
+		if (!strchr("+-*/", s[i]) || ++i == n)
+			return 0;
+	}
+}
+
+/* The value of a parameter (or a blank-free expression of parameters)
+ * named by word f, read quietly: 0 when f is no such word or names no
+ * parameter. */
+static int param_value(struct build *b, const struct deck_field *f, double *v)
+{
+	if (num_looks_numeric(f->text, f->len) || !plain_expr_word(f->text, f->len))
+		return 0;
+	int oom = 0;
+	struct expr_error err = {0};
+	const struct expr *e = b->s->atom_expr ? b->s->atom_expr(b->s->ud, f, &oom) : NULL;
+	return e && b->s->eval(b->s->ud, e, v, &err) == EXPR_OK;
+}
+
+/* A word where R, C or L take a value or a model (docs/netlist.md,
+ * "Dialects"): a model of that name first; else, but in ngspice's
+ * reading, a parameter of that name (T-SPICE and HSPICE decks write
+ * "R1 a b rval"); else ngspice's letter code ("R47" = 0.47). Models may be
+ * defined after their use, so the top-level first pass waits for the whole
+ * file when the word could be read another way. */
+static enum dev_status model_or_code(struct build *b, const struct deck_field *f, int *have)
+{
+	enum dev_status st = DEV_OK;
+	double code = 0, pv = 0;
+	int is_code = dialect_letter_first_codes(b->s->dialect) &&
+		      num_letter_first(f->text, f->len, &code);
+	int params = b->s->dialect != DIALECT_NGSPICE;
+	if (b->s->defer_undefined && (is_code || params))
+		return DEV_DEFER; /* a parameter may also be defined later */
+	if (b->s->defer_undefined || (!is_code && !params)) {
+		b->part.model = need_model(b, f, &st);
+		return st;
+	}
+	if ((b->part.model = b->s->model(b->s->ud, f)) != NULL)
+		return DEV_OK;
+	if ((params && param_value(b, f, &pv)) || is_code) {
+		b->part.value = params && param_value(b, f, &pv) ? pv : code;
+		*have = 1;
+		return DEV_OK;
+	}
+	b->part.model = need_model(b, f, &st);
+	return st;
+}
+
 /* R, C, L: two nodes, then a value (positional or r=/c=/l=) and/or a model. */
 static enum dev_status build_rcl(struct build *b, char letter)
 {
@@ -187,7 +259,7 @@ static enum dev_status build_rcl(struct build *b, char letter)
 			st = rcl_value(b, f);
 			have = 1;
 		} else if (f->kind == FIELD_ATOM && !b->part.model && !have) {
-			b->part.model = need_model(b, f, &st);
+			st = model_or_code(b, f, &have);
 		} else if (f->kind == FIELD_ASSIGN && is_value_key(f, letter)) {
 			st = f->value->kind == FIELD_CALL ? behavioural(b)
 							  : rcl_value(b, f->value);
@@ -245,8 +317,10 @@ static enum dev_status build_source(struct build *b);
 /* The forms of a controlled source that this tool keeps as behavioural. */
 static int is_behavioural_form(const struct deck_field *f)
 {
-	static const char *const words[] = {"value", "vol", "cur", "poly",
-					    "table", "laplace", "freq", NULL};
+	/* and/nand/or/nor(n): the digital gate forms (ngspice's E source,
+	 * PSpice's); chebyshev: PSpice's filter form */
+	static const char *const words[] = {"value", "vol", "cur", "poly", "table", "laplace",
+					    "freq", "chebyshev", "and", "nand", "or", "nor", NULL};
 	if (f->kind == FIELD_EXPR)
 		return 1;
 	for (int i = 0; words[i]; i++)
@@ -299,24 +373,85 @@ static enum dev_status build_ctrl_i(struct build *b)
 	return behavioural(b);
 }
 
-static enum dev_status build_coupling(struct build *b)
+static enum dev_status coupling_value(struct build *b, const struct deck_field *f)
 {
-	const struct deck_card *c = b->card;
-	if (c->nfields < 3 || c->fields[0].kind != FIELD_ATOM ||
-	    c->fields[1].kind != FIELD_ATOM)
-		return err_at(b, NULL, "coupling needs two inductor names and a coefficient%s", "");
-	b->has_ext = 1;
-	b->ext.ctrl[0] = arena_strdup(nl_arena(b->c), c->fields[0].text);
-	b->ext.ctrl[1] = arena_strdup(nl_arena(b->c), c->fields[1].text);
-	if (!b->ext.ctrl[0] || !b->ext.ctrl[1])
-		return DEV_OOM;
-	enum dev_status st = const_value(b, &c->fields[2], &b->part.value);
+	enum dev_status st = const_value(b, f, &b->part.value);
 	if (st == DEV_OK && fabs(b->part.value) > 1)
 		diag_add(b->d, DIAG_WARNING, "element",
-			 (struct diag_loc){c->loc.file, c->fields[2].line, c->fields[2].col},
+			 (struct diag_loc){b->card->loc.file, f->line, f->col},
 			 "coupling coefficient %g is above 1 in magnitude: not a physical transformer",
 			 b->part.value);
 	return st;
+}
+
+/* Where the coefficient of a K card over more than two inductors sits:
+ * last, or before a core model (Xyce's nonlinear mutual inductor). The
+ * first pass waits for the models of the whole file. */
+static enum dev_status coupling_layout(struct build *b, uint32_t *coef)
+{
+	const struct deck_card *c = b->card;
+	const struct deck_field *last = &c->fields[c->nfields - 1];
+	*coef = c->nfields - 1;
+	if (last->kind != FIELD_ATOM || num_looks_numeric(last->text, last->len))
+		return DEV_OK;
+	if (b->s->defer_undefined)
+		return DEV_DEFER;
+	if ((b->part.model = b->s->model(b->s->ud, last)) != NULL)
+		*coef = c->nfields - 2;
+	return DEV_OK;
+}
+
+/* K: inductor names, a coupling coefficient, and optionally a core model.
+ * Two inductors and no model is the linear coupling the analysis and the
+ * solver know; more inductors or a core is kept as a behavioural coupling
+ * (its inductors are still checked by name). */
+static enum dev_status build_coupling(struct build *b)
+{
+	const struct deck_card *c = b->card;
+	uint32_t coef = 2;
+	enum dev_status st = c->nfields > 3 ? coupling_layout(b, &coef) : DEV_OK;
+	if (st != DEV_OK)
+		return st;
+	if (c->nfields < 3 || coef < 2)
+		return err_at(b, NULL, "coupling needs two inductor names and a coefficient%s", "");
+	const char **names = arena_alloc(nl_arena(b->c), coef * sizeof *names);
+	if (!names)
+		return DEV_OOM;
+	for (uint32_t i = 0; i < coef; i++) {
+		if (c->fields[i].kind != FIELD_ATOM)
+			return err_at(b, &c->fields[i], "expected an inductor name here%s", "");
+		if (!(names[i] = arena_strdup(nl_arena(b->c), c->fields[i].text)))
+			return DEV_OOM;
+	}
+	b->has_ext = 1;
+	b->ext.ctrl[0] = names[0];
+	b->ext.ctrl[1] = names[1];
+	b->ext.coupled = names;
+	b->ext.ncoupled = coef;
+	b->ext.behavioural = coef > 2 || b->part.model;
+	return coupling_value(b, &c->fields[coef]);
+}
+
+/* Y: ngspice's lossy line (YL1 n1 n2 n3 n4 model) or a Xyce device
+ * (YPDE name nodes... model params), read as plain words: nodes run to the
+ * first word that names a model; in Xyce's reading the first word is the
+ * device's name. Kept opaque. */
+static enum dev_status build_y(struct build *b)
+{
+	const struct deck_card *c = b->card;
+	uint32_t from = b->s->dialect == DIALECT_XYCE, k = from;
+	while (k < c->nfields && !b->s->model(b->s->ud, &c->fields[k]))
+		k++;
+	if (k == c->nfields)
+		return err_at(b, c->nfields ? &c->fields[c->nfields - 1] : NULL,
+			      "element needs a model name after its nodes%s", "");
+	for (uint32_t i = from; i < k; i++) {
+		enum dev_status st = take_node(b, &c->fields[i]);
+		if (st != DEV_OK)
+			return st;
+	}
+	b->part.model = b->s->model(b->s->ud, &c->fields[k]);
+	return DEV_OK;
 }
 
 /* Opaque parts whose node list ends where a model name starts. */
@@ -349,6 +484,8 @@ int dev_needs_models(char letter)
 	switch (letter) {
 	case 'r': case 'c': case 'l': case 'd': case 'v': case 'i':
 		return 0; /* the common letters, answered without the table */
+	case 'y':
+		return 1; /* build_y: nodes run to a model, the reading to .options */
 	default: {
 		const struct opaque_rule *r = opaque_rule(letter);
 		return r && r->model && r->min_nodes != r->max_nodes;
@@ -413,6 +550,8 @@ static enum dev_status build_opaque(struct build *b, char letter)
 	const struct opaque_rule *r = opaque_rule(letter);
 	if (letter == 'a')
 		return build_xspice(b);
+	if (letter == 'y')
+		return build_y(b);
 	if (!r) {
 		/* a control byte or half a UTF-8 sequence is named by its value:
 		 * the message goes into XML and JSON reports too */

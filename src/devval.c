@@ -8,14 +8,6 @@
 
 #include "num.h"
 
-/* Names that stand for the circuit's state rather than a constant. */
-static int is_state_name(const char *name)
-{
-	return strchr(name, '(') || num_ieq(name, strlen(name), "time") ||
-	       num_ieq(name, strlen(name), "temper") ||
-	       num_ieq(name, strlen(name), "hertz");
-}
-
 static enum dev_status eval_expr(const struct dev_scope *s,
 				 const struct expr *e, struct diag_sink *d,
 				 struct diag_loc l, double *out)
@@ -24,8 +16,10 @@ static enum dev_status eval_expr(const struct dev_scope *s,
 	enum expr_status st = s->eval(s->ud, e, out, &err);
 	if (st == EXPR_OK)
 		return DEV_OK;
-	if (st == EXPR_UNDEFINED && is_state_name(err.name))
+	if (st == EXPR_STATE)
 		return DEV_STATE;
+	if (st == EXPR_STRING && s->strings_ok)
+		return DEV_STRING;
 	if (st == EXPR_UNDEFINED && s->defer_undefined)
 		return DEV_DEFER;
 	char msg[200];
@@ -68,6 +62,8 @@ enum dev_status devval_get(const struct dev_scope *s,
 	size_t bad = 0;
 	enum num_status st = num_parse(f->text, f->len, out, &bad);
 	if (st == NUM_OK)
+		return DEV_OK;
+	if (st == NUM_RKM && dialect_reads_letter_codes(s->dialect))
 		return DEV_OK;
 	if (st == NUM_RKM) {
 		diag_add(d, DIAG_WARNING, "letter-code", l,

@@ -9,6 +9,7 @@
 
 #include "deck.h"
 #include "diag.h"
+#include "dialect.h"
 #include "expr.h"
 #include "nl.h"
 
@@ -33,11 +34,16 @@ struct dev_scope {
 				   undefined parameter (first pass at top level) */
 	double mult;            /* instance m= product applied to every part */
 	uint32_t max_wave_values; /* values in one waveform; 0 = 200,000 */
+	enum dialect dialect;   /* the reading in force (never DIALECT_AUTO
+				   once the file says which; dialect.h) */
+	int strings_ok;         /* a string value gives DEV_STRING (subcircuit
+				   parameters), not an error */
 };
 
 /* DEV_STATE: a value depends on the circuit's state (v(), i(), time); it
- * is not an error for parts that may be behavioural. */
-enum dev_status { DEV_OK, DEV_ERROR, DEV_DEFER, DEV_OOM, DEV_STATE };
+ * is not an error for parts that may be behavioural. DEV_STRING: the value
+ * is a string, given only where strings_ok is set. */
+enum dev_status { DEV_OK, DEV_ERROR, DEV_DEFER, DEV_OOM, DEV_STATE, DEV_STRING };
 
 /* Evaluates a value field: a number with suffix, or an expression. Reports
  * problems to d unless the status is DEV_DEFER or DEV_STATE. */

@@ -139,7 +139,7 @@ static FILE *open_input(struct elab *el, const char *path)
 
 /* Path of an included file: relative paths are taken from the folder of
  * the including file. */
-static char *include_path(struct elab *el, const char *given)
+static char *include_path_as_given(struct elab *el, const char *given)
 {
 	if (given[0] == '/' || !el->fr)
 		return arena_strdup(el->ar, given);
@@ -151,6 +151,18 @@ static char *include_path(struct elab *el, const char *given)
 		return NULL;
 	memcpy(p, el->fr->path, dl);
 	memcpy(p + dl, given, gl + 1);
+	return p;
+}
+
+static char *include_path(struct elab *el, const char *given)
+{
+	char *p = include_path_as_given(el, given);
+	/* a PSpice deck written on Windows names its includes ".\\x.lib":
+	 * the separator is the folder separator there */
+	if (p && elab_dialect(el) == DIALECT_PSPICE)
+		for (char *q = p; *q; q++)
+			if (*q == '\\')
+				*q = '/';
 	return p;
 }
 
@@ -184,7 +196,8 @@ static void read_stream(struct elab *el, FILE *in, struct file_read *fr,
 {
 	fr->outer = el->fr;
 	el->fr = fr;
-	struct parse_opts po = {fr->file, title, el->o.max_line_len, el->o.max_token_len};
+	struct parse_opts po = {fr->file, title, el->o.max_line_len, el->o.max_token_len,
+				dialect_caret_is_xor(elab_dialect(el))};
 	struct stat before, after;
 	int fd = fileno(in), known = fd >= 0 && fstat(fd, &before) == 0;
 	enum parse_status st = parse_stream(in, &po, el->scratch, el->d,
@@ -263,6 +276,25 @@ static void on_include(struct elab *el, const struct deck_card *c)
 	include_file(el, c, c->fields[0].text, NULL);
 }
 
+/* .lib with one word: PSpice reads the whole file it names, ngspice, HSPICE
+ * and Xyce open a section of that name. Undecided files take PSpice's
+ * reading when a file of that name is there and no section is being read. */
+static int lib_is_file(struct elab *el, const struct deck_card *c)
+{
+	enum dialect d = elab_dialect(el);
+	if (d == DIALECT_PSPICE)
+		return 1;
+	if (d != DIALECT_AUTO || el->fr->want || el->fr->section)
+		return 0;
+	char *path = include_path(el, c->fields[0].text);
+	FILE *in = path ? open_input(el, path) : NULL;
+	if (!path)
+		oom(el);
+	if (in)
+		fclose(in);
+	return in != NULL;
+}
+
 /* .lib FILE SECTION includes a section; .lib SECTION opens one. Returns 1
  * when the card was consumed by section bookkeeping. */
 static int on_lib(struct elab *el, const struct deck_card *c)
@@ -285,6 +317,11 @@ static int on_lib(struct elab *el, const struct deck_card *c)
 	if (c->nfields != 1) {
 		diag_add(el->d, DIAG_ERROR, "lib", c->loc,
 			 ".lib takes a file and a section, or one section name");
+		return 1;
+	}
+	if (lib_is_file(el, c)) {
+		if (fr->section != 2)
+			include_file(el, c, c->fields[0].text, NULL);
 		return 1;
 	}
 	if (fr->section) {
@@ -436,6 +473,21 @@ static void on_global(struct elab *el, const struct deck_card *c)
 	}
 }
 
+/* Xyce groups its options by package (.options TIMEINT reltol=...); no
+ * other simulator writes these words there (from memory), so an undecided
+ * file that does is read as Xyce's. */
+static void on_option(struct elab *el, const struct deck_card *c)
+{
+	static const char *const xyce[] = {"device", "timeint", "nonlin", "nonlin-tran",
+					   "linsol", "output", "restart", "hbint", "measure",
+					   "parser", "sensitivity", NULL};
+	if (c->nfields == 0 || c->fields[0].kind != FIELD_ATOM)
+		return;
+	for (int i = 0; xyce[i]; i++)
+		if (num_ieq(c->fields[0].text, c->fields[0].len, xyce[i]) && el->seen == DIALECT_AUTO)
+			el->seen = DIALECT_XYCE;
+}
+
 /* Cards inside a .subckt body are kept for expansion. */
 static void body_card(struct elab *el, const struct deck_card *c)
 {
@@ -449,6 +501,9 @@ static void body_card(struct elab *el, const struct deck_card *c)
 		return;
 	case CARD_GLOBAL:
 		on_global(el, c);
+		return;
+	case CARD_OPTION:
+		on_option(el, c);
 		return;
 	case CARD_END:
 		diag_add(el->d, DIAG_ERROR, "subckt", c->loc,
@@ -477,6 +532,7 @@ static void top_card(struct elab *el, const struct deck_card *c)
 	case CARD_MODEL: define_model(el, c); break;
 	case CARD_GLOBAL: on_global(el, c); break;
 	case CARD_INCLUDE: on_include(el, c); break;
+	case CARD_OPTION: on_option(el, c); break;
 	case CARD_ANNOT: add_annot(el, c->head, "", c->loc); break;
 	case CARD_TITLE:
 		if (!el->title && !(el->title = arena_strdup(el->ar, c->head)))
@@ -524,6 +580,7 @@ static void finish_top(struct elab *el)
 		diag_add(el->d, DIAG_ERROR, "subckt", d->loc,
 			 ".subckt '%s' has no .ends", d->name);
 	el->open = NULL;
+	scope_settle(el, &el->global);
 	for (size_t i = 0; i < el->ndeferred && !el->oom && !el->stop && !diag_full(el->d); i++)
 		scope_build(el, &el->global, (const struct deck_card *)el->deferred[i], 0);
 	scope_check_models(el);
@@ -580,8 +637,14 @@ enum elab_status elab_file(const char *path, const struct elab_opts *opts,
 		return ELAB_OOM;
 	}
 	size_t errors0 = diag_errors(d, file);
-	FILE *in = open_input(&el, path);
-	if (!in) {
+	el.dialect = el.o.dialect != DIALECT_AUTO ? el.o.dialect : dialect_of_path(path);
+	const char *foreign = dialect_foreign_language(path);
+	FILE *in = foreign ? NULL : open_input(&el, path);
+	if (foreign) {
+		struct diag_loc at = {file, 1, 1};
+		diag_add(d, DIAG_ERROR, "language", at,
+			 "a %s netlist by its name: headroom reads SPICE netlists only", foreign);
+	} else if (!in) {
 		diag_add(d, DIAG_ERROR, "io", loc0(file), "cannot read: %s",
 			 infile_error_text(errno));
 	} else {

@@ -10,6 +10,7 @@
 
 #include "deck.h"
 #include "device.h"
+#include "dialect.h"
 #include "elab.h"
 #include "smap.h"
 
@@ -45,6 +46,17 @@ struct scope {
 	const uint32_t *actual;      /* port node ids */
 	double mult;                 /* product of instance m= */
 	unsigned depth;
+	struct smap *pending;        /* .param assignments that named a
+					parameter not yet defined (struct
+					pending_param), or NULL */
+	struct pending_param *pfirst, *plast; /* the same, in file order */
+};
+
+/* A parameter's value: a number, or what stands in for one that is not. */
+enum param_kind { PARAM_NUMBER, PARAM_STRING, PARAM_STATE };
+struct param_val {
+	double v;
+	enum param_kind kind;
 };
 
 #define ELAB_MAX_COND 64 /* default .if nesting */
@@ -88,8 +100,19 @@ struct elab {
 	struct diag_loc root;        /* top-level card being expanded */
 	struct cond_frame *cond;     /* open .if blocks, innermost last */
 	size_t ncond, capcond;
+	enum dialect dialect;        /* chosen, or from the file's ending */
+	enum dialect seen;           /* from what the file holds (.options) */
+	unsigned resolving;          /* nesting of pending parameters being
+					resolved on lookup */
 	int oom, stop;
 };
+
+/* The reading in force: the one chosen or named by the ending, else the
+ * one the file's constructs showed, else DIALECT_AUTO. */
+static inline enum dialect elab_dialect(const struct elab *el)
+{
+	return el->dialect != DIALECT_AUTO ? el->dialect : el->seen;
+}
 
 /* Lookups both expansion (scope.c) and sizing (subsize.c) need; inline so
  * that neither module calls the other's. */
@@ -140,8 +163,14 @@ void scope_fill_model(struct elab *el, struct nl_model *m,
  * undefined parameter gives DEV_DEFER and an unknown model a placeholder. */
 enum dev_status scope_build(struct elab *el, struct scope *sc,
 			    const struct deck_card *c, int first_pass);
-/* Evaluates a .param card into sc. */
+/* Evaluates a .param card into sc. An assignment that names a parameter
+ * not yet defined is kept pending (the card must outlive the scope: a
+ * top-level card is copied) and resolved when it is looked up or at
+ * scope_settle. */
 void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c);
+/* Resolves the pending assignments of sc; those still undefined are
+ * reported. */
+void scope_settle(struct elab *el, struct scope *sc);
 /* Records a .func card. */
 void scope_func(struct elab *el, const struct deck_card *c);
 /* Reports models that were used but never defined. */

@@ -40,12 +40,19 @@ struct expr *expr_var(struct arena *ar, const char *name, uint32_t line,
 	return e;
 }
 
+struct expr *expr_str(struct arena *ar, uint32_t line, uint32_t col)
+{
+	return node(ar, EXPR_STR, line, col);
+}
+
 static uint32_t arity(enum expr_op op)
 {
 	switch (op) {
 	case EXPR_NEG:
 	case EXPR_NOT:
 		return 1;
+	case EXPR_STR:
+		return 0;
 	case EXPR_COND:
 		return 3;
 	default:
@@ -186,6 +193,12 @@ static enum expr_status fail(struct eval *st, enum expr_status s,
 	return s;
 }
 
+int expr_is_state_name(const char *name)
+{
+	return strchr(name, '(') || strcasecmp(name, "time") == 0 ||
+	       strcasecmp(name, "temper") == 0 || strcasecmp(name, "hertz") == 0;
+}
+
 static enum expr_status ev_var(struct eval *st, const struct expr *e,
 			       double *out)
 {
@@ -195,14 +208,18 @@ static enum expr_status ev_var(struct eval *st, const struct expr *e,
 				*out = s->argv[i];
 				return EXPR_OK;
 			}
-	if (st->env->lookup_var &&
-	    st->env->lookup_var(st->env->ud, e->name, out))
+	int known = st->env->lookup_var ? st->env->lookup_var(st->env->ud, e->name, out) : 0;
+	if (known == EXPR_VAR_STRING)
+		return fail(st, EXPR_STRING, e);
+	if (known == EXPR_VAR_STATE)
+		return fail(st, EXPR_STATE, e);
+	if (known)
 		return EXPR_OK;
 	if (strcasecmp(e->name, "pi") == 0) {
 		*out = 3.14159265358979323846;
 		return EXPR_OK;
 	}
-	return fail(st, EXPR_UNDEFINED, e);
+	return fail(st, expr_is_state_name(e->name) ? EXPR_STATE : EXPR_UNDEFINED, e);
 }
 
 static enum expr_status ev_args(struct eval *st, const struct expr *e,
@@ -226,6 +243,14 @@ static enum expr_status ev_user(struct eval *st, const struct expr *e,
 	return ev(&inner, fn->body, out);
 }
 
+/* HSPICE's statistical functions (agauss(nominal, variation, sigma) and
+ * the like): a Monte Carlo draw around the first argument. */
+static int is_statistical(const char *name)
+{
+	return strcasecmp(name, "agauss") == 0 || strcasecmp(name, "gauss") == 0 ||
+	       strcasecmp(name, "aunif") == 0 || strcasecmp(name, "unif") == 0;
+}
+
 static enum expr_status ev_call(struct eval *st, const struct expr *e,
 				double *out)
 {
@@ -247,6 +272,10 @@ static enum expr_status ev_call(struct eval *st, const struct expr *e,
 	if (e->nargs == 3 && (strcasecmp(e->name, "if") == 0 ||
 			      strcasecmp(e->name, "ternary_fcn") == 0)) {
 		*out = v[0] != 0 ? v[1] : v[2];
+		return EXPR_OK;
+	}
+	if (e->nargs >= 2 && is_statistical(e->name)) {
+		*out = v[0]; /* the nominal value: tolerances are the check's own */
 		return EXPR_OK;
 	}
 	if (e->nargs == 3 && strcasecmp(e->name, "limit") == 0) {
@@ -284,6 +313,7 @@ static double binary(enum expr_op op, double a, double b)
 	case EXPR_NE: return a != b;
 	case EXPR_AND: return (a != 0) && (b != 0);
 	case EXPR_OR: return (a != 0) || (b != 0);
+	case EXPR_XOR: return (a != 0) != (b != 0);
 	default: return NAN;
 	}
 }
@@ -329,6 +359,9 @@ static enum expr_status ev(struct eval *st, const struct expr *e, double *out)
 	case EXPR_CALL:
 		s = ev_call(st, e, out);
 		break;
+	case EXPR_STR:
+		s = fail(st, EXPR_STRING, e);
+		break;
 	default:
 		s = ev_ops(st, e, out);
 		break;
@@ -363,6 +396,16 @@ void expr_error_text(const struct expr_error *err, char *buf, unsigned n)
 		break;
 	case EXPR_DOMAIN:
 		snprintf(buf, n, "expression has no finite value (division by zero or out of domain)");
+		break;
+	case EXPR_STRING:
+		if (err->name)
+			snprintf(buf, n, "parameter '%s' holds a string where a number is needed", name);
+		else
+			snprintf(buf, n, "a string where a number is needed");
+		break;
+	case EXPR_STATE:
+		snprintf(buf, n, "'%s' depends on circuit voltages, currents or time; a constant is needed here",
+			 name);
 		break;
 	case EXPR_TOO_DEEP:
 		snprintf(buf, n, "expression nests deeper than %u levels (--max-expr-depth)",

@@ -129,6 +129,28 @@ static double mantissa_value(const char *t, size_t n)
 	return neg ? -v : v;
 }
 
+/* The letter of a letter code: R for units and L for milli (IEC 60062),
+ * else the SPICE scale suffix. */
+static double rkm_scale(const char *s, size_t n)
+{
+	char unit = lower(s[0]);
+	return unit == 'r' ? 1.0 : unit == 'l' && n == 1 ? 1e-3 : scale_of(s, n);
+}
+
+int num_letter_first(const char *s, size_t n, double *out)
+{
+	if (n < 2 || n > 60 || !strchr("rltgkmunpf", lower(s[0])))
+		return 0;
+	for (size_t i = 1; i < n; i++)
+		if (!is_digit(s[i]))
+			return 0;
+	char tmp[64] = "0.";
+	memcpy(tmp + 2, s + 1, n - 1);
+	tmp[n + 1] = '\0';
+	*out = strtod(tmp, NULL) * rkm_scale(s, 1);
+	return 1;
+}
+
 /* Letter code: whole digits, letters (scale, or R for units), digits
  * standing for the fraction, then optional unit letters. */
 static enum num_status parse_rkm(const char *s, size_t n, size_t i,
@@ -156,8 +178,7 @@ static enum num_status parse_rkm(const char *s, size_t n, size_t i,
 	tmp[i] = '.';
 	memcpy(tmp + i + 1, s + letters, j - letters);
 	tmp[i + 1 + (j - letters)] = '\0';
-	char unit = lower(s[i]);
-	double scale = unit == 'r' ? 1.0 : scale_of(s + i, letters - i);
+	double scale = rkm_scale(s + i, letters - i);
 	*out = strtod(tmp, NULL) * scale;
 	return NUM_RKM;
 }

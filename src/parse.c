@@ -23,6 +23,7 @@ enum parse_status parse_stream(FILE *in, const struct parse_opts *opts,
 	ctx.max_token_len = opts->max_token_len ? opts->max_token_len
 						: PARSE_DEFAULT_MAX_TOKEN;
 	ctx.raw_line = 1;
+	ctx.caret_xor = opts->caret_xor;
 	ctx.scratch = scratch;
 	ctx.mark = arena_mark(scratch);
 	ctx.diags = diags;

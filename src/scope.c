@@ -69,21 +69,65 @@ void scope_release(struct elab *el)
 
 /* ---- lookups ---- */
 
+/* A .param assignment waiting for a parameter defined after it. */
+struct pending_param {
+	const struct deck_card *card; /* outlives the scope */
+	uint32_t field;
+	struct scope *sc;
+	int state; /* 0 waiting, 1 being resolved, 2 settled */
+	struct pending_param *next, *prev;
+};
+
+static enum expr_status param_assign(struct elab *el, struct scope *sc,
+				     const struct deck_card *c, uint32_t i, int report);
+static void define_func(struct elab *el, const struct deck_field *head, const struct expr *body);
+
+/* A pending assignment of name in sc is resolved now: ngspice and PSpice
+ * read .param cards in the order of their dependences, not of the file.
+ * A cycle, or a chain deeper than 200, stays undefined. */
+static void resolve_pending(struct elab *el, const struct scope *sc, const char *name, size_t n)
+{
+	struct pending_param *p = sc->pending ? smap_get(sc->pending, name, n) : NULL;
+	if (!p || p->state != 0 || el->resolving >= 200)
+		return;
+	p->state = 1;
+	el->resolving++;
+	if (param_assign(el, p->sc, p->card, p->field, 0) == EXPR_UNDEFINED)
+		p->state = 0;
+	else
+		p->state = 2;
+	el->resolving--;
+}
+
+static int param_of(const struct cb *cb, const struct scope *s, const char *name, size_t n,
+		    double *v)
+{
+	const struct param_val *p = smap_get(s->params, name, n);
+	if (!p && s->pending) {
+		resolve_pending(cb->el, s, name, n);
+		p = smap_get(s->params, name, n);
+	}
+	if (!p)
+		return 0;
+	*v = p->v;
+	return p->kind == PARAM_STRING  ? EXPR_VAR_STRING
+	       : p->kind == PARAM_STATE ? EXPR_VAR_STATE
+					: 1;
+}
+
 static int lookup_var(void *ud, const char *name, double *v)
 {
 	const struct cb *cb = ud;
 	size_t n = strlen(name);
+	int global = 0;
 	for (const struct scope *s = cb->sc; s; s = s->caller) {
-		const double *p = smap_get(s->params, name, n);
-		if (p) {
-			*v = *p;
-			return 1;
-		}
+		int k = param_of(cb, s, name, n, v);
+		if (k)
+			return k;
+		global |= s == &cb->el->global;
 	}
-	const double *g = smap_get(cb->el->global.params, name, n);
-	if (g)
-		*v = *g;
-	return g != NULL;
+	int k = global ? 0 : param_of(cb, &cb->el->global, name, n, v);
+	return k ? k : dialect_constant(elab_dialect(cb->el), name, v);
 }
 
 static const struct expr_func *lookup_func(void *ud, const char *name)
@@ -343,9 +387,9 @@ void scope_check_models(struct elab *el)
 /* ---- parameters and functions ---- */
 
 static void set_param(struct elab *el, struct scope *sc, const char *key,
-		      size_t n, double v)
+		      size_t n, double v, enum param_kind kind)
 {
-	double *p = smap_get(sc->params, key, n);
+	struct param_val *p = smap_get(sc->params, key, n);
 	if (!p) {
 		p = arena_alloc(el->ar, sizeof *p);
 		char *k = p ? arena_strndup(el->ar, key, n) : NULL;
@@ -354,35 +398,103 @@ static void set_param(struct elab *el, struct scope *sc, const char *key,
 			return;
 		}
 	}
-	*p = v;
+	p->v = v;
+	p->kind = kind;
+}
+
+/* Field i of .param card c into sc. A string or a value of the circuit's
+ * state is kept as such (it is an error only where a number is used);
+ * an undefined name is reported only with report. */
+static enum expr_status param_assign(struct elab *el, struct scope *sc,
+				     const struct deck_card *c, uint32_t i, int report)
+{
+	const struct deck_field *f = &c->fields[i];
+	double v = NAN;
+	struct cb cb = {el, sc, 0, c->loc};
+	struct expr_error e = {0};
+	enum expr_status st = cb_eval(&cb, f->value->expr, &v, &e);
+	enum param_kind kind = st == EXPR_STRING ? PARAM_STRING : PARAM_STATE;
+	if (st == EXPR_OK || st == EXPR_STRING || st == EXPR_STATE) {
+		set_param(el, sc, f->text, f->len, v, st == EXPR_OK ? PARAM_NUMBER : kind);
+		return st;
+	}
+	if (st == EXPR_UNDEFINED && !report)
+		return st;
+	char msg[200];
+	expr_error_text(&e, msg, sizeof msg);
+	struct diag_loc l = {c->loc.file, e.line, e.col};
+	diag_add(el->d, DIAG_ERROR, "expression", l, "%s", msg);
+	return st;
+}
+
+static void add_pending(struct elab *el, struct scope *sc, const struct deck_card **c,
+			int copy, uint32_t i)
+{
+	if (copy && !(*c = deck_card_clone(el->ar, *c))) {
+		el->oom = 1;
+		return;
+	}
+	struct pending_param *p = arena_zalloc(el->ar, sizeof *p);
+	if (!sc->pending && !(sc->pending = sc == &el->global ? scope_map(el) : smap_create(&el->hook)))
+		el->oom = 1;
+	if (!p || el->oom) {
+		el->oom = 1;
+		return;
+	}
+	*p = (struct pending_param){*c, i, sc, 0, NULL, sc->plast};
+	const struct deck_field *f = &(*c)->fields[i];
+	if (!smap_put(sc->pending, f->text, f->len, p))
+		el->oom = 1;
+	if (sc->plast)
+		sc->plast->next = p;
+	else
+		sc->pfirst = p;
+	sc->plast = p;
 }
 
 void scope_params(struct elab *el, struct scope *sc, const struct deck_card *c)
 {
-	for (uint32_t i = 0; i < c->nfields; i++) {
-		const struct deck_field *f = &c->fields[i];
-		double v;
-		struct cb cb = {el, sc, 0, c->loc};
-		struct expr_error e = {0};
-		if (cb_eval(&cb, f->value->expr, &v, &e) != EXPR_OK) {
-			char msg[200];
-			expr_error_text(&e, msg, sizeof msg);
-			struct diag_loc l = {c->loc.file, e.line, e.col};
-			diag_add(el->d, DIAG_ERROR, "expression", l, "%s", msg);
-			continue;
+	/* a top-level card lives in the parser's scratch memory: a pending
+	 * assignment keeps a copy */
+	int copy = sc == &el->global;
+	for (uint32_t i = 0; i < c->nfields && !el->oom; i++)
+		if (c->fields[i].nargs)
+			define_func(el, &c->fields[i], c->fields[i].value->expr);
+		else if (param_assign(el, sc, c, i, 0) == EXPR_UNDEFINED) {
+			add_pending(el, sc, &c, copy, i);
+			copy = 0;
 		}
-		set_param(el, sc, f->text, f->len, v);
+}
+
+void scope_settle(struct elab *el, struct scope *sc)
+{
+	/* last first: a chain of forward references (each naming the next)
+	 * then resolves one link at a time, never deeper than one */
+	for (struct pending_param *p = sc->plast; p; p = p->prev) {
+		const struct deck_field *f = &p->card->fields[p->field];
+		resolve_pending(el, sc, f->text, f->len);
+	}
+	for (struct pending_param *p = sc->pfirst; p; p = p->next) {
+		if (p->state != 2) {
+			p->state = 2;
+			param_assign(el, sc, p->card, p->field, 1);
+		}
 	}
 }
 
 void scope_func(struct elab *el, const struct deck_card *c)
 {
-	const struct deck_field *head = &c->fields[0];
+	define_func(el, &c->fields[0], c->fields[1].expr);
+}
+
+/* A function: head is name(params...), from .func or HSPICE's .param. */
+static void define_func(struct elab *el, const struct deck_field *head, const struct expr *body)
+{
 	struct expr_func *fn = arena_zalloc(el->ar, sizeof *fn);
 	if (fn) {
 		fn->name = arena_strndup(el->ar, head->text, head->len);
 		fn->params = arena_alloc(el->ar, (head->nargs + 1) * sizeof *fn->params);
-		fn->body = expr_clone(el->ar, c->fields[1].expr);
+		fn->body = expr_clone(el->ar, body);
 	}
 	if (!fn || !fn->name || !fn->params || !fn->body) {
 		el->oom = 1;
@@ -419,6 +531,8 @@ static struct dev_scope dev_scope_of(struct cb *cb)
 	ds.defer_undefined = cb->first_pass;
 	ds.mult = cb->sc->mult;
 	ds.max_wave_values = 2 * cb->el->o.max_pwl_points;
+	ds.dialect = elab_dialect(cb->el);
+	ds.strings_ok = 0;
 	return ds;
 }
 
@@ -429,6 +543,13 @@ static struct diag_loc at_field(const struct deck_card *c,
 	return l;
 }
 
+static enum param_kind kind_of(enum dev_status st)
+{
+	if (st == DEV_STRING)
+		return PARAM_STRING;
+	return st == DEV_STATE ? PARAM_STATE : PARAM_NUMBER;
+}
+
 /* Instance parameters, evaluated in the caller's scope; m= multiplies. */
 static int instance_params(struct elab *el, struct scope *ns,
 			   const struct scope *caller,
@@ -436,6 +557,7 @@ static int instance_params(struct elab *el, struct scope *ns,
 {
 	struct cb cb = {el, caller, 0, c->loc};
 	struct dev_scope ds = dev_scope_of(&cb);
+	ds.strings_ok = 1;
 	for (uint32_t i = from; i < c->nfields; i++) {
 		const struct deck_field *f = &c->fields[i];
 		double v;
@@ -446,16 +568,17 @@ static int instance_params(struct elab *el, struct scope *ns,
 				 "expected name=value after the subcircuit name");
 			return 0;
 		}
-		if (devval_get(&ds, f->value, el->d, c->loc.file, &v) != DEV_OK)
+		enum dev_status st = devval_get(&ds, f->value, el->d, c->loc.file, &v);
+		if (st != DEV_OK && st != DEV_STRING && st != DEV_STATE)
 			return 0;
 		int declared = 0;
 		for (uint32_t j = 0; j < ns->def->ndefaults; j++)
 			declared |= num_iequal(ns->def->defaults[j].text,
 					       ns->def->defaults[j].len, f->text, f->len);
-		if (!declared && num_ieq(f->text, f->len, "m"))
+		if (!declared && num_ieq(f->text, f->len, "m") && st == DEV_OK)
 			ns->mult *= v;
 		else
-			set_param(el, ns, f->text, f->len, v);
+			set_param(el, ns, f->text, f->len, v, kind_of(st));
 	}
 	return 1;
 }
@@ -466,29 +589,42 @@ static int default_params(struct elab *el, struct scope *ns,
 {
 	struct cb cb = {el, ns, 0, c->loc};
 	struct dev_scope ds = dev_scope_of(&cb);
+	ds.strings_ok = 1;
 	for (uint32_t j = 0; j < ns->def->ndefaults; j++) {
 		const struct deck_field *f = &ns->def->defaults[j];
 		double v;
 		if (f->kind != FIELD_ASSIGN || smap_get(ns->params, f->text, f->len))
 			continue;
-		if (devval_get(&ds, f->value, el->d, ns->def->loc.file, &v) != DEV_OK)
+		enum dev_status st = devval_get(&ds, f->value, el->d, ns->def->loc.file, &v);
+		if (st != DEV_OK && st != DEV_STRING && st != DEV_STATE)
 			return 0;
-		set_param(el, ns, f->text, f->len, v);
+		set_param(el, ns, f->text, f->len, v, kind_of(st));
 	}
 	return 1;
 }
 
+/* .param and .func cards first (parameters are read in the order of their
+ * dependences), then the elements and annotations in order. */
+static void body_params(struct elab *el, struct scope *ns)
+{
+	for (size_t i = 0; i < ns->def->nbody && !el->oom; i++) {
+		const struct deck_card *b = (const struct deck_card *)ns->def->body[i];
+		if (b->kind == CARD_PARAM)
+			scope_params(el, ns, b);
+		else if (b->kind == CARD_FUNC)
+			scope_func(el, b);
+	}
+	scope_settle(el, ns);
+}
+
 static void expand_body(struct elab *el, struct scope *ns)
 {
+	body_params(el, ns);
 	/* past the error cap the file is given up, as when reading it */
 	for (size_t i = 0; i < ns->def->nbody && !el->oom && !el->stop && !diag_full(el->d); i++) {
 		const struct deck_card *b = (const struct deck_card *)ns->def->body[i];
 		if (b->kind == CARD_ELEMENT)
 			scope_build(el, ns, b, 0);
-		else if (b->kind == CARD_PARAM)
-			scope_params(el, ns, b);
-		else if (b->kind == CARD_FUNC)
-			scope_func(el, b);
 		else if (b->kind == CARD_ANNOT) {
 			struct elab_annot *a = arena_alloc(el->ar, sizeof *a);
 			if (!a) {
@@ -601,7 +737,7 @@ static enum dev_status expand(struct elab *el, struct scope *sc,
 	uint32_t *actual = arena_alloc(el->ar, (k ? k : 1) * sizeof *actual);
 	struct scope ns = {el, sc, def, smap_create(&el->hook),
 			   instance_prefix(el, sc, c), actual, sc->mult,
-			   sc->depth + 1};
+			   sc->depth + 1, NULL, NULL, NULL};
 	if (!actual || !ns.params || !ns.prefix) {
 		smap_destroy(ns.params);
 		el->oom = 1;
@@ -618,6 +754,7 @@ static enum dev_status expand(struct elab *el, struct scope *sc,
 		def->active = 0;
 	}
 	smap_destroy(ns.params);
+	smap_destroy(ns.pending);
 	return el->oom ? DEV_OOM : DEV_OK;
 }
 
@@ -667,20 +804,27 @@ static uint32_t find_part(struct elab *el, struct smap *paths,
 	return v ? (uint32_t)(v - 1) : NL_NONE;
 }
 
+/* The names a part gives of others: K its inductors, F and H their
+ * controlling source. A behavioural K (more inductors, a core) has its
+ * names checked but is not linked: the analysis knows pairs only. */
 static void link_part(struct elab *el, struct smap *paths, struct nl_part *p)
 {
-	int n = p->kind == NL_K ? 2 : 1;
-	for (int i = 0; i < n; i++) {
-		uint32_t q = find_part(el, paths, p->path, p->ext->ctrl[i]);
-		enum nl_kind want = p->kind == NL_K ? NL_L : NL_V;
+	int k = p->kind == NL_K;
+	uint32_t n = k ? 2 : 1;
+	if (k && p->ext->coupled)
+		n = p->ext->ncoupled;
+	enum nl_kind want = k ? NL_L : NL_V;
+	for (uint32_t i = 0; i < n; i++) {
+		const char *name = k && p->ext->coupled ? p->ext->coupled[i] : p->ext->ctrl[i];
+		uint32_t q = find_part(el, paths, p->path, name);
 		if (q == NL_NONE || nl_part_at(el->c, q)->kind != want) {
 			diag_add(el->d, DIAG_ERROR, "element", nl_part_loc(p),
 				 "'%s' names '%s', which is not %s in the same circuit",
-				 p->path, p->ext->ctrl[i],
-				 want == NL_L ? "an inductor" : "a voltage source");
+				 p->path, name, want == NL_L ? "an inductor" : "a voltage source");
 			continue;
 		}
-		p->ext->ctrl_part[i] = q;
+		if (i < 2 && !p->ext->behavioural)
+			p->ext->ctrl_part[i] = q;
 	}
 }
 
@@ -702,7 +846,7 @@ void scope_link_controls(struct elab *el)
 	}
 	for (size_t i = 0; paths && !el->oom && i < n; i++) {
 		struct nl_part *p = nl_part_mut(el->c, i);
-		if (p->ext && p->ext->ctrl[0] && !p->ext->behavioural)
+		if (p->ext && p->ext->ctrl[0] && (!p->ext->behavioural || p->kind == NL_K))
 			link_part(el, paths, p);
 	}
 }

@@ -291,7 +291,68 @@ static void ws(struct jr *j)
 	}
 }
 
-/* A string: returns an arena copy (escapes decoded, \u kept as '?'). */
+/* Four hex digits at j->i (advanced past them), or -1. */
+static long hex4(struct jr *j)
+{
+	long v = 0;
+	if (j->i + 4 > j->n)
+		return -1;
+	for (int k = 0; k < 4; k++) {
+		char c = j->s[j->i + (size_t)k];
+		if (!isxdigit((unsigned char)c))
+			return -1;
+		v = v * 16 + (isdigit((unsigned char)c) ? c - '0' : (c | 32) - 'a' + 10);
+	}
+	j->i += 4;
+	return v;
+}
+
+/* The \u escape after "\u" (and the low half of a surrogate pair after
+ * it) as UTF-8 into out: a report rewritten by a tool that escapes every
+ * non-ASCII character (Python's json.dump does by default) must still
+ * name the same files and parts. Returns the bytes written, 0 on an error
+ * (reported). The UTF-8 is never longer than the escape. */
+static size_t junicode(struct jr *j, char *out)
+{
+	size_t at = j->i - 2; /* the backslash: where an error points */
+	long u = hex4(j);
+	if (u >= 0xD800 && u < 0xDC00 && j->i + 6 <= j->n && j->s[j->i] == '\\' &&
+	    j->s[j->i + 1] == 'u') {
+		j->i += 2;
+		long lo = hex4(j);
+		u = lo >= 0xDC00 && lo < 0xE000 ? 0x10000 + ((u - 0xD800) << 10) + (lo - 0xDC00) : -2;
+	}
+	if (u == -1 || u == 0 || (u >= 0xD800 && u < 0xE000) || u == -2) {
+		j->i = at;
+		jerr(j, u == -1 ? "\\u needs four hex digits"
+			: u == 0 ? "\\u0000 in a string"
+				 : "\\u escape names half of a surrogate pair");
+		return 0;
+	}
+	unsigned long c = (unsigned long)u;
+	if (c < 0x80) {
+		out[0] = (char)c;
+		return 1;
+	}
+	if (c < 0x800) {
+		out[0] = (char)(0xC0 | (c >> 6));
+		out[1] = (char)(0x80 | (c & 0x3F));
+		return 2;
+	}
+	if (c < 0x10000) {
+		out[0] = (char)(0xE0 | (c >> 12));
+		out[1] = (char)(0x80 | ((c >> 6) & 0x3F));
+		out[2] = (char)(0x80 | (c & 0x3F));
+		return 3;
+	}
+	out[0] = (char)(0xF0 | (c >> 18));
+	out[1] = (char)(0x80 | ((c >> 12) & 0x3F));
+	out[2] = (char)(0x80 | ((c >> 6) & 0x3F));
+	out[3] = (char)(0x80 | (c & 0x3F));
+	return 4;
+}
+
+/* A string: returns an arena copy (escapes decoded, \u to UTF-8). */
 static const char *jstring(struct jr *j)
 {
 	if (j->i >= j->n || j->s[j->i] != '"') {
@@ -318,15 +379,11 @@ static const char *jstring(struct jr *j)
 			char e = j->s[j->i++];
 			c = e == 'n' ? '\n' : e == 't' ? '\t' : e == 'r' ? '\r' : e == 'b' ? '\b' : e == 'f' ? '\f' : e;
 			if (e == 'u') {
-				if (j->i + 4 > j->n || !isxdigit((unsigned char)j->s[j->i]) ||
-				    !isxdigit((unsigned char)j->s[j->i + 1]) ||
-				    !isxdigit((unsigned char)j->s[j->i + 2]) ||
-				    !isxdigit((unsigned char)j->s[j->i + 3])) {
-					jerr(j, "\\u needs four hex digits");
+				size_t w = junicode(j, out + k);
+				if (!w)
 					return NULL;
-				}
-				j->i += 4;
-				c = '?';
+				k += w;
+				continue;
 			}
 		}
 		out[k++] = c;

@@ -167,6 +167,26 @@ static enum dev_status skip_other_wave(struct wave_rd *r,
 	return DEV_OK;
 }
 
+/* ngspice's "file NAME [snd(...)]": samples read from a file (a sound
+ * file) during the simulation. What they hold is not read here: the
+ * source is an unknown waveform, like the ones above. */
+static enum dev_status skip_file_wave(struct wave_rd *r, const struct deck_field *f)
+{
+	const struct deck_card *c = r->card;
+	if (r->i + 1 >= c->nfields || c->fields[r->i + 1].kind != FIELD_ATOM)
+		return err(r, f, "'file' needs the name of the file the samples come from");
+	struct diag_loc l = {c->loc.file, f->line, f->col};
+	diag_add(r->d, DIAG_WARNING, "source", l,
+		 "samples read from file '%s' during the simulation are not known here: "
+		 "only the DC value is used",
+		 c->fields[r->i + 1].text);
+	r->src->unknown = 1;
+	r->i += 2;
+	if (r->i < c->nfields && c->fields[r->i].kind == FIELD_CALL)
+		r->i++;
+	return DEV_OK;
+}
+
 static enum dev_status on_call(struct wave_rd *r, const struct deck_field *f)
 {
 	enum nl_wave w = wave_kind(f->text, f->len);
@@ -262,6 +282,8 @@ static enum dev_status step(struct wave_rd *r)
 		return on_bare_wave(r, w);
 	if (is_other_wave(f))
 		return skip_other_wave(r, f);
+	if (deck_atom_is(f, "file"))
+		return skip_file_wave(r, f);
 	r->i++;
 	if (f->kind == FIELD_CALL)
 		return on_call(r, f);

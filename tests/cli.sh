@@ -616,7 +616,7 @@ export -f skipped_as checked_as
 run check --format json --fail-on never "$files"
 cp "$tmp/out" "$tmp/walk.json"
 check "a folder: a file with another ending is skipped, with the reason" skipped_as "$tmp/walk.json" notes.txt "name does not end in a netlist extension (see --netlist-ext)"
-check "a folder: a .sim file is skipped by default" skipped_as "$tmp/walk.json" pump.sim "name does not end in a netlist extension (see --netlist-ext)"
+check "a folder: a .sim file is skipped by default, as another simulator's" skipped_as "$tmp/walk.json" pump.sim "another simulator's netlist by its name: checked when --netlist-ext adds its ending (--dialect follows the ending)"
 check "a folder: a hidden file is skipped as such" skipped_as "$tmp/walk.json" .hidden.cir "hidden file"
 check "a folder: the netlists are checked, one with errors not checked" bash -c "checked_as '$tmp/walk.json' good.cir checked && checked_as '$tmp/walk.json' dc_only.sp checked && checked_as '$tmp/walk.json' broken.cir not_checked"
 run check --format json --fail-on never --netlist-ext +.sim "$files"
@@ -629,13 +629,19 @@ check "and the default endings are then skipped" skipped_as "$tmp/walk3.json" go
 mkdir -p "$tmp/walk/.svn" "$tmp/walk/sub"
 cp "$files/good.cir" "$tmp/walk/.svn/kept.cir"
 cp "$files/good.cir" "$tmp/walk/sub/run.cir.out"
+cp "$files/good.cir" "$tmp/walk/sub/run.cir.pspice"
+cp "$files/good.cir" "$tmp/walk/sub/models.lib"
+cp "$files/good.cir" "$tmp/walk/sub/block.scs"
 run check --format json --fail-on never "$tmp/walk"
 cp "$tmp/out" "$tmp/walk4.json"
+check "a library ending is skipped with its own reason" skipped_as "$tmp/walk4.json" models.lib "a library by its name: read through the .include and .lib cards of the netlists that use it (see --netlist-ext)"
+check "a Spectre ending is skipped as not SPICE" skipped_as "$tmp/walk4.json" block.scs "a Spectre netlist by its name: headroom reads SPICE netlists only"
+check "another simulator's ending (.cir.pspice) is skipped by default" skipped_as "$tmp/walk4.json" run.cir.pspice "another simulator's netlist by its name: checked when --netlist-ext adds its ending (--dialect follows the ending)"
 check "a hidden folder is one skipped entry, not walked" bash -c "grep -q 'kept.cir' '$tmp/walk4.json' && exit 1; python3 -c \"import json; d=json.load(open('$tmp/walk4.json')); assert [k['reason'] for k in d['skipped'] if k['path'].endswith('/.svn')] == ['hidden folder: not walked']\""
-check "a .cir.out file is skipped by default" skipped_as "$tmp/walk4.json" run.cir.out "name does not end in a netlist extension (see --netlist-ext)"
-run check --format json --fail-on never --netlist-ext +.cir.out "$tmp/walk"
+check "a .cir.out file (a schematic converter's deck) is checked by default" checked_as "$tmp/walk4.json" run.cir.out checked
+run check --format json --fail-on never --netlist-ext +.cir.pspice "$tmp/walk"
 cp "$tmp/out" "$tmp/walk5.json"
-check "--netlist-ext takes an ending with two dots (+.cir.out)" checked_as "$tmp/walk5.json" run.cir.out checked
+check "--netlist-ext takes an ending with two dots (+.cir.pspice)" checked_as "$tmp/walk5.json" run.cir.pspice checked
 deep=$tmp/deep
 for i in $(seq 1 34); do deep=$deep/d; done
 mkdir -p "$deep"
@@ -654,7 +660,7 @@ for bad in cir "" + ".cir,,.sp" ".a/b" "."; do
 done
 run --help
 check "help lists --netlist-ext with the default endings" grep -q -- "--netlist-ext LIST .*" "$tmp/out"
-check "help gives the default endings" grep -q "(default .cir,.sp,.spice,.net,.ckt,.cdl)" "$tmp/out"
+check "help gives the default endings" grep -q "(default .cir,.sp,.spice,.net,.ckt,.cdl,.cir.out,.spi,.deck)" "$tmp/out"
 if [ "$(id -u)" -ne 0 ]; then
 	mkdir -p "$tmp/locked/inner"
 	chmod 000 "$tmp/locked/inner"
@@ -670,6 +676,51 @@ fi
 printf 'dos file\r\nV1 a 0 sin(0 5 1k)\r\nC1 a b 1u\r\nD1 0 b dm\r\n.model dm d\r\n\032' > "$tmp/ctrlz.cir"
 run parts "$tmp/ctrlz.cir"
 check "a Ctrl-Z line is the DOS end-of-file mark, not an opaque part" bash -c "test $rc -eq 0 && ! grep -q opaque '$tmp/out' && ! grep -q 'unknown element' '$tmp/err' && grep -q '^D1 ' '$tmp/out'"
+
+abs_bin0=$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")
+# Dialects (docs/netlist.md, "Dialects"): --dialect, the choice from the
+# ending, from the file's .options, and the configuration key.
+dia=$tmp/dialect
+mkdir -p "$dia"
+printf 'rkm\nV1 1 0 5\nR1 1 0 R47\n.end\n' > "$dia/rkm.cir"
+cp "$dia/rkm.cir" "$dia/rkm.cir.pspice"
+printf 'thermal\nV1 1 0 {100*vt}\nR1 1 0 1k\n.end\n' > "$dia/vt.cir"
+run parts "$dia/rkm.cir"
+check "dialect auto: R47 where a value goes is 0.47 ohm (ngspice's letter code)" bash -c "test $rc -eq 0 && grep -q '^R1 .*470m ohm' '$tmp/out'"
+run parts "$dia/rkm.cir.pspice"
+check "dialect from the ending (.cir.pspice): R47 names a model, undefined" bash -c "test $rc -eq 2 && grep -q \"rkm.cir.pspice:3:8: error: undefined model 'R47'\" '$tmp/err'"
+run parts --dialect ngspice "$dia/rkm.cir.pspice"
+check "--dialect overrides the ending" test $rc -eq 0
+run parts --dialect=pspice "$dia/rkm.cir"
+check "--dialect=NAME: pspice reads R47 as a model name" bash -c "test $rc -eq 2 && grep -q \"undefined model 'R47'\" '$tmp/err'"
+run parts "$dia/vt.cir"
+check "dialect auto: VT is the thermal voltage" bash -c "test $rc -eq 0 && grep -q '^V1 .* dc 2.586 V' '$tmp/out'"
+run parts --dialect ngspice "$dia/vt.cir"
+check "--dialect ngspice: VT is not defined (ngspice rejects it)" bash -c "test $rc -eq 2 && grep -q \"vt.cir:2:13: error: undefined parameter 'vt'\" '$tmp/err'"
+run parts --dialect pspyce "$dia/vt.cir"
+check "--dialect with an unknown name is a usage error with a did-you-mean" bash -c "test $rc -eq 2 && grep -qx \"headroom: --dialect takes auto, ngspice, pspice, hspice, xyce, ltspice, not 'pspyce'; did you mean 'pspice'?\" '$tmp/err'"
+printf 'xyce device\nV1 1 0 1\nYPDE dev1 1 0 pdem\n.model pdem zod level=2\n.end\n' > "$dia/y.cir"
+run parts "$dia/y.cir"
+check "dialect auto: a Y card's nodes run to its model (ngspice's line: every word a node)" bash -c "test $rc -eq 0 && grep -q '^YPDE .*dev1' '$tmp/out'"
+printf '.options timeint reltol=1e-3\n.end\n' >> "$dia/y.cir"
+sed -i '$!{/^\.end$/d}' "$dia/y.cir"
+run parts "$dia/y.cir"
+check "dialect auto: Xyce's .options packages make the Y card's first word its name" bash -c "test $rc -eq 0 && grep '^YPDE ' '$tmp/out' | grep -vq dev1"
+run check --format json "$dia/block.scs" 2>/dev/null
+printf 'simulator lang=spectre\nr1 (a 0) resistor r=1k\n' > "$dia/block.scs"
+run check --fail-on never "$dia/block.scs"
+check "a Spectre file named on the command line: a located error, not SPICE" grep -q "block.scs:1:1: error: a Spectre netlist by its name: headroom reads SPICE netlists only \[language\]" "$tmp/err"
+mkdir -p "$dia/proj/.git"
+cp "$dia/vt.cir" "$dia/proj/vt.cir"
+printf '[check]\ndialect = ngspice\n' > "$dia/proj/headroom.ini"
+(cd "$dia/proj" && "$abs_bin0" check --fail-on never vt.cir) > "$tmp/out" 2> "$tmp/err"
+check "config: dialect = ngspice under [check] is the option's" bash -c "grep -q \"vt.cir:2:13: error: undefined parameter 'vt'\" '$tmp/err'"
+(cd "$dia/proj" && "$abs_bin0" check --fail-on never --dialect auto vt.cir) > "$tmp/out" 2> "$tmp/err"
+rc=$?
+check "config: the command line's --dialect overrides the key" bash -c "test $rc -eq 0 && ! grep -q 'error' '$tmp/err'"
+printf '[check]\ndialect = hspise\n' > "$dia/proj/headroom.ini"
+(cd "$dia/proj" && "$abs_bin0" check vt.cir) > "$tmp/out" 2> "$tmp/err"
+check "config: a bad dialect is located, with a did-you-mean" grep -qx "headroom.ini:2:11: error: dialect takes auto, ngspice, pspice, hspice, xyce, ltspice, not 'hspise'; did you mean 'hspice'? \[config\]" "$tmp/err"
 
 # The project configuration (headroom.ini): found from the current folder
 # up to a repository's root; paths from its own folder; the command line

@@ -10,6 +10,7 @@
 #   bomb    40 nested definitions of two instances each, 2^40 parts (was:
 #           refused at the 10-million-part cap after 44 s and 6.4 GB)
 #   nest    the same nest 10 deep, 2^10 parts: a legitimate size still reads
+#   params  100,000 .param cards each naming the next (was: 6.9 s)
 set -u
 bin=${HEADROOM:-build/headroom}
 pass=0 fail=0
@@ -86,6 +87,9 @@ def nest(levels, title):
     return "\n".join(s + [f"X1 1 0 s{levels}", "V1 1 0 1", ".end"]) + "\n"
 open(f"{d}/bomb.cir", "w").write(nest(40, "expansion bomb"))
 open(f"{d}/nest.cir", "w").write(nest(10, "legitimate nest"))
+params = ["forward parameters"] + [f".param p{i}={{p{i + 1}+1}}" for i in range(100000)]
+params += [".param p100000=0", "V1 1 0 1", "R1 1 0 {p0+1}", ".end"]
+open(f"{d}/params.cir", "w").write("\n".join(params) + "\n")
 EOF
 
 # 1. A series chain: every node but the first follows its neighbour's AC,
@@ -149,6 +153,14 @@ check "nest: 1025 parts" grep -q 'nest.cir: 1025 parts' "$tmp/nest.out"
 run nest-limit parts --format count --max-parts 1024 "$tmp/nest.cir"
 check "nest: one part over --max-parts is refused at its card" bash -c \
 	"test $rc -eq 2 && grep -q 'nest.cir:45:1: error: X1 expands to 1024 parts; with the 1 already in the circuit that passes the limit of 1024' '$tmp/nest-limit.err'"
+
+# 6. 100,000 .param cards, each naming the one after it (read in the order
+# of their dependences: was 6.9 s, each resolved 200 links deep)
+run params parts --format csv "$tmp/params.cir"
+check "params: a chain of forward references reads (exit 0, R1 = 100001)" bash -c \
+	"test $rc -eq 0 && grep -q '^R1,resistor,1 0,100001,ohm,' '$tmp/params.out'"
+check "params: under 3 s" awk -v s="$secs" 'BEGIN { exit !(s < 3) }'
+check "params: within the memory limit" small_enough
 
 echo "hostile: $pass passed, $fail failed"
 [ $fail -eq 0 ]

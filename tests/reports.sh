@@ -114,7 +114,8 @@ assert r['diags'] == [
     'tests/data/files/broken.cir:7:18: error: syntax error, unexpected end of line',
     \"tests/data/files/dc_only.sp:14:16: warning: waveform 'TRNOISE' is not understood: only its DC value is used\"], r['diags']
 other = 'name does not end in a netlist extension (see --netlist-ext)'
-assert r['skipped'] == [['tests/data/files/.hidden.cir', 'hidden file'], ['tests/data/files/notes.txt', other], ['tests/data/files/pump.sim', other]], r['skipped']
+sim = \"another simulator's netlist by its name: checked when --netlist-ext adds its ending (--dialect follows the ending)\"
+assert r['skipped'] == [['tests/data/files/.hidden.cir', 'hidden file'], ['tests/data/files/notes.txt', other], ['tests/data/files/pump.sim', sim]], r['skipped']
 assert r['not_checked'] == ['tests/data/files/broken.cir']
 "
 for fmt in sarif junit csv html text; do
@@ -158,6 +159,22 @@ sed -i "s|\"path\": \"$ex/sensor_restorer.cir\"|\"path\": \"$tmp/changed/sensor_
 "$bin" check --baseline "$tmp/base2.json" "$tmp/changed/sensor_restorer.cir" > "$tmp/new.txt" 2>/dev/null
 rc=$?
 check "after a change only the new finding is reported" bash -c "test $rc -eq 1 && grep -q 'cap-overvoltage' '$tmp/new.txt' && ! grep -q 'cap-derating' '$tmp/new.txt'"
+# a baseline rewritten by a tool that escapes every non-ASCII character
+# (Python's json.dump) names the same files: \u escapes are decoded
+mkdir -p "$tmp/uni"
+cp "$ex/mains_doubler.cir" "$tmp/uni/doubleur_µ.cir"
+"$bin" check --fail-on never --write-baseline "$tmp/uni/base.json" "$tmp/uni/doubleur_µ.cir" >/dev/null 2>&1
+python3 -c "import json,sys; json.dump(json.load(open(sys.argv[1])), open(sys.argv[2], 'w'))" "$tmp/uni/base.json" "$tmp/uni/ascii.json"
+"$bin" check --format json --baseline "$tmp/uni/ascii.json" "$tmp/uni/doubleur_µ.cir" > "$tmp/uni/again.json" 2>/dev/null
+check "a baseline with \\u escapes (doubleur_\\u00b5.cir) hides its findings" python3 -c "
+import json,sys
+assert '\\\\u00b5' in open(sys.argv[2]).read()
+d=json.load(open(sys.argv[1]))
+assert d['summary']['baseline_hidden'] > 0 and sum(len(f['findings']) for f in d['files']) == 0, d['summary']
+" "$tmp/uni/again.json" "$tmp/uni/ascii.json"
+printf '{"files": [{"path": "a\\ud800.cir", "findings": []}]}' > "$tmp/uni/half.json"
+"$bin" check --baseline "$tmp/uni/half.json" "$tmp/uni/doubleur_µ.cir" >/dev/null 2> "$tmp/uni/half.err"
+check "half a surrogate pair in a baseline is a located error" grep -q "half.json:1:23: error: .u escape names half of a surrogate pair \[baseline\]" "$tmp/uni/half.err"
 # a baseline written from one folder and used from another: files are
 # matched by real path, and every summary says how many findings it hid
 mkdir -p "$tmp/proj/dir" "$tmp/proj/ci"
@@ -293,22 +310,27 @@ if [ -d "$corpus" ]; then
 		--report html="$tmp/corpus.html" --report text="$tmp/corpus.text" "$corpus" > "$tmp/corpus.json" 2>/dev/null
 	echo "reports: the corpus in five more formats, one run: $(( $(date +%s) - start )) s"
 	check "corpus: the JSON of the run with five more reports is the -j 4 run's" cmp -s "$tmp/j4.json" "$tmp/corpus.json"
-	check "corpus: 210 checked, and the files not checked are docs/netlist.md's table, each with its first error" python3 -c "
-import json,re,sys
+	check "corpus: 267 checked, 116 skipped by their endings, and the files not checked are docs/netlist.md's table, each with its first error, each a fault of the file" python3 -c "
+import collections,json,re,sys
 d=json.load(open(sys.argv[1])); root=sys.argv[2].rstrip('/')+'/'
 got={f['path'][len(root):]: '%d:%d | %s' % (f['errors'][0]['line'], f['errors'][0]['col'], f['errors'][0]['message'])
      for f in d['files'] if f['status'] != 'checked'}
 doc=open(sys.argv[3]).read().split('## The third-party corpus: files not checked')[1]
 want={m.group(1): '%s | %s' % (m.group(2), m.group(3).replace(chr(92) + '|', '|'))
       for m in re.finditer(r'(?m)^\| \x60([^\x60]+)\x60 \| (\d+:\d+) \| (.*?) \| (?:fault|dialect): ', doc)}
-assert d['summary']['checked'] == 210, d['summary']
+assert d['summary']['checked'] == 267, d['summary']
+assert d['summary']['skipped'] == 116, d['summary']
+assert 'dialect:' not in doc.split('| file |')[1], 'a file left unchecked for another simulator\\'s construct'
+reasons = collections.Counter(k['reason'].split(':')[0] for k in d['skipped'])
+assert reasons == {'a library by its name': 65, \"another simulator's netlist by its name\": 44,
+                   'a Spectre netlist by its name': 2, 'name does not end in a netlist extension (see --netlist-ext)': 5}, reasons
 assert got == want, (sorted(set(got) ^ set(want)), [k for k in got if k in want and got[k] != want[k]])
 " "$tmp/j4.json" "$corpus" "$root/docs/netlist.md"
 	check "over the corpus seen = the entries a walk of our own finds, netlists = checked + not checked" python3 -c "
 import json,os,sys
 d=json.load(open(sys.argv[1]))['summary']
 seen=netlists=0
-ends=('.cir', '.sp', '.spice', '.net', '.ckt', '.cdl')
+ends=('.cir', '.sp', '.spice', '.net', '.ckt', '.cdl', '.cir.out', '.spi', '.deck')
 for root, dirs, files in os.walk(sys.argv[2]):
     seen += sum(1 for x in dirs if x.startswith('.'))
     dirs[:] = [x for x in dirs if not x.startswith('.')]

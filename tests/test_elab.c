@@ -390,6 +390,139 @@ static void test_file_changed_while_read(void **state)
 }
 
 /* Adjacency: every pin of every part appears under its node. */
+/* Constructs of other simulators and of ngspice's own that the reader
+ * takes (docs/netlist.md, "Dialects"); each assertion fails on a reader
+ * without the construct. */
+static void test_dialect_params(void **state)
+{
+	(void)state;
+	struct run r;
+	/* a parameter defined after the one that uses it, at top level and in
+	 * a subcircuit; VT, the thermal voltage a PSpice model uses undeclared */
+	run_text(&r, "t\n.param a={b*2}\n.param b=3\nR1 x 0 {a}\n"
+		     ".subckt s p q\n.param r2={r1*2}\n.param r1=5\nR1 p q {r2}\n.ends\nX1 x 0 s\n"
+		     "R2 x 0 {1/vt}\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "R1")->value, 6);
+	assert_close(find_part(&r, "X1.R1")->value, 10);
+	assert_close(find_part(&r, "R2")->value, 1.602176634e-19 / (1.380649e-23 * 300.15));
+	run_free(&r);
+	/* ngspice does not define VT; a cycle stays undefined */
+	run_dialect(&r, DIALECT_NGSPICE, "t\nR2 x 0 {1/vt}\n.param c1={c2}\n.param c2={c1}\n");
+	assert_string_equal(r.diags, "top.cir:3:12: error: undefined parameter 'c2' [expression]\n"
+				     "top.cir:4:12: error: undefined parameter 'c1' [expression]\n"
+				     "top.cir:2:11: error: undefined parameter 'vt' [expression]\n");
+	run_free(&r);
+	/* strings pass to models and subcircuits; a value of the circuit's
+	 * state makes an R behavioural and is an error in a source */
+	run_text(&r, "t\n.param tv=\"0101\" both=tv{tv}\n.model lut d_lut table_values=tv\n"
+		     "A1 [a b] y lut\nX1 a y sp t=both\n.subckt sp p q t=\"00\"\n"
+		     ".model m2 d_lut table_values=t\nA2 [p] q m2\n.ends\n"
+		     ".param rv={1k+v(3)} pt={time}\nR1 3 0 {rv}\nB1 2 0 V={v(1)*pt}\n"
+		     "R2 a 0 {tv}\nV1 1 0 {rv}\n");
+	assert_string_equal(r.diags,
+			    "top.cir:13:9: error: parameter 'tv' holds a string where a number is needed [expression]\n"
+			    "top.cir:14:8: error: a source value may not depend on circuit voltages, currents or time [source]\n");
+	assert_int_equal(find_part(&r, "R1")->ext->behavioural, 1);
+	run_free(&r);
+}
+
+static void test_dialect_elements(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\nB1 9 0 V={POLY(2) V(3) v(4) 0 .5 -.5}\nB2 7 9 I={POLY I(V1) 300u 1}\n"
+		     "V1 1 0 1\nE1 2 0 VALUE { IF( ~(V(1) >= 0), 0, 1) }\n"
+		     "E2 o 0 nand(2) a 0 b 0 (1,0) (2,3)\n"
+		     "L1 a 0 1m\nL2 b 0 1m\nL3 c 0 1m\nK1 L1 L2 L3 0.9\nK2 L1 L2 1 core\n"
+		     ".model core core(ms=1)\nK3 L1 L9 0.5\nK4 L1 L2 0.5\n"
+		     "V2 4 0 file sound.wav snd(0 1)\nR1 1 0 R47\nR2 1 0 L5\nR3 1 0 {1 + (1^1)}\n");
+	assert_string_equal(r.diags,
+			    "top.cir:15:8: warning: samples read from file 'sound.wav' during the simulation are not known here: only the DC value is used [source]\n"
+			    "top.cir:13:1: error: 'K3' names 'L9', which is not an inductor in the same circuit [element]\n");
+	assert_int_equal(find_part(&r, "E1")->ext->behavioural, 1);
+	assert_int_equal(find_part(&r, "E2")->ext->behavioural, 1);
+	assert_int_equal(find_part(&r, "K1")->ext->behavioural, 1);
+	assert_int_equal(find_part(&r, "K1")->ext->ncoupled, 3);
+	assert_int_equal(find_part(&r, "K2")->ext->behavioural, 1);
+	assert_string_equal(find_part(&r, "K2")->model->name, "core");
+	assert_int_equal(find_part(&r, "K4")->ext->behavioural, 0);
+	assert_int_not_equal(find_part(&r, "K4")->ext->ctrl_part[1], NL_NONE);
+	assert_int_equal(find_part(&r, "V2")->ext->src->unknown, 1);
+	assert_close(find_part(&r, "R1")->value, 0.47);
+	assert_close(find_part(&r, "R2")->value, 0.5e-3);
+	assert_close(find_part(&r, "R3")->value, 2);
+	run_free(&r);
+	/* a model named like a letter code is the model; PSpice's reading has
+	 * no letter-first codes; LTspice reads ^ as exclusive or */
+	run_text(&r, "t\nR1 1 0 R47\n.model R47 r\n.param p1=10\nR2 1 0 P1\nR3 1 0 rval\n"
+		     ".param rval=5\n");
+	assert_string_equal(r.diags, "");
+	assert_string_equal(find_part(&r, "R1")->model->name, "R47");
+	assert_close(find_part(&r, "R2")->value, 10);
+	assert_close(find_part(&r, "R3")->value, 5);
+	run_free(&r);
+	run_dialect(&r, DIALECT_PSPICE, "t\nR1 1 0 R47\n");
+	assert_string_equal(r.diags, "top.cir:2:8: error: undefined model 'R47' [element]\n");
+	run_free(&r);
+	run_dialect(&r, DIALECT_LTSPICE, "t\nR3 1 0 {1 + (1^1)}\nR4 1 0 4k7\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "R3")->value, 1);
+	run_free(&r);
+}
+
+static void test_dialect_reading(void **state)
+{
+	(void)state;
+	struct run r;
+	/* Y: nodes run to the model; Xyce's .options packages make the first
+	 * word the device's name */
+	run_text(&r, "t\nYPDE dev 1 2 3 pdem node={name = a, b}\n.model pdem zod level=2\n"
+		     ".options timeint reltol=1e-3\n");
+	assert_string_equal(r.diags, "");
+	assert_int_equal(find_part(&r, "YPDE")->npins, 3);
+	assert_string_equal(pin_name(&r, find_part(&r, "YPDE"), 0), "1");
+	run_free(&r);
+	run_text(&r, "t\nYL1 1 0 2 0 txl len=1\n.model txl txl r=1\n");
+	assert_string_equal(r.diags, "");
+	assert_int_equal(find_part(&r, "YL1")->npins, 4);
+	run_free(&r);
+	/* .lib FILE: the whole file where a file of that name is there
+	 * (PSpice's reading), a section in ngspice's */
+	run_files(&r, "t\n.lib models.lib\nD1 a 0 dx\n", "models.lib", ".model dx d bv=9\n", NULL);
+	assert_string_equal(r.diags, "");
+	run_free(&r);
+	run_dialect(&r, DIALECT_NGSPICE, "t\n.lib models.lib\nD1 a 0 dx\n", "models.lib",
+		    ".model dx d bv=9\n", NULL);
+	assert_string_equal(r.diags,
+			    "top.cir:2:1: error: .lib section has no .endl before the end of the file [lib]\n");
+	run_free(&r);
+	/* HSPICE: functions in .param, .macro/.eom, statistical functions at
+	 * their nominal value, a blank-free expression where a value goes */
+	run_text(&r, "t\n.param twice(x) = '2*x' a3=1\n.macro blk p q r0=1\n.param v1=2 v2=3\n"
+		     "R1 p q r0\nR2 p q v1+v2\n.eom blk\nX1 a 0 blk r0=7\nR3 a 0 {twice(a3)}\n"
+		     "R4 a 0 {agauss(10, 1, 3)}\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "X1.R1")->value, 7);
+	assert_close(find_part(&r, "X1.R2")->value, 5);
+	assert_close(find_part(&r, "R3")->value, 2);
+	assert_close(find_part(&r, "R4")->value, 10);
+	run_free(&r);
+	/* PSpice: '\' in an include path is the folder separator */
+	run_dialect(&r, DIALECT_PSPICE, "t\n.include sub\\x.inc\n", "sub/x.inc", "R1 a 0 1k\n", NULL);
+	assert_string_equal(r.diags, "");
+	assert_non_null(find_part(&r, "R1"));
+	run_free(&r);
+	/* a letter code is ngspice's reading: no warning owed there */
+	run_text(&r, "t\nR1 1 0 4k7\n");
+	assert_string_equal(r.diags, "top.cir:2:8: warning: '4k7' is read as the letter code for 4700; plain SPICE readers take only the digits before the letter [letter-code]\n");
+	run_free(&r);
+	run_dialect(&r, DIALECT_NGSPICE, "t\nR1 1 0 4k7\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "R1")->value, 4700);
+	run_free(&r);
+}
+
 static void test_adjacency(void **state)
 {
 	(void)state;
@@ -424,6 +557,9 @@ int main(void)
 		cmocka_unit_test(test_expansion_cap),
 		cmocka_unit_test(test_expansion_fits),
 		cmocka_unit_test(test_include_count_cap),
+		cmocka_unit_test(test_dialect_params),
+		cmocka_unit_test(test_dialect_elements),
+		cmocka_unit_test(test_dialect_reading),
 		cmocka_unit_test(test_adjacency),
 		cmocka_unit_test(test_file_changed_while_read),
 	};

@@ -27,6 +27,8 @@ static const struct expr_row rows[] = {
 	{"1==1 && 2!=3", 1},
 	{"0 || 0", 0},
 	{"!0", 1},
+	{"~1", 0},             /* PSpice's not */
+	{"if(~(2 >= 0), 5, 6)", 6},
 	{"1 ? 10 : 20", 10},
 	{"0 ? 10 : 1 ? 30 : 40", 30},
 	{"sqrt(16)", 4},
@@ -125,6 +127,21 @@ static void test_errors(void **state)
 	assert_int_equal(st, EXPR_BAD_CALL);
 	eval_text(ar, "twice(1, 2)", &st, &err);
 	assert_int_equal(st, EXPR_BAD_CALL);
+	/* the circuit's state and strings are no constants, but no
+	 * undefined names either */
+	eval_text(ar, "1 + v(3)", &st, &err);
+	assert_int_equal(st, EXPR_STATE);
+	assert_string_equal(err.name, "v(3)");
+	eval_text(ar, "2*TIME", &st, &err);
+	assert_int_equal(st, EXPR_STATE);
+	expr_error_text(&err, msg, sizeof msg);
+	assert_string_equal(msg, "'TIME' depends on circuit voltages, currents or time; a constant is needed here");
+	eval_text(ar, "\"0101\"", &st, &err);
+	assert_int_equal(st, EXPR_STRING);
+	eval_text(ar, "a{b}", &st, &err);
+	assert_int_equal(st, EXPR_STRING);
+	eval_text(ar, "POLY(2) 1 2", &st, &err);
+	assert_int_equal(st, EXPR_BAD_CALL); /* a syntax error but at the head of a braced value */
 	arena_destroy(ar);
 }
 

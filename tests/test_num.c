@@ -54,6 +54,7 @@ static const struct num_row rows[] = {
 	{"1u2", NUM_RKM, 1.2e-6},
 	{"2meg5", NUM_RKM, 2.5e6},
 	{"4p7", NUM_RKM, 4.7e-12},
+	{"4L7", NUM_RKM, 4.7e-3},      /* L is milli (IEC 60062; ngspice's RKM-R-1.cir) */
 	{"4.7k7", NUM_DIGIT_AFTER_SUFFIX, 0},
 	{"1e+", NUM_BAD_EXPONENT, 0},
 	{"abc", NUM_NOT_A_NUMBER, 0},
@@ -72,6 +73,26 @@ static void test_rows(void **state)
 			fail_msg("'%s': status %d, expected %d", rows[i].text, st, rows[i].st);
 		if (num_ok(st) && fabs(v - rows[i].value) > 1e-12 * fabs(rows[i].value))
 			fail_msg("'%s': %.17g, expected %.17g", rows[i].text, v, rows[i].value);
+	}
+}
+
+/* Letter codes that start with their letter: R47 = 0.47 (ngspice). */
+static void test_letter_first(void **state)
+{
+	(void)state;
+	static const struct {
+		const char *text;
+		int ok;
+		double value;
+	} lf[] = {{"R47", 1, 0.47}, {"r5", 1, 0.5}, {"K22", 1, 220}, {"L5", 1, 5e-4},
+		  {"M1", 1, 1e-4}, {"u47", 1, 0.47e-6}, {"R", 0, 0}, {"R4a", 0, 0},
+		  {"X47", 0, 0}, {"RL", 0, 0}, {"47R", 0, 0}};
+	for (size_t i = 0; i < sizeof lf / sizeof lf[0]; i++) {
+		double v = -1;
+		int ok = num_letter_first(lf[i].text, strlen(lf[i].text), &v);
+		if (ok != lf[i].ok || (ok && fabs(v - lf[i].value) > 1e-12 * lf[i].value))
+			fail_msg("'%s': %d %.17g, expected %d %.17g", lf[i].text, ok, v, lf[i].ok,
+				 lf[i].value);
 	}
 }
 
@@ -134,6 +155,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_rows),
+		cmocka_unit_test(test_letter_first),
 		cmocka_unit_test(test_bad_offset),
 		cmocka_unit_test(test_fold_and_compare),
 		cmocka_unit_test(test_format),

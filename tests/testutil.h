@@ -81,23 +81,18 @@ static inline char *render_headers(const struct diag_sink *d)
 	return buf;
 }
 
-/* Elaborates `top` (named "top.cir") plus extra files given as name, text
- * pairs ending with NULL. */
-static inline void run_files(struct run *run, const char *top, ...)
+static inline void run_va(struct run *run, enum dialect dialect, const char *top, va_list ap)
 {
 	static struct memfs fs;
 	memset(&fs, 0, sizeof fs);
 	fs.name[0] = "top.cir";
 	fs.text[0] = top;
 	fs.n = 1;
-	va_list ap;
-	va_start(ap, top);
 	const char *name;
 	while ((name = va_arg(ap, const char *)) && fs.n < MEMFS_MAX) {
 		fs.name[fs.n] = name;
 		fs.text[fs.n++] = va_arg(ap, const char *);
 	}
-	va_end(ap);
 	memset(run, 0, sizeof *run);
 	run->hook = hr_alloc_default();
 	run->ar = arena_create(&run->hook);
@@ -105,8 +100,28 @@ static inline void run_files(struct run *run, const char *top, ...)
 	struct elab_opts o = {0};
 	o.open = memfs_open;
 	o.open_ud = &fs;
+	o.dialect = dialect;
 	run->st = elab_file("top.cir", &o, &run->hook, run->d, &run->r);
 	run->diags = render_headers(run->d);
+}
+
+/* Elaborates `top` (named "top.cir") plus extra files given as name, text
+ * pairs ending with NULL. */
+static inline void run_files(struct run *run, const char *top, ...)
+{
+	va_list ap;
+	va_start(ap, top);
+	run_va(run, DIALECT_AUTO, top, ap);
+	va_end(ap);
+}
+
+/* As run_files, read in the given dialect. */
+static inline void run_dialect(struct run *run, enum dialect dialect, const char *top, ...)
+{
+	va_list ap;
+	va_start(ap, top);
+	run_va(run, dialect, top, ap);
+	va_end(ap);
 }
 
 static inline void run_text(struct run *run, const char *top)

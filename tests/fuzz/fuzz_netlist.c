@@ -26,7 +26,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	struct diag_sink *d = ar ? diag_create(ar, 50) : NULL;
 	if (d && scratch) {
 		uint32_t file = diag_add_file(d, "fuzz.cir");
-		struct parse_opts o = {file, 1, 4096, 0};
+		struct parse_opts o = {file, 1, 4096, 0, 0};
 		size_t cards = 0;
 		parse_stream(in, &o, scratch, d, count_card, &cards);
 	}
