@@ -6,6 +6,8 @@
 #ifndef HEADROOM_DIALECT_H
 #define HEADROOM_DIALECT_H
 
+#include <stddef.h>
+
 enum dialect {
 	DIALECT_AUTO,    /* from the file's ending, then from what it holds */
 	DIALECT_NGSPICE, /* the reference: SPICE3 as ngspice reads it */
@@ -32,6 +34,14 @@ enum dialect dialect_of_path(const char *path);
 /* Non-NULL when the ending names a netlist language that is not SPICE
  * (".scs", ".spectre"): the language's name. */
 const char *dialect_foreign_language(const char *path);
+
+/* For a file whose ending other simulators also use for their own
+ * languages (".sim": gnucap, VACASK): non-NULL when the first n bytes of
+ * its text show such a language, naming it, with the line in *line. gnucap:
+ * the first line that is not blank is a language switch ("spice",
+ * "verilog", "spectre") alone; VACASK: a line that starts with `load "`. */
+const char *dialect_foreign_text(const char *path, const char *head, size_t n,
+				 unsigned *line);
 
 /* True when a number written as a letter code ("4k7") means the letter
  * code in d without a doubt, so no warning is owed. */

@@ -62,9 +62,6 @@ static const char *skip_reason(const char *name)
 	if (in_list(name, CLI_LIBRARY_EXT))
 		return "a library by its name: read through the .include and .lib cards of the "
 		       "netlists that use it (see --netlist-ext)";
-	if (in_list(name, CLI_OTHER_SIM_EXT))
-		return "another simulator's netlist by its name: checked when --netlist-ext adds "
-		       "its ending (--dialect follows the ending)";
 	if (in_list(name, CLI_FOREIGN_EXT))
 		return "a Spectre netlist by its name: headroom reads SPICE netlists only";
 	return "name does not end in a netlist extension (see --netlist-ext)";

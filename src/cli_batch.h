@@ -25,13 +25,14 @@ struct cli_skips {
 };
 
 /* The file-name endings of netlists under a folder, by default; matched
- * without regard to case. The last three are what schematic tools and
- * converters write (eSim's ".cir.out", XSPICE's ".deck" and ".spi"). */
-#define CLI_NETLIST_EXT ".cir,.sp,.spice,.net,.ckt,.cdl,.cir.out,.spi,.deck"
+ * without regard to case. Then what schematic tools and converters write
+ * (eSim's ".cir.out", XSPICE's ".deck" and ".spi"), then other simulators'
+ * endings, read in the dialect the ending names (a ".sim" file in gnucap's
+ * or VACASK's own language is a located error, docs/netlist.md). */
+#define CLI_NETLIST_EXT ".cir,.sp,.spice,.net,.ckt,.cdl,.cir.out,.spi,.deck,.sim,.pspice,.hspice,.tspice,.xyce"
 /* Endings skipped by default with a reason of their own (cli_batch.c):
- * libraries, other simulators' netlists, languages that are not SPICE. */
+ * libraries, languages that are not SPICE. */
 #define CLI_LIBRARY_EXT ".lib,.mod,.inc,.sub,.model"
-#define CLI_OTHER_SIM_EXT ".sim,.pspice,.hspice,.tspice,.xyce"
 #define CLI_FOREIGN_EXT ".scs,.spectre"
 /* Folders nested deeper than this under a folder given are not walked. */
 #define CLI_WALK_DEPTH 32

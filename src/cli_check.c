@@ -321,7 +321,7 @@ static int prepare(const struct cli *c, struct batch *b, struct profile *p,
 		return 0;
 	const char *bad = c->netlist_ext ? cli_netlist_ext_check(c->netlist_ext) : NULL;
 	if (bad) {
-		fprintf(stderr, "headroom: --netlist-ext takes endings such as .cir,.sp or +.sim, "
+		fprintf(stderr, "headroom: --netlist-ext takes endings such as .cir,.sp or +.nl, "
 				"not '%s': %s\n", c->netlist_ext, bad);
 		return 0;
 	}

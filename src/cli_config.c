@@ -261,7 +261,7 @@ static void set_key(struct parse *p, const struct key *k, const char *val)
 		return;
 	case KEY_EXT:
 		if ((bad = cli_netlist_ext_check(val))) {
-			located(p, p->line, col, "netlist-ext takes endings such as .cir,.sp or +.sim: %s",
+			located(p, p->line, col, "netlist-ext takes endings such as .cir,.sp or +.nl: %s",
 				bad);
 			return;
 		}

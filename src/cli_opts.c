@@ -68,7 +68,7 @@ static const struct opt_def opts[] = {
 	{"--netlist-ext", NULL, STR(netlist_ext),
 	 "--netlist-ext LIST   check: the file-name endings of the netlists under\n"
 	 "a folder (default " CLI_NETLIST_EXT ");\n"
-	 "+LIST adds to them (+.sim,.cir.out); the other\n"
+	 "+LIST adds to them (+.txt,.nl); the other\n"
 	 "files there are listed as skipped, with the reason"},
 	{"--dialect", NULL, OPT_DIALECT, 0, CO_NONE, 0,
 	 "--dialect NAME       whose reading to follow where simulators read the\n"

@@ -70,6 +70,51 @@ const char *dialect_foreign_language(const char *path)
 	return NULL;
 }
 
+static int line_is(const char *s, size_t n, const char *word)
+{
+	while (n && (s[n - 1] == ' ' || s[n - 1] == '\t' || s[n - 1] == '\r'))
+		n--;
+	while (n && (*s == ' ' || *s == '\t'))
+		s++, n--;
+	size_t w = strlen(word);
+	if (n != w)
+		return 0;
+	for (size_t i = 0; i < n; i++)
+		if ((s[i] | 0x20) != word[i])
+			return 0;
+	return 1;
+}
+
+const char *dialect_foreign_text(const char *path, const char *head, size_t n,
+				 unsigned *line)
+{
+	if (!ends_with(path, ".sim"))
+		return NULL;
+	unsigned ln = 0;
+	int first = 1;
+	for (size_t i = 0; i < n;) {
+		const char *nl = memchr(head + i, '\n', n - i);
+		size_t len = nl ? (size_t)(nl - head) - i : n - i;
+		const char *s = head + i;
+		ln++;
+		int blank = strspn(s, " \t\r") >= len;
+		if (first && !blank) {
+			first = 0;
+			if (line_is(s, len, "spice") || line_is(s, len, "verilog") ||
+			    line_is(s, len, "spectre")) {
+				*line = ln;
+				return "gnucap's command language (its first line switches the language)";
+			}
+		}
+		if (len >= 6 && strncmp(s, "load \"", 6) == 0) {
+			*line = ln;
+			return "VACASK's own language";
+		}
+		i += len + 1;
+	}
+	return NULL;
+}
+
 /* ngspice reads "4k7" as 4.7k (its example deck RKM-R-1.cir), and so does
  * LTspice (from memory); for the others the letter code is not documented
  * and the warning stays. */

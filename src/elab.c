@@ -137,6 +137,27 @@ static FILE *open_input(struct elab *el, const char *path)
 	return infile_open(path);
 }
 
+/* A ".sim" file in gnucap's or VACASK's own language is a located error;
+ * otherwise the stream is put back at its start. Returns 1 for the error. */
+static int foreign_text(FILE *in, const char *path, uint32_t file, struct diag_sink *d)
+{
+	char head[4096];
+	unsigned line = 0;
+	if (!strstr(path, ".sim"))
+		return 0;
+	size_t n = fread(head, 1, sizeof head, in);
+	const char *lang = dialect_foreign_text(path, head, n, &line);
+	if (lang) {
+		struct diag_loc at = {file, line, 1};
+		diag_add(d, DIAG_ERROR, "language",
+			 at, "a netlist in %s, not SPICE: headroom reads SPICE "
+			     "netlists only", lang);
+		return 1;
+	}
+	rewind(in);
+	return 0;
+}
+
 /* Path of an included file: relative paths are taken from the folder of
  * the including file. */
 static char *include_path_as_given(struct elab *el, const char *given)
@@ -647,6 +668,8 @@ enum elab_status elab_file(const char *path, const struct elab_opts *opts,
 	} else if (!in) {
 		diag_add(d, DIAG_ERROR, "io", loc0(file), "cannot read: %s",
 			 infile_error_text(errno));
+	} else if (foreign_text(in, path, file, d)) {
+		fclose(in);
 	} else {
 		struct file_read fr = {path, file, NULL, 0, 0, loc0(file), loc0(file), NULL};
 		read_stream(&el, in, &fr, 1);

@@ -164,15 +164,15 @@ git -C "$repo" config --unset headroom.options
 commit "warning, allowed"
 check "without it a warning does not stop the commit" test "$(commits)" = 3
 
-# headroom.netlistExt: a .sim file is checked only once its ending is added.
-clamp 6.3V > "$repo/hw/bench.sim"
-commit "sim, not a netlist ending"
+# headroom.netlistExt: a .nl file is checked only once its ending is added.
+clamp 6.3V > "$repo/hw/bench.nl"
+commit "nl, not a netlist ending"
 check "a staged file with another ending is not checked" test "$(commits)" = 4
-clamp 4V > "$repo/hw/bench.sim"
-git -C "$repo" config headroom.netlistExt +.sim
-commit "sim, checked"
-check "headroom.netlistExt +.sim adds the ending" \
-	bash -c "test \"\$(git -C '$repo' rev-list --count HEAD)\" = 4 && grep -q 'bench.sim:.*above its 4 V rating' '$tmp/hook.err'"
+clamp 4V > "$repo/hw/bench.nl"
+git -C "$repo" config headroom.netlistExt +.nl
+commit "nl, checked"
+check "headroom.netlistExt +.nl adds the ending" \
+	bash -c "test \"\$(git -C '$repo' rev-list --count HEAD)\" = 4 && grep -q 'bench.nl:.*above its 4 V rating' '$tmp/hook.err'"
 git -C "$repo" reset -q --hard
 
 echo "notes" > "$repo/README"

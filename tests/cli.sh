@@ -616,12 +616,12 @@ export -f skipped_as checked_as
 run check --format json --fail-on never "$files"
 cp "$tmp/out" "$tmp/walk.json"
 check "a folder: a file with another ending is skipped, with the reason" skipped_as "$tmp/walk.json" notes.txt "name does not end in a netlist extension (see --netlist-ext)"
-check "a folder: a .sim file is skipped by default, as another simulator's" skipped_as "$tmp/walk.json" pump.sim "another simulator's netlist by its name: checked when --netlist-ext adds its ending (--dialect follows the ending)"
+check "a folder: a .sim file in SPICE is checked by default" checked_as "$tmp/walk.json" pump.sim checked
 check "a folder: a hidden file is skipped as such" skipped_as "$tmp/walk.json" .hidden.cir "hidden file"
 check "a folder: the netlists are checked, one with errors not checked" bash -c "checked_as '$tmp/walk.json' good.cir checked && checked_as '$tmp/walk.json' dc_only.sp checked && checked_as '$tmp/walk.json' broken.cir not_checked"
-run check --format json --fail-on never --netlist-ext +.sim "$files"
+run check --format json --fail-on never --netlist-ext +.txt "$files"
 cp "$tmp/out" "$tmp/walk2.json"
-check "--netlist-ext +.sim adds .sim to the endings" bash -c "checked_as '$tmp/walk2.json' pump.sim checked && checked_as '$tmp/walk2.json' good.cir checked"
+check "--netlist-ext +.txt adds .txt to the endings" bash -c "checked_as '$tmp/walk2.json' notes.txt checked && checked_as '$tmp/walk2.json' pump.sim checked && checked_as '$tmp/walk2.json' good.cir checked"
 run check --format json --fail-on never --netlist-ext .SIM "$files"
 cp "$tmp/out" "$tmp/walk3.json"
 check "--netlist-ext .SIM replaces the endings, matched without regard to case" bash -c "checked_as '$tmp/walk3.json' pump.sim checked && ! checked_as '$tmp/walk3.json' good.cir checked"
@@ -636,12 +636,18 @@ run check --format json --fail-on never "$tmp/walk"
 cp "$tmp/out" "$tmp/walk4.json"
 check "a library ending is skipped with its own reason" skipped_as "$tmp/walk4.json" models.lib "a library by its name: read through the .include and .lib cards of the netlists that use it (see --netlist-ext)"
 check "a Spectre ending is skipped as not SPICE" skipped_as "$tmp/walk4.json" block.scs "a Spectre netlist by its name: headroom reads SPICE netlists only"
-check "another simulator's ending (.cir.pspice) is skipped by default" skipped_as "$tmp/walk4.json" run.cir.pspice "another simulator's netlist by its name: checked when --netlist-ext adds its ending (--dialect follows the ending)"
+check "another simulator's ending (.cir.pspice) is checked by default" checked_as "$tmp/walk4.json" run.cir.pspice checked
 check "a hidden folder is one skipped entry, not walked" bash -c "grep -q 'kept.cir' '$tmp/walk4.json' && exit 1; python3 -c \"import json; d=json.load(open('$tmp/walk4.json')); assert [k['reason'] for k in d['skipped'] if k['path'].endswith('/.svn')] == ['hidden folder: not walked']\""
 check "a .cir.out file (a schematic converter's deck) is checked by default" checked_as "$tmp/walk4.json" run.cir.out checked
-run check --format json --fail-on never --netlist-ext +.cir.pspice "$tmp/walk"
+run check --format json --fail-on never --netlist-ext .cir.pspice "$tmp/walk"
 cp "$tmp/out" "$tmp/walk5.json"
-check "--netlist-ext takes an ending with two dots (+.cir.pspice)" checked_as "$tmp/walk5.json" run.cir.pspice checked
+check "--netlist-ext takes an ending with two dots (.cir.pspice)" bash -c "checked_as '$tmp/walk5.json' run.cir.pspice checked && ! checked_as '$tmp/walk5.json' run.cir.out checked"
+# gnucap and VACASK name their own languages' files .sim too: told by the text
+printf 'spice\n* a deck in gnucap reading\nvs 1 0 sin offset=0 amplitude=50 frequency=100k\nr1 1 0 1k\n.end\n' > "$tmp/walk/sub/g.sim"
+printf 'a deck in VACASK language\n\nload "spice/resistor.osdi"\nmodel r sp_resistor\n' > "$tmp/walk/sub/v.sim"
+run check --fail-on never "$tmp/walk/sub/g.sim" "$tmp/walk/sub/v.sim"
+check "a .sim file in gnucap's language is a located error" grep -q "g.sim:1:1: error: a netlist in gnucap's command language (its first line switches the language), not SPICE" "$tmp/out"
+check "a .sim file in VACASK's language is a located error at its load line" grep -q "v.sim:3:1: error: a netlist in VACASK's own language, not SPICE" "$tmp/out"
 deep=$tmp/deep
 for i in $(seq 1 34); do deep=$deep/d; done
 mkdir -p "$deep"
@@ -656,11 +662,11 @@ run check --format json --fail-on never "$files/notes.txt"
 check "a file named on the command line is checked whatever its ending" checked_as "$tmp/out" notes.txt checked
 for bad in cir "" + ".cir,,.sp" ".a/b" "."; do
 	run check --netlist-ext "$bad" "$files"
-	check "--netlist-ext '$bad' is a usage error that says why" bash -c "test $rc -eq 2 && grep -q -- \"--netlist-ext takes endings such as .cir,.sp or +.sim, not '$bad'\" '$tmp/err' && test ! -s '$tmp/out'"
+	check "--netlist-ext '$bad' is a usage error that says why" bash -c "test $rc -eq 2 && grep -q -- \"--netlist-ext takes endings such as .cir,.sp or +.nl, not '$bad'\" '$tmp/err' && test ! -s '$tmp/out'"
 done
 run --help
 check "help lists --netlist-ext with the default endings" grep -q -- "--netlist-ext LIST .*" "$tmp/out"
-check "help gives the default endings" grep -q "(default .cir,.sp,.spice,.net,.ckt,.cdl,.cir.out,.spi,.deck)" "$tmp/out"
+check "help gives the default endings" grep -q "(default .cir,.sp,.spice,.net,.ckt,.cdl,.cir.out,.spi,.deck,.sim,.pspice,.hspice,.tspice,.xyce)" "$tmp/out"
 if [ "$(id -u)" -ne 0 ]; then
 	mkdir -p "$tmp/locked/inner"
 	chmod 000 "$tmp/locked/inner"
@@ -729,10 +735,10 @@ abs_bin=$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")
 proj=$tmp/proj
 mkdir -p "$proj/.git" "$proj/nl" "$proj/lib" "$proj/out"
 cp "$here/../examples/"*.cir "$proj/nl/"
-cp "$here/../examples/sensor_restorer.cir" "$proj/nl/extra.sim"
+cp "$here/../examples/sensor_restorer.cir" "$proj/nl/extra.txt"
 cp "$here/../examples/parts.csv" "$proj/lib/parts.csv"
 printf '%s\n' '; settings of the invented project' '[check]' 'profile = flight' \
-	'parts = lib/parts.csv' 'fail-on = never' 'source-tol = 5%' 'jobs = 2' 'netlist-ext = +.sim' \
+	'parts = lib/parts.csv' 'fail-on = never' 'source-tol = 5%' 'jobs = 2' 'netlist-ext = +.txt' \
 	'reports = sarif=out/r.sarif' '          junit=out/r.xml' > "$proj/headroom.ini"
 inproj() { # folder, args...: runs headroom there; sets rc (output in $tmp/out, $tmp/err)
 	local dir=$1
@@ -747,13 +753,13 @@ cp "$tmp/out" "$tmp/cfg.json"
 check "config: a run from a subfolder uses the headroom.ini above it (exit 0: fail-on never)" test $rc -eq 0
 check "config: one line on stderr names the file used" grep -qx "headroom: settings from ../headroom.ini (the command line overrides them; --no-config ignores the file)" "$tmp/err"
 check "config: its reports are written, paths from the file's folder" bash -c "test -s '$proj/out/r.sarif' && xmllint --noout '$proj/out/r.xml'"
-inproj "$proj/nl" check --no-config --format json --today 2026-12-01 --profile flight --parts ../lib/parts.csv --fail-on never --source-tol 5 -j 2 --netlist-ext +.sim .
+inproj "$proj/nl" check --no-config --format json --today 2026-12-01 --profile flight --parts ../lib/parts.csv --fail-on never --source-tol 5 -j 2 --netlist-ext +.txt .
 check "config: the same JSON report, byte for byte, as the options it stands for" cmp "$tmp/cfg.json" "$tmp/out"
 inproj "$proj/nl" check --no-config --format json --today 2026-12-01 .
 check "config: --no-config ignores it (a different report, no settings line)" bash -c "! cmp -s '$tmp/cfg.json' '$tmp/out' && ! grep -q 'settings from' '$tmp/err'"
-check "config: the .sim file is checked only with the file's netlist-ext" python3 -c "
+check "config: the .txt file is checked only with the file's netlist-ext" python3 -c "
 import json,sys
-st=lambda p: {f['path']: f['status'] for f in json.load(open(p))['files']}.get('./extra.sim')
+st=lambda p: {f['path']: f['status'] for f in json.load(open(p))['files']}.get('./extra.txt')
 assert (st(sys.argv[1]), st(sys.argv[2])) == ('checked', None)" "$tmp/cfg.json" "$tmp/out"
 rm -f "$proj/out/"*
 inproj "$proj/nl" check --report json="$tmp/cl.json" --fail-on error --today 2026-12-01 .
