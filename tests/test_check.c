@@ -206,6 +206,49 @@ static void test_clamp_stresses(void **state)
 	checked_free(&c);
 }
 
+/* A charge pump on a 5 V rail from a 0/5 V switch node, 10 % tolerance on
+ * both (docs/check.md, "Correlated offsets"): the clamp's level is the rail's
+ * own, so D1 blocks the switch node's swing, 5.5 V, whatever the rail's
+ * offset; intervals for the offsets gave 5.5 + 5.5 - 4.5 = 6.5 V. A rail
+ * that moves slowly (min= max=) keeps the interval: C1 stays charged from the
+ * rail's top while the rail sits at its bottom, 6.5 V is then real. */
+#define PUMP(rail)                                                          \
+	"pump\nVCC vcc 0 DC 5\nVSW sw 0 PULSE(0 5 0 10n 10n 4.99u 10u)\n"   \
+	"C1 sw a 100n\nD1 vcc a dm\nD2 a out dm\nC2 out 0 1u\nRL out 0 47k\n" \
+	".model dm d is=2.5n n=1.75\n" rail
+
+static void test_correlated_offsets(void **state)
+{
+	(void)state;
+	static const struct {
+		const char *rail;
+		double c1, d1, d2, c2;
+	} rows[] = {
+		{"", 5.5, 5.5, 5.5, 11.0},
+		{"*@source VCC min=4.5 max=5.5\n", 5.5, 6.5, 5.5, 11.0},
+	};
+	for (size_t i = 0; i < sizeof rows / sizeof rows[0]; i++) {
+		struct checked c;
+		char deck[512];
+		snprintf(deck, sizeof deck, PUMP("%s"), rows[i].rail);
+		check_text(&c, deck, "industrial", 0.10, 0);
+		const struct stress *c1 = stress_of(&c, "C1", SQ_VOLTAGE),
+				    *d1 = stress_of(&c, "D1", SQ_REVERSE),
+				    *d2 = stress_of(&c, "D2", SQ_REVERSE),
+				    *c2 = stress_of(&c, "C2", SQ_VOLTAGE);
+		assert_non_null(c1);
+		assert_non_null(d1);
+		assert_non_null(d2);
+		assert_non_null(c2);
+		assert_int_equal(d1->basis, SB_ANALYSIS);
+		if (fabs(c1->worst - rows[i].c1) > 1e-9 || fabs(d1->worst - rows[i].d1) > 1e-9 ||
+		    fabs(d2->worst - rows[i].d2) > 1e-9 || fabs(c2->worst - rows[i].c2) > 1e-9)
+			fail_msg("row %zu: C1 %g D1 %g D2 %g C2 %g", i, c1->worst, d1->worst,
+				 d2->worst, c2->worst);
+		checked_free(&c);
+	}
+}
+
 /* Ratings: model BV, then the parts table, then *@part, field by field. */
 static void test_rating_precedence(void **state)
 {
@@ -513,6 +556,7 @@ int main(void)
 		cmocka_unit_test(test_opaque_instance),
 		cmocka_unit_test(test_check_every_failure),
 		cmocka_unit_test(test_proof_basis),
+		cmocka_unit_test(test_correlated_offsets),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
