@@ -75,6 +75,10 @@ struct prop_corner {
 	const double *amp;
 	const double *off_lo, *off_hi;
 	const double *vf;
+	/* per node, or NULL: 1 leaves the node unsettled. Only whole islands
+	   (proof.h) with no part a stress needs may be left so: every node
+	   they reach through parts is then left too, or held by sources. */
+	const unsigned char *skip;
 };
 
 /* Runs the propagation over circuit c (after nl_finish). ranges, if not

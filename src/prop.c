@@ -75,6 +75,11 @@ static const uint32_t *pins(struct run *u, const struct nl_part *p)
 	return nl_pins(u->c, p);
 }
 
+static int skipped(const struct run *u, uint32_t id)
+{
+	return u->corner && u->corner->skip && u->corner->skip[id];
+}
+
 static void settle(struct run *u, uint32_t id, const struct form *f,
 		   enum prop_how how, uint32_t by)
 {
@@ -83,6 +88,8 @@ static void settle(struct run *u, uint32_t id, const struct form *f,
 		u->oom = 1;
 		return;
 	}
+	if (skipped(u, id))
+		return;
 	n->f = f;
 	n->state = PS_RESOLVED;
 	n->how = (uint8_t)how;
@@ -223,7 +230,7 @@ static uint32_t series_from(struct run *u, uint32_t id, int allow_ground,
 static void try_series(struct run *u, uint32_t id)
 {
 	uint32_t via = NL_NONE;
-	if (known(u, id) || u->capdiode[id] || N(u, id)->state == PS_SHAPED)
+	if (known(u, id) || u->capdiode[id] || N(u, id)->state == PS_SHAPED || skipped(u, id))
 		return;
 	uint32_t src = series_from(u, id, 0, &via);
 	if (src == NL_NONE)
@@ -391,7 +398,7 @@ static int shapes_init(struct run *u, struct shapes *sh, size_t nn)
 	struct capn nb[CAPN_MAX];
 	for (uint32_t id = 0; id < nn; id++) {
 		sh->follows[id] = NL_NONE;
-		if (has_shape(u, id))
+		if (has_shape(u, id) || skipped(u, id))
 			continue;
 		uint32_t k = cap_neighbours(u, id, nb, CAPN_MAX);
 		sh->deg[id] = k;
@@ -607,7 +614,7 @@ static void to_fallback(struct run *u, uint32_t r)
 			continue;
 		const uint32_t *q = pins(u, p);
 		uint32_t x = q[0] == r ? q[1] : q[0];
-		if (!known(u, x) && u->fallback.tail + 1 != u->fallback.head)
+		if (!known(u, x) && !skipped(u, x) && u->fallback.tail + 1 != u->fallback.head)
 			q_push(&u->fallback, x);
 	}
 }
