@@ -131,6 +131,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom bash tests/bom.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/hostile.sh
 	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
+	@HEADROOM=$(BUILD)/headroom python3 tests/corpus_numbers.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py

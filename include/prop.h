@@ -42,7 +42,7 @@ struct prop_node {
 	uint32_t by;            /* part that settled it (source, R, K, E, diode) */
 	uint32_t anchor;        /* node whose AC it follows through capacitors */
 	double zs;              /* series resistance back to the driving source */
-	double klo, khi;        /* diode bounds on the DC while SHAPED */
+	const struct form *klo, *khi; /* diode bounds on the DC while SHAPED */
 	uint32_t lo_by, hi_by;  /* diodes giving klo and khi */
 	double slo, shi;        /* soft bounds: a DC node that resistors set */
 	uint8_t has_slo, has_shi;
@@ -66,14 +66,19 @@ struct prop_result {
 };
 
 /* A corner of the worst-case analysis: per part, the scale of a voltage
- * source's AC part, the band its mean may take (scales of the mean, the
- * constant becomes that interval: every source's offset independently
- * anywhere in its band), and the forward drop of each diode (0 = ideal).
- * NULL arrays mean nominal and ideal. */
+ * source's AC part, the band its mean may take (scales of the mean: every
+ * source's offset independently anywhere in its band, one DC symbol per
+ * source, form.h, so that every node it reaches moves with it), and the
+ * forward drop of each diode (0 = ideal). NULL arrays mean nominal and
+ * ideal. */
 struct prop_corner {
 	const double *amp;
 	const double *off_lo, *off_hi;
 	const double *vf;
+	/* per node, or NULL: 1 leaves the node unsettled. Only whole islands
+	   (proof.h) with no part a stress needs may be left so: every node
+	   they reach through parts is then left too, or held by sources. */
+	const unsigned char *skip;
 };
 
 /* Runs the propagation over circuit c (after nl_finish). ranges, if not

@@ -140,6 +140,48 @@ if [ $have_ngspice -eq 1 ]; then
 fi
 echo "bench: check growth 10x parts -> $(awk -v a="$cb" -v b="$ca" 'BEGIN{printf "%.1f", (b>0)?a/b:0}')x time (target <= 11x)"
 
+# N common-emitter amplifier cells (bias divider, collector and emitter
+# resistors, emitter bypass and input coupling capacitors, an NPN with a
+# .model: 7 parts each) with M small clock-driven doublers (coupling cap,
+# clamp diode, detector diode, reservoir cap) spread among them.
+amp_deck() {
+	awk -v n="$1" -v m="$2" 'BEGIN {
+		print "amplifier cells with doublers benchmark"
+		print "VCC vcc 0 12"
+		print "VIN in 0 sin(0 0.01 1k)"
+		print "VCLK clk 0 sin(0 5 100k)"
+		print ".model qgen npn is=1e-15 bf=200 vaf=80 cje=10p cjc=5p"
+		print ".model dsig d is=2.5n n=1.75 rs=0.5 bv=75"
+		every = int(n / m)
+		for (k = 1; k <= n; k++) {
+			printf "RB1_%d vcc b%d 47k\nRB2_%d b%d 0 10k\nRC%d vcc c%d 4.7k\nRE%d e%d 0 1k\n", k, k, k, k, k, k, k, k
+			printf "CE%d e%d 0 10u\nCIN%d in b%d 100n\nQ%d c%d b%d e%d qgen\n", k, k, k, k, k, k, k, k
+			if (k % every == 0 && k / every <= m) {
+				j = k / every
+				printf "CP%d clk a%d 10n\nDA%d 0 a%d dsig\nDB%d a%d o%d dsig\nCO%d o%d 0 10n\n", j, j, j, j, j, j, j, j, j
+			}
+		}
+		print ".end" }'
+}
+
+echo "bench: the whole check of amplifier cells with 1,000 doublers among them"
+amp_deck 85000 1000 > "$work/amp600k.cir"
+"$bin" check --format json --fail-on never "$work/amp600k.cir" > "$work/amp.json"
+read -r tc mc < <(measure "$bin" check --format json --fail-on never "$work/amp600k.cir")
+printf 'amp-85k-cells          parts %8d  check %6.3f s %7d KB  %5.1f B/part\n' 599003 "$tc" "$mc" \
+	"$(awk -v m="$mc" 'BEGIN{print m*1024/599003}')"
+python3 -c '
+import json, sys
+f = json.load(open(sys.argv[1]))["files"][0]
+s = [x for x in f["stresses"] if x["quantity"] != "surge_current"]
+print("                       %d structures, %d stresses (%d proven), %d findings" % (
+    len(f["structures"]), len(s), sum(x["basis"] == "proven" for x in s), len(f["findings"])))' "$work/amp.json"
+if [ $have_ngspice -eq 1 ]; then
+	read -r tn mn < <(measure ngspice -b "$work/amp600k.cir")
+	printf '                       ngspice load %.3f s %d KB; ngspice load / full check = %.2fx (target >= 2.3x)\n' \
+		"$tn" "$mn" "$(awk -v a="$tn" -v b="$tc" 'BEGIN{print (b>0)?a/b:0}')"
+fi
+
 # ---- the transient cross-check (docs/solver.md) ----
 # An N-stage Cockcroft-Walton ladder with a resistive load and a diode model
 # with series resistance, junction capacitance and transit time.

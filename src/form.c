@@ -1,7 +1,9 @@
 /* form.c: affine waveform forms and their extremes. The sampled case takes
  * 64 points per shortest period (at least 2048, at most 2^20) plus every
  * breakpoint of piecewise-linear sources, then refines the best samples by
- * golden-section search; its accuracy is measured in tests/test_form.c. */
+ * golden-section search; its accuracy is measured in tests/test_form.c.
+ * DC symbols (FORM_DC terms) sort after the AC terms; everything that looks
+ * at the waveform in time walks the first nac() terms only. */
 #include "form.h"
 
 #include <assert.h>
@@ -16,6 +18,24 @@ static struct form *alloc_form(struct arena *ar, uint32_t n)
 	if (f)
 		f->n = n;
 	return f;
+}
+
+/* The number of AC terms: they come before the DC symbols. */
+static uint32_t nac(const struct form *x)
+{
+	uint32_t k = 0;
+	while (k < x->n && !(x->t[k].src & FORM_DC))
+		k++;
+	return k;
+}
+
+/* Sum of |d_j| over x's DC symbols: their largest effect. */
+static double dc_spread(const struct form *x)
+{
+	double s = 0;
+	for (uint32_t i = nac(x); i < x->n; i++)
+		s += fabs(x->t[i].c);
+	return s;
 }
 
 struct form *form_const(struct arena *ar, double lo, double hi)
@@ -90,10 +110,11 @@ struct form *form_lin(struct arena *ar, double a, const struct form *x,
 struct form *form_with_const(struct arena *ar, const struct form *x,
 			     double lo, double hi)
 {
-	struct form *f = alloc_form(ar, x->n);
+	uint32_t k = nac(x);
+	struct form *f = alloc_form(ar, k);
 	if (!f)
 		return NULL;
-	memcpy(f->t, x->t, x->n * sizeof x->t[0]);
+	memcpy(f->t, x->t, k * sizeof x->t[0]);
 	f->lo = lo;
 	f->hi = hi;
 	return f;
@@ -104,16 +125,105 @@ struct form *form_ac(struct arena *ar, const struct form *x)
 	return form_with_const(ar, x, 0, 0);
 }
 
+struct form *form_offset(struct arena *ar, double mid, uint32_t i, double half)
+{
+	assert(!(i & FORM_DC));
+	struct form *f = alloc_form(ar, half != 0 ? 1 : 0);
+	if (!f)
+		return NULL;
+	f->lo = f->hi = mid;
+	if (half != 0) {
+		f->t[0].src = FORM_DC | i;
+		f->t[0].c = half;
+	}
+	return f;
+}
+
+struct form *form_with_dc(struct arena *ar, const struct form *x,
+			  const struct form *y)
+{
+	uint32_t kx = nac(x), ky = nac(y);
+	struct form *f = alloc_form(ar, kx + y->n - ky);
+	if (!f)
+		return NULL;
+	memcpy(f->t, x->t, kx * sizeof x->t[0]);
+	memcpy(f->t + kx, y->t + ky, (y->n - ky) * sizeof y->t[0]);
+	f->lo = y->lo;
+	f->hi = y->hi;
+	return f;
+}
+
+struct form *form_dc_at(struct arena *ar, const struct form *x, double lo,
+			double hi)
+{
+	struct form c = {lo, hi, 0};
+	struct form *f = form_with_dc(ar, &c, x);
+	if (f) {
+		f->lo = lo;
+		f->hi = hi;
+	}
+	return f;
+}
+
+/* join(x, y) - x_sym = join(cx, cy + (y_sym - x_sym)), and the second lies
+ * within [cy.lo - D, cy.hi + D], D the spread of y_sym - x_sym. */
+struct form *form_dc_join(struct arena *ar, enum form_join how,
+			  const struct form *x, const struct form *y)
+{
+	double xlo, xhi, ylo, yhi;
+	form_dc_range(x, &xlo, &xhi);
+	form_dc_range(y, &ylo, &yhi);
+	/* keep the symbols of the one that decides most often */
+	if ((how == FORM_MAX && yhi > xhi) || (how == FORM_MIN && ylo < xlo)) {
+		const struct form *t = x;
+		x = y;
+		y = t;
+	}
+	struct form *d = form_lin(ar, 1, y, -1, x);
+	if (!d)
+		return NULL;
+	double spread = dc_spread(d);
+	ylo = y->lo - spread;
+	yhi = y->hi + spread;
+	double lo = how == FORM_MAX ? fmax(x->lo, ylo) : fmin(x->lo, ylo);
+	double hi = how == FORM_MIN ? fmin(x->hi, yhi) : fmax(x->hi, yhi);
+	return form_dc_at(ar, x, lo, hi);
+}
+
 int form_is_dc(const struct form *x)
 {
-	return x->n == 0;
+	return nac(x) == 0;
+}
+
+void form_dc_range(const struct form *x, double *lo, double *hi)
+{
+	double s = dc_spread(x);
+	*lo = x->lo - s;
+	*hi = x->hi + s;
+}
+
+void form_dc_range_diff(const struct form *x, const struct form *y, double *lo,
+			double *hi)
+{
+	uint32_t i = nac(x), j = nac(y);
+	double s = 0;
+	while (i < x->n || j < y->n) {
+		if (j >= y->n || (i < x->n && x->t[i].src < y->t[j].src))
+			s += fabs(x->t[i++].c);
+		else if (i >= x->n || y->t[j].src < x->t[i].src)
+			s += fabs(y->t[j++].c);
+		else
+			s += fabs(x->t[i++].c - y->t[j++].c);
+	}
+	*lo = x->lo - y->hi - s;
+	*hi = x->hi - y->lo + s;
 }
 
 int form_same_ac(const struct form *x, const struct form *y)
 {
-	if (x->n != y->n)
+	if (nac(x) != nac(y))
 		return 0;
-	for (uint32_t i = 0; i < x->n; i++)
+	for (uint32_t i = 0; i < nac(x); i++)
 		if (x->t[i].src != y->t[i].src ||
 		    fabs(x->t[i].c - y->t[i].c) > 1e-12 * fmax(fabs(x->t[i].c), 1))
 			return 0;
@@ -123,7 +233,7 @@ int form_same_ac(const struct form *x, const struct form *y)
 double form_ac_at(const struct form_ctx *fc, const struct form *x, double t)
 {
 	double v = 0;
-	for (uint32_t i = 0; i < x->n; i++)
+	for (uint32_t i = 0, k = nac(x); i < k; i++)
 		v += x->t[i].c * sig_ac(&fc->sigs[x->t[i].src], t);
 	return v;
 }
@@ -133,7 +243,7 @@ static int sine_phasor(const struct form_ctx *fc, const struct form *x,
 		       double *amp)
 {
 	double w = 0, re = 0, im = 0;
-	for (uint32_t i = 0; i < x->n; i++) {
+	for (uint32_t i = 0, k = nac(x); i < k; i++) {
 		const struct sig *s = &fc->sigs[x->t[i].src];
 		if (s->kind != SIG_SIN || (w != 0 && fabs(s->w - w) > 1e-12 * w))
 			return 0;
@@ -161,7 +271,7 @@ double form_period(const struct form_ctx *fc, const struct form *x, int *exact)
 {
 	double T = 0, pmax = 0;
 	*exact = 1;
-	for (uint32_t i = 0; i < x->n; i++) {
+	for (uint32_t i = 0, k = nac(x); i < k; i++) {
 		double p = fc->sigs[x->t[i].src].period;
 		if (p <= 0)
 			continue;
@@ -178,7 +288,7 @@ double form_period(const struct form_ctx *fc, const struct form *x, int *exact)
 	}
 	if (!*exact)
 		T = 100 * pmax;
-	if (fc->nsigs && x->n && fc->sigs[x->t[0].src].kind == SIG_SFFM &&
+	if (fc->nsigs && nac(x) && fc->sigs[x->t[0].src].kind == SIG_SFFM &&
 	    fc->sigs[x->t[0].src].note)
 		*exact = 0;
 	return T;
@@ -187,7 +297,7 @@ double form_period(const struct form_ctx *fc, const struct form *x, int *exact)
 static double shortest_period(const struct form_ctx *fc, const struct form *x)
 {
 	double p = INFINITY;
-	for (uint32_t i = 0; i < x->n; i++) {
+	for (uint32_t i = 0, k = nac(x); i < k; i++) {
 		const struct sig *s = &fc->sigs[x->t[i].src];
 		double q = s->kind == SIG_SFFM ? 2 * FORM_PI / (s->wc + fabs(s->mdi) * s->ws)
 			 : s->kind == SIG_AM ? 2 * FORM_PI / (s->wc + s->ws)
@@ -200,7 +310,7 @@ static double shortest_period(const struct form_ctx *fc, const struct form *x)
 
 static int all_piecewise_linear(const struct form_ctx *fc, const struct form *x)
 {
-	for (uint32_t i = 0; i < x->n; i++) {
+	for (uint32_t i = 0, m = nac(x); i < m; i++) {
 		enum sig_kind k = fc->sigs[x->t[i].src].kind;
 		if (k != SIG_PULSE && k != SIG_PWL)
 			return 0;
@@ -254,7 +364,7 @@ static double refine(const struct form_ctx *fc, const struct form *x, double a,
 static void breakpoints(const struct form_ctx *fc, const struct form *x,
 			double T, struct scan *s)
 {
-	for (uint32_t i = 0; i < x->n; i++) {
+	for (uint32_t i = 0, k = nac(x); i < k; i++) {
 		const struct sig *g = &fc->sigs[x->t[i].src];
 		if (g->kind != SIG_PULSE && g->kind != SIG_PWL)
 			continue;
@@ -292,10 +402,11 @@ void form_ac_range(const struct form_ctx *fc, const struct form *x,
 		   double *min, double *max, int *exact)
 {
 	double amp;
+	uint32_t k = nac(x);
 	*exact = 1;
-	if (x->n == 0) {
+	if (k == 0) {
 		*min = *max = 0;
-	} else if (x->n == 1) {
+	} else if (k == 1) {
 		const struct sig *s = &fc->sigs[x->t[0].src];
 		double c = x->t[0].c;
 		*min = c >= 0 ? c * s->ac_min : c * s->ac_max;
@@ -312,7 +423,9 @@ void form_ac_range(const struct form_ctx *fc, const struct form *x,
 void form_range(const struct form_ctx *fc, const struct form *x, double *min,
 		double *max, int *exact)
 {
+	double lo, hi;
 	form_ac_range(fc, x, min, max, exact);
-	*min += x->lo;
-	*max += x->hi;
+	form_dc_range(x, &lo, &hi);
+	*min += lo;
+	*max += hi;
 }

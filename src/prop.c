@@ -75,6 +75,11 @@ static const uint32_t *pins(struct run *u, const struct nl_part *p)
 	return nl_pins(u->c, p);
 }
 
+static int skipped(const struct run *u, uint32_t id)
+{
+	return u->corner && u->corner->skip && u->corner->skip[id];
+}
+
 static void settle(struct run *u, uint32_t id, const struct form *f,
 		   enum prop_how how, uint32_t by)
 {
@@ -83,6 +88,8 @@ static void settle(struct run *u, uint32_t id, const struct form *f,
 		u->oom = 1;
 		return;
 	}
+	if (skipped(u, id))
+		return;
 	n->f = f;
 	n->state = PS_RESOLVED;
 	n->how = (uint8_t)how;
@@ -105,9 +112,13 @@ static const struct form *source_form(struct run *u, uint32_t part)
 	const struct prop_corner *k = u->corner;
 	if (!k || !k->amp)
 		return form_source(&u->r->fc, u->r->fc.ar, s, 1.0);
-	const struct form *f = form_source(&u->r->fc, u->r->fc.ar, s, k->amp[part]);
+	struct arena *ar = u->r->fc.ar;
+	const struct form *f = form_source(&u->r->fc, ar, s, k->amp[part]);
 	double a = u->r->sigs[s].mean * k->off_lo[part], b = u->r->sigs[s].mean * k->off_hi[part];
-	return f ? form_with_const(u->r->fc.ar, f, fmin(a, b), fmax(a, b)) : NULL;
+	/* the offset is one value in its band wherever the source appears:
+	   its own DC symbol, not an interval */
+	const struct form *off = form_offset(ar, (a + b) / 2, s, fabs(b - a) / 2);
+	return f && off ? form_with_dc(ar, f, off) : NULL;
 }
 
 static void across_source(struct run *u, uint32_t id, uint32_t part)
@@ -222,7 +233,7 @@ static uint32_t series_from(struct run *u, uint32_t id, int allow_ground,
 static void try_series(struct run *u, uint32_t id)
 {
 	uint32_t via = NL_NONE;
-	if (known(u, id) || u->capdiode[id] || N(u, id)->state == PS_SHAPED)
+	if (known(u, id) || u->capdiode[id] || N(u, id)->state == PS_SHAPED || skipped(u, id))
 		return;
 	uint32_t src = series_from(u, id, 0, &via);
 	if (src == NL_NONE)
@@ -390,7 +401,7 @@ static int shapes_init(struct run *u, struct shapes *sh, size_t nn)
 	struct capn nb[CAPN_MAX];
 	for (uint32_t id = 0; id < nn; id++) {
 		sh->follows[id] = NL_NONE;
-		if (has_shape(u, id))
+		if (has_shape(u, id) || skipped(u, id))
 			continue;
 		uint32_t k = cap_neighbours(u, id, nb, CAPN_MAX);
 		sh->deg[id] = k;
@@ -457,35 +468,61 @@ static int step_shapes(struct run *u)
 
 #define PROP_EPS 1e-9
 
-/* The bound that diode `part` puts on shaped node x, from known node r. */
+/* The tighter of an old bound (NULL: none) and a new one on a node's DC;
+ * *moved is 1 when the new one decides (at the extreme that matters). */
+static const struct form *tighter(struct run *u, enum form_join how,
+				  const struct form *old, const struct form *v,
+				  int *moved)
+{
+	double olo, ohi, vlo, vhi;
+	if (!old) {
+		*moved = 1;
+		return v;
+	}
+	form_dc_range(old, &olo, &ohi);
+	form_dc_range(v, &vlo, &vhi);
+	*moved = how == FORM_MAX ? vhi > ohi : vlo < olo;
+	return form_dc_join(u->r->fc.ar, how, old, v);
+}
+
+/* The bound that diode `part` puts on shaped node x, from known node r:
+ * the DC of d = r - x plus the extreme of its AC part, keeping the DC
+ * symbols of d (the pinned level moves with the rail that pins it). */
 static void bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
 {
 	struct prop_node *n = N(u, x);
 	const uint32_t *q = pins(u, nl_part_at(u->c, part));
-	const struct form *d = form_lin(u->r->fc.ar, 1, N(u, r)->f, -1, n->f);
+	struct arena *ar = u->r->fc.ar;
+	const struct form *d = form_lin(ar, 1, N(u, r)->f, -1, n->f);
 	if (!d) {
 		u->oom = 1;
 		return;
 	}
 	double lo, hi;
-	int exact;
-	form_range(&u->r->fc, d, &lo, &hi, &exact);
+	int exact, moved = 0;
+	form_ac_range(&u->r->fc, d, &lo, &hi, &exact);
 	/* a real diode conducts at its forward drop, not at zero */
 	double vf = u->corner && u->corner->vf ? u->corner->vf[part] : 0;
+	/* the constant of a slowly moving rail: the pin keeps its extreme */
+	lo += d->lo;
+	hi += d->hi;
 	lo += vf;
 	hi -= vf;
+	const struct form *v = form_dc_at(ar, d, q[0] == r ? hi : lo, q[0] == r ? hi : lo);
+	if (!v) {
+		u->oom = 1;
+		return;
+	}
 	if (q[0] == r) { /* r is the anode: x may not fall below r */
-		if (!n->has_lo || hi > n->klo) {
-			n->klo = hi;
-			n->lo_by = part;
-		}
+		n->klo = tighter(u, FORM_MAX, n->has_lo ? n->klo : NULL, v, &moved);
+		n->lo_by = moved ? part : n->lo_by;
 		n->has_lo = 1;
+		u->oom |= !n->klo;
 	} else { /* x is the anode: x may not rise above r */
-		if (!n->has_hi || lo < n->khi) {
-			n->khi = lo;
-			n->hi_by = part;
-		}
+		n->khi = tighter(u, FORM_MIN, n->has_hi ? n->khi : NULL, v, &moved);
+		n->hi_by = moved ? part : n->hi_by;
 		n->has_hi = 1;
+		u->oom |= !n->khi;
 	}
 	if (!u->in_pending[x]) {
 		u->in_pending[x] = 1;
@@ -496,11 +533,13 @@ static void bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
 static void soft_bound(struct run *u, uint32_t part, uint32_t r, uint32_t x)
 {
 	struct prop_node *n = N(u, x), *m = N(u, r);
+	double lo, hi;
+	form_dc_range(m->f, &lo, &hi);
 	if (pins(u, nl_part_at(u->c, part))[0] == r) {
-		n->slo = n->has_slo ? fmax(n->slo, m->f->hi) : m->f->hi;
+		n->slo = n->has_slo ? fmax(n->slo, hi) : hi;
 		n->has_slo = 1;
 	} else {
-		n->shi = n->has_shi ? fmin(n->shi, m->f->lo) : m->f->lo;
+		n->shi = n->has_shi ? fmin(n->shi, lo) : lo;
 		n->has_shi = 1;
 	}
 }
@@ -578,7 +617,7 @@ static void to_fallback(struct run *u, uint32_t r)
 			continue;
 		const uint32_t *q = pins(u, p);
 		uint32_t x = q[0] == r ? q[1] : q[0];
-		if (!known(u, x) && u->fallback.tail + 1 != u->fallback.head)
+		if (!known(u, x) && !skipped(u, x) && u->fallback.tail + 1 != u->fallback.head)
 			q_push(&u->fallback, x);
 	}
 }
@@ -588,14 +627,21 @@ static void finalize(struct run *u, uint32_t x)
 	struct prop_node *n = N(u, x);
 	if (n->state != PS_SHAPED)
 		return;
-	double lo = n->has_lo ? n->klo : n->khi, hi = n->has_hi ? n->khi : n->klo;
-	if (n->has_lo && n->has_hi && n->klo > n->khi + PROP_EPS * fmax(1, fabs(n->khi))) {
-		/* the diodes would clip the node: not an affine waveform */
-		n->conflict = 1;
-		u->r->nconflicts++;
-		lo = hi = n->klo;
+	const struct form *dc = n->has_lo ? n->klo : n->khi;
+	if (n->has_lo && n->has_hi) {
+		double lo, hi, klo, khi;
+		form_dc_range_diff(n->klo, n->khi, &lo, &hi);
+		form_dc_range(n->khi, &klo, &khi);
+		if (hi > PROP_EPS * fmax(1, fmax(fabs(klo), fabs(khi)))) {
+			/* the diodes would clip the node: not an affine waveform */
+			n->conflict = 1;
+			u->r->nconflicts++;
+		} else {
+			/* held between two diodes: anywhere from one to the other */
+			dc = form_dc_join(u->r->fc.ar, FORM_HULL, n->klo, n->khi);
+		}
 	}
-	const struct form *f = form_with_const(u->r->fc.ar, n->f, lo, hi < lo ? lo : hi);
+	const struct form *f = dc ? form_with_dc(u->r->fc.ar, n->f, dc) : NULL;
 	uint32_t by = n->has_lo ? n->lo_by : n->hi_by;
 	n->pin_upper = !n->has_lo;
 	settle(u, x, f, PH_PIN, by);
@@ -740,7 +786,8 @@ static int bridge(struct run *u, uint32_t x)
 		form_range(&u->r->fc, d, &lo, &hi, &exact);
 		double peak = fmax(hi, -lo);
 		const struct form *base = N(u, m)->f;
-		settle(u, x, form_const(u->r->fc.ar, base->lo + peak, base->hi + peak), PH_PIN, dio);
+		settle(u, x, form_dc_at(u->r->fc.ar, base, base->lo + peak, base->hi + peak),
+		       PH_PIN, dio);
 		return 1;
 	}
 	return 0;
@@ -780,7 +827,8 @@ static void fallback(struct run *u, uint32_t x)
 	if (n->has_slo || n->has_shi) {
 		/* an ideal diode holds the node where the resistors would pull
 		 * it past the diode's other end */
-		double lo = s->lo, hi = s->hi;
+		double lo, hi;
+		form_dc_range(s, &lo, &hi);
 		if (n->has_slo)
 			lo = fmax(lo, n->slo), hi = fmax(hi, n->slo);
 		if (n->has_shi)
@@ -793,7 +841,7 @@ static void fallback(struct run *u, uint32_t x)
 	}
 	if (n->state == PS_SHAPED) {
 		/* no DC flows through the capacitors: resistors set the mean */
-		settle(u, x, form_with_const(u->r->fc.ar, n->f, s->lo, s->hi), PH_BLEED,
+		settle(u, x, form_with_dc(u->r->fc.ar, n->f, s), PH_BLEED,
 		       count == 1 ? via : NL_NONE);
 	} else {
 		settle(u, x, s, PH_SERIES, count == 1 ? via : NL_NONE);

@@ -185,9 +185,11 @@ static int waveform(const struct check_file *f, const struct nl_part *p,
 		return 0;
 	/* v(pin 0) - v(pin 1), negated for a diode's reverse voltage; the
 	 * constant at its largest magnitude (interval arithmetic) */
-	double sgn = p->kind == NL_D ? -1 : 1;
-	double hi = sgn > 0 ? a->f->hi - b->f->lo : b->f->hi - a->f->lo;
-	double lo = sgn > 0 ? a->f->lo - b->f->hi : b->f->lo - a->f->hi;
+	double sgn = p->kind == NL_D ? -1 : 1, lo, hi;
+	if (sgn > 0)
+		form_dc_range_diff(a->f, b->f, &lo, &hi);
+	else
+		form_dc_range_diff(b->f, a->f, &lo, &hi);
 	double c = p->kind == NL_D ? hi : (fabs(hi) > fabs(lo) ? hi : lo);
 	for (int i = 0; i < PLOT_POINTS; i++) {
 		double t = period * i / (PLOT_POINTS - 1);

@@ -99,6 +99,12 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 				      [NL_G] = SD_G, [NL_H] = SD_H};
 	if (p->kind > NL_H || p->kind == NL_X_UNUSED)
 		return refuse(ref, i, "the solver has no model for this kind of part");
+	if (p->ext && p->ext->behavioural && p->kind == NL_K)
+		return refuse(ref, i, "a coupling over more than two inductors or with a magnetic "
+				      "core model is not simulated");
+	if (p->ext && p->ext->behavioural && p->kind <= NL_L)
+		return refuse(ref, i, "a value that follows the circuit's state (time, a node "
+				      "voltage or a current) is not simulated");
 	if (p->ext && p->ext->behavioural)
 		return refuse(ref, i, "behavioural sources (value=, poly, table) are not simulated");
 	if (p->kind == NL_D && p->model && strcmp(p->model->type, "d") != 0)

@@ -19,7 +19,8 @@ struct acc {
 	const char **corner;
 	unsigned char *seen;     /* a settled run gave this part a value */
 	unsigned char *blocked;  /* per island: a part the solver cannot take */
-	const char *blocked_why;
+	const char **island_why; /* per island: that part and why, or NULL */
+	const char *blocked_why; /* the first such part, or why every island is */
 };
 
 struct sb {
@@ -35,6 +36,7 @@ struct sb {
 	unsigned long work, total_work; /* Newton iterations times unknowns */
 	unsigned long run_work;  /* Newton iterations allowed in one run */
 	unsigned long size;      /* unknowns of the circuit (estimate first) */
+	size_t real_left;        /* real-diode runs still to come, this one's included */
 };
 
 static int needs_run(const struct stress_result *sr, const unsigned char *blocked)
@@ -161,8 +163,13 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		char buf[320];
 		b->o.ideal_diodes = !real;
 		/* work is Newton iterations times unknowns: a run may use what
-		   is left of the file's allowance, up to its own limit */
+		   is left of the file's allowance, up to its own limit; the
+		   nearly-ideal run, an extra, only its share, so that it never
+		   starves the real runs every number depends on (sharp diodes
+		   can keep a lightly damped circuit ringing for ever) */
 		unsigned long left = (b->total_work - b->work) / b->size;
+		if (!real)
+			left /= b->real_left + 1;
 		b->o.max_work = left < b->run_work ? (left ? left : 1) : b->run_work;
 		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, NULL, NULL, &r);
 		b->fb->runs++;
@@ -199,18 +206,121 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 /* A part kept as opaque, its connections not known, could touch any node
  * of its subcircuit instance (or, at the top level, of the circuit): every
  * island with a part of that instance gets no simulated number. */
-static void block_instance(struct sb *b, const char *path)
+static void block_island(struct sb *b, uint32_t is, const char *why)
+{
+	b->acc.blocked[is] = 1;
+	if (!b->acc.island_why[is])
+		b->acc.island_why[is] = why;
+}
+
+static void block_instance(struct sb *b, const char *path, const char *why)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
 	const char *dot = strrchr(path, '.');
 	size_t n = dot ? (size_t)(dot - path) + 1 : 0;
 	for (size_t i = 0; i < nl_part_count(c); i++)
 		if (strncmp(nl_part_at(c, i)->path, path, n) == 0 && b->sr->island[i] != NL_NONE)
-			b->acc.blocked[b->sr->island[i]] = 1;
+			block_island(b, b->sr->island[i], why);
+}
+
+/* Islands are cut at the nodes sources hold, but a transformer's coupling
+ * (K) and a current-controlled source (F, H) carry a part's effect across
+ * the cut: a part left out on one side changes what the other side sees.
+ * Such islands form one group (a union-find over island roots, which are
+ * node indices); a blocked island blocks its group. */
+static uint32_t group_of(uint32_t *up, uint32_t n)
+{
+	while (up[n] != n) {
+		up[n] = up[up[n]];
+		n = up[n];
+	}
+	return n;
+}
+
+static void couple(struct sb *b, uint32_t *up, uint32_t p1, uint32_t p2)
+{
+	uint32_t a = p1 == NL_NONE ? NL_NONE : b->sr->island[p1];
+	uint32_t z = p2 == NL_NONE ? NL_NONE : b->sr->island[p2];
+	if (a != NL_NONE && z != NL_NONE)
+		up[group_of(up, a)] = group_of(up, z);
+}
+
+/* The current through sensing source v is what the parts at one of its
+ * nodes (not ground) carry, through any chain of voltage sources: every
+ * part met on the way is coupled to part f. seen[] holds a stamp per node
+ * so that no clearing is needed between calls; a voltage source is pushed
+ * at most once from each of its two nodes, so the stack holds 2 np + 1. */
+struct walk {
+	uint32_t *up, *seen, *stack, stamp;
+};
+
+static void couple_sensed(struct sb *b, struct walk *w, uint32_t f, uint32_t v)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	const uint32_t *q = nl_pins(c, nl_part_at(c, v));
+	size_t top = 0;
+	w->stamp++;
+	w->stack[top++] = q[0] == NL_GROUND ? q[1] : q[0];
+	while (top > 0) {
+		uint32_t n = w->stack[--top], k;
+		if (n == NL_GROUND || w->seen[n] == w->stamp)
+			continue;
+		w->seen[n] = w->stamp;
+		const uint32_t *adj = nl_adjacency(c, n, &k);
+		for (uint32_t j = 0; j < k; j++) {
+			const struct nl_part *p = nl_part_at(c, adj[j]);
+			couple(b, w->up, f, adj[j]);
+			if (p->kind == NL_V && adj[j] != v && p->npins == 2) {
+				const uint32_t *r = nl_pins(c, p);
+				w->stack[top++] = r[0] == n ? r[1] : r[0];
+			}
+		}
+	}
+}
+
+static int block_groups(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t nn = nl_node_count(c) + 1, np = nl_part_count(c);
+	struct walk w = {arena_alloc(b->ar, nn * sizeof *w.up),
+			 arena_zalloc(b->ar, nn * sizeof *w.seen),
+			 arena_alloc(b->ar, (2 * np + 2) * sizeof *w.stack), 0};
+	uint32_t *up = w.up;
+	if (!w.up || !w.seen || !w.stack)
+		return 0;
+	for (size_t n = 0; n < nn; n++)
+		up[n] = (uint32_t)n;
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		if (!p->ext)
+			continue;
+		if (p->kind == NL_K)
+			couple(b, up, p->ext->ctrl_part[0], p->ext->ctrl_part[1]);
+		else if ((p->kind == NL_F || p->kind == NL_H) && p->ext->ctrl_part[0] != NL_NONE)
+			couple_sensed(b, &w, (uint32_t)i, p->ext->ctrl_part[0]);
+	}
+	/* the first blocked island of a group gives the group its reason */
+	for (size_t n = 0; n < nn; n++)
+		if (b->acc.blocked[n] && !b->acc.blocked[group_of(up, (uint32_t)n)])
+			block_island(b, group_of(up, (uint32_t)n), b->acc.island_why[n]);
+	for (size_t n = 0; n < nn; n++)
+		if (b->acc.blocked[group_of(up, (uint32_t)n)])
+			block_island(b, (uint32_t)n, b->acc.island_why[group_of(up, (uint32_t)n)]);
+	return 1;
+}
+
+/* "X has no model in the solver either (why)", in the arena. */
+static const char *no_model(struct sb *b, uint32_t part, const char *why)
+{
+	char buf[1500];
+	snprintf(buf, sizeof buf, "%s has no model in the solver either (%s)",
+		 nl_part_at(b->a->er.circuit, part)->path, why);
+	return arena_strdup(b->ar, buf);
 }
 
 /* Parts the solver has no model for are left open; their islands get no
- * simulated number (the circuit simulated would not be the real one). */
+ * simulated number (the circuit simulated would not be the real one), each
+ * with the first such part of that island as the reason. */
 static int leave_out(struct sb *b)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
@@ -220,18 +330,23 @@ static int leave_out(struct sb *b)
 	if (!mask)
 		return 0;
 	for (size_t i = 0; i < nl_part_count(c); i++) {
-		if (mask[i] && b->sr->island[i] != NL_NONE)
-			b->acc.blocked[b->sr->island[i]] = 1;
-		if (mask[i] && nl_part_at(c, i)->npins == 0)
-			block_instance(b, nl_part_at(c, i)->path);
-	}
-	if (count) {
-		char buf[1500];
-		snprintf(buf, sizeof buf, "%s has no model in the solver either (%s)",
-			 nl_part_at(c, first.part)->path, first.why);
-		if (!(b->acc.blocked_why = arena_strdup(b->ar, buf)))
+		uint32_t is = b->sr->island[i];
+		struct sim_refusal ref;
+		if (!mask[i] || (is == NL_NONE && nl_part_at(c, i)->npins > 0))
+			continue;
+		sim_part_supported(c, i, &ref);
+		const char *why = no_model(b, (uint32_t)i, ref.why);
+		if (!why)
 			return 0;
+		if (is != NL_NONE)
+			block_island(b, is, why);
+		if (nl_part_at(c, i)->npins == 0)
+			block_instance(b, nl_part_at(c, i)->path, why);
 	}
+	if (count && !(b->acc.blocked_why = no_model(b, first.part, first.why)))
+		return 0;
+	if (count && !block_groups(b))
+		return 0;
 	b->o.leave_out = mask;
 	b->o.gshunt = SIMRUN_GSHUNT;
 	return 1;
@@ -248,6 +363,7 @@ static int alloc_all(struct sb *b)
 	x->corner = arena_zalloc(b->ar, np * sizeof *x->corner);
 	x->seen = arena_zalloc(b->ar, np);
 	x->blocked = arena_zalloc(b->ar, nn);
+	x->island_why = arena_zalloc(b->ar, nn * sizeof *x->island_why);
 	b->scale = arena_alloc(b->ar, np * sizeof *b->scale);
 	b->set = arena_alloc(b->ar, np * sizeof *b->set);
 	b->vmin = arena_alloc(b->ar, np * sizeof *b->vmin);
@@ -256,7 +372,7 @@ static int alloc_all(struct sb *b)
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
 	return x->worst && x->best && x->rev_min && x->corner && x->seen && x->blocked &&
-	       b->scale && b->set && b->vmin && b->vmax && b->fb;
+	       x->island_why && b->scale && b->set && b->vmin && b->vmax && b->fb;
 }
 
 /* A corner failed: no simulated value is a worst case any more. */
@@ -269,7 +385,7 @@ static void forget(struct sb *b)
 	for (size_t i = 0; i < b->sr->n; i++) {
 		uint32_t is = b->sr->island[b->sr->s[i].part];
 		if (is != NL_NONE && b->sr->s[i].unproven)
-			b->acc.blocked[is] = 1;
+			block_island(b, is, b->fb->why);
 	}
 }
 
@@ -306,7 +422,7 @@ static void fill(struct sb *b)
 			s->basis = SB_NONE;
 			s->best = s->worst = s->rev_min = NAN;
 			if (blocked)
-				s->unproven = x->blocked_why;
+				s->unproven = x->island_why[is] ? x->island_why[is] : x->blocked_why;
 			b->fb->left++;
 			continue;
 		}
@@ -362,6 +478,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	   analysis's own worst case lies; the real diodes everywhere */
 	for (size_t k = 0; k < nc && !b.fb->why; k++) {
 		set_corner(&b, corners[k], names[k], sizeof names[k]);
+		b.real_left = nc - k;
 		if (!run_corner(&b, names[k], imin, imax, k == 0))
 			return 0;
 	}

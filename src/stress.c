@@ -11,6 +11,7 @@
 #include "stress.h"
 
 #include "dmodel.h"
+#include "annot.h"
 #include "proof.h"
 
 #include <math.h>
@@ -39,6 +40,9 @@ double stress_tolerance(const struct audit *a, const struct profile *p,
 struct ctx {
 	const struct audit *a;
 	struct arena *ar;        /* the stage's memory */
+	const unsigned char *skip; /* per node: left unsettled in the corner runs */
+	const char **why0;         /* the proof without diodes in breakdown */
+	uint32_t *island0;
 	const struct rating *r;
 	const struct profile *p;
 	struct prop_result runs[NCORNER];
@@ -75,8 +79,77 @@ static int run_corner(struct ctx *x, int k)
 		if (vf)
 			vf[i] = p->kind == NL_D ? rating_vf(p, x->r[i].kind) : 0;
 	}
-	struct prop_corner corner = {amp, olo, ohi, vf};
+	struct prop_corner corner = {amp, olo, ohi, vf, x->skip};
 	return prop_run(c, x->a->ranges, &corner, x->ar, &x->runs[k]);
+}
+
+/* ---- islands no stress needs ---- */
+
+/* The nominal run's held nodes: those that cut islands (proof.c). */
+static int held(const struct ctx *x, uint32_t n)
+{
+	const struct prop_node *p = &x->a->prop.nodes[n];
+	return n == NL_GROUND || (p->state == PS_RESOLVED &&
+				  (p->how == PH_GROUND || p->how == PH_SOURCE || p->how == PH_VCVS));
+}
+
+/* Islands a stress may need: proven ones, those with a diode or a part of
+ * a structure, an inductor a K couples (its partner's island follows it)
+ * and the node of a *@expect line. */
+static void keep_islands(const struct ctx *x, const char **why, const uint32_t *island,
+			 unsigned char *keep)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		if (p->kind == NL_K && p->ext)
+			for (int k = 0; k < 2; k++)
+				if (p->ext->ctrl_part[k] != NL_NONE &&
+				    island[p->ext->ctrl_part[k]] != NL_NONE)
+					keep[island[p->ext->ctrl_part[k]]] = 1;
+		if (island[i] != NL_NONE && (!why[i] || p->kind == NL_D || x->tpart_of[i]))
+			keep[island[i]] = 1;
+	}
+	for (uint32_t k = 0; k < x->a->nannots; k++) {
+		const struct annot *an = &x->a->annots[k];
+		uint32_t id = an->kind == AN_EXPECT
+				      ? nl_node_find(c, an->target, strlen(an->target)) : NL_NONE, n;
+		const uint32_t *adj = id != NL_NONE ? nl_adjacency(c, id, &n) : NULL;
+		for (uint32_t j = 0; adj && j < n; j++)
+			if (island[adj[j]] != NL_NONE)
+				keep[island[adj[j]]] = 1;
+	}
+}
+
+/* The corner runs leave alone the free nodes of islands that hold no part
+ * a stress needs: islands that break an assumption of the analysis and
+ * have no diode and no structure (an amplifier stage beside a transistor).
+ * Their capacitors would be unproven parts of no diode-capacitor network,
+ * which are not listed (judge_proofs), so nothing is lost, and a deck of
+ * amplifier cells does not pay four propagations for them. Diodes in
+ * breakdown only change the reasons of islands with diodes, which are
+ * kept: the proof here runs without them. */
+static int skip_islands(struct ctx *x)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	size_t np = nl_part_count(c), nn = nl_node_count(c);
+	const char **why;
+	uint32_t *island;
+	unsigned char *none = arena_zalloc(x->ar, np + 1), *keep = arena_zalloc(x->ar, nn + 1);
+	unsigned char *skip = arena_zalloc(x->ar, nn + 1);
+	if (!none || !keep || !skip || !proof_run(c, &x->a->prop, none, x->ar, &why, &island))
+		return 0;
+	x->why0 = why;
+	x->island0 = island;
+	keep_islands(x, why, island, keep);
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		const uint32_t *q = nl_pins(c, p);
+		for (uint8_t k = 0; island[i] != NL_NONE && !keep[island[i]] && k < p->npins; k++)
+			skip[q[k]] = !held(x, q[k]);
+	}
+	x->skip = skip;
+	return 1;
 }
 
 /* v(p0) - v(p1) extremes at corner k; 0 when a node is not settled. */
@@ -264,12 +337,12 @@ static int push(struct ctx *x, struct stress_result *out, size_t *cap,
  * bounded) that share an island with a diode: they are part of a
  * diode-capacitor network too and get a stress of their own. */
 static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *cap,
-			    const uint32_t *island)
+			    const uint32_t *island, unsigned char *has_d)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
-	size_t np = nl_part_count(c), nn = nl_node_count(c);
-	unsigned char *has_d = arena_zalloc(x->ar, nn + 1), *listed = arena_zalloc(x->ar, np + 1);
-	if (!has_d || !listed)
+	size_t np = nl_part_count(c);
+	unsigned char *listed = arena_zalloc(x->ar, np + 1);
+	if (!listed)
 		return 0;
 	for (size_t i = 0; i < out->n; i++)
 		listed[out->s[i].part] = 1;
@@ -291,25 +364,53 @@ static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *ca
 	return 1;
 }
 
+/* True when stress s belongs to no diode-capacitor network: outside every
+ * structure, in an island without a diode (or none). */
+static int outside_networks(const struct stress *s, const uint32_t *island,
+			    const unsigned char *has_d)
+{
+	return s->structure < 0 && (island[s->part] == NL_NONE || !has_d[island[s->part]]);
+}
+
 /* Marks each stress whose island breaks an assumption of the analysis
- * (proof.h), and each the analysis could not bound, as unproven. */
+ * (proof.h), and each the analysis could not bound, as unproven. A part of
+ * no diode-capacitor network was listed only because the analysis bounded
+ * it; where that bound does not hold it is dropped, as one the analysis
+ * could not bound is never listed (an amplifier's bypass capacitors beside
+ * a transistor are no concern of the check's and cost no simulation). */
 static int judge_proofs(struct ctx *x, struct stress_result *out, size_t *cap)
 {
 	const char **why;
 	uint32_t *island;
+	size_t np = nl_part_count(x->a->er.circuit), any = 0;
 	unsigned char *bd = breakdown_of(x, out);
-	if (!bd || !proof_run(x->a->er.circuit, &x->runs[C_NOM], bd, x->ar, &why, &island) ||
-	    !add_island_parts(x, out, cap, island))
+	unsigned char *has_d = arena_zalloc(x->ar, nl_node_count(x->a->er.circuit) + 1);
+	for (size_t i = 0; bd && i < np; i++)
+		any |= bd[i];
+	why = x->why0;
+	island = x->island0; /* the same proof when no diode is in breakdown */
+	if (!bd || !has_d ||
+	    (any && !proof_run(x->a->er.circuit, &x->runs[C_NOM], bd, x->ar, &why, &island)) ||
+	    !add_island_parts(x, out, cap, island, has_d))
 		return 0;
 	out->island = island;
+	size_t kept = 0;
 	for (size_t i = 0; i < out->n; i++) {
 		struct stress *s = &out->s[i];
-		if (s->qty == SQ_SURGE)
-			continue;
-		s->unproven = why[s->part];
-		if (!s->bounded && !s->unproven)
-			s->unproven = "the analysis could not settle the voltage at its nodes";
+		if (s->qty != SQ_SURGE) {
+			s->unproven = why[s->part];
+			if (!s->bounded && !s->unproven)
+				s->unproven = "the analysis could not settle the voltage at its nodes";
+			if (s->unproven && outside_networks(s, island, has_d))
+				continue;
+		}
+		out->s[kept++] = *s;
 	}
+	out->n = kept;
+	out->max_voltage = 0;
+	for (size_t i = 0; i < out->n; i++)
+		if (out->s[i].bounded && out->s[i].qty != SQ_SURGE)
+			out->max_voltage = fmax(out->max_voltage, out->s[i].worst);
 	return 1;
 }
 
@@ -560,11 +661,14 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 	x.ar = ar;
 	x.r = r;
 	x.p = p;
-	for (int k = 0; k < NCORNER; k++)
-		if (!run_corner(&x, k))
-			return 0;
-	if (!membership(&x))
+	if (!membership(&x) || !skip_islands(&x))
 		return 0;
+	/* the nominal corner is the audit's own run (the same sources, ideal
+	   diodes, nothing left unsettled) */
+	x.runs[C_NOM] = a->prop;
+	for (int k = 0; k < NCORNER; k++)
+		if (k != C_NOM && !run_corner(&x, k))
+			return 0;
 	const struct nl_circuit *c = a->er.circuit;
 	size_t cap = 0, np = nl_part_count(c);
 	const struct stress **coupling = arena_zalloc(ar, (a->topo.n + 1) * sizeof *coupling);

@@ -518,11 +518,9 @@ def family(name):
 
 # Bounds known to be sound but looser than 3 % + 0.1 V, each with its reason
 # (the test fails if one becomes unsound, or if any other part is loose).
-KNOWN_LOOSE = {
-    ("f09_charge_pump_pulse.cir", "d1"):
-        "the analysis keeps DC offsets as intervals: a clamp's DC and the rail it "
-        "clamps to move independently in it, 2 x 5 % of 12 V too much (docs/check.md)",
-}
+# (f09_charge_pump_pulse D1 was one until the DC offsets became symbols that a
+# clamp's level shares with its rail: docs/check.md, "Correlated offsets")
+KNOWN_LOOSE = {}
 
 
 def main():

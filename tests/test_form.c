@@ -181,6 +181,67 @@ static void test_signals(void **state)
 	arena_destroy(ar);
 }
 
+/* x's DC part at one value of the symbols e[] (e[j] for source j). */
+static void dc_at(const struct form *x, const double *e, double *lo, double *hi)
+{
+	double s = 0;
+	for (uint32_t i = 0; i < x->n; i++)
+		if (x->t[i].src & FORM_DC)
+			s += x->t[i].c * e[x->t[i].src & ~FORM_DC];
+	*lo = x->lo + s;
+	*hi = x->hi + s;
+}
+
+/* DC symbols: a rail 12 V +- 0.6 V appears in two nodes; their difference
+ * carries no offset (it was 1.2 V wide as intervals), a symbol never varies
+ * in time, and the join of two DC parts encloses max, min and hull at every
+ * corner of the symbols (3 symbols, every vertex and the centre; affine
+ * functions take their extremes at vertices), and is exact for equal
+ * symbols. */
+static void test_dc_symbols(void **state)
+{
+	(void)state;
+	struct hr_alloc h = hr_alloc_default();
+	struct arena *ar = arena_create(&h);
+	struct sig sigs[3] = {sine(1, 50, 0), sine(2, 50, 0), sine(3, 50, 0)};
+	struct form_ctx fc = {sigs, 3, ar};
+	struct form *rail = form_offset(ar, 12, 0, 0.6);
+	struct form *node = form_lin(ar, 1, rail, 1, form_source(&fc, ar, 1, 1));
+	double lo, hi;
+	int exact;
+	form_range(&fc, form_lin(ar, 1, node, -1, rail), &lo, &hi, &exact);
+	assert_true(fabs(lo + 2) < 1e-12 && fabs(hi - 2) < 1e-12);
+	assert_true(form_is_dc(rail) && !form_is_dc(node));
+	form_range(&fc, node, &lo, &hi, &exact);
+	assert_true(fabs(lo - 9.4) < 1e-12 && fabs(hi - 14.6) < 1e-12);
+	form_dc_range_diff(node, rail, &lo, &hi);
+	assert_true(fabs(lo) < 1e-12 && fabs(hi) < 1e-12);
+	struct form *x = form_lin(ar, 1, form_offset(ar, 1, 0, 0.5), 2, form_offset(ar, 0, 1, 1));
+	struct form *y = form_lin(ar, -1, form_offset(ar, 2, 1, 0.3), 1, form_offset(ar, 0, 2, 2));
+	for (int how = 0; how < FORM_JOIN_COUNT; how++) {
+		const struct form *j = form_dc_join(ar, (enum form_join)how, x, y);
+		assert_non_null(j);
+		assert_true(form_is_dc(j));
+		for (int v = 0; v < 28; v++) {
+			double e[3] = {v == 27 ? 0 : v % 3 - 1, v == 27 ? 0 : v / 3 % 3 - 1,
+				       v == 27 ? 0 : v / 9 - 1};
+			double xl, xh, yl, yh, jl, jh;
+			dc_at(x, e, &xl, &xh);
+			dc_at(y, e, &yl, &yh);
+			dc_at(j, e, &jl, &jh);
+			double want_lo = how == FORM_MAX ? fmax(xl, yl) : fmin(xl, yl);
+			double want_hi = how == FORM_MIN ? fmin(xh, yh) : fmax(xh, yh);
+			if (jl > want_lo + 1e-12 || jh < want_hi - 1e-12)
+				fail_msg("join %d at vertex %d: [%g, %g] misses [%g, %g]", how, v,
+					 jl, jh, want_lo, want_hi);
+		}
+	}
+	const struct form *m = form_dc_join(ar, FORM_MAX, x, form_lin(ar, 1, x, 1, form_const(ar, 3, 3)));
+	dc_at(m, (double[3]){0, 0, 0}, &lo, &hi);
+	assert_true(fabs(lo - 4) < 1e-12 && fabs(hi - 4) < 1e-12);
+	arena_destroy(ar);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -188,6 +249,7 @@ int main(void)
 		cmocka_unit_test(test_phasor_value),
 		cmocka_unit_test(test_incommensurate),
 		cmocka_unit_test(test_signals),
+		cmocka_unit_test(test_dc_symbols),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
