@@ -84,7 +84,7 @@ BLOCKED = {
          "model (K ... MODEL: a nonlinear core)"),
     "xyce/Netlists/Certification_Tests/BUG_746_SON/raw_file_mutual_inductors.cir":
         (["xbr2.Ktrans"], "a transformer coupled through Xyce's nonlinear CORE model, "
-         "inductor values are turns, not henries"),
+         "in whose reading (from memory) the inductor values are turns, not henries"),
     "xyce/Netlists/Certification_Tests/BUG_775_SON/bug775son.cir":
         (["xbr1.Ktrans", "xbr2.Ktrans"], "transformers coupled through Xyce's nonlinear CORE "
          "model, in whose reading (from memory) the inductor values are turns, not henries"),
