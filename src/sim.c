@@ -571,6 +571,15 @@ const double *sim_voltages(const struct sim *s)
 	return s->v;
 }
 
+void sim_currents(const struct sim *s, double *i)
+{
+	size_t np = nl_part_count(s->c);
+	for (size_t k = 0; k < np; k++)
+		i[k] = NAN;
+	for (size_t k = 0; k < s->ndev; k++)
+		i[s->dev[k].part] = simdev_current(&s->dev[k], s->x);
+}
+
 void sim_stats(const struct sim *s, struct sim_stats *out)
 {
 	*out = s->st;

@@ -39,6 +39,8 @@ struct simdev {
 	double q0, f0, q, f;
 	double vd;            /* diode: junction voltage of the linearisation */
 	double cj;            /* diode: its charge's derivative there (F) */
+	double lin_g, lin_i;  /* diode without RS: its companion at the last
+				 stamp, i = lin_g v + lin_i (A/V, A) */
 	double qh[3], th[3];  /* charge history for the error estimate */
 };
 
@@ -67,6 +69,14 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
  * (a diode's are those of its last stamp, at the converged iterate). */
 void simdev_update(struct simdev *d, const struct simdev_step *st,
 		   const double *x);
+
+/* The current through d from its pin 0 to its pin 1 (a source's from
+ * its + pin through itself to its - pin) at the accepted solution x, as
+ * the equations the solver met carry it: a resistor's v/R, a
+ * capacitor's companion current, a diode's junction plus charge current
+ * (through RS when it has one), a branch unknown; NaN for a device with
+ * no one current (K, controlled sources). */
+double simdev_current(const struct simdev *d, const double *x);
 
 /* Fills the derived diode parameters. */
 void simdev_diode_init(struct simdev_diode *m);
