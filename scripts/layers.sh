@@ -54,6 +54,7 @@ bomval check
 bom check
 rating check
 stress check
+current check
 discharge check
 verify check
 rules check

@@ -9,7 +9,6 @@
 #include <stdio.h>
 #include <string.h>
 
-#include "dmodel.h"
 #include "num.h"
 
 /* Designated initialisers tie each row to its enum constant [rules-list]. */
@@ -68,10 +67,6 @@ double rules_standard_rating(double v, int diode)
 			return s[i];
 	return NAN;
 }
-
-/* A diode rated by its model's BV that the circuit takes to this share of
- * it is taken to work in breakdown (the knee: at IBV it sits at BV). */
-#define BREAKDOWN_SHARE 0.98
 
 struct ctx {
 	const struct audit *a;
@@ -549,22 +544,14 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 		     v(x, s->worst * s->series_r / f->limit, "ohm"));
 }
 
-/* A diode driven into reverse breakdown on purpose: a zener (by kind), or
- * a diode rated only by its model's BV that the circuit takes to that BV.
- * Its reverse voltage is held at BV by the diode itself; what can hurt it
- * is the power it then takes (Vz times its current), not the voltage. A
+/* A diode driven into reverse breakdown on purpose (rating.h): its
+ * reverse voltage is held at BV by the diode itself; what can hurt it is
+ * the power it then takes (Vz times its current), not the voltage. A
  * rectifier given a reverse rating of its own keeps its voltage rules. */
 static int in_breakdown(const struct ctx *x, const struct stress *s)
 {
-	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
-	const struct rating *r = &x->r[s->part];
-	if (p->kind != NL_D || s->qty != SQ_REVERSE || !s->bounded)
-		return 0;
-	if (r->kind && strcmp(r->kind, "zener") == 0)
-		return s->worst >= 0.9 * r->v_rated.value || isnan(r->v_rated.value);
-	double bv = dmodel_given(p->model, DM_BV);
-	return r->v_rated.from && strcmp(r->v_rated.from, "model BV") == 0 && bv > 0 &&
-	       s->worst >= bv * BREAKDOWN_SHARE;
+	return s->qty == SQ_REVERSE && s->bounded &&
+	       rating_breakdown(nl_part_at(x->a->er.circuit, s->part), &x->r[s->part], s->worst);
 }
 
 static void breakdown_note(struct ctx *x, const struct stress *s)
