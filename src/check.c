@@ -106,6 +106,7 @@ static int judge(const struct check_opts *o, struct check_run *r)
 	       discharge_run(a, r->profile, a->ar, &r->sr) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
 	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
+	       current_judge(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
 	       defects_run(a, rt, &r->sr, a->ar, &r->rr) &&
 	       waiver_apply(a, o->waivers, o->today, a->ar, &r->rr);
 }

@@ -21,6 +21,10 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_SURGE_DERATING] = {"surge-derating", DIAG_WARNING, "the power-up surge through a diode is above the profile's share of its surge rating"},
 	[RULE_SURGE_EXCESS] = {"surge-excess", DIAG_ERROR, "the power-up surge through a diode is above its surge rating itself"},
 	[RULE_SURGE_UNBOUNDED] = {"surge-unbounded", DIAG_WARNING, "nothing limits the power-up surge through a diode"},
+	[RULE_DIODE_AVG_CURRENT] = {"diode-avg-current", DIAG_WARNING, "a diode's mean forward current (simulated) is above the profile's share of its average-current rating"},
+	[RULE_DIODE_PEAK_CURRENT] = {"diode-peak-current", DIAG_WARNING, "a diode's repetitive peak forward current (simulated) is above the profile's share of its repetitive peak rating"},
+	[RULE_CAP_RIPPLE_CURRENT] = {"cap-ripple-current", DIAG_WARNING, "a capacitor's ripple current (simulated, rms) is above the profile's share of its rated ripple current"},
+	[RULE_ZENER_POWER] = {"zener-power", DIAG_WARNING, "a diode working in breakdown takes more power (simulated) than the profile's share of its power rating"},
 	[RULE_STORED_CHARGE] = {"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
 	[RULE_CLAMP_DROOP] = {"clamp-droop", DIAG_WARNING, "the load makes a clamp's capacitor droop too much each period"},
 	[RULE_SLOW_RECOVERY] = {"slow-recovery", DIAG_WARNING, "a diode recovers too slowly for the drive frequency"},
@@ -554,24 +558,42 @@ static int in_breakdown(const struct ctx *x, const struct stress *s)
 	       rating_breakdown(nl_part_at(x->a->er.circuit, s->part), &x->r[s->part], s->worst);
 }
 
+/* The part's power stress (current.c), or NULL. */
+static const struct stress *power_of(const struct ctx *x, uint32_t part)
+{
+	for (size_t i = 0; i < x->s->n; i++)
+		if (x->s->s[i].part == part && x->s->s[i].qty == SQ_POWER)
+			return &x->s->s[i];
+	return NULL;
+}
+
 static void breakdown_note(struct ctx *x, const struct stress *s)
 {
 	struct finding *f = add(x, RULE_BREAKDOWN_WORK, s->part, s->structure);
 	if (!f)
 		return;
-	f->message = str(x, "%s works in reverse breakdown at about %s: its stress is the power it takes "
-			    "(Vz times its current), which this check does not compute yet",
-			 f->subject, v(x, s->worst, "V"));
+	const struct stress *pw = power_of(x, s->part);
+	const char *power = pw && pw->bounded
+		? str(x, "%s on average (simulated; zener-power judges it against p_rated)", v(x, pw->worst, "W"))
+		: str(x, "Vz times its current, which the simulation could not give here (%s)",
+		      pw && pw->unproven ? pw->unproven : "no steady state");
+	f->message = str(x, "%s works in reverse breakdown at about %s: its stress is the power it takes, %s",
+			 f->subject, v(x, s->worst, "V"), power);
 	f->worst = s->worst;
 	f->computation = computation(x, s);
-	f->fix = "check the zener's power against its rating at the highest input; give it kind=zener "
-		 "in the parts table to say the breakdown is intended";
+	f->fix = pw && pw->bounded
+		? "give the zener its power rating (p_rated in the parts table or *@part) so that zener-power "
+		  "judges it; give it kind=zener to say the breakdown is intended"
+		: "check the zener's power against its rating at the highest input; give it kind=zener "
+		  "in the parts table to say the breakdown is intended";
 }
 
 static void part_rules(struct ctx *x, const struct stress *s)
 {
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
 	const char *cls = p->kind == NL_D ? "diode" : "cap";
+	if (stress_qty_is_flow(s->qty))
+		return; /* current.c judges the currents and the power */
 	if (s->qty == SQ_SURGE) {
 		surge_rules(x, s);
 		return;

@@ -38,6 +38,7 @@ struct sb {
 	unsigned long run_work;  /* Newton iterations allowed in one run */
 	unsigned long size;      /* unknowns of the circuit (estimate first) */
 	struct simrun_flow *flow; /* the currents' run writes here */
+	int volts;               /* unproven voltages to simulate */
 };
 
 static int needs_run(const struct stress_result *sr, const unsigned char *blocked)
@@ -193,10 +194,11 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 	int ideal_ok = 0;
 	for (int real = !ideal; real < 2; real++) {
 		if (b->work >= b->total_work) {
-			if (!b->fb->why)
-				b->fb->why = "the simulation needs more work than allowed for one file";
+			const char *why = "the simulation needs more work than allowed for one file";
+			if (b->volts && !b->fb->why)
+				b->fb->why = why;
 			if (flows && !b->fb->flow_why)
-				b->fb->flow_why = b->fb->why;
+				b->fb->flow_why = why;
 			return 1;
 		}
 		struct simrun_result r;
@@ -222,7 +224,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		if (!ran || (!r.settled && !rising)) {
 			/* a corner whose real run fails leaves the worst case
 			   unknown: nothing simulated may stand for it */
-			if (real && !b->fb->why && !(b->fb->why = fail_why(b, &r, name)))
+			if (b->volts && real && !b->fb->why && !(b->fb->why = fail_why(b, &r, name)))
 				return 0;
 			continue;
 		}
@@ -391,7 +393,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	memcpy(fblock, b.acc.blocked, nn);
 	b.fb->flow_blocked = fblock;
 	b.fb->flow_blocked_why = b.acc.blocked_why;
-	int volts = needs_run(sr, b.acc.blocked), flows = wants_flow(sr, b.acc.blocked);
+	int volts = b.volts = needs_run(sr, b.acc.blocked), flows = wants_flow(sr, b.acc.blocked);
 	if (!volts && !flows) {
 		fill(&b); /* every stressed island has a part the solver cannot take */
 		b.fb->flow_why = b.acc.blocked_why;
