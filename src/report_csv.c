@@ -65,8 +65,8 @@ const char *report_currents_line(const struct check_file *f, char *buf, size_t n
 		return NULL;
 	if (fb && fb->flow) {
 		num_format_eng(fb->flow_period, "s", per, sizeof per);
-		snprintf(buf, n, "currents and power: one steady-state period (%s) of the %s", per,
-			 fb->flow_corner);
+		snprintf(buf, n, "currents and power: %s, over one steady-state period (%s)",
+			 fb->flow_corner, per);
 	} else {
 		snprintf(buf, n, "currents and power: not simulated: %s",
 			 !fb ? "the circuit has more parts than the simulation takes"
