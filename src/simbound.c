@@ -405,6 +405,12 @@ int simbound_run(const struct audit *a, const struct profile *p,
 		return 0;
 	b.o.max_periods = lim && lim->max_periods ? lim->max_periods : 4000;
 	b.run_work = lim && lim->max_work ? lim->max_work : 5000000;
+	if (!volts) {
+		/* the currents alone: a tenth of the allowance (simbound.h) */
+		b.o.max_periods = b.o.max_periods < SIMBOUND_FLOW_PERIODS ? b.o.max_periods
+									  : SIMBOUND_FLOW_PERIODS;
+		b.run_work = b.run_work < SIMBOUND_FLOW_WORK ? b.run_work : SIMBOUND_FLOW_WORK;
+	}
 	b.size = nl_node_count(a->er.circuit) + 1;
 	size_t ns = moving_sources(&b, solo, SIMBOUND_MAX_SOLO);
 	long corners[SIMBOUND_MAX_SOLO + 2] = {-1, -2};
@@ -417,6 +423,8 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	if (!imin || !imax)
 		return 0;
 	b.total_work = lim && lim->total_work ? lim->total_work : 30000000;
+	if (!volts && b.total_work > SIMBOUND_FLOW_TOTAL)
+		b.total_work = SIMBOUND_FLOW_TOTAL;
 	/* nearly ideal diodes at the all-high corner only, where the
 	   analysis's own worst case lies; the real diodes everywhere */
 	for (size_t k = 0; k < nc && !b.fb->why; k++) {
