@@ -74,7 +74,10 @@ static void add(struct build *b, const struct stress *base, uint32_t part, enum 
 	const struct stress_fallback *fb = b->sr->fallback;
 	s->bounded = 1;
 	s->basis = SB_SIMULATED;
-	s->worst = s->best = value_of(&fb->flow[part], q);
+	/* m= parallel copies share the current and the power: each is rated */
+	const struct nl_part *pt = nl_part_at(b->a->er.circuit, part);
+	double m = pt->ext && isfinite(pt->ext->mult) && pt->ext->mult > 0 ? pt->ext->mult : 1;
+	s->worst = s->best = value_of(&fb->flow[part], q) / m;
 	s->corner = fb->flow_corner;
 	s->unproven = "currents come from the solver only: the analysis bounds voltages";
 }
@@ -240,8 +243,8 @@ static const char *ripple_terms(struct judge *j, const struct rating *r)
 			 : fmt(j, "at %s", eng(j, r->ripple_freq.value, "Hz"));
 	const char *temp = isnan(r->ripple_temp.value) ? "a temperature not given (ripple_temp)"
 			   : fmt(j, "%g C", r->ripple_temp.value);
-	return fmt(j, "; rated %s and %s; not scaled to the ripple's %s repetition: frequency "
-		      "multipliers belong to each capacitor series",
+	return fmt(j, "; rated %s and %s; not scaled to the ripple's frequency (its waveform "
+		      "repeats at %s): frequency multipliers belong to each capacitor series",
 		   at, temp, eng(j, fb && fb->flow_period > 0 ? 1 / fb->flow_period : NAN, "Hz"));
 }
 

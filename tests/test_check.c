@@ -291,6 +291,23 @@ static void test_current_ratings(void **state)
 	checked_free(&c);
 }
 
+/* A capacitor written as m=2 copies of 50 uF: each carries half of the
+ * ripple current of the one 100 uF part it replaces, and is rated for that. */
+static void test_current_per_copy(void **state)
+{
+	(void)state;
+	struct checked one, two;
+	check_text(&one, RECT(""), "industrial", 0, 0);
+	check_text(&two, "hw\nV1 a 0 sin(0 20 50)\nR1 a b 10\nDR b o dm\nCR o 0 50u m=2\nRL o 0 1k\n"
+			 ".model dm d rs=0.1\n", "industrial", 0, 0);
+	const struct stress *a = stress_of(&one, "CR", SQ_RIPPLE_CURRENT);
+	const struct stress *b = stress_of(&two, "CR", SQ_RIPPLE_CURRENT);
+	assert_true(a && b && a->bounded && b->bounded);
+	assert_true(fabs(b->worst - a->worst / 2) < 1e-3 * a->worst);
+	checked_free(&one);
+	checked_free(&two);
+}
+
 static void test_profiles_cite_tables(void **state)
 {
 	(void)state;
@@ -576,6 +593,7 @@ int main(void)
 		cmocka_unit_test(test_clamp_stresses),
 		cmocka_unit_test(test_rating_precedence),
 		cmocka_unit_test(test_current_ratings),
+		cmocka_unit_test(test_current_per_copy),
 		cmocka_unit_test(test_profiles_cite_tables),
 		cmocka_unit_test(test_profile_errors),
 		cmocka_unit_test(test_ladder_regulation),
