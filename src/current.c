@@ -13,7 +13,6 @@
 
 #include "num.h"
 
-
 struct build {
 	const struct audit *a;
 	const struct rating *r;
@@ -240,9 +239,9 @@ static const char *ripple_terms(struct judge *j, const struct rating *r)
 {
 	const struct stress_fallback *fb = j->sr->fallback;
 	const char *at = isnan(r->ripple_freq.value) ? "at a frequency not given (ripple_freq)"
-			 : fmt(j, "at %s", eng(j, r->ripple_freq.value, "Hz"));
+						     : fmt(j, "at %s", eng(j, r->ripple_freq.value, "Hz"));
 	const char *temp = isnan(r->ripple_temp.value) ? "a temperature not given (ripple_temp)"
-			   : fmt(j, "%g C", r->ripple_temp.value);
+						       : fmt(j, "%g C", r->ripple_temp.value);
 	return fmt(j, "; rated %s and %s; not scaled to the ripple's frequency (its waveform "
 		      "repeats at %s): frequency multipliers belong to each capacitor series",
 		   at, temp, eng(j, fb && fb->flow_period > 0 ? 1 / fb->flow_period : NAN, "Hz"));
@@ -255,17 +254,21 @@ static const char *fix_of(struct judge *j, const struct stress *s, double need)
 	case SQ_RIPPLE_CURRENT:
 		return fmt(j, "use a capacitor rated for at least %s ripple at the ripple's frequency and "
 			      "your temperature, or parallel parts, or lower the ripple (a larger "
-			      "capacitance, a series resistance or inductance ahead of it)", eng(j, need, u));
+			      "capacitance, a series resistance or inductance ahead of it)",
+			   eng(j, need, u));
 	case SQ_POWER:
 		return fmt(j, "use a zener rated for at least %s, or raise the series resistance that "
-			      "feeds it so that less current flows in breakdown", eng(j, need, u));
+			      "feeds it so that less current flows in breakdown",
+			   eng(j, need, u));
 	case SQ_PEAK_CURRENT:
 		return fmt(j, "use a diode rated for at least %s repetitive peak (i_peak), or lower the "
 			      "peaks: more series resistance ahead of the reservoir widens the conduction "
-			      "angle", eng(j, need, u));
+			      "angle",
+			   eng(j, need, u));
 	default:
 		return fmt(j, "use a diode rated for at least %s average (i_avg), or share the load: the "
-			      "mean forward current is the load's current through the diode", eng(j, need, u));
+			      "mean forward current is the load's current through the diode",
+			   eng(j, need, u));
 	}
 }
 
@@ -310,11 +313,11 @@ static void judge_one(struct judge *j, const struct stress *s)
 	f->rating = rf->value;
 	f->limit = rf->value * k;
 	f->message = s->worst > rf->value
-		? fmt(j, "%s's %s is %s (simulated), above its %s rating itself (%.0f%% of it)", f->subject,
-		      judged[s->qty].what, eng(j, s->worst, u), eng(j, rf->value, u), 100 * s->worst / rf->value)
-		: fmt(j, "%s's %s is %s (simulated), %.0f%% of its %s rating (limit %.0f%%)", f->subject,
-		      judged[s->qty].what, eng(j, s->worst, u), 100 * s->worst / rf->value,
-		      eng(j, rf->value, u), 100 * k);
+			     ? fmt(j, "%s's %s is %s (simulated), above its %s rating itself (%.0f%% of it)", f->subject,
+				   judged[s->qty].what, eng(j, s->worst, u), eng(j, rf->value, u), 100 * s->worst / rf->value)
+			     : fmt(j, "%s's %s is %s (simulated), %.0f%% of its %s rating (limit %.0f%%)", f->subject,
+				   judged[s->qty].what, eng(j, s->worst, u), 100 * s->worst / rf->value,
+				   eng(j, rf->value, u), 100 * k);
 	f->computation = how(j, s);
 	f->limits = fmt(j, "%s %s (%s); limit %s = %.0f%% of it (profile %s, %s%s%s)%s", judged[s->qty].column,
 			eng(j, rf->value, u), rf->from ? rf->from : "?", eng(j, f->limit, u), 100 * k, j->p->name,
