@@ -81,12 +81,20 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 	size_t np = nl_part_count(r->a.er.circuit);
 	if (np <= cap)
 		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);
+	struct stress_fallback *fb = arena_zalloc(r->a.ar, sizeof *fb);
+	char why[160];
+	snprintf(why, sizeof why, "the circuit has %zu parts, more than the simulation takes (%zu)", np, cap);
+	if (!fb || !(fb->why = fb->flow_why = arena_strdup(r->a.ar, why)))
+		return 0;
+	if (r->sr.n)
+		r->sr.fallback = fb; /* the currents' line and JSON say why */
 	for (size_t i = 0; i < r->sr.n; i++) {
 		struct stress *s = &r->sr.s[i];
 		if (s->unproven && stress_qty_is_voltage(s->qty)) {
 			s->bounded = 0;
 			s->basis = SB_NONE;
 			s->worst = s->best = NAN;
+			fb->left++;
 		}
 	}
 	return 1;

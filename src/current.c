@@ -27,7 +27,7 @@ static const char *missing_why(const struct stress_result *sr, uint32_t part)
 	const struct stress_fallback *fb = sr->fallback;
 	uint32_t is = sr->island ? sr->island[part] : NL_NONE;
 	if (!fb)
-		return "the circuit was not simulated (it has more parts than the simulation takes)";
+		return "the circuit was not simulated";
 	if (fb->flow_blocked && is != NL_NONE && fb->flow_blocked[is])
 		return fb->flow_blocked_why ? fb->flow_blocked_why
 					    : "a part of its island has no model in the solver";
@@ -52,6 +52,17 @@ static double value_of(const struct stress_flow *f, enum stress_qty q)
  * for a resistor, which belongs to no structure). */
 static void add(struct build *b, const struct stress *base, uint32_t part, enum stress_qty q)
 {
+	const char *why = missing_why(b->sr, part);
+	const struct stress_fallback *fb = b->sr->fallback;
+	/* a file with no currents at all says why once (its fallback, the
+	   reports' currents line); only a rated quantity is listed without
+	   its number, for the stress-unsettled warning */
+	if (why && !(fb && fb->flow) && isnan(stress_rating(&b->r[part], q)->value))
+		return;
+	if (!b->out) { /* counting */
+		b->n++;
+		return;
+	}
 	struct stress *s = &b->out[b->n++];
 	memset(s, 0, sizeof *s);
 	s->part = part;
@@ -63,14 +74,12 @@ static void add(struct build *b, const struct stress *base, uint32_t part, enum 
 	s->energy_j = s->series_r = s->discharge_s = NAN;
 	s->discharge_r = INFINITY;
 	s->stack = -1;
-	const char *why = missing_why(b->sr, part);
 	if (why) {
 		s->basis = SB_NONE;
 		s->best = s->worst = NAN;
 		s->unproven = why;
 		return;
 	}
-	const struct stress_fallback *fb = b->sr->fallback;
 	s->bounded = 1;
 	s->basis = SB_SIMULATED;
 	/* m= parallel copies share the current and the power: each is rated */
@@ -113,34 +122,50 @@ static unsigned char *networks(const struct build *b, struct arena *ar)
 	return m;
 }
 
+/* One pass over the stresses: counts what it would write (b->out NULL),
+ * or writes the old stresses and the new ones in their places. */
+static void build_pass(struct build *b, const size_t *last, const unsigned char *net)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	const struct stress_result *sr = b->sr;
+	for (size_t i = 0; i < sr->n; i++) {
+		const struct stress *s = &sr->s[i];
+		if (b->out)
+			b->out[b->n] = *s;
+		b->n++;
+		const struct stress *base = s;
+		while (base > sr->s && base[-1].part == s->part)
+			base--; /* the part's first stress: its voltage */
+		if (last[s->part] == i && stress_qty_is_voltage(base->qty))
+			part_flows(b, base);
+	}
+	for (uint32_t i = 0; sr->island && i < nl_part_count(c); i++)
+		if (nl_part_at(c, i)->kind == NL_R && sr->island[i] != NL_NONE &&
+		    net[sr->island[i]] == 3)
+			add(b, NULL, i, SQ_POWER);
+}
+
 int current_run(const struct audit *a, const struct rating *r, struct arena *ar,
 		struct stress_result *sr)
 {
-	const struct nl_circuit *c = a->er.circuit;
-	size_t np = nl_part_count(c);
+	size_t np = nl_part_count(a->er.circuit);
 	if (sr->n == 0)
 		return 1;
 	struct build b = {a, r, sr, NULL, 0};
 	size_t *last = arena_alloc(ar, (np + 1) * sizeof *last);
 	unsigned char *net = networks(&b, ar);
-	/* at most four more per stress (a diode's), one per resistor */
-	b.out = arena_alloc(ar, (5 * sr->n + np + 1) * sizeof *b.out);
-	if (!last || !net || !b.out)
+	if (!last || !net)
 		return 0;
 	for (size_t i = 0; i < sr->n; i++)
 		last[sr->s[i].part] = i;
-	for (size_t i = 0; i < sr->n; i++) {
-		const struct stress *s = &sr->s[i];
-		b.out[b.n++] = *s;
-		const struct stress *base = s;
-		while (base > sr->s && base[-1].part == s->part)
-			base--; /* the part's first stress: its voltage */
-		if (last[s->part] == i && stress_qty_is_voltage(base->qty))
-			part_flows(&b, base);
-	}
-	for (uint32_t i = 0; sr->island && i < np; i++)
-		if (nl_part_at(c, i)->kind == NL_R && sr->island[i] != NL_NONE && net[sr->island[i]] == 3)
-			add(&b, NULL, i, SQ_POWER);
+	build_pass(&b, last, net);
+	if (b.n == sr->n)
+		return 1; /* nothing to add */
+	b.out = arena_alloc(ar, b.n * sizeof *b.out);
+	if (!b.out)
+		return 0;
+	b.n = 0;
+	build_pass(&b, last, net);
 	sr->s = b.out;
 	sr->n = b.n;
 	return 1;
