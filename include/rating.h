@@ -18,9 +18,22 @@ struct rating_field {
 	const char *from;    /* "model BV", "parts.csv:4", "annotation top.cir:12" */
 };
 
+/* Every numeric field; rating.c's table of columns and *@part keys
+ * lists them in this order [rating-fields]. */
 struct rating {
 	struct rating_field v_rated; /* cap DC rating; diode repetitive reverse */
-	struct rating_field i_surge, i_avg, trr, tol;
+	struct rating_field i_surge; /* diode: non-repetitive surge (IFSM), A */
+	struct rating_field i_avg;   /* diode: average forward current (IF(AV)), A */
+	struct rating_field i_peak;  /* diode: repetitive peak forward (IFRM), A */
+	struct rating_field p_rated; /* zener: power dissipation, W */
+	struct rating_field trr, tol;
+	/* capacitors: the rated ripple current (rms, A) and the frequency
+	   (Hz) and temperature (degrees C) it is specified at */
+	struct rating_field i_ripple, ripple_freq, ripple_temp;
+	/* capacitors, for a life estimate: ESR (ohm), rated life (hours) at
+	   the life temperature (degrees C), thermal resistance from the case
+	   to ambient (K/W) */
+	struct rating_field esr, life_h, life_temp, rth_ca;
 	/* the surge rating's pulse: the width of the half-sine i_surge is
 	   given for (s), and the I^2 t the diode takes (A^2 s) */
 	struct rating_field surge_width, i2t;
@@ -64,6 +77,19 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 			      const struct rating_table *table, const struct bom *bom,
 			      const struct annot *annots, uint32_t nannots,
 			      struct arena *ar, struct diag_sink *d);
+
+/* A diode rated only by its model's BV that the circuit takes to this
+ * share of it is taken to work in breakdown (the knee: at IBV it sits at
+ * BV). */
+#define RATING_BREAKDOWN_SHARE 0.98
+
+/* 1 when diode p (rating r), whose worst reverse voltage is reverse_v,
+ * works in reverse breakdown on purpose: kind zener (reaching 90 % of its
+ * rated voltage, or with none), or rated only by its model's BV and taken
+ * to RATING_BREAKDOWN_SHARE of it. Its stress is then power, not reverse
+ * voltage (docs/rules/breakdown-work.md); a rectifier given a reverse
+ * rating of its own is not. */
+int rating_breakdown(const struct nl_part *p, const struct rating *r, double reverse_v);
 
 /* Diode forward drop at 1 mA times area from the model (Shockley, N*Vt*
  * ln(1 + I/(IS*area)) + RS*I, Vt at 27 C), else by kind (silicon 0.7 V,

@@ -95,6 +95,14 @@ double sim_period(const struct sim *s);
 double sim_time(const struct sim *s);
 /* Node voltages at the time reached, indexed by node id (v[0] = 0). */
 const double *sim_voltages(const struct sim *s);
+/* Each part's current at the time reached into i (one entry per part of
+ * the circuit), from its pin 0 to its pin 1 through the part: a
+ * resistor's, a capacitor's (its integration companion's), a diode's
+ * (junction and charge, through RS), an inductor's or a voltage source's
+ * (from + through the source to -); NaN for parts left out and for those
+ * with no one current (K, controlled and current sources). Meant for a
+ * sim_point_fn, at an accepted point. */
+void sim_currents(const struct sim *s, double *i);
 
 /* Periodic steady state: runs whole periods until the state (capacitor
  * voltages, inductor currents) at the start of successive periods agrees

@@ -9,6 +9,18 @@
 
 #include "sim.h"
 
+/* A part's current over the recorded steady-state period, with
+ * sim_currents' sign (pin 0 to pin 1 through the part); NaN where the
+ * solver has no current for it. Integrals over the accepted points,
+ * exact for currents and voltages linear between them. */
+struct simrun_flow {
+	double avg;     /* mean current, A */
+	double rms;     /* root mean square current, A */
+	double peak;    /* largest current, A */
+	double low;     /* smallest (most negative) current, A */
+	double power;   /* mean of (v(pin 0) - v(pin 1)) times the current, W */
+};
+
 struct simrun_opts {
 	double until;          /* > 0: plain run from 0 to here; 0: steady state */
 	double from;           /* first time written (plain run) */
@@ -31,6 +43,9 @@ struct simrun_opts {
 	const uint32_t *trace_parts;
 	unsigned trace_points;
 	double *trace;
+	/* simrun_peaks: one entry per part, or NULL: each part's current over
+	   the recorded period */
+	struct simrun_flow *flow;
 };
 
 struct simrun_result {
@@ -54,7 +69,8 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 /* Steady state at the corner in o, then one more period recorded: vmin
  * and vmax (arrays of one entry per part) get the extremes of each
  * two-pin part's voltage pin 0 minus pin 1 over that period; node_min and
- * node_max (one per node, may be NULL) the extremes of each node. */
+ * node_max (one per node, may be NULL) the extremes of each node; o->flow
+ * (when not NULL) each part's current over it. */
 void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		  const struct hr_alloc *h, double *vmin, double *vmax,
 		  double *node_min, double *node_max, struct simrun_result *r);

@@ -14,23 +14,39 @@
 #include "profile.h"
 #include "rating.h"
 
-/* What a stress measures [stress-qty]. */
-enum stress_qty { SQ_VOLTAGE, SQ_REVERSE, SQ_SURGE, SQ_COUNT };
+/* What a stress measures [stress-qty]. The currents and the power are
+ * the steady state's at the all-high corner (current.h). */
+enum stress_qty {
+	SQ_VOLTAGE,
+	SQ_REVERSE,
+	SQ_SURGE,
+	SQ_AVG_CURRENT,     /* a diode's mean forward current */
+	SQ_PEAK_CURRENT,    /* a diode's repetitive peak forward current */
+	SQ_RMS_CURRENT,     /* a diode's rms current */
+	SQ_RIPPLE_CURRENT,  /* a capacitor's rms (ripple) current */
+	SQ_POWER,           /* a zener's or resistor's mean power */
+	SQ_COUNT
+};
 
 /* The one name of each quantity, the same in every report format (text,
  * JSON, CSV, HTML): "voltage" (a capacitor's |V|), "reverse_voltage" (a
  * diode's cathode minus anode), "surge_current" (the power-up surge
- * through a diode) [stress-qty]. */
+ * through a diode), "avg_current", "peak_current", "rms_current",
+ * "ripple_current", "power" [stress-qty]. */
 const char *stress_qty_name(enum stress_qty q);
-/* Its unit: "V" or "A". */
+/* Its unit: "V", "A" or "W". */
 const char *stress_qty_unit(enum stress_qty q);
 /* Whether q is a voltage (a capacitor's |V| or a diode's reverse voltage):
  * the quantities the analysis bounds and the solver confirms. */
 int stress_qty_is_voltage(enum stress_qty q);
+/* Whether q is one of the steady state's currents or its power. */
+int stress_qty_is_flow(enum stress_qty q);
 /* The rating field q is judged against (v_rated for voltages, i_surge for
- * the surge). */
+ * the surge, i_avg, i_peak, i_ripple, p_rated); an empty field (NaN) for
+ * the rms current, which no rule judges. */
 const struct rating_field *stress_rating(const struct rating *r, enum stress_qty q);
-/* The profile's derating field for q ("voltage", "surge"). */
+/* The profile's derating field for q ("voltage", "surge", "avg_current",
+ * "peak_current", "ripple_current", "power"; "" for the rms current). */
 const char *stress_qty_derating(enum stress_qty q);
 
 /* Where a stress's number comes from [stress-basis]. */
@@ -175,6 +191,13 @@ struct stress_surge {
 #define STRESS_CORNER_HIGH 1
 #define STRESS_CORNER_LOW 3
 
+/* A part's current over one steady-state period, from pin 0 to pin 1
+ * through it (simbound.h); NaN where the solver has none. */
+struct stress_flow {
+	double avg, rms, peak;  /* A */
+	double power;           /* mean of v(pin 0) - v(pin 1) times i, W */
+};
+
 /* What the simulation of unproven stresses did for a file (simbound.h). */
 struct stress_fallback {
 	unsigned runs;          /* solver runs (corners, real and ideal diodes) */
@@ -182,6 +205,17 @@ struct stress_fallback {
 	size_t given;           /* stresses that got a simulated number */
 	size_t left;            /* unproven stresses left without a number */
 	const char *why;        /* why some could not be simulated, or NULL */
+	/* the currents: the steady state at the all-high corner with the
+	   diodes as modelled; flow is one entry per part, or NULL with
+	   flow_why saying why */
+	const struct stress_flow *flow;
+	const char *flow_why;
+	const char *flow_corner;
+	double flow_period;     /* the period they are taken over, s */
+	const unsigned char *flow_blocked; /* per island: no currents there
+					      (a part the solver cannot take),
+					      or NULL */
+	const char *flow_blocked_why;
 };
 
 /* What --verify did for a file (filled by verify_run). */

@@ -30,3 +30,10 @@ cap.supercap.reverse_v = 0V      # common practice, no source: polarised, no rev
 
 diode.default.voltage = 80%      # commercial 80 % of VRRM (from memory, docs/sources.md §1f)
 diode.default.surge = 100%       # common practice, no source: the datasheet IFSM as is
+
+# currents and power (docs/check.md, "Currents and power"): the solver's steady state at the high corner
+cap.default.ripple_current = 100%   # common practice, no source: the datasheet ripple rating at its temperature as is
+diode.default.avg_current = 90%  # SD-18 Table 1A general-purpose diode IF, protected environment L2 (seen, docs/sources.md §1a)
+diode.rectifier.avg_current = 90%    # SD-18 Table 1A power rectifier IF, protected environment L2 (seen, docs/sources.md §1a)
+diode.default.peak_current = 100%    # common practice, no source: the datasheet IFRM as is (SD-18 Table 1A has no IFRM row)
+diode.default.power = 80%        # common practice, no source: the commercial 80 % rule (docs/sources.md §1f) applied to a zener's power

@@ -36,3 +36,10 @@ cap.supercap.reverse_v = 0V      # common practice, no source
 diode.default.voltage = 70%      # EEE-INST-002 diode PIV 0.70 (from memory, docs/sources.md §1b)
 diode.default.surge = 50%        # EEE-INST-002 diode IFSM 0.50 (from memory, docs/sources.md §1b)
 diode.schottky.voltage = 70%     # EEE-INST-002 Schottky PIV 0.70 (from memory, docs/sources.md §1b)
+
+# currents and power (docs/check.md, "Currents and power"): the solver's steady state at the high corner
+cap.default.ripple_current = 70%    # common practice, no source
+diode.default.avg_current = 50%  # EEE-INST-002 diode IF(avg) 0.50 (from memory, docs/sources.md §1b)
+diode.schottky.avg_current = 50% # EEE-INST-002 Schottky IF 0.50 (from memory, docs/sources.md §1b)
+diode.default.peak_current = 50% # no IFRM figure recalled: EEE-INST-002's IF(avg) 0.50 reused (from memory, docs/sources.md §1b)
+diode.default.power = 50%        # EEE-INST-002 zener power 0.50 (from memory, docs/sources.md §1b)

@@ -43,3 +43,12 @@ diode.fast-recovery.voltage = 75%    # SD-18 Table 1A power rectifier VR, normal
 diode.hv-stack.voltage = 75%     # SD-18 Table 1A power rectifier VR, normal L2 (seen, docs/sources.md §1a)
 diode.schottky.voltage = 80%     # SD-18 Table 1A Schottky/PIN VR, normal L2 (seen, docs/sources.md §1a)
 diode.zener.voltage = 75%        # common practice, no source: as a general-purpose diode
+
+# currents and power (docs/check.md, "Currents and power"): the solver's steady state at the high corner
+cap.default.ripple_current = 80%    # common practice, no source: a fifth kept for the core's temperature rise
+diode.default.avg_current = 90%  # SD-18 Table 1A general-purpose diode IF, normal L2 (seen, docs/sources.md §1a)
+diode.rectifier.avg_current = 85%    # SD-18 Table 1A power rectifier IF, normal L2 (seen, docs/sources.md §1a)
+diode.fast-recovery.avg_current = 85%    # SD-18 Table 1A power rectifier IF, normal L2 (seen, docs/sources.md §1a)
+diode.hv-stack.avg_current = 85%     # SD-18 Table 1A power rectifier IF, normal L2 (seen, docs/sources.md §1a)
+diode.default.peak_current = 90% # common practice, no source: SD-18 has no IFRM row; its general-purpose IF factor (docs/sources.md §1a) reused
+diode.default.power = 75%        # common practice, no source: as the general-purpose diode's voltage factor

@@ -55,6 +55,7 @@ bomval check
 bom check
 rating check
 stress check
+current check
 discharge check
 life check
 capbias base

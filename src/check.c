@@ -1,6 +1,7 @@
 /* check.c: one netlist file through the whole check (check.h). The order
  * is fixed: analysis, the file's own profile, ratings, stresses, simulated
- * numbers for what the analysis cannot prove, the optional --verify, rules
+ * numbers for what the analysis cannot prove and the currents, the
+ * optional --verify, rules
  * and circuit defects, waivers, baseline. Printing and exit codes belong to
  * the program. */
 #include "check.h"
@@ -10,6 +11,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "current.h"
 #include "defects.h"
 #include "discharge.h"
 #include "num.h"
@@ -102,12 +104,20 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 	if (np <= cap)
 		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr) &&
 		       surge_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);
+	struct stress_fallback *fb = arena_zalloc(r->a.ar, sizeof *fb);
+	char why[160];
+	snprintf(why, sizeof why, "the circuit has %zu parts, more than the simulation takes (%zu)", np, cap);
+	if (!fb || !(fb->why = fb->flow_why = arena_strdup(r->a.ar, why)))
+		return 0;
+	if (r->sr.n)
+		r->sr.fallback = fb; /* the currents' line and JSON say why */
 	for (size_t i = 0; i < r->sr.n; i++) {
 		struct stress *s = &r->sr.s[i];
 		if (s->unproven && stress_qty_is_voltage(s->qty)) {
 			s->bounded = 0;
 			s->basis = SB_NONE;
 			s->worst = s->best = NAN;
+			fb->left++;
 		}
 	}
 	return 1;
@@ -123,9 +133,11 @@ static int judge(const struct check_opts *o, struct check_run *r)
 	int sim = o->verify && (!o->verify_max_parts ||
 				nl_part_count(a->er.circuit) <= o->verify_max_parts);
 	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
-	       simulate_unproven(o, r) && discharge_run(a, r->profile, a->ar, &r->sr) &&
+	       simulate_unproven(o, r) && current_run(a, rt, a->ar, &r->sr) &&
+	       discharge_run(a, r->profile, a->ar, &r->sr) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
 	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
+	       current_judge(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&
 	       defects_run(a, rt, &r->sr, a->ar, &r->rr) &&
 	       waiver_apply(a, o->waivers, o->today, a->ar, &r->rr);
 }

@@ -29,9 +29,12 @@ const char *const profile_diode_kinds[] = {
 
 static const char *const top_keys[] = {"source_tol", "hazard_voltage", "hazard_charge",
 	"discharge_time", "droop_limit", "recovery_fraction", "ambient", "life_required", NULL};
+/* The per-kind fields; docs/profiles.md's key table lists the same. */
 static const char *const cap_fields[] = {"voltage", "reverse_v", "reverse_fraction",
-	"derate_from", "derate_to", "voltage_at_max", NULL};
-static const char *const diode_fields[] = {"voltage", "surge", NULL};
+					 "ripple_current", "derate_from", "derate_to",
+					 "voltage_at_max", NULL};
+static const char *const diode_fields[] = {"voltage", "surge", "avg_current", "peak_current",
+					   "power", NULL};
 
 int profile_polarised(const char *kind)
 {
@@ -134,10 +137,11 @@ static int is_fraction(const char *key)
 {
 	const char *dot = strrchr(key, '.');
 	const char *f = dot ? dot + 1 : key;
-	return strcmp(f, "voltage") == 0 || strcmp(f, "surge") == 0 ||
-	       strcmp(f, "reverse_fraction") == 0 || strcmp(key, "source_tol") == 0 ||
-	       strcmp(key, "droop_limit") == 0 || strcmp(key, "recovery_fraction") == 0 ||
-	       strcmp(f, "voltage_at_max") == 0;
+	static const char *const shares[] = {"voltage", "surge", "reverse_fraction", "avg_current",
+					     "peak_current", "ripple_current", "power",
+					     "voltage_at_max", NULL};
+	return (dot && in_list(shares, f, strlen(f))) || strcmp(key, "source_tol") == 0 ||
+	       strcmp(key, "droop_limit") == 0 || strcmp(key, "recovery_fraction") == 0;
 }
 
 /* Keys whose value is a temperature in degC. */

@@ -1,8 +1,8 @@
 /* rating.c: ratings of parts, and the parts-table reader. The table is a
- * header row then one row per part or pattern; columns ref, kind, v_rated,
- * i_surge, i_avg, trr, tol, note, surge_width, i2t in any order and case;
- * others are an error.
- * A BOM's rows (bom.h) come in below the table's, above the model's BV. */
+ * header row then one row per part or pattern; columns ref, kind, note and
+ * the value columns of value_cols below, in any order and case; others are
+ * an error. A BOM's rows (bom.h) come in below the table's, above the
+ * model's BV. */
 #include "rating.h"
 
 #include "dmodel.h"
@@ -12,17 +12,55 @@
 
 #include <math.h>
 #include <stdatomic.h>
+#include <stddef.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "num.h"
 #include "profile.h"
 
-enum col { COL_REF, COL_KIND, COL_V, COL_ISURGE, COL_IAVG, COL_TRR, COL_TOL, COL_NOTE,
-	   COL_SURGE_WIDTH, COL_I2T, NCOLS };
-static const char *const col_names[NCOLS] = {"ref", "kind", "v_rated", "i_surge",
-					     "i_avg", "trr", "tol", "note",
-					     "surge_width", "i2t"};
+/* The value columns of the parts table, which are also the *@part keys
+ * (annot.c lists the same names), each with its field of struct rating
+ * [rating-fields]. */
+static const struct {
+	const char *name;
+	size_t off;  /* offsetof(struct rating, field) */
+	int pct;     /* a tolerance: written 10% or 0.1 */
+} value_cols[] = {
+	{"v_rated", offsetof(struct rating, v_rated), 0},
+	{"i_surge", offsetof(struct rating, i_surge), 0},
+	{"i_avg", offsetof(struct rating, i_avg), 0},
+	{"i_peak", offsetof(struct rating, i_peak), 0},
+	{"p_rated", offsetof(struct rating, p_rated), 0},
+	{"trr", offsetof(struct rating, trr), 0},
+	{"tol", offsetof(struct rating, tol), 1},
+	{"i_ripple", offsetof(struct rating, i_ripple), 0},
+	{"ripple_freq", offsetof(struct rating, ripple_freq), 0},
+	{"ripple_temp", offsetof(struct rating, ripple_temp), 0},
+	{"esr", offsetof(struct rating, esr), 0},
+	{"life_h", offsetof(struct rating, life_h), 0},
+	{"life_temp", offsetof(struct rating, life_temp), 0},
+	{"rth_ca", offsetof(struct rating, rth_ca), 0},
+	{"surge_width", offsetof(struct rating, surge_width), 0},
+	{"i2t", offsetof(struct rating, i2t), 0},
+};
+#define NVALUES (sizeof value_cols / sizeof value_cols[0])
+_Static_assert(offsetof(struct rating, kind) == NVALUES * sizeof(struct rating_field),
+	       "a column for every numeric field of struct rating [rating-fields]");
+
+/* Columns: ref, kind, note, then the value columns in value_cols' order. */
+enum col { COL_REF, COL_KIND, COL_NOTE, COL_VALUE0, NCOLS = COL_VALUE0 + NVALUES };
+
+static const char *col_name(int c)
+{
+	static const char *const fixed[COL_VALUE0] = {"ref", "kind", "note"};
+	return c < COL_VALUE0 ? fixed[c] : value_cols[c - COL_VALUE0].name;
+}
+
+static struct rating_field *field_at(struct rating *r, size_t k)
+{
+	return (struct rating_field *)((char *)r + value_cols[k].off);
+}
 
 struct row {
 	const char *cell[NCOLS];
@@ -92,7 +130,7 @@ static int header(const char *const *cells, const unsigned *starts, int n,
 		snprintf(name, sizeof name, "%s", cells[i]);
 		num_fold(name, strlen(name));
 		for (int c = 0; c < NCOLS; c++)
-			if (strcmp(name, col_names[c]) == 0) {
+			if (strcmp(name, col_name(c)) == 0) {
 				map[i] = c;
 				have_ref |= c == COL_REF;
 			}
@@ -107,13 +145,14 @@ static int unknown_columns(struct diag_sink *d, struct diag_loc l, const char *c
 			   const unsigned *starts, int n, const int *map)
 {
 	int ok = 1;
+	char known[512];
+	size_t k = 0;
+	for (int c = 0; c < NCOLS && k < sizeof known; c++)
+		k += (size_t)snprintf(known + k, sizeof known - k, "%s%s", c ? ", " : "", col_name(c));
 	for (int i = 0; i < n; i++)
 		if (map[i] < 0) {
 			l.col = starts[i];
-			diag_add(d, DIAG_ERROR, "parts", l,
-				 "unknown column '%s' (ref, kind, v_rated, i_surge, i_avg, trr, tol, note, "
-				 "surge_width, i2t)",
-				 cells[i]);
+			diag_add(d, DIAG_ERROR, "parts", l, "unknown column '%s' (%s)", cells[i], known);
 			ok = 0;
 		}
 	return ok;
@@ -349,27 +388,12 @@ static void from_row(struct rating *r, const struct nl_part *p,
 	src->from = arena_strdup(src->ar, from);
 	if (!src->from)
 		return;
-	cell_loc(t, row, COL_V, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->v_rated, row->cell[COL_V], 0, src, "v_rated");
-	cell_loc(t, row, COL_ISURGE, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->i_surge, row->cell[COL_ISURGE], 0, src, "i_surge");
-	cell_loc(t, row, COL_IAVG, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->i_avg, row->cell[COL_IAVG], 0, src, "i_avg");
-	cell_loc(t, row, COL_TRR, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->trr, row->cell[COL_TRR], 0, src, "trr");
-	cell_loc(t, row, COL_TOL, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->tol, row->cell[COL_TOL], 1, src, "tol");
-	cell_loc(t, row, COL_SURGE_WIDTH, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->surge_width, row->cell[COL_SURGE_WIDTH], 0, src, "surge_width");
-	cell_loc(t, row, COL_I2T, &src->loc);
-	src->loc.file = src->table_file;
-	set_field(&r->i2t, row->cell[COL_I2T], 0, src, "i2t");
+	for (size_t k = 0; k < NVALUES; k++) {
+		cell_loc(t, row, (enum col)(COL_VALUE0 + k), &src->loc);
+		src->loc.file = src->table_file;
+		set_field(field_at(r, k), row->cell[COL_VALUE0 + k], value_cols[k].pct, src,
+			  value_cols[k].name);
+	}
 	cell_loc(t, row, COL_KIND, &src->loc);
 	src->loc.file = src->table_file;
 	set_kind(r, p, row->cell[COL_KIND], src);
@@ -398,15 +422,11 @@ static void from_bom(struct rating *r, const struct nl_part *p, const struct bom
 static void from_annot(struct rating *r, const struct nl_part *p,
 		       const struct annot *a, struct source *src)
 {
-	static const char *const keys[] = {"v_rated", "i_surge", "i_avg", "trr", "tol",
-					   "surge_width", "i2t"};
-	struct rating_field *f[] = {&r->v_rated, &r->i_surge, &r->i_avg, &r->trr, &r->tol,
-				    &r->surge_width, &r->i2t};
 	src->loc = a->loc;
-	for (int i = 0; i < 7; i++) {
-		const struct annot_kv *kv = annot_get(a, keys[i]);
+	for (size_t k = 0; k < NVALUES; k++) {
+		const struct annot_kv *kv = annot_get(a, value_cols[k].name);
 		if (kv)
-			set_field(f[i], kv->text, i == 4, src, keys[i]);
+			set_field(field_at(r, k), kv->text, value_cols[k].pct, src, value_cols[k].name);
 	}
 	const struct annot_kv *k = annot_get(a, "kind");
 	if (k)
@@ -419,9 +439,8 @@ static void from_annot(struct rating *r, const struct nl_part *p,
 static void init(struct rating *r)
 {
 	memset(r, 0, sizeof *r);
-	r->v_rated.value = r->i_surge.value = r->i_avg.value = NAN;
-	r->trr.value = r->tol.value = NAN;
-	r->surge_width.value = r->i2t.value = NAN;
+	for (size_t k = 0; k < NVALUES; k++)
+		field_at(r, k)->value = NAN;
 }
 
 struct rating *rating_resolve(const struct nl_circuit *c,
@@ -472,6 +491,17 @@ struct rating *rating_resolve(const struct nl_circuit *c,
 	/* a row that matches nothing here may rate a part of another file:
 	 * unmatched rows are judged once the whole run is checked */
 	return out;
+}
+
+int rating_breakdown(const struct nl_part *p, const struct rating *r, double reverse_v)
+{
+	if (p->kind != NL_D || !isfinite(reverse_v))
+		return 0;
+	if (r->kind && strcmp(r->kind, "zener") == 0)
+		return reverse_v >= 0.9 * r->v_rated.value || isnan(r->v_rated.value);
+	double bv = dmodel_given(p->model, DM_BV);
+	return r->v_rated.from && strcmp(r->v_rated.from, "model BV") == 0 && bv > 0 &&
+	       reverse_v >= bv * RATING_BREAKDOWN_SHARE;
 }
 
 double rating_vf(const struct nl_part *d, const char *kind)

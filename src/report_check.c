@@ -135,6 +135,8 @@ static void text_table(FILE *out, const struct check_file *f)
 	text_surge(out, f);
 	if (sr->n == 0)
 		return;
+	char cur[512];
+	fprintf(out, "  %s\n", report_currents_line(f, cur, sizeof cur));
 	size_t w = 4;
 	for (size_t i = 0; i < sr->n; i++) {
 		size_t l = strlen(nl_part_at(c, sr->s[i].part)->path);
@@ -150,6 +152,8 @@ static void text_table(FILE *out, const struct check_file *f)
 		const struct rating *r = &f->ratings[s->part];
 		double rated = stress_rating(r, s->qty)->value;
 		char st[16] = "-", wv[24] = "unbounded", bv[24] = "-", rv[24] = "-", ratio[16] = "-";
+		if (stress_qty_is_flow(s->qty))
+			snprintf(wv, sizeof wv, "-"); /* the currents line says why */
 		if (s->structure >= 0)
 			snprintf(st, sizeof st, "S%d", s->structure + 1);
 		if (s->bounded && isfinite(s->worst))
@@ -274,7 +278,7 @@ static void json_stress(FILE *out, const struct check_file *f,
 	snprintf(sid, sizeof sid, "S%d", s->structure + 1);
 	fputs("{\"part\": ", out);
 	jstr(out, p->path);
-	fprintf(out, ", \"element\": \"%c\", \"structure\": ", p->letter == 'c' ? 'C' : 'D');
+	fprintf(out, ", \"element\": \"%c\", \"structure\": ", report_element(p));
 	jstr(out, s->structure >= 0 ? sid : NULL);
 	fputs(", \"role\": ", out);
 	jstr(out, s->role[0] ? s->role : NULL);
@@ -297,7 +301,7 @@ static void json_stress(FILE *out, const struct check_file *f,
 	jstr(out, rf->from);
 	fputs(", \"ratio\": ", out);
 	jnum(out, stress_ratio(s, r));
-	if (!stress_qty_is_voltage(s->qty)) {
+	if (s->qty == SQ_SURGE) {
 		fputs(", \"series_r\": ", out);
 		jnum(out, s->series_r);
 		json_surge(out, s, r);
@@ -382,7 +386,13 @@ static void json_file(FILE *out, const struct check_file *f, const struct profil
 		fprintf(out, ",\n      \"fallback\": {\"runs\": %u, \"unsettled\": %u, \"given\": %zu, "
 			     "\"left\": %zu, \"why\": ", fb->runs, fb->unsettled, fb->given, fb->left);
 		jstr(out, fb->why);
-		fputc('}', out);
+		fprintf(out, ", \"currents\": {\"simulated\": %s, \"period\": ", fb->flow ? "true" : "false");
+		jnum(out, fb->flow ? fb->flow_period : NAN);
+		fputs(", \"corner\": ", out);
+		jstr(out, fb->flow ? fb->flow_corner : NULL);
+		fputs(", \"why\": ", out);
+		jstr(out, fb->flow ? NULL : fb->flow_why);
+		fputs("}}", out);
 	}
 	const struct stress_surge *sg = f->a->analysed ? f->stress->surge : NULL;
 	if (sg) {

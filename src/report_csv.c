@@ -1,4 +1,5 @@
-/* report_csv.c: one row per capacitor and diode that is stressed or rated,
+/* report_csv.c: one row per stress of a capacitor, diode or resistor that
+ * is bounded, rated or in a structure,
  * RFC 4180 quoting, a header row; the columns of docs/design.md §10 plus the file
  * and the quantity. */
 #include "report_formats.h"
@@ -6,6 +7,7 @@
 #include <math.h>
 #include <string.h>
 
+#include "num.h"
 #include "report_parts.h"
 #include "utf8.h"
 
@@ -50,12 +52,35 @@ void report_draft_line(char *buf, size_t n, const struct profile *p)
 		 st.unsourced, st.unsourced == 1 ? "s" : "", st.first, st.first_line);
 }
 
+char report_element(const struct nl_part *p)
+{
+	return p->kind == NL_C ? 'C' : p->kind == NL_R ? 'R' : 'D';
+}
+
+const char *report_currents_line(const struct check_file *f, char *buf, size_t n)
+{
+	const struct stress_fallback *fb = f->stress->fallback;
+	char per[24];
+	if (f->stress->n == 0)
+		return NULL;
+	if (fb && fb->flow) {
+		num_format_eng(fb->flow_period, "s", per, sizeof per);
+		snprintf(buf, n, "currents and power: %s, over one steady-state period (%s)",
+			 fb->flow_corner, per);
+	} else {
+		snprintf(buf, n, "currents and power: not simulated: %s",
+			 !fb ? "the circuit has more parts than the simulation takes"
+			     : fb->flow_why ? fb->flow_why : "no part the solver can take");
+	}
+	return buf;
+}
+
 double report_limit(const struct check_file *f, const struct profile *p,
 		    const struct stress *s)
 {
 	const struct nl_part *pt = nl_part_at(f->a->er.circuit, s->part);
 	const struct rating *r = &f->ratings[s->part];
-	const char *cls = pt->kind == NL_D ? "diode" : "cap";
+	const char *cls = pt->kind == NL_D ? "diode" : pt->kind == NL_C ? "cap" : "res";
 	double factor = profile_kind(p, cls, r->kind, stress_qty_derating(s->qty), NULL);
 	double rated = stress_rated(r, s->qty);
 	return rated * (isnan(factor) ? 1 : factor);
@@ -94,7 +119,7 @@ static void row(FILE *out, const struct check_file *f, const struct profile *p,
 	report_csv_field(out, f->path);
 	fputc(',', out);
 	report_csv_field(out, pt->path);
-	fprintf(out, ",%c,", pt->kind == NL_D ? 'D' : 'C');
+	fprintf(out, ",%c,", report_element(pt));
 	report_csv_field(out, r->kind ? r->kind : "");
 	fprintf(out, ",%s,", st);
 	report_csv_field(out, s->role);

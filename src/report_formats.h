@@ -76,4 +76,11 @@ void report_xml_text(FILE *out, const char *s);
 double report_limit(const struct check_file *f, const struct profile *p,
 		    const struct stress *s);
 
+/* The element letter a stressed part is listed with: 'C', 'D' or 'R'. */
+char report_element(const struct nl_part *p);
+
+/* The line on a file's currents (current.h): how they were simulated, or
+ * why they were not; NULL when the file has no stress. In buf. */
+const char *report_currents_line(const struct check_file *f, char *buf, size_t n);
+
 #endif

@@ -442,8 +442,10 @@ static void plot(FILE *out, const struct check_file *f, const struct profile *p,
 /* Quantity names: the JSON report's, and the table's [stress_qty order]. */
 static const struct {
 	const char *id, *shown;
-} qty_names[] = {{"voltage", "voltage"}, {"reverse_voltage", "reverse"}, {"surge_current", "surge"}};
-_Static_assert(sizeof qty_names / sizeof qty_names[0] == SQ_SURGE + 1, "a name per quantity");
+} qty_names[] = {{"voltage", "voltage"}, {"reverse_voltage", "reverse"}, {"surge_current", "surge"},
+		 {"avg_current", "mean current"}, {"peak_current", "peak current"},
+		 {"rms_current", "rms current"}, {"ripple_current", "ripple (rms)"}, {"power", "power"}};
+_Static_assert(sizeof qty_names / sizeof qty_names[0] == SQ_COUNT, "a name per quantity");
 
 /* A number cell: engineering notation to read, the exact value in data-v
  * for scripts; "-" when there is none. */
@@ -523,6 +525,10 @@ static void stress_table(FILE *out, const struct check_file *f, const struct pro
 	for (size_t i = 0; i < f->stress->n; i++)
 		stress_row(out, f, p, &f->stress->s[i]);
 	fputs("</table></div>\n", out);
+	char cur[512];
+	fputs("<p class=\"small\">", out);
+	x(out, report_currents_line(f, cur, sizeof cur));
+	fputs("</p>\n", out);
 }
 
 static int by_ratio(const struct check_file *f, const struct stress *a,

@@ -14,6 +14,12 @@ static const char *const cap_rules[] = {"cap-overvoltage", "cap-derating",
 static const char *const diode_rules[] = {"diode-overvoltage", "diode-derating",
 					  "slow-recovery", NULL};
 static const char *const surge_rules[] = {"surge-derating", "surge-excess", "surge-unbounded", NULL};
+/* the current and power stresses, by quantity [stress-qty] */
+static const char *const avg_rules[] = {"diode-avg-current", NULL};
+static const char *const peak_rules[] = {"diode-peak-current", NULL};
+static const char *const ripple_rules[] = {"cap-ripple-current", NULL};
+static const char *const power_rules[] = {"zener-power", NULL};
+static const char *const no_rules[] = {NULL};
 
 static int listed(const char *const *list, const char *id)
 {
@@ -28,9 +34,12 @@ static int listed(const char *const *list, const char *id)
  * own, so that no finding is missing from this format. */
 static int own_case(const struct finding *g)
 {
-	return g->part == NL_NONE || (!listed(cap_rules, g->rule->id) &&
-				      !listed(diode_rules, g->rule->id) &&
-				      !listed(surge_rules, g->rule->id));
+	static const char *const *const lists[] = {cap_rules, diode_rules, surge_rules, avg_rules,
+						    peak_rules, ripple_rules, power_rules};
+	for (size_t i = 0; g->part != NL_NONE && i < sizeof lists / sizeof lists[0]; i++)
+		if (listed(lists[i], g->rule->id))
+			return 0;
+	return 1;
 }
 
 static void finding_case(FILE *out, const char *classname, const struct finding *g)
@@ -73,7 +82,7 @@ static void testcase(FILE *out, const struct check_file *f, const struct stress 
 	const struct finding *g = finding_for(f, rule, s->part);
 	const struct rating *r = &f->ratings[s->part];
 	int rated = s->qty == SQ_SURGE || strcmp(rule, "stored-charge") == 0 ||
-		    strcmp(rule, "slow-recovery") == 0 || !isnan(r->v_rated.value);
+		    strcmp(rule, "slow-recovery") == 0 || !isnan(stress_rating(r, s->qty)->value);
 	fputs("    <testcase classname=\"", out);
 	report_xml_text(out, f->path);
 	fprintf(out, "\" name=\"%s ", rule);
@@ -105,9 +114,17 @@ static void testcase(FILE *out, const struct check_file *f, const struct stress 
 
 static const char *const *rules_for(const struct check_file *f, const struct stress *s)
 {
-	if (s->qty == SQ_SURGE)
-		return surge_rules;
-	return nl_part_at(f->a->er.circuit, s->part)->kind == NL_D ? diode_rules : cap_rules;
+	switch (s->qty) {
+	case SQ_SURGE: return surge_rules;
+	case SQ_AVG_CURRENT: return avg_rules;
+	case SQ_PEAK_CURRENT: return peak_rules;
+	case SQ_RIPPLE_CURRENT: return ripple_rules;
+	case SQ_POWER: /* a resistor's power has no rating and no rule */
+		return nl_part_at(f->a->er.circuit, s->part)->kind == NL_D ? power_rules : no_rules;
+	case SQ_RMS_CURRENT: return no_rules;
+	default:
+		return nl_part_at(f->a->er.circuit, s->part)->kind == NL_D ? diode_rules : cap_rules;
+	}
 }
 
 static void counts(const struct check_file *f, size_t *tests, size_t *fails,
@@ -123,7 +140,7 @@ static void counts(const struct check_file *f, size_t *tests, size_t *fails,
 				(*fails)++;
 			else if (!s->bounded || (g && g->waived) ||
 				 (s->qty != SQ_SURGE && strcmp(*r, "stored-charge") && strcmp(*r, "slow-recovery") &&
-				  isnan(f->ratings[s->part].v_rated.value)))
+				  isnan(stress_rating(&f->ratings[s->part], s->qty)->value)))
 				(*skips)++;
 		}
 	}

@@ -9,7 +9,6 @@
 #include <stdio.h>
 #include <string.h>
 
-#include "dmodel.h"
 #include "num.h"
 
 /* Designated initialisers tie each row to its enum constant [rules-list]. */
@@ -25,6 +24,10 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_STORED_CHARGE] = {"stored-charge", DIAG_WARNING, "a capacitor holds a hazardous voltage and does not discharge in time"},
 	[RULE_CLAMP_DROOP] = {"clamp-droop", DIAG_WARNING, "the load makes a clamp's capacitor droop too much each period"},
 	[RULE_SLOW_RECOVERY] = {"slow-recovery", DIAG_WARNING, "a diode recovers too slowly for the drive frequency"},
+	[RULE_DIODE_AVG_CURRENT] = {"diode-avg-current", DIAG_WARNING, "a diode's mean forward current (simulated) is above the profile's share of its average-current rating"},
+	[RULE_DIODE_PEAK_CURRENT] = {"diode-peak-current", DIAG_WARNING, "a diode's repetitive peak forward current (simulated) is above the profile's share of its repetitive peak rating"},
+	[RULE_CAP_RIPPLE_CURRENT] = {"cap-ripple-current", DIAG_WARNING, "a capacitor's ripple current (simulated, rms) is above the profile's share of its rated ripple current"},
+	[RULE_ZENER_POWER] = {"zener-power", DIAG_WARNING, "a diode working in breakdown takes more power (simulated) than the profile's share of its power rating"},
 	[RULE_RATING_MISSING] = {"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
 	[RULE_INTENT_MISS] = {"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
 	[RULE_STRESS_UNSETTLED] = {"stress-unsettled", DIAG_WARNING, "a part's stress could not be bounded"},
@@ -68,10 +71,6 @@ double rules_standard_rating(double v, int diode)
 			return s[i];
 	return NAN;
 }
-
-/* A diode rated by its model's BV that the circuit takes to this share of
- * it is taken to work in breakdown (the knee: at IBV it sits at BV). */
-#define BREAKDOWN_SHARE 0.98
 
 struct ctx {
 	const struct audit *a;
@@ -611,22 +610,23 @@ static void surge_rules(struct ctx *x, const struct stress *s)
 			       v(x, s->worst * s->series_r / f->limit, "ohm"));
 }
 
-/* A diode driven into reverse breakdown on purpose: a zener (by kind), or
- * a diode rated only by its model's BV that the circuit takes to that BV.
- * Its reverse voltage is held at BV by the diode itself; what can hurt it
- * is the power it then takes (Vz times its current), not the voltage. A
+/* A diode driven into reverse breakdown on purpose (rating.h): its
+ * reverse voltage is held at BV by the diode itself; what can hurt it is
+ * the power it then takes (Vz times its current), not the voltage. A
  * rectifier given a reverse rating of its own keeps its voltage rules. */
 static int in_breakdown(const struct ctx *x, const struct stress *s)
 {
-	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
-	const struct rating *r = &x->r[s->part];
-	if (p->kind != NL_D || s->qty != SQ_REVERSE || !s->bounded)
-		return 0;
-	if (r->kind && strcmp(r->kind, "zener") == 0)
-		return s->worst >= 0.9 * r->v_rated.value || isnan(r->v_rated.value);
-	double bv = dmodel_given(p->model, DM_BV);
-	return r->v_rated.from && strcmp(r->v_rated.from, "model BV") == 0 && bv > 0 &&
-	       s->worst >= bv * BREAKDOWN_SHARE;
+	return s->qty == SQ_REVERSE && s->bounded &&
+	       rating_breakdown(nl_part_at(x->a->er.circuit, s->part), &x->r[s->part], s->worst);
+}
+
+/* The part's power stress (current.c), or NULL. */
+static const struct stress *power_of(const struct ctx *x, uint32_t part)
+{
+	for (size_t i = 0; i < x->s->n; i++)
+		if (x->s->s[i].part == part && x->s->s[i].qty == SQ_POWER)
+			return &x->s->s[i];
+	return NULL;
 }
 
 static void breakdown_note(struct ctx *x, const struct stress *s)
@@ -634,19 +634,28 @@ static void breakdown_note(struct ctx *x, const struct stress *s)
 	struct finding *f = add(x, RULE_BREAKDOWN_WORK, s->part, s->structure);
 	if (!f)
 		return;
-	f->message = str(x, "%s works in reverse breakdown at about %s: its stress is the power it takes "
-			    "(Vz times its current), which this check does not compute yet",
-			 f->subject, v(x, s->worst, "V"));
+	const struct stress *pw = power_of(x, s->part);
+	const char *power = pw && pw->bounded
+		? str(x, "%s on average (simulated; zener-power judges it against p_rated)", v(x, pw->worst, "W"))
+		: str(x, "Vz times its current, which the simulation could not give here (%s)",
+		      pw && pw->unproven ? pw->unproven : "no steady state");
+	f->message = str(x, "%s works in reverse breakdown at about %s: its stress is the power it takes, %s",
+			 f->subject, v(x, s->worst, "V"), power);
 	f->worst = s->worst;
 	f->computation = computation(x, s);
-	f->fix = "check the zener's power against its rating at the highest input; give it kind=zener "
-		 "in the parts table to say the breakdown is intended";
+	f->fix = pw && pw->bounded
+		? "give the zener its power rating (p_rated in the parts table or *@part) so that zener-power "
+		  "judges it; give it kind=zener to say the breakdown is intended"
+		: "check the zener's power against its rating at the highest input; give it kind=zener "
+		  "in the parts table to say the breakdown is intended";
 }
 
 static void part_rules(struct ctx *x, const struct stress *s)
 {
 	const struct nl_part *p = nl_part_at(x->a->er.circuit, s->part);
 	const char *cls = p->kind == NL_D ? "diode" : "cap";
+	if (stress_qty_is_flow(s->qty))
+		return; /* current.c judges the currents and the power */
 	if (s->qty == SQ_SURGE) {
 		surge_rules(x, s);
 		return;

@@ -572,7 +572,7 @@ long sim_diode_handle(const struct sim *s, uint32_t part)
 
 double sim_diode_current(const struct sim *s, long k)
 {
-	return simdev_diode_current(&s->dev[k], s->x);
+	return simdev_current(&s->dev[k], s->x);
 }
 
 double sim_period(const struct sim *s)
@@ -588,6 +588,15 @@ double sim_time(const struct sim *s)
 const double *sim_voltages(const struct sim *s)
 {
 	return s->v;
+}
+
+void sim_currents(const struct sim *s, double *i)
+{
+	size_t np = nl_part_count(s->c);
+	for (size_t k = 0; k < np; k++)
+		i[k] = NAN;
+	for (size_t k = 0; k < s->ndev; k++)
+		i[s->dev[k].part] = simdev_current(&s->dev[k], s->x);
 }
 
 void sim_stats(const struct sim *s, struct sim_stats *out)

@@ -3,7 +3,9 @@
  * at -tol, and each of the first SIMBOUND_MAX_SOLO alone at +tol with the
  * rest at -tol (a bootstrap diode sees most with its rail low and the
  * switch node high). A source's whole waveform scales in a corner, so a
- * PULSE level at 0 V stays at 0 V. */
+ * PULSE level at 0 V stays at 0 V. The all-high corner's run with the
+ * diodes as modelled also gives every part's current (the file's only
+ * run when every voltage is proven); current.c makes stresses of them. */
 #include "simbound.h"
 
 #include <math.h>
@@ -37,6 +39,8 @@ struct sb {
 	unsigned long run_work;  /* Newton iterations allowed in one run */
 	unsigned long size;      /* unknowns of the circuit (estimate first) */
 	size_t real_left;        /* real-diode runs still to come, this one's included */
+	struct simrun_flow *flow; /* the currents' run writes here */
+	int volts;               /* unproven voltages to simulate */
 };
 
 static int needs_run(const struct stress_result *sr, const unsigned char *blocked)
@@ -45,6 +49,17 @@ static int needs_run(const struct stress_result *sr, const unsigned char *blocke
 		const struct stress *s = &sr->s[i];
 		uint32_t is = sr->island ? sr->island[s->part] : NL_NONE;
 		if (s->unproven && stress_qty_is_voltage(s->qty) && !(blocked && is != NL_NONE && blocked[is]))
+			return 1;
+	}
+	return 0;
+}
+
+/* Currents are wanted for every stressed part outside a blocked island. */
+static int wants_flow(const struct stress_result *sr, const unsigned char *blocked)
+{
+	for (size_t i = 0; i < sr->n; i++) {
+		uint32_t is = sr->island ? sr->island[sr->s[i].part] : NL_NONE;
+		if (!(blocked && is != NL_NONE && blocked[is]))
 			return 1;
 	}
 	return 0;
@@ -144,8 +159,34 @@ static int under_ideal(const struct sb *b, const double *imin, const double *ima
 	return 1;
 }
 
-/* One corner: with nearly ideal diodes (when asked) and as modelled. */
-static int run_corner(struct sb *b, const char *name, double *imin, double *imax, int ideal)
+/* The currents of the all-high corner's real run, or why there are none;
+ * 0 on out-of-memory. */
+static int keep_flow(struct sb *b, const struct simrun_result *r, const char *name)
+{
+	struct stress_fallback *fb = b->fb;
+	size_t np = nl_part_count(b->a->er.circuit);
+	if (r->status != SIM_OK || r->period <= 0 || !r->settled) {
+		fb->flow_why = fail_why(b, r, name);
+		return fb->flow_why != NULL;
+	}
+	struct stress_flow *f = arena_alloc(b->ar, (np + 1) * sizeof *f);
+	char buf[320];
+	snprintf(buf, sizeof buf, "simulated, %.200s; diodes as modelled", name);
+	fb->flow_corner = arena_strdup(b->ar, buf);
+	if (!f || !fb->flow_corner)
+		return 0;
+	for (size_t i = 0; i < np; i++)
+		f[i] = (struct stress_flow){b->flow[i].avg, b->flow[i].rms, b->flow[i].peak,
+					    b->flow[i].power};
+	fb->flow = f;
+	fb->flow_period = r->period;
+	return 1;
+}
+
+/* One corner: with nearly ideal diodes (when asked) and as modelled;
+ * with flows the real run's currents are kept. */
+static int run_corner(struct sb *b, const char *name, double *imin, double *imax, int ideal,
+		      int flows)
 {
 	static const char *const how[3] = {"; diodes nearly ideal", "; diodes as modelled",
 					   "; diodes as modelled (still rising: under the ideal run)"};
@@ -155,8 +196,11 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 	int ideal_ok = 0;
 	for (int real = !ideal; real < 2; real++) {
 		if (b->work >= b->total_work) {
-			if (!b->fb->why)
-				b->fb->why = "the simulation needs more work than allowed for one file";
+			const char *why = "the simulation needs more work than allowed for one file";
+			if (b->volts && !b->fb->why)
+				b->fb->why = why;
+			if (flows && !b->fb->flow_why)
+				b->fb->flow_why = why;
 			return 1;
 		}
 		struct simrun_result r;
@@ -171,12 +215,14 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		if (!real)
 			left /= b->real_left + 1;
 		b->o.max_work = left < b->run_work ? (left ? left : 1) : b->run_work;
+		b->o.flow = flows && real ? b->flow : NULL;
 		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, NULL, NULL, &r);
+		b->o.flow = NULL;
 		b->fb->runs++;
 		if (r.stats.unknowns)
 			b->size = r.stats.unknowns;
 		b->work += r.stats.newton * b->size;
-		if (r.status == SIM_OOM)
+		if (r.status == SIM_OOM || (flows && real && !keep_flow(b, &r, name)))
 			return 0;
 		int ran = r.status == SIM_OK && r.period > 0;
 		int rising = real && ran && !r.settled && ideal_ok && under_ideal(b, imin, imax);
@@ -185,7 +231,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		if (!ran || (!r.settled && !rising)) {
 			/* a corner whose real run fails leaves the worst case
 			   unknown: nothing simulated may stand for it */
-			if (real && !b->fb->why && !(b->fb->why = fail_why(b, &r, name)))
+			if (b->volts && real && !b->fb->why && !(b->fb->why = fail_why(b, &r, name)))
 				return 0;
 			continue;
 		}
@@ -369,10 +415,11 @@ static int alloc_all(struct sb *b)
 	b->vmin = arena_alloc(b->ar, np * sizeof *b->vmin);
 	b->vmax = arena_alloc(b->ar, np * sizeof *b->vmax);
 	b->fb = arena_zalloc(b->ar, sizeof *b->fb);
+	b->flow = arena_alloc(b->ar, np * sizeof *b->flow);
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
 	return x->worst && x->best && x->rev_min && x->corner && x->seen && x->blocked &&
-	       x->island_why && b->scale && b->set && b->vmin && b->vmax && b->fb;
+	       x->island_why && b->scale && b->set && b->vmin && b->vmax && b->fb && b->flow;
 }
 
 /* A corner failed: no simulated value is a worst case any more. */
@@ -446,15 +493,26 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	struct sb b;
 	uint32_t solo[SIMBOUND_MAX_SOLO];
 	char names[SIMBOUND_MAX_SOLO + 2][200];
-	if (!needs_run(sr, NULL))
+	if (!needs_run(sr, NULL) && !wants_flow(sr, NULL))
 		return 1;
 	memset(&b, 0, sizeof b);
 	b.a = a, b.p = p, b.ar = ar, b.sr = sr;
 	if (!alloc_all(&b) || !leave_out(&b))
 		return 0;
 	sr->fallback = b.fb;
-	if (!needs_run(sr, b.acc.blocked)) {
-		fill(&b); /* every unproven island has a part the solver cannot take */
+	/* a copy: a failed corner later blocks more islands for the voltages
+	   (forget), not for the currents of the corner that ran */
+	size_t nn = nl_node_count(a->er.circuit) + 1;
+	unsigned char *fblock = arena_alloc(ar, nn);
+	if (!fblock)
+		return 0;
+	memcpy(fblock, b.acc.blocked, nn);
+	b.fb->flow_blocked = fblock;
+	b.fb->flow_blocked_why = b.acc.blocked_why;
+	int volts = b.volts = needs_run(sr, b.acc.blocked), flows = wants_flow(sr, b.acc.blocked);
+	if (!volts && !flows) {
+		fill(&b); /* every stressed island has a part the solver cannot take */
+		b.fb->flow_why = b.acc.blocked_why;
 		return 1;
 	}
 	b.o.ac_scale = b.o.dc_scale = b.scale;
@@ -463,23 +521,32 @@ int simbound_run(const struct audit *a, const struct profile *p,
 		return 0;
 	b.o.max_periods = lim && lim->max_periods ? lim->max_periods : 4000;
 	b.run_work = lim && lim->max_work ? lim->max_work : 5000000;
+	if (!volts) {
+		/* the currents alone: a tenth of the allowance (simbound.h) */
+		b.o.max_periods = b.o.max_periods < SIMBOUND_FLOW_PERIODS ? b.o.max_periods
+									  : SIMBOUND_FLOW_PERIODS;
+		b.run_work = b.run_work < SIMBOUND_FLOW_WORK ? b.run_work : SIMBOUND_FLOW_WORK;
+	}
 	b.size = nl_node_count(a->er.circuit) + 1;
 	size_t ns = moving_sources(&b, solo, SIMBOUND_MAX_SOLO);
 	long corners[SIMBOUND_MAX_SOLO + 2] = {-1, -2};
-	size_t nc = ns ? 2 : 1;
-	for (size_t k = 0; ns > 1 && k < ns; k++)
+	/* every voltage proven: the currents' run alone */
+	size_t nc = !volts ? 1 : ns ? 2 : 1;
+	for (size_t k = 0; volts && ns > 1 && k < ns; k++)
 		corners[nc++] = (long)solo[k];
 	size_t np = nl_part_count(a->er.circuit) + 1;
 	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
 	if (!imin || !imax)
 		return 0;
 	b.total_work = lim && lim->total_work ? lim->total_work : 30000000;
+	if (!volts && b.total_work > SIMBOUND_FLOW_TOTAL)
+		b.total_work = SIMBOUND_FLOW_TOTAL;
 	/* nearly ideal diodes at the all-high corner only, where the
 	   analysis's own worst case lies; the real diodes everywhere */
 	for (size_t k = 0; k < nc && !b.fb->why; k++) {
 		set_corner(&b, corners[k], names[k], sizeof names[k]);
 		b.real_left = nc - k;
-		if (!run_corner(&b, names[k], imin, imax, k == 0))
+		if (!run_corner(&b, names[k], imin, imax, volts && k == 0, flows && k == 0))
 			return 0;
 	}
 	if (b.fb->why)

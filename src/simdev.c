@@ -215,17 +215,12 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 	d->f = ic;
 	double g = gd + st->gmin + st->a * c;
 	double i = id + st->gmin * v + ic;
+	d->lin_g = g;
+	d->lin_i = i - g * v;
 	stamp_g(m, d->h, g);
 	stamp_i(m, d->p, d->b, i - g * v);
-	d->ieq = i - g * v;
-	d->geq = g;
 	if (d->p != d->a)
 		stamp_g(m, d->h + 4, 1 / dm->rs);
-}
-
-double simdev_diode_current(const struct simdev *d, const double *x)
-{
-	return d->ieq + d->geq * (at(x, d->p) - at(x, d->b));
 }
 
 /* ---- the rest ---- */
@@ -310,6 +305,25 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
 		stamp_controlled(d, m);
 	else
 		stamp_linear(d, st, m);
+}
+
+double simdev_current(const struct simdev *d, const double *x)
+{
+	switch (d->kind) {
+	case SD_R:
+		return d->val * (at(x, d->a) - at(x, d->b));
+	case SD_C:
+		return d->f;
+	case SD_D: /* through RS exactly; else the companion KCL used */
+		if (d->p != d->a)
+			return (at(x, d->a) - at(x, d->p)) / d->dm->rs;
+		return d->lin_g * (at(x, d->p) - at(x, d->b)) + d->lin_i;
+	case SD_L:
+	case SD_V:
+		return at(x, d->br);
+	default:
+		return NAN;
+	}
 }
 
 void simdev_update(struct simdev *d, const struct simdev_step *st,

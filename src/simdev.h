@@ -39,8 +39,8 @@ struct simdev {
 	double q0, f0, q, f;
 	double vd;            /* diode: junction voltage of the linearisation */
 	double cj;            /* diode: its charge's derivative there (F) */
-	double ieq, geq;      /* diode: its last stamp, the current ieq + geq v
-				 at junction voltage v (A, S) */
+	double lin_g, lin_i;  /* diode without RS: its companion at the last
+				 stamp, i = lin_g v + lin_i (A/V, A) */
 	double qh[3], th[3];  /* charge history for the error estimate */
 };
 
@@ -72,13 +72,13 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
 void simdev_update(struct simdev *d, const struct simdev_step *st,
 		   const double *x);
 
-/* A diode's current (anode to cathode) at iterate x, as its last stamp
- * has it: the junction's static current plus its charge current,
- * linearised where the stamp was made. At a converged point this is the
- * current the circuit's equations balance (the junction voltage may lie a
- * solver tolerance away from the linearisation point, where the
- * exponential alone would be far off). */
-double simdev_diode_current(const struct simdev *d, const double *x);
+/* The current through d from its pin 0 to its pin 1 (a source's from
+ * its + pin through itself to its - pin) at the accepted solution x, as
+ * the equations the solver met carry it: a resistor's v/R, a
+ * capacitor's companion current, a diode's junction plus charge current
+ * (through RS when it has one), a branch unknown; NaN for a device with
+ * no one current (K, controlled sources). */
+double simdev_current(const struct simdev *d, const double *x);
 
 /* Fills the derived diode parameters. */
 void simdev_diode_init(struct simdev_diode *m);

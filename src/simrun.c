@@ -123,6 +123,17 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 	return 1;
 }
 
+/* Running integrals of each part's current over the recorded period
+ * (simrun_flow). */
+struct flows {
+	const struct sim *s;
+	struct simrun_flow *out;
+	double *i, *iprev, *vprev; /* per part: current now; current and
+				      voltage at the last point */
+	double tprev;
+	int started;
+};
+
 struct extremes {
 	const struct nl_circuit *c;
 	double *vmin, *vmax, *nmin, *nmax;
@@ -130,12 +141,67 @@ struct extremes {
 	double t0, span, tprev;
 	double *vprev;          /* node voltages at tprev */
 	unsigned next;          /* next trace sample */
+	struct flows *fw;       /* or NULL */
 };
 
 static double across(const struct nl_circuit *c, uint32_t part, const double *v)
 {
 	const uint32_t *pin = nl_pins(c, nl_part_at(c, part));
 	return v[pin[0]] - v[pin[1]];
+}
+
+/* One more point into the integrals: between the last point and this
+ * one each current and voltage is taken as linear, so the mean of i, of
+ * i^2 and of v i over the step are exact for that shape. */
+static void flow_add(struct flows *w, const struct nl_circuit *c, double t, const double *v)
+{
+	size_t np = nl_part_count(c);
+	double h = t - w->tprev;
+	sim_currents(w->s, w->i);
+	for (size_t k = 0; k < np; k++) {
+		struct simrun_flow *f = &w->out[k];
+		double a = w->iprev[k], b = w->i[k], va = w->vprev[k];
+		double vb = nl_part_at(c, k)->npins >= 2 ? across(c, (uint32_t)k, v) : 0;
+		if (w->started) {
+			f->avg += h * (a + b) / 2;
+			f->rms += h * (a * a + a * b + b * b) / 3;
+			f->power += h * (2 * va * a + va * b + vb * a + 2 * vb * b) / 6;
+		}
+		f->peak = fmax(f->peak, b);
+		f->low = fmin(f->low, b);
+		w->iprev[k] = b;
+		w->vprev[k] = vb;
+	}
+	w->tprev = t;
+	w->started = 1;
+}
+
+/* The integrals over span become means; a part without a current (NaN
+ * at every point) gets NaN throughout. */
+static void flow_end(struct flows *w, size_t np, double span)
+{
+	for (size_t k = 0; k < np; k++) {
+		struct simrun_flow *f = &w->out[k];
+		if (!isfinite(w->iprev[k]) || !(span > 0)) {
+			f->avg = f->rms = f->peak = f->low = f->power = NAN;
+			continue;
+		}
+		f->avg /= span;
+		f->rms = sqrt(fmax(f->rms / span, 0));
+		f->power /= span;
+	}
+}
+
+static void flow_start(struct flows *w, const struct sim *s, size_t np)
+{
+	w->s = s;
+	w->started = 0;
+	for (size_t k = 0; k < np; k++) {
+		struct simrun_flow *f = &w->out[k];
+		f->avg = f->rms = f->power = 0;
+		f->peak = -INFINITY;
+		f->low = INFINITY;
+	}
 }
 
 /* Trace samples between the last point and this one, linearly. */
@@ -164,6 +230,8 @@ static int track(void *ud, double t, const double *v)
 	struct extremes *e = ud;
 	if (e->o->ntrace && e->vprev)
 		sample(e, t, v);
+	if (e->fw)
+		flow_add(e->fw, e->c, t, v);
 	size_t np = nl_part_count(e->c), nn = nl_node_count(e->c);
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(e->c, i);
@@ -192,17 +260,26 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		node_min[k] = INFINITY, node_max[k] = -INFINITY;
 	struct sim *s = start(c, o, h, r);
 	double *vprev = o->ntrace ? hr_malloc(h, (nn + 1) * sizeof *vprev) : NULL;
+	double *scratch = o->flow ? hr_malloc(h, 3 * (np + 1) * sizeof *scratch) : NULL;
+	struct flows fw = {NULL, o->flow, scratch, scratch + np + 1, scratch + 2 * (np + 1), 0, 0};
+	if (o->flow && !scratch)
+		r->status = SIM_OOM;
 	if (s && r->status == SIM_OK) {
 		double span = r->period > 0 ? r->period : o->until;
 		struct extremes e = {c, vmin, vmax, node_min, node_max, o, sim_time(s), span,
-				     sim_time(s), vprev, 0};
+				     sim_time(s), vprev, 0, scratch ? &fw : NULL};
 		if (vprev)
 			memcpy(vprev, sim_voltages(s), nn * sizeof *vprev);
+		if (e.fw)
+			flow_start(e.fw, s, np);
 		track(&e, sim_time(s), sim_voltages(s));
 		r->status = sim_run(s, sim_time(s) + span, track, &e);
+		if (e.fw)
+			flow_end(e.fw, np, sim_time(s) - e.t0);
 		if (o->cap_end)
 			cap_voltages(c, s, o->cap_end);
 	}
+	hr_free(h, scratch);
 	hr_free(h, vprev);
 	finish(s, r);
 }
@@ -216,6 +293,7 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 		vmin[i] = INFINITY, vmax[i] = -INFINITY;
 	struct simrun_opts zero = *o;
 	zero.ntrace = 0;
+	zero.flow = NULL;
 	zero.until = 0;
 	struct sim_opts so;
 	struct sim *s = NULL;
@@ -224,7 +302,7 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 	so.no_shooting = 1; /* the trajectory itself is wanted */
 	r->status = sim_create(c, &so, h, &s, &r->refusal);
 	if (r->status == SIM_OK && (r->period = sim_period(s)) > 0) {
-		struct extremes e = {c, vmin, vmax, NULL, NULL, &zero, 0, 0, 0, NULL, 0};
+		struct extremes e = {c, vmin, vmax, NULL, NULL, &zero, 0, 0, 0, NULL, 0, NULL};
 		r->status = sim_settle(s, r->period, max_periods,
 				       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
 				       &r->periods, &r->settled, track, &e);

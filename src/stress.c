@@ -224,6 +224,11 @@ static const struct {
 	[SQ_VOLTAGE] = {"voltage", "V"},
 	[SQ_REVERSE] = {"reverse_voltage", "V"},
 	[SQ_SURGE] = {"surge_current", "A"},
+	[SQ_AVG_CURRENT] = {"avg_current", "A"},
+	[SQ_PEAK_CURRENT] = {"peak_current", "A"},
+	[SQ_RMS_CURRENT] = {"rms_current", "A"},
+	[SQ_RIPPLE_CURRENT] = {"ripple_current", "A"},
+	[SQ_POWER] = {"power", "W"},
 };
 
 const char *stress_qty_name(enum stress_qty q)
@@ -241,14 +246,31 @@ int stress_qty_is_voltage(enum stress_qty q)
 	return q == SQ_VOLTAGE || q == SQ_REVERSE;
 }
 
+int stress_qty_is_flow(enum stress_qty q)
+{
+	return q >= SQ_AVG_CURRENT && q < SQ_COUNT;
+}
+
 const struct rating_field *stress_rating(const struct rating *r, enum stress_qty q)
 {
-	return q == SQ_SURGE ? &r->i_surge : &r->v_rated;
+	static const struct rating_field none = {NAN, NULL};
+	switch (q) {
+	case SQ_SURGE: return &r->i_surge;
+	case SQ_AVG_CURRENT: return &r->i_avg;
+	case SQ_PEAK_CURRENT: return &r->i_peak;
+	case SQ_RIPPLE_CURRENT: return &r->i_ripple;
+	case SQ_POWER: return &r->p_rated;
+	case SQ_RMS_CURRENT: return &none;
+	default: return &r->v_rated;
+	}
 }
 
 const char *stress_qty_derating(enum stress_qty q)
 {
-	return q == SQ_SURGE ? "surge" : "voltage";
+	/* [stress-qty] */
+	static const char *const field[SQ_COUNT] = {"voltage", "voltage", "surge", "avg_current",
+						    "peak_current", "", "ripple_current", "power"};
+	return q < SQ_COUNT ? field[q] : "";
 }
 
 double stress_surge_width(const struct rating *r)

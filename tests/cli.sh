@@ -289,7 +289,7 @@ r=json.load(open(sys.argv[1])); n=0
 for f in r[\"files\"]:
     assert f[\"verify\"][\"simulated\"] and f[\"verify\"][\"settled\"], f[\"path\"]
     for s in f[\"stresses\"]:
-        if s[\"quantity\"] != \"surge_current\" and s[\"bounded\"]:
+        if s[\"quantity\"] in (\"voltage\", \"reverse_voltage\") and s[\"bounded\"]:
             assert s[\"simulated\"] is not None, s
             assert s[\"analysis_gap\"] == (s[\"simulated_powerup\"] > s[\"worst\"] * 1.002 + 0.01), s
             assert s[\"simulated\"] <= s[\"worst\"] * 1.002 + 0.01, s
@@ -521,14 +521,15 @@ run topo --format json "$tmp/tempty"
 check "topo on a folder with no netlists: a warning and an empty file list" bash -c "test $rc -eq 0 && grep -q 'tempty: warning: no netlists in this folder' '$tmp/err' && python3 -c 'import json,sys; assert json.load(open(sys.argv[1]))[\"files\"] == []' '$tmp/out'"
 
 # One name per stress quantity in every format: voltage, reverse_voltage,
-# surge_current (and no rule spelt like a quantity).
+# surge_current, the steady state's avg_current, peak_current,
+# rms_current, ripple_current and power (and no rule spelt like a quantity).
 for f in text json csv junit sarif html; do
 	"$bin" check --fail-on never --parts "$ex/parts.csv" --format $f "$ex" > "$tmp/q.$f" 2>/dev/null
 done
 check "the stress table, JSON, CSV and HTML name each quantity the same way" python3 -c "
 import csv,json,re,sys
 t=sys.argv[1]
-names={'voltage','reverse_voltage','surge_current'}
+names={'voltage','reverse_voltage','surge_current','avg_current','peak_current','rms_current','ripple_current','power'}
 text=set()
 for l in open(t+'.text'):
     m=re.match(r'^  \S+  +(S\d+|-) +(\S+) ', l)

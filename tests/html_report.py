@@ -207,8 +207,8 @@ ENG = {"f": 1e-15, "p": 1e-12, "n": 1e-9, "u": 1e-6, "m": 1e-3, "": 1,
 
 
 def shown(text):
-    """'288.5 V', '962.5 mA', '1 kV', '157%' -> a number (None for '-')."""
-    m = re.fullmatch(r"\s*(-?[\d.e+-]+)\s*(?:([fpnumkMGT]?)[VA]|(%))\s*", text)
+    """'288.5 V', '962.5 mA', '22.1 mW', '1 kV', '157%' -> a number (None for '-')."""
+    m = re.fullmatch(r"\s*(-?[\d.e+-]+)\s*(?:([fpnumkMGT]?)[VAW]|(%))\s*", text)
     if not m:
         return None
     return float(m.group(1)) * (0.01 if m.group(3) else ENG[m.group(2)])

@@ -94,7 +94,7 @@ def check(deck, tight, tmp):
     f0 = report["files"][0]
     periods = [1.0 / s["source"]["frequency"] for s in f0["structures"]
                if s.get("source") and s["source"].get("frequency")]
-    stresses = [s for s in f0["stresses"] if s["bounded"] and s["quantity"] != "surge_current"
+    stresses = [s for s in f0["stresses"] if s["bounded"] and s["quantity"] in ("voltage", "reverse_voltage")
                 and s["structure"] is not None]
     if not periods or not stresses:
         return 0, []

@@ -3,8 +3,9 @@
 (and `headroom rules --format json` against docs/rules.schema.json)
 with the jsonschema package (Debian: python3-jsonschema), on the examples
 (with their parts table), on every hand-written structure netlist, on a
-file with netlist errors, and on a folder with skipped files and a reader
-warning; the summary is recomputed from the lists. Prints one line per
+file with netlist errors, on a folder with skipped files and a reader
+warning, and on tests/data/currents (currents, powers, their findings, and
+a file with no steady state to take currents from); the summary is recomputed from the lists. Prints one line per
 document."""
 import json
 import os
@@ -34,6 +35,8 @@ runs = [
      os.path.join(HERE, "data", "inputs", "batch", "probe_clamp.cir")],
     [os.path.join(HERE, "data", "files")],
     ["--source-tol", "10", os.path.join(HERE, "data", "powerup", "xfmr_fullwave_doubler.cir")],
+    # currents, powers and their rules; a file with no steady state (fallback.currents.why)
+    ["--parts", os.path.join(HERE, "data", "currents", "parts.csv"), os.path.join(HERE, "data", "currents")],
 ]
 
 

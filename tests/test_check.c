@@ -112,7 +112,33 @@ struct rule_case {
 	double tol;
 };
 
+/* A half-wave peak rectifier into 1 k: about 17 V out, so a mean diode
+ * current of about 17 mA, drawn in pulses of about 180 mA through the 10
+ * ohm; the reservoir's ripple current about 46 mA rms (the solver's
+ * numbers, tests/ngspice_currents.py checks the method against ngspice).
+ * With a zener across the output through 470 ohm: about 5.2 V x 23 mA
+ * = 0.12 W in the zener (hand estimate). */
+#define RECT(rating) \
+	"hw\nV1 a 0 sin(0 20 50)\nR1 a b 10\nDR b o dm\nCR o 0 100u\nRL o 0 1k\n" \
+	".model dm d rs=0.1\n" rating "\n"
+#define ZENER(rating) \
+	"z\nV1 a 0 sin(0 20 50)\nR1 a b 10\nDR b o dm\nCR o 0 100u\nRZ o z 470\nDZ 0 z dz\n" \
+	".model dm d rs=0.1\n.model dz d bv=5.1 rs=1\n*@part DZ kind=zener " rating "\n"
+
 static const struct rule_case cases[] = {
+	/* 17 mA on 15 mA; quiet on 25 mA (industrial: 90 %, 22.5 mA) */
+	{"diode-avg-current", "DR", RECT("*@part DR i_avg=15m"), RECT("*@part DR i_avg=25m"), 0},
+	/* 180 mA peaks on 150 mA; quiet on 300 mA (90 %: 270 mA) */
+	{"diode-peak-current", "DR", RECT("*@part DR i_peak=150m"), RECT("*@part DR i_peak=300m"), 0},
+	/* 46 mA rms on 40 mA (80 %: 32 mA); quiet on 100 mA (80 mA) */
+	{"cap-ripple-current", "CR", RECT("*@part CR i_ripple=40m ripple_freq=100Hz"),
+	 RECT("*@part CR i_ripple=100m ripple_freq=100Hz"), 0},
+	/* 0.12 W on 150 mW (75 %: 112.5 mW); quiet on 200 mW (150 mW) */
+	{"zener-power", "DZ", ZENER("p_rated=150m"), ZENER("p_rated=200m"), 0},
+	/* no source repeats: no steady state, no current; rated, it is said */
+	{"stress-unsettled", "DD",
+	 "dc\nV1 a 0 dc 20\nR1 a b 10\nDD b o dm\nCR o 0 100u\nRL o 0 1k\n.model dm d\n*@part DD i_avg=1\n",
+	 "dc\nV1 a 0 dc 20\nR1 a b 10\nDD b o dm\nCR o 0 100u\nRL o 0 1k\n.model dm d\n", 0},
 	/* 11 V on a 10 V part; fixed: 25 V */
 	{"cap-overvoltage", "CC", CLAMP("10V", "100V"), CLAMP("25V", "100V"), 0.10},
 	/* 11 V is 69 % of 16 V, film limit 70 %: quiet; 11 V on 15 V is 73 %: fires */
@@ -395,6 +421,63 @@ static void test_rating_precedence(void **state)
 	checked_free(&c);
 }
 
+/* Every current field from a *@part line, with where it came from; a
+ * negative value is refused at the line. */
+static void test_current_ratings(void **state)
+{
+	(void)state;
+	struct checked c;
+	check_text(&c, RECT("*@part DR i_avg=1A i_peak=10A p_rated=0.5W\n"
+			    "*@part CR i_ripple=1.2A ripple_freq=100Hz ripple_temp=105 esr=80m "
+			    "life_h=2000 life_temp=85C rth_ca=12 i_avg=-1"), "industrial", 0, 0);
+	const struct nl_circuit *nc = c.run.a.er.circuit;
+	const struct rating *dr = NULL, *cr = NULL;
+	for (size_t i = 0; i < nl_part_count(nc); i++) {
+		const char *path = nl_part_at(nc, i)->path;
+		if (strcmp(path, "DR") == 0)
+			dr = &c.run.f.ratings[i];
+		if (strcmp(path, "CR") == 0)
+			cr = &c.run.f.ratings[i];
+	}
+	assert_true(dr && cr);
+	assert_true(dr->i_avg.value == 1 && dr->i_peak.value == 10 && dr->p_rated.value == 0.5);
+	assert_non_null(strstr(dr->i_peak.from, "annotation"));
+	assert_true(cr->i_ripple.value == 1.2 && cr->ripple_freq.value == 100);
+	assert_true(cr->ripple_temp.value == 105 && fabs(cr->esr.value - 0.08) < 1e-15);
+	assert_true(cr->life_h.value == 2000 && cr->life_temp.value == 85 && cr->rth_ca.value == 12);
+	assert_true(isnan(cr->i_avg.value));
+	assert_non_null(strstr(c.diags, "t.cir:9:1: error: i_avg '-1' is not a non-negative value"));
+	/* the stresses they are judged against */
+	assert_ptr_equal(stress_rating(dr, SQ_PEAK_CURRENT), &dr->i_peak);
+	assert_ptr_equal(stress_rating(cr, SQ_RIPPLE_CURRENT), &cr->i_ripple);
+	assert_true(isnan(stress_rating(dr, SQ_RMS_CURRENT)->value));
+	const struct stress *s = stress_of(&c, "DR", SQ_AVG_CURRENT);
+	assert_non_null(s);
+	assert_int_equal(s->basis, SB_SIMULATED);
+	/* the mean diode current is the load's: v(o) / 1 k, within 1 % */
+	const struct stress *pl = stress_of(&c, "RL", SQ_POWER);
+	assert_non_null(pl);
+	assert_true(fabs(s->worst - sqrt(pl->worst / 1e3)) < 0.01 * s->worst);
+	checked_free(&c);
+}
+
+/* A capacitor written as m=2 copies of 50 uF: each carries half of the
+ * ripple current of the one 100 uF part it replaces, and is rated for that. */
+static void test_current_per_copy(void **state)
+{
+	(void)state;
+	struct checked one, two;
+	check_text(&one, RECT(""), "industrial", 0, 0);
+	check_text(&two, "hw\nV1 a 0 sin(0 20 50)\nR1 a b 10\nDR b o dm\nCR o 0 50u m=2\nRL o 0 1k\n"
+			 ".model dm d rs=0.1\n", "industrial", 0, 0);
+	const struct stress *a = stress_of(&one, "CR", SQ_RIPPLE_CURRENT);
+	const struct stress *b = stress_of(&two, "CR", SQ_RIPPLE_CURRENT);
+	assert_true(a && b && a->bounded && b->bounded);
+	assert_true(fabs(b->worst - a->worst / 2) < 1e-3 * a->worst);
+	checked_free(&one);
+	checked_free(&two);
+}
+
 static void test_profiles_cite_tables(void **state)
 {
 	(void)state;
@@ -410,6 +493,11 @@ static void test_profiles_cite_tables(void **state)
 	assert_true(profile_kind(&ind, "diode", "signal", "surge", NULL) == 0.80);
 	assert_true(profile_kind(&ind, "diode", "rectifier", "voltage", NULL) == 0.75);
 	assert_true(profile_kind(&ind, "diode", "schottky", "voltage", NULL) == 0.80);
+	assert_true(profile_kind(&ind, "diode", "signal", "avg_current", NULL) == 0.90);
+	assert_true(profile_kind(&ind, "diode", "rectifier", "avg_current", NULL) == 0.85);
+	/* the same table, protected environment, level 2 (seen) */
+	assert_true(profile_kind(&basic, "diode", "rectifier", "avg_current", NULL) == 0.90);
+	assert_true(profile_kind(&flt, "diode", "rectifier", "avg_current", NULL) == 0.50);
 	/* NASA EEE-INST-002 (from memory) */
 	assert_true(profile_kind(&flt, "diode", "rectifier", "voltage", NULL) == 0.70);
 	assert_true(profile_kind(&flt, "diode", "rectifier", "surge", NULL) == 0.50);
@@ -710,6 +798,8 @@ int main(void)
 		cmocka_unit_test(test_each_rule),
 		cmocka_unit_test(test_clamp_stresses),
 		cmocka_unit_test(test_rating_precedence),
+		cmocka_unit_test(test_current_ratings),
+		cmocka_unit_test(test_current_per_copy),
 		cmocka_unit_test(test_profiles_cite_tables),
 		cmocka_unit_test(test_profile_errors),
 		cmocka_unit_test(test_ladder_regulation),

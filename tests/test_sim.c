@@ -11,6 +11,13 @@
  *   the primary by sqrt(Ls/Lp) (ideal transformer);
  * - source waveforms: PULSE, PWL with repeat, SIN with delay and damping,
  *   against their definitions in the ngspice manual, and their corners;
+ * - currents over one steady-state period (simrun_peaks' flows): a
+ *   resistor across a DC source takes P = V^2 / R and I = V / R exactly,
+ *   its source delivers the same power; a resistor across a sine takes
+ *   Vp^2 / (2 R); a half-wave rectifier (nearly ideal diode) into a
+ *   resistor passes Vp / (pi R) on average, Vp / (2 R) rms and Vp / R at
+ *   its peak (the textbook half-wave results: mean of a half sine over a
+ *   period 1 / pi, rms 1 / 2; from memory, and one line of integration);
  * - a loop of voltage sources is a singular matrix, reported as such;
  *   a transistor is refused with its name; a 0-ohm resistor is 1 mOhm and
  *   out-of-range diode parameters fall back to defaults. */
@@ -20,6 +27,7 @@
 
 #include "dense.h"
 #include "sim.h"
+#include "simrun.h"
 #include "simsrc.h"
 
 static void near(double got, double want, double eps, int line)
@@ -247,6 +255,74 @@ static void test_degenerate_values(void **state)
 	finish(&c);
 }
 
+/* One steady-state period of deck with flows: f gets one entry per part. */
+static void flows_of(struct run *r, const char *deck, int ideal, struct simrun_flow *f, size_t nf)
+{
+	run_text(r, deck);
+	assert_string_equal(r->diags, "");
+	const struct nl_circuit *c = r->r.circuit;
+	size_t np = nl_part_count(c);
+	assert_true(np <= nf);
+	double vmin[8], vmax[8];
+	struct simrun_opts o = {0};
+	o.ideal_diodes = ideal;
+	o.flow = f;
+	struct simrun_result res;
+	struct hr_alloc h = hr_alloc_default();
+	simrun_peaks(c, &o, &h, vmin, vmax, NULL, NULL, &res);
+	assert_int_equal(res.status, SIM_OK);
+	assert_true(res.settled);
+}
+
+static const struct simrun_flow *flow_of(const struct run *r, const struct simrun_flow *f,
+					 const char *path)
+{
+	const struct nl_part *p = find_part(r, path);
+	assert_non_null(p);
+	return &f[p - nl_part_at(r->r.circuit, 0)];
+}
+
+static void test_flow_resistors(void **state)
+{
+	(void)state;
+	struct run r;
+	struct simrun_flow f[8];
+	/* the sine gives the run its period; R1 sits across a DC source */
+	flows_of(&r, "p\nV1 a 0 dc 10\nR1 a 0 100\nV2 b 0 sin(0 20 1k)\nR2 b 0 1k\n", 0, f, 8);
+	const struct simrun_flow *r1 = flow_of(&r, f, "R1"), *v1 = flow_of(&r, f, "V1");
+	assert_near(r1->power, 1.0, 1e-9);        /* 10^2 / 100 */
+	assert_near(r1->avg, 0.1, 1e-12);
+	assert_near(r1->rms, 0.1, 1e-12);
+	assert_near(r1->peak, 0.1, 1e-12);
+	assert_near(v1->avg, -0.1, 1e-12);        /* into + through the source */
+	assert_near(v1->power, -1.0, 1e-9);       /* it delivers what R1 takes */
+	const struct simrun_flow *r2 = flow_of(&r, f, "R2");
+	assert_near(r2->power, 0.2, 0.2 * 1e-3);  /* 20^2 / (2 x 1k) */
+	assert_near(r2->rms, 20 / sqrt(2) / 1e3, 1e-3 * 20e-3);
+	assert_near(r2->avg, 0, 1e-6);
+	assert_near(r2->peak, 20e-3, 1e-3 * 20e-3);
+	assert_near(r2->low, -20e-3, 1e-3 * 20e-3);
+	run_free(&r);
+}
+
+static void test_flow_half_wave(void **state)
+{
+	(void)state;
+	struct run r;
+	struct simrun_flow f[8];
+	flows_of(&r, "hw\nV1 a 0 sin(0 100 50)\nD1 a k dm\nR1 k 0 1k\n.model dm d\n", 1, f, 8);
+	const struct simrun_flow *d1 = flow_of(&r, f, "D1"), *r1 = flow_of(&r, f, "R1");
+	/* a nearly ideal diode drops about 24 mV of the 100 V: 0.03 % */
+	assert_near(d1->avg, 0.1 / M_PI, 1e-3 * 0.1 / M_PI);
+	assert_near(d1->rms, 0.1 / 2, 1e-3 * 0.05);
+	assert_near(d1->peak, 0.1, 1e-3 * 0.1);
+	assert_near(r1->avg, d1->avg, 1e-9);
+	assert_true(d1->low > -1e-6); /* it blocks */
+	/* the resistor takes (Vp / 2)^2 / R on a half sine's rms */
+	assert_near(r1->power, 100.0 * 100 / 4 / 1e3, 2.5 * 2e-3);
+	run_free(&r);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -258,6 +334,8 @@ int main(void)
 		cmocka_unit_test(test_refusals),
 		cmocka_unit_test(test_degenerate_values),
 		cmocka_unit_test(test_dense_solve),
+		cmocka_unit_test(test_flow_resistors),
+		cmocka_unit_test(test_flow_half_wave),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

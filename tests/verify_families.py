@@ -103,7 +103,7 @@ def examples():
         v = f.get("verify") or {}
         parts = {p["path"]: p for p in json.loads(subprocess.run(
             [BIN, "parts", "--format", "json", path], capture_output=True, text=True).stdout)["files"][0]["parts"]}
-        stresses = [s for s in f["stresses"] if s["quantity"] != "surge_current" and s.get("compared")]
+        stresses = [s for s in f["stresses"] if s["quantity"] in ("voltage", "reverse_voltage") and s.get("compared")]
         pairs = {}
         for s in stresses:
             n = [x.lower() for x in parts[s["part"]]["nodes"]]
