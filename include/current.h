@@ -22,7 +22,7 @@
  * simbound_run); each part's go right after its own voltage stresses,
  * the resistors' at the end. r: the ratings (for the zener test).
  * Allocates in ar. Returns 0 on out-of-memory. */
-int current_run(const struct audit *a, const struct rating *r, struct arena *ar,
+int current_run(const struct audit *a, const struct rating *r, double ambient_c, struct arena *ar,
 		struct stress_result *sr);
 
 /* The current rules (diode-avg-current, diode-peak-current,

@@ -25,6 +25,8 @@ enum stress_qty {
 	SQ_RMS_CURRENT,     /* a diode's rms current */
 	SQ_RIPPLE_CURRENT,  /* a capacitor's rms (ripple) current */
 	SQ_POWER,           /* a zener's or resistor's mean power */
+	SQ_LIFE,            /* an electrolytic's estimated life, hours (life.h):
+			       lower is worse, so it has no rating ratio */
 	SQ_COUNT
 };
 
@@ -32,14 +34,15 @@ enum stress_qty {
  * JSON, CSV, HTML): "voltage" (a capacitor's |V|), "reverse_voltage" (a
  * diode's cathode minus anode), "surge_current" (the power-up surge
  * through a diode), "avg_current", "peak_current", "rms_current",
- * "ripple_current", "power" [stress-qty]. */
+ * "ripple_current", "power", "life" [stress-qty]. */
 const char *stress_qty_name(enum stress_qty q);
 /* Its unit: "V", "A" or "W". */
 const char *stress_qty_unit(enum stress_qty q);
 /* Whether q is a voltage (a capacitor's |V| or a diode's reverse voltage):
  * the quantities the analysis bounds and the solver confirms. */
 int stress_qty_is_voltage(enum stress_qty q);
-/* Whether q is one of the steady state's currents or its power. */
+/* Whether q is one of the steady state's currents, its power, or the life
+ * estimate made from the ripple current. */
 int stress_qty_is_flow(enum stress_qty q);
 /* The rating field q is judged against (v_rated for voltages, i_surge for
  * the surge, i_avg, i_peak, i_ripple, p_rated); an empty field (NaN) for
@@ -116,6 +119,12 @@ struct stress {
 	   switch-on instant as a phase of the longest source period
 	   (degrees; NaN: the sources as written) */
 	double surge_i2t, surge_width, surge_phase;
+	/* life (SQ_LIFE): the run's ambient, the core's temperature and its
+	   rise from ripple heating (degC; the rise is 0 when ESR or the
+	   thermal resistance is not given), the life 10 degC hotter (h) and
+	   life_flags' bits: LIFE_HEATED, LIFE_CAPPED, LIFE_OVER_RATED */
+	double life_ambient_c, life_core_c, life_rise_c, life_hotter_h;
+	unsigned life_flags;
 	/* --verify: the same quantity in the steady-state simulation at the
 	   +tol corner, NaN when not simulated (verify.h) */
 	double sim_worst;
@@ -132,6 +141,10 @@ struct stress {
 	   and rails at the bottom of their band (else the top) */
 	int sim_low;
 };
+
+#define LIFE_HEATED 1u     /* ESR and R_th given: the ripple heating is in */
+#define LIFE_CAPPED 2u     /* the estimate is the 15-year cap */
+#define LIFE_OVER_RATED 4u /* the core runs above the rated life temperature */
 
 /* A simulated stress above its analytic bound by more than this (relative,
  * plus STRESS_GAP_ABS volts) is an analysis gap: the solver's own accuracy

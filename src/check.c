@@ -133,7 +133,7 @@ static int judge(const struct check_opts *o, struct check_run *r)
 	int sim = o->verify && (!o->verify_max_parts ||
 				nl_part_count(a->er.circuit) <= o->verify_max_parts);
 	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
-	       simulate_unproven(o, r) && current_run(a, rt, a->ar, &r->sr) &&
+	       simulate_unproven(o, r) && current_run(a, rt, profile_ambient(r->profile, NAN), a->ar, &r->sr) &&
 	       discharge_run(a, r->profile, a->ar, &r->sr) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
 	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&

@@ -11,11 +11,13 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "life.h"
 #include "num.h"
 
 struct build {
 	const struct audit *a;
 	const struct rating *r;
+	double ambient_c;
 	const struct stress_result *sr;
 	struct stress *out;
 	size_t n;
@@ -48,6 +50,38 @@ static double value_of(const struct stress_flow *f, enum stress_qty q)
 	}
 }
 
+/* Turns a life stress, which add() gave the part's ripple current, into
+ * the estimate in hours (life.h) at the run's ambient. */
+static void life_fill(const struct build *b, struct stress *s)
+{
+	const struct rating *r = &b->r[s->part];
+	struct life_in in = {r->life_h.value, r->life_temp.value, b->ambient_c, s->worst,
+			     r->esr.value, r->rth_ca.value};
+	struct life_out o;
+	s->life_ambient_c = b->ambient_c;
+	if (!life_estimate(&in, &o)) {
+		s->bounded = 0;
+		s->basis = SB_NONE;
+		s->best = s->worst = NAN;
+		s->unproven = isnan(r->life_temp.value) ? "life_h is given without its temperature (life_temp)"
+							: "the ripple current or the ambient is not a number";
+		return;
+	}
+	s->worst = s->best = o.hours;
+	s->life_core_c = o.core_c;
+	s->life_rise_c = o.rise_c;
+	s->life_hotter_h = o.hotter_h;
+	s->life_flags = (o.heating_known ? LIFE_HEATED : 0u) | (o.capped ? LIFE_CAPPED : 0u) |
+			(o.over_rated ? LIFE_OVER_RATED : 0u);
+	if (!o.heating_known) {
+		s->basis = SB_ESTIMATE;
+		s->unproven = "self-heating not included (esr and rth_ca not both given): the real life "
+			      "is shorter";
+	} else {
+		s->unproven = "from the solver's ripple current (docs/life.md)";
+	}
+}
+
 /* Appends stress q of part, placed like base (its voltage stress; NULL
  * for a resistor, which belongs to no structure). */
 static void add(struct build *b, const struct stress *base, uint32_t part, enum stress_qty q)
@@ -57,7 +91,8 @@ static void add(struct build *b, const struct stress *base, uint32_t part, enum 
 	/* a file with no currents at all says why once (its fallback, the
 	   reports' currents line); only a rated quantity is listed without
 	   its number, for the stress-unsettled warning */
-	if (why && !(fb && fb->flow) && isnan(stress_rating(&b->r[part], q)->value))
+	double rated = q == SQ_LIFE ? b->r[part].life_h.value : stress_rating(&b->r[part], q)->value;
+	if (why && !(fb && fb->flow) && isnan(rated))
 		return;
 	if (!b->out) { /* counting */
 		b->n++;
@@ -72,6 +107,7 @@ static void add(struct build *b, const struct stress *base, uint32_t part, enum 
 	s->qty = q;
 	s->rev_min = s->analytic = s->sim_worst = s->sim_powerup = NAN;
 	s->energy_j = s->series_r = s->discharge_s = NAN;
+	s->surge_i2t = s->surge_width = s->surge_phase = NAN;
 	s->discharge_r = INFINITY;
 	s->stack = -1;
 	if (why) {
@@ -88,6 +124,8 @@ static void add(struct build *b, const struct stress *base, uint32_t part, enum 
 	s->worst = s->best = value_of(&fb->flow[part], q) / m;
 	s->corner = fb->flow_corner;
 	s->unproven = "currents come from the solver only: the analysis bounds voltages";
+	if (q == SQ_LIFE)
+		life_fill(b, s);
 }
 
 /* The stresses of part after its last voltage or surge stress; base is
@@ -97,6 +135,8 @@ static void part_flows(struct build *b, const struct stress *base)
 	const struct nl_part *p = nl_part_at(b->a->er.circuit, base->part);
 	if (p->kind == NL_C) {
 		add(b, base, base->part, SQ_RIPPLE_CURRENT);
+		if (!isnan(b->r[base->part].life_h.value))
+			add(b, base, base->part, SQ_LIFE);
 		return;
 	}
 	add(b, base, base->part, SQ_AVG_CURRENT);
@@ -145,13 +185,13 @@ static void build_pass(struct build *b, const size_t *last, const unsigned char 
 			add(b, NULL, i, SQ_POWER);
 }
 
-int current_run(const struct audit *a, const struct rating *r, struct arena *ar,
+int current_run(const struct audit *a, const struct rating *r, double ambient_c, struct arena *ar,
 		struct stress_result *sr)
 {
 	size_t np = nl_part_count(a->er.circuit);
 	if (sr->n == 0)
 		return 1;
-	struct build b = {a, r, sr, NULL, 0};
+	struct build b = {a, r, ambient_c, sr, NULL, 0};
 	size_t *last = arena_alloc(ar, (np + 1) * sizeof *last);
 	unsigned char *net = networks(&b, ar);
 	if (!last || !net)
@@ -351,12 +391,66 @@ static void judge_one(struct judge *j, const struct stress *s)
 	f->fix = fix_of(j, s, s->worst / k);
 }
 
+/* "41,000 h (4.7 years)" */
+static const char *hours(struct judge *j, double h)
+{
+	return fmt(j, "%.0f h (%.1f years)", h, h / 8760);
+}
+
+/* The simulated ripple current of part (its ripple_current stress). */
+static double ripple_of(const struct judge *j, uint32_t part)
+{
+	for (size_t i = 0; i < j->sr->n; i++)
+		if (j->sr->s[i].part == part && j->sr->s[i].qty == SQ_RIPPLE_CURRENT)
+			return j->sr->s[i].worst;
+	return NAN;
+}
+
+/* cap-life-short: the estimate below the profile's required life. */
+static void judge_life(struct judge *j, const struct stress *s)
+{
+	const struct rating *r = &j->r[s->part];
+	const char *note;
+	double need = profile_value(j->p, "life_required", &note);
+	if (!s->bounded || isnan(need) || !(s->worst < need))
+		return;
+	struct finding *f = finding(j, RULE_CAP_LIFE_SHORT, s);
+	if (!f)
+		return;
+	int heated = (s->life_flags & LIFE_HEATED) != 0;
+	f->worst = s->worst;
+	f->limit = need;
+	f->rating = r->life_h.value;
+	f->message = fmt(j, "%s is estimated to last %s at %g C ambient, less than the %s the "
+			    "profile requires%s", f->subject, hours(j, s->worst), s->life_ambient_c,
+			 hours(j, need), heated ? "" : " (without its self-heating: shorter still)");
+	f->computation = fmt(j, "%s: core %.1f C = %g C ambient + %.1f C ripple heating (%s rms%s); "
+				"life = %s x 2^((%g C - core) / 10)%s; 10 C hotter: %s%s",
+			     place(j, s), s->life_core_c, s->life_ambient_c, s->life_rise_c,
+			     eng(j, ripple_of(j, s->part), "A"),
+			     heated ? fmt(j, " through %g ohm ESR and %g C/W", r->esr.value, r->rth_ca.value)
+				    : "; esr and rth_ca not both given",
+			     hours(j, r->life_h.value), r->life_temp.value,
+			     s->life_core_c < LIFE_FLOOR_C ? " (taken at 40 C: no credit below)" : "",
+			     hours(j, s->life_hotter_h),
+			     s->life_flags & LIFE_OVER_RATED ? "; the core runs above its rated temperature"
+							     : "");
+	f->limits = fmt(j, "life_required %s (profile %s%s%s); rated %s at %g C (%s)", hours(j, need),
+			j->p->name, note && *note ? ": " : "", note ? note : "", hours(j, r->life_h.value),
+			r->life_temp.value, r->life_h.from ? r->life_h.from : "?");
+	f->fix = "use a capacitor with a longer rated life or a higher rated temperature, lower its "
+		 "ripple current (a larger or a parallel capacitor), or cool it";
+}
+
 int current_judge(const struct audit *a, const struct rating *r, const struct profile *p,
 		  const struct stress_result *sr, struct arena *ar, struct rules_result *out)
 {
 	struct judge j = {a, r, p, sr, ar, out, 0};
-	for (size_t i = 0; i < sr->n && !j.oom; i++)
-		if (stress_qty_is_flow(sr->s[i].qty))
+	for (size_t i = 0; i < sr->n && !j.oom; i++) {
+		if (sr->s[i].qty == SQ_LIFE)
+			judge_life(&j, &sr->s[i]);
+		else if (stress_qty_is_flow(sr->s[i].qty))
 			judge_one(&j, &sr->s[i]);
+	}
 	return !j.oom;
 }

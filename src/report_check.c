@@ -268,6 +268,27 @@ static void json_surge(FILE *out, const struct stress *s, const struct rating *r
 	jnum(out, stress_surge_rated_i2t(r));
 }
 
+/* A life stress's terms (docs/life.md). */
+static void json_life(FILE *out, const struct stress *s, const struct rating *r)
+{
+	fputs(", \"life\": {\"ambient_c\": ", out);
+	jnum(out, s->life_ambient_c);
+	fputs(", \"core_c\": ", out);
+	jnum(out, s->bounded ? s->life_core_c : NAN);
+	fputs(", \"rise_c\": ", out);
+	jnum(out, s->bounded ? s->life_rise_c : NAN);
+	fputs(", \"hotter_10c_h\": ", out);
+	jnum(out, s->bounded ? s->life_hotter_h : NAN);
+	fputs(", \"rated_h\": ", out);
+	jnum(out, r->life_h.value);
+	fputs(", \"rated_c\": ", out);
+	jnum(out, r->life_temp.value);
+	fprintf(out, ", \"heating_included\": %s, \"capped\": %s, \"core_above_rated\": %s}",
+		s->life_flags & LIFE_HEATED ? "true" : "false",
+		s->life_flags & LIFE_CAPPED ? "true" : "false",
+		s->life_flags & LIFE_OVER_RATED ? "true" : "false");
+}
+
 static void json_stress(FILE *out, const struct check_file *f,
 			const struct stress *s)
 {
@@ -301,6 +322,8 @@ static void json_stress(FILE *out, const struct check_file *f,
 	jstr(out, rf->from);
 	fputs(", \"ratio\": ", out);
 	jnum(out, stress_ratio(s, r));
+	if (s->qty == SQ_LIFE)
+		json_life(out, s, r);
 	if (s->qty == SQ_SURGE) {
 		fputs(", \"series_r\": ", out);
 		jnum(out, s->series_r);

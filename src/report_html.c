@@ -444,7 +444,8 @@ static const struct {
 	const char *id, *shown;
 } qty_names[] = {{"voltage", "voltage"}, {"reverse_voltage", "reverse"}, {"surge_current", "surge"},
 		 {"avg_current", "mean current"}, {"peak_current", "peak current"},
-		 {"rms_current", "rms current"}, {"ripple_current", "ripple (rms)"}, {"power", "power"}};
+		 {"rms_current", "rms current"}, {"ripple_current", "ripple (rms)"}, {"power", "power"},
+		 {"life", "life"}};
 _Static_assert(sizeof qty_names / sizeof qty_names[0] == SQ_COUNT, "a name per quantity");
 
 /* A number cell: engineering notation to read, the exact value in data-v

@@ -18,6 +18,7 @@ static const char *const surge_rules[] = {"surge-derating", "surge-excess", "sur
 static const char *const avg_rules[] = {"diode-avg-current", NULL};
 static const char *const peak_rules[] = {"diode-peak-current", NULL};
 static const char *const ripple_rules[] = {"cap-ripple-current", NULL};
+static const char *const life_rules[] = {"cap-life-short", NULL};
 static const char *const power_rules[] = {"zener-power", NULL};
 static const char *const no_rules[] = {NULL};
 
@@ -122,6 +123,7 @@ static const char *const *rules_for(const struct check_file *f, const struct str
 	case SQ_POWER: /* a resistor's power has no rating and no rule */
 		return nl_part_at(f->a->er.circuit, s->part)->kind == NL_D ? power_rules : no_rules;
 	case SQ_RMS_CURRENT: return no_rules;
+	case SQ_LIFE: return life_rules;
 	default:
 		return nl_part_at(f->a->er.circuit, s->part)->kind == NL_D ? diode_rules : cap_rules;
 	}

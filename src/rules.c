@@ -28,6 +28,7 @@ const struct rule_info rules_table[RULE_COUNT] = {
 	[RULE_DIODE_PEAK_CURRENT] = {"diode-peak-current", DIAG_WARNING, "a diode's repetitive peak forward current (simulated) is above the profile's share of its repetitive peak rating"},
 	[RULE_CAP_RIPPLE_CURRENT] = {"cap-ripple-current", DIAG_WARNING, "a capacitor's ripple current (simulated, rms) is above the profile's share of its rated ripple current"},
 	[RULE_ZENER_POWER] = {"zener-power", DIAG_WARNING, "a diode working in breakdown takes more power (simulated) than the profile's share of its power rating"},
+	[RULE_CAP_LIFE_SHORT] = {"cap-life-short", DIAG_WARNING, "an electrolytic capacitor's estimated life at the ambient temperature, with its ripple heating, is shorter than the profile requires"},
 	[RULE_RATING_MISSING] = {"rating-missing", DIAG_NOTE, "a part in a structure has no rating"},
 	[RULE_INTENT_MISS] = {"intent-miss", DIAG_ERROR, "a node leaves the range its *@expect line declares"},
 	[RULE_STRESS_UNSETTLED] = {"stress-unsettled", DIAG_WARNING, "a part's stress could not be bounded"},

@@ -229,6 +229,7 @@ static const struct {
 	[SQ_RMS_CURRENT] = {"rms_current", "A"},
 	[SQ_RIPPLE_CURRENT] = {"ripple_current", "A"},
 	[SQ_POWER] = {"power", "W"},
+	[SQ_LIFE] = {"life", "h"},
 };
 
 const char *stress_qty_name(enum stress_qty q)
@@ -260,7 +261,8 @@ const struct rating_field *stress_rating(const struct rating *r, enum stress_qty
 	case SQ_PEAK_CURRENT: return &r->i_peak;
 	case SQ_RIPPLE_CURRENT: return &r->i_ripple;
 	case SQ_POWER: return &r->p_rated;
-	case SQ_RMS_CURRENT: return &none;
+	case SQ_RMS_CURRENT:
+	case SQ_LIFE: return &none;
 	default: return &r->v_rated;
 	}
 }
@@ -269,7 +271,7 @@ const char *stress_qty_derating(enum stress_qty q)
 {
 	/* [stress-qty] */
 	static const char *const field[SQ_COUNT] = {"voltage", "voltage", "surge", "avg_current",
-						    "peak_current", "", "ripple_current", "power"};
+						    "peak_current", "", "ripple_current", "power", ""};
 	return q < SQ_COUNT ? field[q] : "";
 }
 

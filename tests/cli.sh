@@ -838,5 +838,31 @@ check "surge: the formula's figure is an estimate" grep -q "^  D1 .* surge_curre
 run check --format json --fail-on never "$data/surge_estimate.cir"
 check "surge: JSON basis estimate with its reason" bash -c "grep -q '\"basis\": \"estimate\", \"unproven\": \"first-pulse formula, not simulated' '$tmp/out'"
 
+# Electrolytic life (docs/life.md): the 10 degC doubling rule from the capacitor
+# makers' notes (docs/sources.md §12; the rule itself is checked against a
+# maker's worked figures in tests/test_life.c). Here: the rule fires below the
+# profile's life_required, and the life follows from the simulated ripple.
+run check --fail-on never --format json --ambient 70 "$data/life_doubler.cir"
+check "life: each reservoir's life from its own ripple current, heating and the doubling rule" python3 -c "
+import json,sys
+d=json.load(open(sys.argv[1]))['files'][0]
+rip={s['part']: s['worst'] for s in d['stresses'] if s['quantity'] == 'ripple_current'}
+life={s['part']: s for s in d['stresses'] if s['quantity'] == 'life'}
+c1=life['C1']; core=70 + rip['C1'] ** 2 * 0.1 * 20
+assert abs(c1['life']['core_c'] - core) < 1e-6, c1
+assert abs(c1['worst'] - 2000 * 2 ** ((105 - core) / 10)) < 1e-6 * c1['worst'], c1
+assert abs(c1['life']['hotter_10c_h'] - c1['worst'] / 2) < 1e-6 * c1['worst'], c1
+assert c1['basis'] == 'simulated' and c1['life']['heating_included'] is True, c1
+c2=life['C2']
+assert c2['basis'] == 'estimate' and c2['life']['heating_included'] is False and c2['life']['rise_c'] == 0, c2
+assert abs(c2['worst'] - 2000 * 2 ** 3.5) < 1e-6 * c2['worst'], c2
+rules=sorted((f['part'], f['rule']) for f in d['findings'] if f['rule'] == 'cap-life-short')
+assert rules == [('C1', 'cap-life-short'), ('C2', 'cap-life-short')], rules
+" "$tmp/out"
+run check --fail-on never --ambient 70 "$data/life_doubler.cir"
+check "life: the finding gives the core, the heating and 10 C hotter" bash -c "grep -q 'C1 is estimated to last 22425 h (2.6 years) at 70 C ambient, less than the 50000 h' '$tmp/out' && grep -q '10 C hotter: 11213 h' '$tmp/out' && grep -q 'without its self-heating: shorter still' '$tmp/out'"
+run check --fail-on never --ambient 50 "$data/life_doubler.cir"
+check "life: at 50 C the 2000 h / 105 C parts last 90,000 h, enough" bash -c "! grep -q 'cap-life-short' '$tmp/out' && grep -q '^  C1 .* life .* simulated' '$tmp/out'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
