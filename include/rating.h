@@ -10,6 +10,7 @@
 #include "annot.h"
 #include "arena.h"
 #include "bom.h"
+#include "capbias.h"
 #include "diag.h"
 #include "nl.h"
 
@@ -38,6 +39,8 @@ struct rating {
 	   given for (s), and the I^2 t the diode takes (A^2 s) */
 	struct rating_field surge_width, i2t;
 	const char *kind;            /* one of profile_*_kinds, or NULL */
+	const struct capbias *c_bias;/* capacitance against DC bias, or NULL */
+	const char *c_bias_from;
 	const char *kind_from;
 	const char *note;
 };

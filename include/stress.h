@@ -171,6 +171,11 @@ struct stress_struct {
 	double ladder_drop;     /* published regulation formulas */
 	double ladder_ripple;
 	double ladder_nopt;
+	/* the smallest share of its nominal capacitance a capacitor of the
+	   structure keeps under its worst DC bias (its c_bias curve, capbias.h;
+	   1 without one): droop and ladder figures use the reduced values */
+	double bias_share;
+	int bias_past;          /* a worst voltage lies past the end of its curve */
 };
 
 struct stress_result {

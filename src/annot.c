@@ -22,7 +22,7 @@ struct directive {
 static const struct directive directives[] = {
 	/* the values are rating.c's columns [rating-fields] */
 	{"part", AN_PART, 1, "v_rated kind tol i_surge i_avg i_peak p_rated trr i_ripple ripple_freq "
-			     "ripple_temp esr life_h life_temp rth_ca surge_width i2t note"},
+			     "ripple_temp esr life_h life_temp rth_ca surge_width i2t c_bias note"},
 	{"source", AN_SOURCE, 1, "tol min max"},
 	{"waive", AN_WAIVE, 2, "reason until"},
 	{"expect", AN_EXPECT, 1, "min max"},

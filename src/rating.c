@@ -49,11 +49,11 @@ _Static_assert(offsetof(struct rating, kind) == NVALUES * sizeof(struct rating_f
 	       "a column for every numeric field of struct rating [rating-fields]");
 
 /* Columns: ref, kind, note, then the value columns in value_cols' order. */
-enum col { COL_REF, COL_KIND, COL_NOTE, COL_VALUE0, NCOLS = COL_VALUE0 + NVALUES };
+enum col { COL_REF, COL_KIND, COL_NOTE, COL_CBIAS, COL_VALUE0, NCOLS = COL_VALUE0 + NVALUES };
 
 static const char *col_name(int c)
 {
-	static const char *const fixed[COL_VALUE0] = {"ref", "kind", "note"};
+	static const char *const fixed[COL_VALUE0] = {"ref", "kind", "note", "c_bias"};
 	return c < COL_VALUE0 ? fixed[c] : value_cols[c - COL_VALUE0].name;
 }
 
@@ -342,6 +342,32 @@ static void set_field(struct rating_field *f, const char *text, int pct,
 	f->from = src->from;
 }
 
+/* A capacitance-against-bias curve (capbias.h), for capacitors. */
+static void set_bias(struct rating *r, const struct nl_part *p, const char *text,
+		     const struct source *src)
+{
+	if (!text || !*text)
+		return;
+	struct capbias *c = arena_alloc(src->ar, sizeof *c);
+	size_t bad = 0;
+	const char *msg = c ? capbias_parse(text, strlen(text), c, &bad) : NULL;
+	if (!c)
+		return; /* out of memory: the arena's owner reports it */
+	if (msg) {
+		struct diag_loc l = src->loc;
+		diag_add(src->d, DIAG_ERROR, "rating", l, "c_bias '%s': %s (at character %zu)", text,
+			 msg, bad + 1);
+		return;
+	}
+	if (p->kind != NL_C) {
+		diag_add(src->d, DIAG_WARNING, "rating", src->loc,
+			 "c_bias is a capacitor's curve; ignored for %s", p->path);
+		return;
+	}
+	r->c_bias = c;
+	r->c_bias_from = src->from;
+}
+
 static void set_kind(struct rating *r, const struct nl_part *p, const char *text,
 		     const struct source *src)
 {
@@ -399,6 +425,9 @@ static void from_row(struct rating *r, const struct nl_part *p,
 	set_kind(r, p, row->cell[COL_KIND], src);
 	if (row->cell[COL_NOTE] && *row->cell[COL_NOTE])
 		r->note = row->cell[COL_NOTE];
+	cell_loc(t, row, COL_CBIAS, &src->loc);
+	src->loc.file = src->table_file;
+	set_bias(r, p, row->cell[COL_CBIAS], src);
 }
 
 /* A BOM row's voltage and kind; problems are located in the BOM's cells. */
@@ -434,6 +463,9 @@ static void from_annot(struct rating *r, const struct nl_part *p,
 	const struct annot_kv *note = annot_get(a, "note");
 	if (note)
 		r->note = note->text;
+	const struct annot_kv *cb = annot_get(a, "c_bias");
+	if (cb)
+		set_bias(r, p, cb->text, src);
 }
 
 static void init(struct rating *r)

@@ -202,6 +202,10 @@ static void text_structs(FILE *out, const struct check_file *f)
 			fprintf(out, "     clamp droop under its load: %s per period (%.2f%% of the swing)\n",
 				d_, 100 * x->droop_frac);
 		}
+		if (x->bias_share < 1 && (x->droop_v > 0 || x->ladder_i > 0))
+			fprintf(out, "     with the capacitance left under DC bias: down to %.0f%% of "
+				     "nominal (c_bias)%s\n", 100 * x->bias_share,
+				x->bias_past ? "; a worst voltage lies past the end of its curve" : "");
 	}
 }
 

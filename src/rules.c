@@ -717,8 +717,13 @@ static void droop(struct ctx *x, size_t si)
 	f->message = str(x, "the clamp of S%zu droops %s per period under its %s load, %.1f%% of its %s swing (limit %.0f%%)",
 			 si + 1, v(x, f0->droop_v, "V"), v(x, f0->load_r, "ohm"), 100 * f0->droop_frac,
 			 v(x, f0->swing, "V"), lim * 100);
-	f->computation = str(x, "droop = Vcap T / (R C) with T %s, R %s", v(x, f0->period, "s"),
-			     v(x, f0->load_r, "ohm"));
+	f->computation = str(x, "droop = Vcap T / (R C) with T %s, R %s%s", v(x, f0->period, "s"),
+			     v(x, f0->load_r, "ohm"),
+			     f0->bias_share < 1
+				     ? str(x, ", C at %.0f%% of nominal under its worst DC bias (c_bias)%s",
+					   100 * f0->bias_share,
+					   f0->bias_past ? ", a voltage past the end of its curve" : "")
+				     : "");
 	f->limits = str(x, "droop limit %.0f%% of the swing (profile %s)", lim * 100, x->p->name);
 	f->fix = "raise the coupling capacitance or the load resistance";
 }

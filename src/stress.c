@@ -48,6 +48,8 @@ struct ctx {
 	struct prop_result runs[NCORNER];
 	uint32_t *struct_of;     /* part -> structure index or UINT32_MAX */
 	const struct topo_part **tpart_of; /* per part, NULL outside structures */
+	double *vworst;          /* per part: its worst |V|, NaN when unknown */
+	struct stress_struct *fig; /* the structure being figured */
 };
 
 static int scales_whole(const struct nl_part *p)
@@ -508,6 +510,26 @@ static double drive_period(const struct ctx *x, const struct topo_struct *t)
 	return r->sigs[r->sig_of_part[t->drive_source]].period;
 }
 
+/* A capacitor's capacitance under its worst DC bias: the nominal value
+ * times m=, times the share its c_bias curve leaves at its worst |V| (at
+ * the curve's end when the voltage is unknown); noted in x->fig. */
+static double cap_eff(const struct ctx *x, uint32_t part)
+{
+	const struct nl_part *p = nl_part_at(x->a->er.circuit, part);
+	double c = p->value * (p->ext ? p->ext->mult : 1.0);
+	const struct capbias *cb = x->r[part].c_bias;
+	if (!cb)
+		return c;
+	double v = x->vworst ? x->vworst[part] : NAN;
+	int past = 0;
+	double k = capbias_share(cb, isnan(v) ? INFINITY : v, &past);
+	if (x->fig) {
+		x->fig->bias_share = fmin(x->fig->bias_share, k);
+		x->fig->bias_past |= past;
+	}
+	return c * k;
+}
+
 static double struct_caps(const struct ctx *x, const struct topo_struct *t,
 			  int smallest)
 {
@@ -516,7 +538,7 @@ static double struct_caps(const struct ctx *x, const struct topo_struct *t,
 		const struct nl_part *p = nl_part_at(x->a->er.circuit, t->parts[i].part);
 		if (p->kind != NL_C)
 			continue;
-		double c = p->value * (p->ext ? p->ext->mult : 1.0);
+		double c = cap_eff(x, t->parts[i].part);
 		total += c;
 		min = fmin(min, c);
 	}
@@ -545,7 +567,7 @@ static double coupling_c(const struct ctx *x, const struct topo_struct *t)
 			cg[ng++] = 0;
 		}
 		if (g < 16)
-			cg[g] += p->value * (p->ext ? p->ext->mult : 1.0);
+			cg[g] += cap_eff(x, t->parts[i].part);
 	}
 	double inv = 0;
 	for (int g = 0; g < ng; g++)
@@ -559,6 +581,8 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 	const struct topo_struct *t = &x->a->topo.s[si];
 	double lo, hi, cur = 0;
 	memset(f, 0, sizeof *f);
+	f->bias_share = 1;
+	x->fig = f;
 	f->period = drive_period(x, t);
 	f->swing = 0;
 	for (int k = 0; k < NCORNER; k++)
@@ -734,8 +758,17 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 	out->st = arena_zalloc(ar, (a->topo.n + 1) * sizeof *out->st);
 	if (!out->st)
 		return 0;
+	x.vworst = arena_alloc(ar, (np + 1) * sizeof *x.vworst);
+	if (!x.vworst)
+		return 0;
+	for (size_t i = 0; i <= np; i++)
+		x.vworst[i] = NAN;
+	for (size_t i = 0; i < out->n; i++)
+		if (out->s[i].qty == SQ_VOLTAGE && out->s[i].bounded)
+			x.vworst[out->s[i].part] = out->s[i].worst;
 	for (size_t s = 0; s < a->topo.n; s++)
 		figures(&x, s, &out->st[s], coupling[s]);
+	x.fig = NULL;
 	if (!judge_proofs(&x, out, &cap))
 		return 0;
 	for (int k = 0; k < NCORNER; k++)

@@ -864,5 +864,17 @@ check "life: the finding gives the core, the heating and 10 C hotter" bash -c "g
 run check --fail-on never --ambient 50 "$data/life_doubler.cir"
 check "life: at 50 C the 2000 h / 105 C parts last 90,000 h, enough" bash -c "! grep -q 'cap-life-short' '$tmp/out' && grep -q '^  C1 .* life .* simulated' '$tmp/out'"
 
+# Class-2 ceramics under DC bias: droop uses the capacitance the c_bias curve
+# leaves at the part's worst voltage (11 V on a 0 V=100 %, 16 V=10 % line:
+# 38.1 %). Droop = Vcap T / (R C), docs/design.md §6.
+run check --fail-on never "$data/bias_clamp.cir"
+check "c_bias: the clamp droops 11 V x 1 ms / (20 k x 0.381 uF) = 1.443 V, past the 5 % limit" bash -c "grep -q 'droops 1.443 V per period under its 20 kohm load, 6.6% of its 22 V swing (limit 5%) \[clamp-droop\]' '$tmp/out' && grep -q 'C at 38% of nominal under its worst DC bias (c_bias)' '$tmp/out'"
+sed 's/ c_bias="0V=100% 16V=10%"//' "$data/bias_clamp.cir" > "$tmp/nobias.cir"
+run check --fail-on never "$tmp/nobias.cir"
+check "c_bias: without the curve the same clamp droops 550 mV, within the limit" bash -c "! grep -q 'clamp-droop' '$tmp/out' && grep -q 'clamp droop under its load: 550 mV per period' '$tmp/out'"
+sed 's/c_bias="0V=100% 16V=10%"/c_bias="16V=10% 8V=50%"/' "$data/bias_clamp.cir" > "$tmp/badbias.cir"
+run check --fail-on never "$tmp/badbias.cir"
+check "c_bias: a curve that does not rise in voltage is a located error" bash -c "test $rc -eq 2 && grep -q \"badbias.cir:10:1: error: c_bias '16V=10% 8V=50%': bias points must rise in voltage (at character 9)\" '$tmp/out'"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
