@@ -132,20 +132,23 @@ struct stress {
  * solver's periodic steady state with the diodes as modelled and the
  * circuit's own load (loadout.h). NaN where not known. */
 struct stress_output_corner {
-	double mean, min, max;  /* V: the output over one period (mean: time average) */
-	double unloaded;        /* V: the analysis's output at the same corner
-				   (ideal diodes, no load), the middle of its range */
-	unsigned periods;       /* periods run to the steady state */
+	double mean, min, max; /* V: the output over one period (mean: time average) */
+	/* V: the analysis's output at the same corner (ideal diodes, no
+	   load), the middle of its range */
+	double unloaded;
+	unsigned periods; /* periods run to the steady state */
 };
 
 /* A structure's output under its load (loadout.h). */
 struct stress_output {
-	int loaded;             /* a multiplier, doubler or rectifier with a load:
-				   the fields below are set */
-	int simulated;          /* both corners came from the solver */
-	const char *why;        /* loaded and not simulated: why not */
-	uint32_t pos, neg;      /* the output is v(pos) - v(neg); neg is ground
-				   unless the structure has a low output */
+	/* a multiplier, doubler or rectifier with a load: the fields below
+	   are set */
+	int loaded;
+	int simulated;   /* both corners came from the solver */
+	const char *why; /* loaded and not simulated: why not */
+	/* the output is v(pos) - v(neg); neg is ground unless the structure
+	   has a low output */
+	uint32_t pos, neg;
 	struct stress_output_corner lo, hi; /* sources at -tol and at +tol */
 };
 
@@ -184,14 +187,14 @@ struct stress_result {
 
 /* What the simulation of the loaded outputs (loadout.h) did for a file. */
 struct stress_loadsim {
-	int simulated;          /* both corners reached their steady state */
-	const char *why;        /* when not: the reason */
-	unsigned runs;          /* solver runs made */
+	int simulated;   /* both corners reached their steady state */
+	const char *why; /* when not: the reason */
+	unsigned runs;   /* solver runs made */
 	/* per node, [0] the low corner (every source at -tol) and [1] the
 	   high corner (+tol): its lowest and highest voltage to ground over
 	   one steady-state period; NULL when not simulated */
 	const double *node_min[2], *node_max[2];
-	const char *corner[2];  /* the corners' names */
+	const char *corner[2]; /* the corners' names */
 };
 
 /* What the surge simulation (surge.h) did for a file. */

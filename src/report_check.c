@@ -206,8 +206,8 @@ static void text_output(FILE *out, const struct check_file *f, const struct stre
 	if (!o->simulated) {
 		num_format_eng(o->lo.unloaded, "V", lo, sizeof lo);
 		num_format_eng(o->hi.unloaded, "V", hi, sizeof hi);
-		fprintf(out, ": not simulated (%s); the analysis, unloaded with ideal diodes: %s at the "
-			     "low corner, %s at the high\n",
+		fprintf(out, ": not simulated: %s; the analysis, unloaded with ideal diodes, gives %s "
+			     "at the low corner, %s at the high\n",
 			o->why ? o->why : "?", lo, hi);
 		return;
 	}
