@@ -46,6 +46,13 @@ struct simrun_opts {
 	/* simrun_peaks: one entry per part, or NULL: each part's current over
 	   the recorded period */
 	struct simrun_flow *flow;
+	/* simrun_peaks: probes, each the voltage of node probe_pos[k] minus
+	   node probe_neg[k], whose lowest, highest and time-averaged value
+	   over the recorded period (the trapezoidal rule over the accepted
+	   points) go to probe_min[k], probe_max[k], probe_mean[k] */
+	size_t nprobe;
+	const uint32_t *probe_pos, *probe_neg;
+	double *probe_min, *probe_max, *probe_mean;
 };
 
 struct simrun_result {

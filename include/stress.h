@@ -159,6 +159,30 @@ struct stress {
 /* Samples kept of each stressed part's simulated waveform (for plots). */
 #define STRESS_TRACE_POINTS 240
 
+/* A structure's output at one corner of the source tolerances, from the
+ * solver's periodic steady state with the diodes as modelled and the
+ * circuit's own load (loadout.h). NaN where not known. */
+struct stress_output_corner {
+	double mean, min, max; /* V: the output over one period (mean: time average) */
+	/* V: the analysis's output at the same corner (ideal diodes, no
+	   load), the middle of its range */
+	double unloaded;
+	unsigned periods; /* periods run to the steady state */
+};
+
+/* A structure's output under its load (loadout.h). */
+struct stress_output {
+	/* a multiplier, doubler or rectifier with a load: the fields below
+	   are set */
+	int loaded;
+	int simulated;   /* both corners came from the solver */
+	const char *why; /* loaded and not simulated: why not */
+	/* the output is v(pos) - v(neg); neg is ground unless the structure
+	   has a low output */
+	uint32_t pos, neg;
+	struct stress_output_corner lo, hi; /* sources at -tol and at +tol */
+};
+
 /* Per structure: figures that need the whole structure. */
 struct stress_struct {
 	double period;          /* drive period, s (0 if DC) */
@@ -176,6 +200,7 @@ struct stress_struct {
 	   1 without one): droop and ladder figures use the reduced values */
 	double bias_share;
 	int bias_past;          /* a worst voltage lies past the end of its curve */
+	struct stress_output out; /* the loaded output (loadout.h) */
 };
 
 struct stress_result {
@@ -192,6 +217,20 @@ struct stress_result {
 	const uint32_t *island;     /* per part: its island (proof.h) */
 	const struct stress_fallback *fallback; /* the simulation of unproven parts, or NULL */
 	const struct stress_surge *surge;       /* the surge simulation (surge.h), or NULL */
+	const struct stress_loadsim *loadsim;   /* the loaded outputs' simulation
+						   (loadout.h), or NULL */
+};
+
+/* What the simulation of the loaded outputs (loadout.h) did for a file. */
+struct stress_loadsim {
+	int simulated;   /* both corners reached their steady state */
+	const char *why; /* when not: the reason */
+	unsigned runs;   /* solver runs made */
+	/* per node, [0] the low corner (every source at -tol) and [1] the
+	   high corner (+tol): its lowest and highest voltage to ground over
+	   one steady-state period; NULL when not simulated */
+	const double *node_min[2], *node_max[2];
+	const char *corner[2]; /* the corners' names */
 };
 
 /* What the surge simulation (surge.h) did for a file. */
@@ -208,6 +247,8 @@ struct stress_surge {
  * the best case (everything at -tol, diode forward drops). */
 #define STRESS_CORNER_HIGH 1
 #define STRESS_CORNER_LOW 3
+/* Index in runs of the corner with amplitudes at -tol, ideal diodes. */
+#define STRESS_CORNER_LOW_IDEAL 2
 
 /* A part's current over one steady-state period, from pin 0 to pin 1
  * through it (simbound.h); NaN where the solver has none. */

@@ -65,6 +65,7 @@ waiver check
 check check
 simbound check
 surge check
+loadout check
 defects check
 report_parts reports
 report_topo reports

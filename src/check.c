@@ -1,7 +1,7 @@
 /* check.c: one netlist file through the whole check (check.h). The order
- * is fixed: analysis, the file's own profile, ratings, stresses, simulated
- * numbers for what the analysis cannot prove and the currents, the
- * optional --verify, rules
+ * is fixed: analysis, the file's own profile, ratings, stresses, the loaded
+ * outputs simulated, simulated numbers for what the analysis cannot prove
+ * and the currents, the optional --verify, rules
  * and circuit defects, waivers, baseline. Printing and exit codes belong to
  * the program. */
 #include "check.h"
@@ -14,6 +14,7 @@
 #include "current.h"
 #include "defects.h"
 #include "discharge.h"
+#include "loadout.h"
 #include "num.h"
 #include "suggest.h"
 #include "surge.h"
@@ -101,6 +102,9 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 {
 	size_t cap = o->sim_max_parts ? o->sim_max_parts : 20000;
 	size_t np = nl_part_count(r->a.er.circuit);
+	/* the loaded outputs say themselves when the circuit is too big */
+	if (!loadout_run(&r->a, r->profile, &o->sim_lim, cap, r->a.ar, &r->sr))
+		return 0;
 	if (np <= cap)
 		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr) &&
 		       surge_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr);

@@ -176,6 +176,52 @@ static void text_table(FILE *out, const struct check_file *f)
 	}
 }
 
+/* "mean 478.2 V, 477.9 V .. 478.6 V, ripple 700 mV p-p, 41.8 V below
+ * the unloaded 520 V" */
+static void text_corner(FILE *out, const struct stress_output_corner *c)
+{
+	char m[24], lo[24], hi[24], rp[24], sag[24], un[24];
+	num_format_eng(c->mean, "V", m, sizeof m);
+	num_format_eng(c->min, "V", lo, sizeof lo);
+	num_format_eng(c->max, "V", hi, sizeof hi);
+	num_format_eng(c->max - c->min, "V", rp, sizeof rp);
+	fprintf(out, "mean %s, %s .. %s, ripple %s p-p", m, lo, hi, rp);
+	if (isfinite(c->unloaded)) {
+		num_format_eng(fabs(c->unloaded - c->mean), "V", sag, sizeof sag);
+		num_format_eng(c->unloaded, "V", un, sizeof un);
+		fprintf(out, ", %s %s the unloaded %s", sag,
+			fabs(c->mean) <= fabs(c->unloaded) ? "short of" : "beyond", un);
+	}
+}
+
+/* The loaded output line (docs/check.md, "Loaded outputs"). */
+static void text_output(FILE *out, const struct check_file *f, const struct stress_struct *x)
+{
+	const struct stress_output *o = &x->out;
+	const struct nl_circuit *c = f->a->er.circuit;
+	char ld[24], lo[24], hi[24];
+	if (!o->loaded)
+		return;
+	num_format_eng(x->load_r, "ohm", ld, sizeof ld);
+	fprintf(out, "     output v(%s", nl_node_at(c, o->pos)->name);
+	if (o->neg != NL_GROUND)
+		fprintf(out, ", %s", nl_node_at(c, o->neg)->name);
+	fprintf(out, ") under its %s load", ld);
+	if (!o->simulated) {
+		num_format_eng(o->lo.unloaded, "V", lo, sizeof lo);
+		num_format_eng(o->hi.unloaded, "V", hi, sizeof hi);
+		fprintf(out, ": not simulated: %s; the analysis, unloaded with ideal diodes, gives %s "
+			     "at the low corner, %s at the high\n",
+			o->why ? o->why : "?", lo, hi);
+		return;
+	}
+	fputs(", simulated with the diodes as modelled: low corner ", out);
+	text_corner(out, &o->lo);
+	fputs("; high corner ", out);
+	text_corner(out, &o->hi);
+	fputc('\n', out);
+}
+
 static void text_structs(FILE *out, const struct check_file *f)
 {
 	const struct audit *a = f->a;
@@ -206,6 +252,7 @@ static void text_structs(FILE *out, const struct check_file *f)
 			fprintf(out, "     with the capacitance left under DC bias: down to %.0f%% of "
 				     "nominal (c_bias)%s\n", 100 * x->bias_share,
 				x->bias_past ? "; a worst voltage lies past the end of its curve" : "");
+		text_output(out, f, x);
 	}
 }
 
@@ -373,6 +420,80 @@ static void json_finding(FILE *out, const struct diag_sink *d,
 	fprintf(out, ", \"unit\": \"%s\", \"waived\": %s}", g->unit, g->waived ? "true" : "false");
 }
 
+/* One corner of a loaded output: {"mean": ..., "ripple": ...}. */
+static void json_output_corner(FILE *out, const struct stress_output_corner *c)
+{
+	fputs("{\"mean\": ", out);
+	jnum(out, c->mean);
+	fputs(", \"min\": ", out);
+	jnum(out, c->min);
+	fputs(", \"max\": ", out);
+	jnum(out, c->max);
+	fputs(", \"ripple\": ", out);
+	jnum(out, c->max - c->min);
+	fputs(", \"unloaded\": ", out);
+	jnum(out, c->unloaded);
+	fputs(", \"sag\": ", out);
+	jnum(out, fabs(c->unloaded) - fabs(c->mean));
+	fprintf(out, ", \"periods\": %u}", c->periods);
+}
+
+/* The ladder regulation formulas beside the simulation, or null. */
+static void json_formula(FILE *out, const struct topo_struct *t, const struct stress_struct *x)
+{
+	if (t->kind != TK_LADDER || !(x->ladder_i > 0)) {
+		fputs("null", out);
+		return;
+	}
+	fputs("{\"current\": ", out);
+	jnum(out, x->ladder_i);
+	fputs(", \"drop\": ", out);
+	jnum(out, x->ladder_drop);
+	fputs(", \"ripple\": ", out);
+	jnum(out, x->ladder_ripple);
+	fputs(", \"best_stages\": ", out);
+	jnum(out, x->ladder_nopt);
+	fputc('}', out);
+}
+
+/* "output_simulation" and "loaded_outputs" (docs/reports.md). */
+static void json_outputs(FILE *out, const struct check_file *f)
+{
+	const struct stress_loadsim *ls = f->a->analysed ? f->stress->loadsim : NULL;
+	const struct nl_circuit *c = f->a->er.circuit;
+	if (ls) {
+		fprintf(out, ",\n      \"output_simulation\": {\"simulated\": %s, \"why\": ",
+			ls->simulated ? "true" : "false");
+		jstr(out, ls->why);
+		fprintf(out, ", \"runs\": %u}", ls->runs);
+	}
+	fputs(",\n      \"loaded_outputs\": [", out);
+	size_t n = f->a->analysed ? f->a->topo.n : 0, k = 0;
+	for (size_t i = 0; i < n; i++) {
+		const struct stress_struct *x = &f->stress->st[i];
+		const struct stress_output *o = &x->out;
+		if (!o->loaded)
+			continue;
+		fprintf(out, "%s{\"structure\": \"S%zu\", \"kind\": \"%s\", \"output\": ",
+			k++ ? ",\n        " : "\n        ", i + 1, topo_kind_name(f->a->topo.s[i].kind));
+		jstr(out, nl_node_at(c, o->pos)->name);
+		fputs(", \"output_low\": ", out);
+		jstr(out, o->neg != NL_GROUND ? nl_node_at(c, o->neg)->name : NULL);
+		fputs(", \"load_r\": ", out);
+		jnum(out, x->load_r);
+		fprintf(out, ", \"simulated\": %s, \"why\": ", o->simulated ? "true" : "false");
+		jstr(out, o->simulated ? NULL : o->why);
+		fputs(",\n          \"low\": ", out);
+		json_output_corner(out, &o->lo);
+		fputs(",\n          \"high\": ", out);
+		json_output_corner(out, &o->hi);
+		fputs(",\n          \"formula\": ", out);
+		json_formula(out, &f->a->topo.s[i], x);
+		fputc('}', out);
+	}
+	fputs("]", out);
+}
+
 static void json_file(FILE *out, const struct check_file *f, const struct profile *p)
 {
 	fputs("    {\"path\": ", out);
@@ -432,6 +553,7 @@ static void json_file(FILE *out, const struct check_file *f, const struct profil
 		jnum(out, sg->span);
 		fputc('}', out);
 	}
+	json_outputs(out, f);
 	fputs(",\n      \"stresses\": [", out);
 	size_t n = f->a->analysed ? f->stress->n : 0;
 	for (size_t i = 0; i < n; i++) {

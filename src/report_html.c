@@ -544,6 +544,75 @@ static int by_ratio(const struct check_file *f, const struct stress *a,
 	return ra > rb;
 }
 
+/* A number to read, its exact value in data-v for scripts. */
+static void num_span(FILE *out, double v, const char *unit)
+{
+	char b[32];
+	if (!isfinite(v)) {
+		fputs("<span>-</span>", out);
+		return;
+	}
+	num_format_eng(v, unit, b, sizeof b);
+	fprintf(out, "<span data-v=\"%.10g\">%s</span>", v, b);
+}
+
+static void output_corner(FILE *out, const char *name, const struct stress_output_corner *c)
+{
+	fprintf(out, "%s corner: mean ", name);
+	num_span(out, c->mean, "V");
+	fputs(", ", out);
+	num_span(out, c->min, "V");
+	fputs(" .. ", out);
+	num_span(out, c->max, "V");
+	fputs(", ripple ", out);
+	num_span(out, c->max - c->min, "V");
+	fputs(" p-p (unloaded, ideal diodes: ", out);
+	num_span(out, c->unloaded, "V");
+	fputc(')', out);
+}
+
+/* One line per loaded structure: its output at the low and high corners
+ * (docs/check.md, "Loaded outputs"), the ladder formulas beside them. */
+static void output_line(FILE *out, const struct check_file *f, size_t si)
+{
+	const struct stress_struct *st = &f->stress->st[si];
+	const struct stress_output *o = &st->out;
+	const struct nl_circuit *c = f->a->er.circuit;
+	if (!o->loaded)
+		return;
+	fputs("<p class=\"output\">Output v(", out);
+	x(out, nl_node_at(c, o->pos)->name);
+	if (o->neg != NL_GROUND) {
+		fputs(", ", out);
+		x(out, nl_node_at(c, o->neg)->name);
+	}
+	fputs(") under its ", out);
+	num_span(out, st->load_r, "ohm");
+	if (!o->simulated) {
+		fputs(" load: not simulated: ", out);
+		x(out, o->why ? o->why : "?");
+		fputs("; the analysis, unloaded with ideal diodes, gives ", out);
+		num_span(out, o->lo.unloaded, "V");
+		fputs(" at the low corner, ", out);
+		num_span(out, o->hi.unloaded, "V");
+		fputs(" at the high.</p>\n", out);
+		return;
+	}
+	fputs(" load, simulated with the diodes as modelled: ", out);
+	output_corner(out, "low", &o->lo);
+	fputs("; ", out);
+	output_corner(out, "high", &o->hi);
+	if (f->a->topo.s[si].kind == TK_LADDER && st->ladder_i > 0) {
+		fputs("; ladder formulas at ", out);
+		num_span(out, st->ladder_i, "A");
+		fputs(": drop ", out);
+		num_span(out, st->ladder_drop, "V");
+		fputs(", ripple ", out);
+		num_span(out, st->ladder_ripple, "V");
+	}
+	fputs(".</p>\n", out);
+}
+
 static void structure(FILE *out, const struct check_file *f, const struct profile *p,
 		      size_t si)
 {
@@ -555,6 +624,7 @@ static void structure(FILE *out, const struct check_file *f, const struct profil
 		fprintf(out, ", %g stages", t->stages);
 	fputs("</h3>\n", out);
 	sketch(out, f, t);
+	output_line(out, f, si);
 	/* the most stressed parts first, by ratio to their rating */
 	for (uint32_t i = 0; i < t->nparts; i++) {
 		const struct stress *s = stress_of(f, t->parts[i].part);

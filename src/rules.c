@@ -9,6 +9,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "loadout.h"
 #include "num.h"
 
 /* Designated initialisers tie each row to its enum constant [rules-list]. */
@@ -728,11 +729,83 @@ static void droop(struct ctx *x, size_t si)
 	f->fix = "raise the coupling capacitance or the load resistance";
 }
 
+/* "low corner (every source at its low end)" */
+static const char *corner_name(struct ctx *x, int high)
+{
+	return str(x, "%s corner (%s)", high ? "high" : "low", x->s->loadsim->corner[high]);
+}
+
+/* "v(d3) 2.022 kV .. 2.051 kV at the low corner, 2.472 kV .. 2.508 kV at the high" */
+static const char *loaded_ranges(struct ctx *x, const char *node, uint32_t id)
+{
+	const struct stress_loadsim *ls = x->s->loadsim;
+	return str(x, "v(%s) %s .. %s at the low corner, %s .. %s at the high", node,
+		   v(x, ls->node_min[0][id], "V"), v(x, ls->node_max[0][id], "V"),
+		   v(x, ls->node_min[1][id], "V"), v(x, ls->node_max[1][id], "V"));
+}
+
+/* An *@expect on a loaded output whose corners were simulated is judged
+ * there: the lowest value over both corners (the low corner's, for a
+ * positive output) against min, the highest (the high corner's) against
+ * max, the corner named. Returns 0 when the node is no such output. */
+static int intent_loaded(struct ctx *x, const struct annot *an, uint32_t id, double want_lo,
+			 double want_hi)
+{
+	const struct stress_loadsim *ls = x->s->loadsim;
+	int32_t si = id == NL_NONE ? -1 : loadout_of_node(x->a, x->s, id);
+	if (si < 0 || !ls || !ls->simulated || !x->s->st[si].out.simulated)
+		return 0;
+	int klo = ls->node_min[1][id] < ls->node_min[0][id], khi = ls->node_max[1][id] >= ls->node_max[0][id];
+	double lo = ls->node_min[klo][id], hi = ls->node_max[khi][id];
+	if (lo >= want_lo && hi <= want_hi)
+		return 1;
+	struct finding *f = add(x, RULE_INTENT_MISS, NL_NONE, si);
+	if (!f)
+		return 1;
+	int over = hi > want_hi, under = lo < want_lo;
+	const char *load = v(x, x->s->st[si].load_r, "ohm");
+	f->loc = an->loc;
+	f->subject = an->target;
+	f->worst = over ? hi : lo;
+	f->limit = over ? want_hi : want_lo;
+	if (over && under)
+		f->message = str(x, "node %s ranges %s at the %s .. %s at the %s under its %s load "
+				    "(simulated), outside the declared %s .. %s",
+				 an->target, v(x, lo, "V"), corner_name(x, klo), v(x, hi, "V"),
+				 corner_name(x, khi), load, v(x, want_lo, "V"), v(x, want_hi, "V"));
+	else
+		f->message = str(x, "node %s %s %s at the %s under its %s load (simulated), %s the "
+				    "declared %s %s",
+				 an->target, over ? "rises to" : "falls to", v(x, f->worst, "V"),
+				 corner_name(x, over ? khi : klo), load, over ? "above" : "below",
+				 over ? "max" : "min", v(x, f->limit, "V"));
+	f->computation = str(x, "basis: simulated, the output of S%d (%s) in its periodic steady state with "
+				"the diodes as modelled and the circuit's own load: %s; the analysis's "
+				"unloaded ideal-diode range is not used for a loaded output",
+			     si + 1, topo_kind_name(x->a->topo.s[si].kind), loaded_ranges(x, an->target, id));
+	f->fix = "raise the stage capacitance or the drive frequency, lighten the load, tighten the "
+		 "source tolerance, or change the *@expect line";
+	return 1;
+}
+
+/* Why a loaded output's *@expect falls back on the analysis, or "". */
+static const char *intent_basis(struct ctx *x, uint32_t id)
+{
+	int32_t si = id == NL_NONE ? -1 : loadout_of_node(x->a, x->s, id);
+	if (si < 0)
+		return "; basis: the analysis (ideal diodes, no load)";
+	return str(x, "; basis: the analysis (ideal diodes, no load), as the loaded output of S%d was "
+		      "not simulated: %s",
+		   si + 1, x->s->st[si].out.why ? x->s->st[si].out.why : "?");
+}
+
 static void intent(struct ctx *x, const struct annot *an)
 {
 	const struct nl_circuit *c = x->a->er.circuit;
 	uint32_t id = nl_node_find(c, an->target, strlen(an->target));
 	const struct annot_kv *mn = annot_get(an, "min"), *mx = annot_get(an, "max");
+	if (intent_loaded(x, an, id, mn ? mn->num : -INFINITY, mx ? mx->num : INFINITY))
+		return;
 	double lo = INFINITY, hi = -INFINITY;
 	for (size_t k = 0; id != NL_NONE && k < x->s->ncorners; k++) {
 		const struct prop_node *n = &x->s->runs[k].nodes[id];
@@ -767,7 +840,8 @@ static void intent(struct ctx *x, const struct annot *an)
 	f->message = str(x, "node %s ranges %s .. %s over the corners, outside the declared %s .. %s",
 			 an->target, v(x, lo, "V"), v(x, hi, "V"), mn ? v(x, want_lo, "V") : "-",
 			 mx ? v(x, want_hi, "V") : "-");
-	f->computation = "the node's range at every corner of the source tolerances";
+	f->computation = str(x, "the node's range at every corner of the source tolerances%s",
+			     intent_basis(x, id));
 	f->fix = "change the design or the *@expect line";
 }
 

@@ -142,6 +142,8 @@ struct extremes {
 	double *vprev;          /* node voltages at tprev */
 	unsigned next;          /* next trace sample */
 	struct flows *fw;       /* or NULL */
+	double *pprev;          /* probes: their values at the last point */
+	double ptime;           /* probes: the last point's time (NaN: none yet) */
 };
 
 static double across(const struct nl_circuit *c, uint32_t part, const double *v)
@@ -225,6 +227,22 @@ static void sample(struct extremes *e, double t, const double *v)
 	e->tprev = t;
 }
 
+/* Probes: extremes, and the integral of each over time for its mean
+ * (trapezoidal rule between accepted points). */
+static void probe(struct extremes *e, double t, const double *v)
+{
+	const struct simrun_opts *o = e->o;
+	for (size_t k = 0; k < o->nprobe; k++) {
+		double x = v[o->probe_pos[k]] - v[o->probe_neg[k]];
+		o->probe_min[k] = fmin(o->probe_min[k], x);
+		o->probe_max[k] = fmax(o->probe_max[k], x);
+		if (!isnan(e->ptime))
+			o->probe_mean[k] += (e->pprev[k] + x) / 2 * (t - e->ptime);
+		e->pprev[k] = x;
+	}
+	e->ptime = t;
+}
+
 static int track(void *ud, double t, const double *v)
 {
 	struct extremes *e = ud;
@@ -232,6 +250,8 @@ static int track(void *ud, double t, const double *v)
 		sample(e, t, v);
 	if (e->fw)
 		flow_add(e->fw, e->c, t, v);
+	if (e->o->nprobe && e->pprev)
+		probe(e, t, v);
 	size_t np = nl_part_count(e->c), nn = nl_node_count(e->c);
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(e->c, i);
@@ -258,29 +278,42 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		vmin[i] = INFINITY, vmax[i] = -INFINITY;
 	for (size_t k = 0; node_min && k < nn; k++)
 		node_min[k] = INFINITY, node_max[k] = -INFINITY;
+	for (size_t k = 0; k < o->nprobe; k++) {
+		o->probe_min[k] = INFINITY, o->probe_max[k] = -INFINITY;
+		o->probe_mean[k] = NAN;
+	}
 	struct sim *s = start(c, o, h, r);
 	double *vprev = o->ntrace ? hr_malloc(h, (nn + 1) * sizeof *vprev) : NULL;
 	double *scratch = o->flow ? hr_malloc(h, 3 * (np + 1) * sizeof *scratch) : NULL;
 	struct flows fw = {NULL, o->flow, scratch, scratch + np + 1, scratch + 2 * (np + 1), 0, 0};
 	if (o->flow && !scratch)
 		r->status = SIM_OOM;
-	if (s && r->status == SIM_OK) {
+	double *pprev = o->nprobe ? hr_malloc(h, o->nprobe * sizeof *pprev) : NULL;
+	if (s && r->status == SIM_OK && (pprev || !o->nprobe)) {
 		double span = r->period > 0 ? r->period : o->until;
 		struct extremes e = {c, vmin, vmax, node_min, node_max, o, sim_time(s), span,
-				     sim_time(s), vprev, 0, scratch ? &fw : NULL};
+				     sim_time(s), vprev, 0, scratch ? &fw : NULL, pprev, NAN};
+		for (size_t k = 0; k < o->nprobe; k++)
+			o->probe_mean[k] = 0;
 		if (vprev)
 			memcpy(vprev, sim_voltages(s), nn * sizeof *vprev);
 		if (e.fw)
 			flow_start(e.fw, s, np);
 		track(&e, sim_time(s), sim_voltages(s));
-		r->status = sim_run(s, sim_time(s) + span, track, &e);
+		double t0 = sim_time(s);
+		r->status = sim_run(s, t0 + span, track, &e);
 		if (e.fw)
 			flow_end(e.fw, np, sim_time(s) - e.t0);
+		for (size_t k = 0; k < o->nprobe; k++)
+			o->probe_mean[k] = sim_time(s) > t0 ? o->probe_mean[k] / (sim_time(s) - t0) : NAN;
 		if (o->cap_end)
 			cap_voltages(c, s, o->cap_end);
+	} else if (s && r->status == SIM_OK) {
+		r->status = SIM_OOM;
 	}
 	hr_free(h, scratch);
 	hr_free(h, vprev);
+	hr_free(h, pprev);
 	finish(s, r);
 }
 
@@ -294,6 +327,7 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 	struct simrun_opts zero = *o;
 	zero.ntrace = 0;
 	zero.flow = NULL;
+	zero.nprobe = 0;
 	zero.until = 0;
 	struct sim_opts so;
 	struct sim *s = NULL;
@@ -302,7 +336,7 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 	so.no_shooting = 1; /* the trajectory itself is wanted */
 	r->status = sim_create(c, &so, h, &s, &r->refusal);
 	if (r->status == SIM_OK && (r->period = sim_period(s)) > 0) {
-		struct extremes e = {c, vmin, vmax, NULL, NULL, &zero, 0, 0, 0, NULL, 0, NULL};
+		struct extremes e = {c, vmin, vmax, NULL, NULL, &zero, 0, 0, 0, NULL, 0, NULL, NULL, NAN};
 		r->status = sim_settle(s, r->period, max_periods,
 				       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
 				       &r->periods, &r->settled, track, &e);

@@ -483,6 +483,35 @@ assert not [g for g in f[\"findings\"] if g[\"rule\"].startswith(\"surge-\")], f
 top=d[\"summary\"][\"most_stressed\"]
 assert top and top[0][\"quantity\"] != \"surge_current\", top
 ' '$tmp/out'"
+# *@expect on a loaded output is judged at the simulated corners
+# (docs/rules/intent-miss.md): the ladder's top, 2.16 kV unloaded at -10 %,
+# sags near 2.02 kV under its 2 Mohm load, below the declared 2.1 kV.
+sag=$data/loadout/cw3_expect_sag.cir
+run check "$sag"
+check "*@expect: a loaded output sagging below min at the low corner is an intent-miss, the corner named" bash -c "test $rc -eq 1 && grep -q '^$sag:24:1: error: node d3 falls to 2.02[0-9] kV at the low corner (every source at its low end) under its 2 Mohm load (simulated), below the declared min 2.1 kV \[intent-miss\]' '$tmp/out'"
+check "*@expect: the loaded finding says its basis is the simulation" grep -q '^    how:    basis: simulated, the output of S1 (ladder) in its periodic steady state' "$tmp/out"
+check "*@expect: the text report has the structure's loaded output line" grep -q '^     output v(d3) under its 2 Mohm load, simulated with the diodes as modelled: low corner mean 2.03[0-9] kV' "$tmp/out"
+sed -e 's/min=2.1k max=2.6k/min=1k max=2.5k/' "$sag" >"$tmp/sag_max.cir"
+run check "$tmp/sag_max.cir"
+check "*@expect: a loaded output above max is judged at the high corner" grep -q "node d3 rises to 2.5[01][0-9] kV at the high corner (every source at its high end) under its 2 Mohm load (simulated), above the declared max 2.5 kV \[intent-miss\]" "$tmp/out"
+sed -e 's/min=2.1k max=2.6k/min=1.9k max=2.6k/' "$sag" >"$tmp/sag_ok.cir"
+run check --format json "$tmp/sag_ok.cir"
+check "*@expect: a loaded output inside its declared range is no finding" bash -c "test $rc -eq 0 && ! grep -q intent-miss '$tmp/out'"
+# a part the solver cannot take in the ladder's island: no simulation, the
+# analysis's unloaded bounds judged instead, the basis and the reason said
+sed -e 's/^RL d3 0 2meg/RL d3 0 2meg\nB1 d3 0 I=v(d3)\/1g/' "$sag" >"$tmp/sag_b.cir"
+run check --format json --fail-on never "$tmp/sag_b.cir"
+check "*@expect: where the solver cannot run, the analysis judges and the finding says so" bash -c "test $rc -eq 0 && python3 -c '
+import json,sys
+f=json.load(open(sys.argv[1]))[\"files\"][0]
+o=f[\"loaded_outputs\"]
+assert len(o) == 1 and not o[0][\"simulated\"] and \"B1 has no model in the solver\" in o[0][\"why\"], o
+assert o[0][\"low\"][\"mean\"] is None and o[0][\"low\"][\"unloaded\"] == 2160, o
+g=[x for x in f[\"findings\"] if x[\"rule\"] == \"intent-miss\"]
+assert len(g) == 1 and \"basis: the analysis (ideal diodes, no load), as the loaded output of S1 was not simulated: B1\" in g[0][\"computation\"], g
+assert g[0][\"worst\"] == 2640 and g[0][\"limit\"] == 2600, g
+' '$tmp/out'"
+
 # rules --format json (docs/rules.schema.json); a format rules does not write is refused.
 run rules --format json --profile flight
 check "rules --format json: the rules and the profile's limits as JSON" bash -c "test $rc -eq 0 && python3 -c '

@@ -314,7 +314,39 @@ def inputs():
           re.search(r"parts table none", text) and re.search(r"waivers none", text), text[:400])
 
 
+def outputs(args, name):
+    """A line per loaded structure (class output) inside its file's
+    section, in the JSON report's order, with the JSON's numbers in data-v
+    (docs/reports.md, "Loaded outputs")."""
+    page = Tree(run(["--format", "html"] + args).stdout).root
+    doc = json.loads(run(["--format", "json"] + args).stdout)
+    sections = [s for s in page.all(lambda n: n.tag == "section" and "file" in n.classes())]
+    total = 0
+    for sec, f in zip(sections, doc["files"]):
+        lines = [p for p in sec.all(lambda n: n.tag == "p" and "output" in n.classes())]
+        want = f.get("loaded_outputs", [])
+        check(f"{name} {f['path']}: an output line per loaded structure", len(lines) == len(want),
+              f"{len(lines)} lines, {len(want)} outputs")
+        for line, o in zip(lines, want):
+            vals = [float(n.attrs["data-v"]) for n in line.all(lambda n: "data-v" in n.attrs)]
+            text = re.sub(r"\s+", " ", line.text_all())
+            check(f"{name} {f['path']} {o['structure']}: names its output",
+                  text.startswith("Output v(" + o["output"]), text[:80])
+            if o["simulated"]:
+                nums = [o["load_r"]] + [o[c][k] for c in ("low", "high")
+                                        for k in ("mean", "min", "max", "ripple", "unloaded")]
+                check(f"{name} {f['path']} {o['structure']}: the JSON's corners in data-v",
+                      all(close(a, b, 1e-9) for a, b in zip(vals, nums)) and len(vals) >= len(nums),
+                      f"{vals} {nums}")
+            else:
+                check(f"{name} {f['path']} {o['structure']}: says why it was not simulated",
+                      "not simulated: " + (o["why"] or "?") in text, text)
+            total += 1
+    check(f"{name}: output lines found", total > 0)
+
+
 def main():
+    outputs(["examples", os.path.join("tests", "data", "loadout")], "outputs")
     neg = Tree(run(["--format", "html", "--today", "2026-12-01", NEG]).stdout).root
     plots(neg, "neg")
     ladder = Tree(run(["--format", "html", "--today", "2026-12-01", "--parts", "examples/parts.csv",

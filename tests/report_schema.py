@@ -4,9 +4,10 @@
 with the jsonschema package (Debian: python3-jsonschema), on the examples
 (with their parts table), on every hand-written structure netlist, on a
 file with netlist errors, on a folder with skipped files and a reader
-warning, and on tests/data/currents (currents, powers, their findings, and
-a file with no steady state to take currents from); the summary is recomputed from the lists. Prints one line per
-document."""
+warning, on tests/data/currents (currents, powers, their findings, and a
+file with no steady state to take currents from) and on the loaded outputs'
+netlists; the summary is recomputed from the lists, the loaded outputs'
+figures checked against each other. Prints one line per document."""
 import json
 import os
 import subprocess
@@ -37,6 +38,7 @@ runs = [
     ["--source-tol", "10", os.path.join(HERE, "data", "powerup", "xfmr_fullwave_doubler.cir")],
     # currents, powers and their rules; a file with no steady state (fallback.currents.why)
     ["--parts", os.path.join(HERE, "data", "currents", "parts.csv"), os.path.join(HERE, "data", "currents")],
+    [os.path.join(HERE, "data", "loadout")],
 ]
 
 
@@ -59,6 +61,37 @@ def surges_agree(doc):
             if s["rating_i2t"] is not None and s["ratio"] is not None and \
                     abs(s["ratio"] - (i2t / s["rating_i2t"]) ** 0.5) > 1e-6 * max(s["ratio"], 1e-12):
                 raise ValueError("%s: the ratio is not sqrt(I2t / rated I2t)" % s["part"])
+    return n
+
+
+def outputs_agree(doc):
+    """Each loaded output names a structure of its file of the same kind and
+    output node; simulated, its corners hold numbers that agree (min <= mean
+    <= max, ripple max - min, sag |unloaded| - |mean|, the high corner
+    above the low in size) and no reason; not simulated, a reason and no
+    simulated number. Returns how many were simulated."""
+    n = 0
+    for f in doc["files"]:
+        kinds = {s["id"]: s for s in f.get("structures", [])}
+        for o in f.get("loaded_outputs", []):
+            st = kinds.get(o["structure"])
+            if not st or st["kind"] != o["kind"] or st["output"] != o["output"]:
+                raise ValueError("%s: %s is no structure of that kind and output" % (f["path"], o["structure"]))
+            if not o["simulated"]:
+                if not o["why"] or any(o[c][k] is not None for c in ("low", "high") for k in ("mean", "min", "max")):
+                    raise ValueError("%s %s: not simulated without a reason, or with numbers" % (f["path"], o["structure"]))
+                continue
+            n += 1
+            if o["why"] is not None:
+                raise ValueError("%s %s: simulated with a reason" % (f["path"], o["structure"]))
+            for c in ("low", "high"):
+                x = o[c]
+                if not (x["min"] <= x["mean"] <= x["max"]) or abs(x["ripple"] - (x["max"] - x["min"])) > 1e-6 * max(abs(x["max"]), 1):
+                    raise ValueError("%s %s %s: mean, min, max and ripple disagree" % (f["path"], o["structure"], c))
+                if x["unloaded"] is not None and abs(x["sag"] - (abs(x["unloaded"]) - abs(x["mean"]))) > 1e-6 * max(abs(x["mean"]), 1):
+                    raise ValueError("%s %s %s: sag is not |unloaded| - |mean|" % (f["path"], o["structure"], c))
+            if abs(o["high"]["mean"]) < abs(o["low"]["mean"]):
+                raise ValueError("%s %s: the high corner's output is below the low's" % (f["path"], o["structure"]))
     return n
 
 
@@ -115,9 +148,10 @@ for args in runs:
         jsonschema.validate(doc, schema)
         summary_agrees(doc)
         nsurge = surges_agree(doc)
-        print("report-schema: %s: valid (%d files, %d findings, %d simulated surges)" % (
-            " ".join(os.path.relpath(a, ROOT) if os.path.isabs(a) else a for a in args),
-            len(doc["files"]), sum(len(f["findings"]) for f in doc["files"]), nsurge))
+        nout = outputs_agree(doc)
+        print("report-schema: %s: valid (%d files, %d findings, %d simulated surges, %d simulated loaded "
+              "outputs)" % (" ".join(os.path.relpath(a, ROOT) if os.path.isabs(a) else a for a in args),
+                            len(doc["files"]), sum(len(f["findings"]) for f in doc["files"]), nsurge, nout))
         passed += 1
     except (ValueError, jsonschema.ValidationError) as e:
         print("report-schema: FAIL %s: %s" % (args, str(e)[:400]))

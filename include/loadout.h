@@ -1,0 +1,42 @@
+/* loadout.h: the output of every loaded multiplier, doubler and rectifier
+ * (detectors, half- and full-wave doublers, ladders, pumps, bridges with a
+ * resistor from the output to a settled node), simulated. The whole circuit
+ * is run by the transient solver to its periodic steady state twice: every
+ * source at the low end of its tolerance (and a ranged rail at its
+ * minimum), then every one at the high end, the diodes as modelled (forward
+ * drop, series resistance, junction capacitance, transit time) and the
+ * circuit's own loads in place. Each loaded structure gets its output's
+ * time average, lowest and highest value over one period at each corner
+ * (docs/check.md, "Loaded outputs"). Where the solver cannot run, each
+ * structure says why and keeps the analysis's unloaded figures only. */
+#ifndef HEADROOM_LOADOUT_H
+#define HEADROOM_LOADOUT_H
+
+#include <stddef.h>
+#include <stdint.h>
+
+#include "audit.h"
+#include "profile.h"
+#include "simbound.h"
+#include "stress.h"
+
+/* Work allowed for one file's two runs, in Newton iterations times
+ * unknowns (lim->total_work when given). */
+#define LOADOUT_WORK 30000000UL
+
+/* 1 when structures of kind k have an output a load draws on: detectors,
+ * doublers, ladders, pumps and bridges (not clamps, whose output is an AC
+ * waveform, nor networks). */
+int loadout_kind(enum topo_kind k);
+
+/* Fills sr->st[i].out for every structure and, when one is loaded,
+ * sr->loadsim. A circuit of more than max_parts parts (0: no limit) is not
+ * simulated, and says so. lim may be NULL. Allocates in ar. Returns 0 on
+ * out-of-memory. */
+int loadout_run(const struct audit *a, const struct profile *p, const struct simbound_limits *lim,
+		size_t max_parts, struct arena *ar, struct stress_result *sr);
+
+/* The loaded structure whose output (either side) is node, or -1. */
+int32_t loadout_of_node(const struct audit *a, const struct stress_result *sr, uint32_t node);
+
+#endif
