@@ -749,13 +749,13 @@ check "a Spectre file named on the command line: a located error, not SPICE" gre
 mkdir -p "$dia/proj/.git"
 cp "$dia/vt.cir" "$dia/proj/vt.cir"
 printf '[check]\ndialect = ngspice\n' > "$dia/proj/headroom.ini"
-(cd "$dia/proj" && "$abs_bin0" check --fail-on never vt.cir) > "$tmp/out" 2> "$tmp/err"
+(cd "$dia/proj" && HEADROOM_RULES=$here/../rules "$abs_bin0" check --fail-on never vt.cir) > "$tmp/out" 2> "$tmp/err"
 check "config: dialect = ngspice under [check] is the option's" bash -c "grep -q \"vt.cir:2:13: error: undefined parameter 'vt'\" '$tmp/err'"
-(cd "$dia/proj" && "$abs_bin0" check --fail-on never --dialect auto vt.cir) > "$tmp/out" 2> "$tmp/err"
+(cd "$dia/proj" && HEADROOM_RULES=$here/../rules "$abs_bin0" check --fail-on never --dialect auto vt.cir) > "$tmp/out" 2> "$tmp/err"
 rc=$?
 check "config: the command line's --dialect overrides the key" bash -c "test $rc -eq 0 && ! grep -q 'error' '$tmp/err'"
 printf '[check]\ndialect = hspise\n' > "$dia/proj/headroom.ini"
-(cd "$dia/proj" && "$abs_bin0" check vt.cir) > "$tmp/out" 2> "$tmp/err"
+(cd "$dia/proj" && HEADROOM_RULES=$here/../rules "$abs_bin0" check vt.cir) > "$tmp/out" 2> "$tmp/err"
 check "config: a bad dialect is located, with a did-you-mean" grep -qx "headroom.ini:2:11: error: dialect takes auto, ngspice, pspice, hspice, xyce, ltspice, not 'hspise'; did you mean 'hspice'? \[config\]" "$tmp/err"
 
 # The project configuration (headroom.ini): found from the current folder
