@@ -27,10 +27,11 @@ import json
 import math
 import os
 import re
-import shutil
 import subprocess
 import sys
 import tempfile
+
+from ngspice_common import Tally, ngspice_missing
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
@@ -98,22 +99,11 @@ def headroom(args):
 
 
 def main():
-    if not shutil.which("ngspice"):
-        msg = "ngspice-currents: ngspice is not installed"
-        if os.environ.get("CI"):
-            print(msg + " (required when CI is set)")
-            return 1
-        print(msg + ": SKIPPED")
-        return 0
-    failed = passed = 0
-
-    def ok(cond, what):
-        nonlocal failed, passed
-        print("ngspice-currents: %s %s" % ("ok  " if cond else "FAIL", what))
-        if cond:
-            passed += 1
-        else:
-            failed += 1
+    missing = ngspice_missing("ngspice-currents")
+    if missing is not None:
+        return missing
+    tally = Tally("ngspice-currents")
+    ok = tally.ok
 
     with tempfile.TemporaryDirectory() as tmp:
         ref = ngspice_currents(tmp)
@@ -171,8 +161,7 @@ def main():
         ok(g is not None and "100 Hz" in g["limits"] and "105 C" in g["limits"] and "not scaled" in g["limits"],
            "cap-ripple-current gives the rating's frequency and temperature, unscaled: %s"
            % (g["limits"] if g else "no finding"))
-    print("ngspice-currents: %d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return tally.done()
 
 
 if __name__ == "__main__":

@@ -25,10 +25,11 @@ Fails, not skips, when CI is set and ngspice is missing."""
 import json
 import os
 import re
-import shutil
 import subprocess
 import sys
 import tempfile
+
+from ngspice_common import Tally, ngspice_missing
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
@@ -84,22 +85,11 @@ def ngspice(tmp, deck, scale, period, periods, pos, neg):
 
 
 def main():
-    if not shutil.which("ngspice"):
-        msg = "ngspice-loadout: ngspice is not installed"
-        if os.environ.get("CI"):
-            print(msg + " (required when CI is set)")
-            return 1
-        print(msg + ": SKIPPED")
-        return 0
-    failed = passed = 0
-
-    def ok(cond, what):
-        nonlocal failed, passed
-        print("ngspice-loadout: %s %s" % ("ok  " if cond else "FAIL", what))
-        if cond:
-            passed += 1
-        else:
-            failed += 1
+    missing = ngspice_missing("ngspice-loadout")
+    if missing is not None:
+        return missing
+    tally = Tally("ngspice-loadout")
+    ok = tally.ok
 
     def near(got, want):
         return got is not None and abs(got - want) <= TOL * abs(want)
@@ -128,8 +118,7 @@ def main():
                                                           100 * (got["ripple"] / (hi - lo) - 1), ran))
                 ok(near(got["min"], lo) and near(got["max"], hi), "%s %s corner range: headroom %.4g .. %.4g V, "
                    "ngspice %.4g .. %.4g V" % (deck, name, got["min"], got["max"], lo, hi))
-    print("ngspice-loadout: %d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return tally.done()
 
 
 if __name__ == "__main__":

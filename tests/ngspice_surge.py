@@ -28,10 +28,11 @@ import json
 import math
 import os
 import re
-import shutil
 import subprocess
 import sys
 import tempfile
+
+from ngspice_common import Tally, ngspice_missing
 
 HERE = os.path.dirname(os.path.abspath(__file__))
 ROOT = os.path.dirname(HERE)
@@ -104,22 +105,11 @@ def ngspice_run(tmp, phase, diodes, deck=DECK):
 
 
 def main():
-    if not shutil.which("ngspice"):
-        msg = "ngspice-surge: ngspice is not installed"
-        if os.environ.get("CI"):
-            print(msg + " (required when CI is set)")
-            return 1
-        print(msg + ": SKIPPED")
-        return 0
-    failed = passed = 0
-
-    def ok(cond, what):
-        nonlocal failed, passed
-        print("ngspice-surge: %s %s" % ("ok  " if cond else "FAIL", what))
-        if cond:
-            passed += 1
-        else:
-            failed += 1
+    missing = ngspice_missing("ngspice-surge")
+    if missing is not None:
+        return missing
+    tally = Tally("ngspice-surge")
+    ok = tally.ok
 
     def near(got, want):
         return got is not None and want > 0 and abs(got - want) <= TOL * want
@@ -167,8 +157,7 @@ def main():
                "examples/mains_doubler.cir %s at %s deg: headroom %.2f A, %.4g A^2 s; ngspice %.2f A, "
                "%.4g A^2 s (analytic bound %.1f A)" % (d, s["surge_phase"], s["worst"],
                                                         s.get("surge_i2t") or 0.0, at[0], at[1], s["analytic"]))
-    print("ngspice-surge: %d passed, %d failed" % (passed, failed))
-    return 1 if failed else 0
+    return tally.done()
 
 
 if __name__ == "__main__":
