@@ -905,5 +905,13 @@ sed 's/c_bias="0V=100% 16V=10%"/c_bias="16V=10% 8V=50%"/' "$data/bias_clamp.cir"
 run check --fail-on never "$tmp/badbias.cir"
 check "c_bias: a curve that does not rise in voltage is a located error" bash -c "test $rc -eq 2 && grep -q \"badbias.cir:10:1: error: c_bias '16V=10% 8V=50%': bias points must rise in voltage (at character 9)\" '$tmp/out'"
 
+run rules --format json
+check "every rule has its page in docs/rules/" python3 -c "
+import json,os,sys
+ids=[r['id'] for r in json.load(open(sys.argv[1]))['rules']]
+missing=[i for i in ids if not os.path.exists(os.path.join(sys.argv[2], i + '.md'))]
+assert len(ids) >= 26 and not missing, (len(ids), missing)
+" "$tmp/out" "$here/../docs/rules"
+
 echo "cli: $pass passed, $fail failed"
 [ $fail -eq 0 ]
