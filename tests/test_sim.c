@@ -139,13 +139,14 @@ static void ebers_moll(double vbe, double vbc, double vaf, double *ib, double *i
 /* One operating point: VCC over RC to the collector, VBB over RB to the
  * base, the emitter grounded; pol -1 is the PNP mirror (all supplies
  * negated, every current and voltage too). */
-static void bjt_point(const char *type, double pol, double rc, double vaf)
+static void bjt_point_area(const char *type, double pol, double rc, double vaf, double area)
 {
 	char deck[512];
+	/* IS / area on the card times the area on the part: IS 1e-15 */
 	snprintf(deck, sizeof deck,
-		 "ce\nVCC vcc 0 %g\nVBB vbb 0 %g\nRC vcc c %g\nRB vbb b 100k\nQ1 c b 0 qx\n"
-		 ".model qx %s(is=1e-15 bf=100 br=2 vaf=%g)\n",
-		 10 * pol, 5 * pol, rc, type, vaf);
+		 "ce\nVCC vcc 0 %g\nVBB vbb 0 %g\nRC vcc c %g\nRB vbb b 100k\nQ1 c b 0 qx %g\n"
+		 ".model qx %s(is=%g bf=100 br=2 vaf=%g)\n",
+		 10 * pol, 5 * pol, rc, area, type, 1e-15 / area, vaf);
 	struct simrun_case c;
 	const char *nodes[] = {"b", "c"};
 	start(&c, deck, nodes, 2, 1e-6);
@@ -163,8 +164,14 @@ static void bjt_point(const char *type, double pol, double rc, double vaf)
 	finish(&c);
 }
 
+static void bjt_point(const char *type, double pol, double rc, double vaf)
+{
+	bjt_point_area(type, pol, rc, vaf, 1);
+}
+
 static void test_bjt_operating_point(void **state)
 {
+	bjt_point_area("npn", 1, 1e3, 50, 4); /* the area scales IS */
 	(void)state;
 	bjt_point("npn", 1, 1e3, 0);
 	bjt_point("npn", 1, 1e3, 50);
@@ -184,10 +191,12 @@ static void mos_point(const char *type, double pol, double rd, double vb)
 	const double kp = 100e-6, w = 10e-6, l = 1e-6, vto = 1, lambda = 0.02, gamma = 0.5,
 		     phi = 0.7, vg = 3;
 	char deck[512];
+	/* the PMOS as two in parallel (m=2) of half the width */
 	snprintf(deck, sizeof deck,
-		 "m\nVDD vdd 0 %g\nVG g 0 %g\nVB bk 0 %g\nRD vdd d %g\nM1 d g 0 bk mx w=10u l=1u\n"
+		 "m\nVDD vdd 0 %g\nVG g 0 %g\nVB bk 0 %g\nRD vdd d %g\nM1 d g 0 bk mx %s\n"
 		 ".model mx %s(vto=%g kp=100u lambda=0.02 gamma=0.5 phi=0.7)\n",
-		 10 * pol, vg * pol, vb * pol, rd, type, vto * pol);
+		 10 * pol, vg * pol, vb * pol, rd, pol > 0 ? "w=10u l=1u" : "l=1u w=5u m=2", type,
+		 vto * pol);
 	struct simrun_case c;
 	const char *nodes[] = {"d"};
 	start(&c, deck, nodes, 1, 1e-6);
