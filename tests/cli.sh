@@ -273,6 +273,12 @@ check "sim with an unknown node names it" bash -c "test $rc -eq 2 && grep -q \"n
 printf 't\nV1 a 0 sin(0 1 1k)\nJ1 a b 0 jn\nR1 b 0 1k\n.model jn njf\n' > "$tmp/bjt.cir"
 run sim "$tmp/bjt.cir" --node b
 check "sim refuses a JFET, naming it" bash -c "test $rc -eq 2 && grep -q 'J1: the solver has no model' '$tmp/err'"
+printf 't\nV1 a 0 sin(0 1 1k)\nQ1 a b 0 qn\nR1 b 0 1k\nM1 a b 0 0 mn w=2u l=1u\nS1 a 0 b 0 sx\n.model qn npn\n.model mn nmos level=1\n.model sx sw(vt=0.5)\n' > "$tmp/trans.cir"
+run sim "$tmp/trans.cir" --node b
+check "sim simulates a bipolar transistor, a level-1 MOSFET and a switch" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err'"
+printf 't\nV1 a 0 sin(0 1 1k)\nM1 a b 0 0 mb\nR1 b 0 1k\n.model mb nmos level=49\n' > "$tmp/bsim.cir"
+run sim "$tmp/bsim.cir" --node b
+check "sim refuses a MOSFET beyond level 1, saying so" bash -c "test $rc -eq 2 && grep -q 'M1: only level-1 (Shichman-Hodges) MOSFETs are simulated' '$tmp/err'"
 run sim "$simdeck" --node out --node a,out --until 3m --from 2m
 check "sim --until: CSV header and rows from --from to --until" bash -c "test $rc -eq 0 && head -1 '$tmp/out' | grep -qx 'time,v(out),v(a,out)' && awk -F, 'NR==2 && \$1 < 0.002 {exit 1} END {if (\$1 != 0.003) exit 1}' '$tmp/out'"
 run sim "$simdeck" --node out -o "$tmp/wave.csv"
