@@ -20,4 +20,10 @@ double dmodel_given(const struct nl_model *m, enum dmodel_param k);
  * RS 0, CJO 0, VJ 1 V, M 0.5, TT 0, FC 0.5, BV infinite, IBV 1e-3 A). */
 double dmodel_value(const struct nl_model *m, enum dmodel_param k);
 
+/* Any model card's parameter by name: the finite value written under
+ * names[0] or one of its aliases (names is NULL-terminated), else dflt.
+ * The solver's transistor models read their cards so, by the same
+ * matching rules as the diode's. m may be NULL. */
+double dmodel_param(const struct nl_model *m, const char *const *names, double dflt);
+
 #endif

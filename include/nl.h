@@ -58,6 +58,8 @@ struct nl_extra {
 				      R/C/L valued by the circuit's state; K over
 				      more than two inductors or with a core */
 	int off;                   /* D: "off" */
+	double w, l;               /* M: channel width and length (m), NaN
+				      when absent */
 };
 
 /* A source location packed small: a flat deck holds one per part. */

@@ -46,6 +46,9 @@ proof analysis
 audit analysis
 sim solver
 simdev solver
+simbjt solver
+simmos solver
+simsw solver
 simsrc solver
 simmat solver
 simrun solver

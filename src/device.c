@@ -514,6 +514,51 @@ static enum dev_status build_modelled(struct build *b,
 	return st;
 }
 
+/* A bipolar transistor: its area (the first number after the model, or
+ * area=) and m= are kept for the solver; the rest (off, ic=, temp=) is
+ * not used. */
+static enum dev_status build_bjt(struct build *b, const struct opaque_rule *r)
+{
+	enum dev_status st = build_modelled(b, r);
+	const struct deck_card *c = b->card;
+	uint32_t k = b->part.npins; /* the model's field */
+	b->part.value = 1.0; /* area */
+	int have_area = 0;
+	for (uint32_t i = k + 1; st == DEV_OK && i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		if (is_positional(f) && is_numeric(f) && !have_area) {
+			st = const_value(b, f, &b->part.value);
+			have_area = 1;
+		} else if (f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "area")) {
+			st = const_value(b, f->value, &b->part.value);
+		} else if (f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "m")) {
+			common_assign(b, f, &st);
+		}
+	}
+	return st;
+}
+
+/* A MOSFET: w=, l= and m= are kept for the solver; the rest (ad=, as=,
+ * pd=, ps=, nrd=, nrs=, off, ic=) is not used. */
+static enum dev_status build_mos(struct build *b, const struct opaque_rule *r)
+{
+	enum dev_status st = build_modelled(b, r);
+	const struct deck_card *c = b->card;
+	for (uint32_t i = b->part.npins + 1; st == DEV_OK && i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		if (f->kind != FIELD_ASSIGN)
+			continue;
+		if (num_ieq(f->text, f->len, "w") || num_ieq(f->text, f->len, "l")) {
+			double *to = num_ieq(f->text, f->len, "w") ? &b->ext.w : &b->ext.l;
+			st = const_value(b, f->value, to);
+			b->has_ext = 1;
+		} else if (num_ieq(f->text, f->len, "m")) {
+			common_assign(b, f, &st);
+		}
+	}
+	return st;
+}
+
 /* XSPICE 'a' devices: every word but the last is a node ([ ] ~ stripped). */
 static enum dev_status build_xspice(struct build *b)
 {
@@ -570,6 +615,10 @@ static enum dev_status build_opaque(struct build *b, char letter)
 			}
 		return DEV_OK;
 	}
+	if (r->model && letter == 'q')
+		return build_bjt(b, r);
+	if (r->model && letter == 'm')
+		return build_mos(b, r);
 	if (r->model)
 		return build_modelled(b, r);
 	return take_nodes(b, r->min_nodes);
@@ -629,6 +678,7 @@ enum dev_status dev_build(const struct dev_scope *s,
 	b.part.loc = nl_loc_pack(card->loc);
 	b.ext.mult = 1.0;
 	b.ext.ic = NAN;
+	b.ext.w = b.ext.l = NAN;
 	b.ext.ctrl_part[0] = b.ext.ctrl_part[1] = NL_NONE;
 	char letter = card->head[0];
 	if (letter >= 'A' && letter <= 'Z')

@@ -43,3 +43,14 @@ double dmodel_value(const struct nl_model *m, enum dmodel_param k)
 	double v = dmodel_given(m, k);
 	return isnan(v) ? defs[k].dflt : v;
 }
+
+double dmodel_param(const struct nl_model *m, const char *const *names, double dflt)
+{
+	if (!m)
+		return dflt;
+	for (int n = 0; names[n]; n++)
+		for (uint32_t i = 0; i < m->nparams; i++)
+			if (strcmp(m->keys[i], names[n]) == 0 && isfinite(m->values[i]))
+				return m->values[i];
+	return dflt;
+}

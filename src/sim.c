@@ -8,6 +8,9 @@
 #include <string.h>
 
 #include "dmodel.h"
+#include "simbjt.h"
+#include "simmos.h"
+#include "simsw.h"
 #include "simdev.h"
 #include "simint.h"
 #include "simmat.h"
@@ -89,6 +92,28 @@ static int refuse(struct sim_refusal *ref, uint32_t part, const char *why)
 	return 0;
 }
 
+/* A Q or M part: a transistor when its model is one the solver has. */
+static int transistor_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
+			   struct sim_refusal *ref)
+{
+	const char *why = p->letter == 'q' ? simbjt_refusal(p) : simmos_refusal(p);
+	if (why)
+		return refuse(ref, i, why);
+	*kind = p->letter == 'q' ? SD_Q : SD_M;
+	return 1;
+}
+
+/* An S part: a voltage-controlled switch with an SW model. */
+static int switch_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
+		       struct sim_refusal *ref)
+{
+	const char *why = simsw_refusal(p);
+	if (why)
+		return refuse(ref, i, why);
+	*kind = SD_S;
+	return 1;
+}
+
 /* Which solver device a part becomes; 0 with *ref filled when none. */
 static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 		       struct sim_refusal *ref)
@@ -97,6 +122,10 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 				      [NL_K] = SD_K, [NL_D] = SD_D, [NL_V] = SD_V,
 				      [NL_I] = SD_I, [NL_E] = SD_E, [NL_F] = SD_F,
 				      [NL_G] = SD_G, [NL_H] = SD_H};
+	if (p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm'))
+		return transistor_kind(p, i, kind, ref);
+	if (p->kind == NL_OPAQUE && p->letter == 's')
+		return switch_kind(p, i, kind, ref);
 	if (p->kind > NL_H || p->kind == NL_X_UNUSED)
 		return refuse(ref, i, "the solver has no model for this kind of part");
 	if (p->ext && p->ext->behavioural && p->kind == NL_K)
@@ -136,6 +165,16 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 			continue;
 		if (!device_kind(p, (uint32_t)i, &k, ref))
 			return 0;
+		if (k == SD_Q || k == SD_M) { /* several devices and internal nodes */
+			size_t nd, ni;
+			if (k == SD_Q)
+				simbjt_size(p, &nd, &ni);
+			else
+				simmos_size(p, &nd, &ni);
+			s->ndev += nd;
+			s->n += ni;
+			continue;
+		}
 		s->ndev++;
 		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H)
 			s->n++;
@@ -217,7 +256,30 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 	}
 	if (d->kind == SD_C)
 		d->q0 = d->val * cap_start(s, p, i);
+	if (d->kind == SD_S)
+		return simsw_fill(s->ar, p, d);
 	return 1;
+}
+
+/* The devices of part i from d on, *used of them: one for most parts,
+ * a transistor's several. */
+static int fill_part(struct sim *s, struct simdev *d, size_t i, long *next, size_t *used)
+{
+	const struct nl_part *p = nl_part_at(s->c, i);
+	if (!(p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm')))
+		return fill_device(s, d, i, next);
+	const uint32_t *pin = nl_pins(s->c, p);
+	long u[4] = {-1, -1, -1, -1}; /* C B E, or D G S B */
+	for (size_t k = 0; k < 4 && k < p->npins; k++)
+		u[k] = unknown_of(pin[k]);
+	double mult = p->ext && isfinite(p->ext->mult) && p->ext->mult > 0 ? p->ext->mult : 1;
+	size_t ni;
+	if (p->letter == 'm') {
+		simmos_size(p, used, &ni);
+		return simmos_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
+	}
+	simbjt_size(p, used, &ni);
+	return simbjt_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
 }
 
 /* Second pass: K needs its inductors' branches, F and H their sources'. */
@@ -304,14 +366,21 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 	if (!s->dev || !s->shunt || !s->x || !s->xprev || !s->v || !s->m)
 		return SIM_OOM;
 	long next = (long)s->nnodes - 1;
-	for (size_t i = 0, k = 0; i < nl_part_count(s->c); i++)
-		if (!(s->o.leave_out && s->o.leave_out[i]) &&
-		    !fill_device(s, &s->dev[k++], i, &next))
+	for (size_t i = 0, k = 0; i < nl_part_count(s->c); i++) {
+		if (s->o.leave_out && s->o.leave_out[i])
+			continue;
+		size_t used = 1;
+		if (!fill_part(s, &s->dev[k], i, &next, &used))
 			return SIM_OOM;
+		k += used;
+	}
 	if (!link_controls(s, ref))
 		return SIM_REFUSED;
 	for (size_t i = 0; i < s->ndev; i++)
-		if (!simdev_need(&s->dev[i], s->m))
+		if (!(s->dev[i].kind == SD_Q   ? simbjt_need(&s->dev[i], s->m)
+		      : s->dev[i].kind == SD_M ? simmos_need(&s->dev[i], s->m)
+		      : s->dev[i].kind == SD_S ? simsw_need(&s->dev[i], s->m)
+					       : simdev_need(&s->dev[i], s->m)))
 			return SIM_OOM;
 	for (size_t k = 0; k + 1 < s->nnodes; k++)
 		if ((s->shunt[k] = simmat_need(s->m, (long)k, (long)k)) == -2)
@@ -407,7 +476,14 @@ static enum sim_status newton(struct sim *s, const struct simdev_step *st)
 		int limited = 0;
 		simmat_clear(s->m);
 		for (size_t i = 0; i < s->ndev; i++)
-			simdev_stamp(&s->dev[i], st, s->m, s->x, &limited);
+			if (s->dev[i].kind == SD_Q) /* after its junctions */
+				simbjt_stamp(&s->dev[i], s->m);
+			else if (s->dev[i].kind == SD_M)
+				simmos_stamp(&s->dev[i], s->m, s->x, &limited);
+			else if (s->dev[i].kind == SD_S)
+				simsw_stamp(&s->dev[i], s->m, s->x, &limited);
+			else
+				simdev_stamp(&s->dev[i], st, s->m, s->x, &limited);
 		for (size_t k = 0; s->o.gshunt > 0 && k + 1 < s->nnodes; k++)
 			simmat_add(s->m, s->shunt[k], s->o.gshunt);
 		const double *xn = simmat_solve(s->m);

@@ -10,13 +10,17 @@
 #include "simmat.h"
 
 enum simdev_kind { SD_R, SD_C, SD_L, SD_K, SD_V, SD_I, SD_E, SD_G, SD_F,
-		   SD_H, SD_D };
+		   SD_H, SD_D, SD_Q, SD_M, SD_S };
 
 /* Diode parameters after area scaling (SPICE level 1 names). */
 struct simdev_diode {
 	double is, n, rs, cjo, vj, m, tt, fc, bv, ibv;
 	double nvt, vcrit, xbv;  /* derived */
 };
+
+struct simbjt;
+struct simmos;
+struct simsw;
 
 struct simdev {
 	uint8_t kind;
@@ -32,6 +36,9 @@ struct simdev {
 	double ac_k, dc_v;    /* source: waveform about the mean times ac_k,
 				 plus dc_v (the corner's mean) */
 	struct simdev_diode *dm;
+	struct simbjt *bj;    /* Q: the transport source (simbjt.h) */
+	struct simmos *mos;   /* M: the channel (simmos.h) */
+	struct simsw *sw;     /* S: the switch's model (simsw.h) */
 	long h[8];            /* matrix handles */
 	/* integration state: charge (C, D) or flux (L) and the element's
 	 * current (C, D) or voltage (L) at the last accepted point, and the

@@ -68,16 +68,17 @@ FILES = {
 BLOCKED = {
     "ngspice/examples/cider/serial/dbridge.cir":
         (["D1"], "numerical (device-level) diodes: no compact model to simulate"),
-    "learning_ngspice/circuits/14_conversores_dcdc/01_buck_boost_conversores.cir":
-        (["X_buck.S1", "X_boost.M2"], "a switch and a MOSFET drive the converters"),
     "ngspice/examples/vdmos/dcdc.sp":
         (["B1"], "a behavioural source and a VDMOS switch drive the boost converter"),
     "xyce/Netlists/Certification_Tests/BUG_456/push_pull_xyce_baseline.cir":
-        (["Q_Q1"], "bipolar transistors and MOSFETs drive the transformer"),
+        (["X_M3.M1"], "a level-3 MOSFET (in the power switch's subcircuit) drives the "
+         "transformer beside the bipolar transistors; only level 1 is simulated"),
     "xyce/Netlists/TIA/TRAP/push_pull_xyce_baseline.cir":
-        (["Q_Q1"], "bipolar transistors and MOSFETs drive the transformer"),
+        (["X_M3.M1"], "a level-3 MOSFET (in the power switch's subcircuit) drives the "
+         "transformer beside the bipolar transistors; only level 1 is simulated"),
     "xyce/Netlists/TIA/TRAP/teststep1.cir":
-        (["X1.Q21"], "an op-amp macro-model built from bipolar transistors"),
+        (["X1.J5"], "an op-amp macro-model whose bipolar transistors sit beside JFETs "
+         "(wired as diodes): no JFET model in the solver"),
     "xyce/Netlists/Message/Device/DeviceBlock_extractModelName_3.cir":
         (["X7.MNORMA", "X9.MNORMA", "XT2.Kmc2348", "XT3.Kmc2349"],
          "MOSFETs in the latch subcircuits; transformers coupled through a magnetic core "

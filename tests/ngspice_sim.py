@@ -189,6 +189,8 @@ def main():
         print("ngspice-sim: SKIPPED: ngspice not installed (scripts/deps.sh installs it)")
         return 0
     decks = sorted(f for f in os.listdir(DATA) if f.endswith(".cir"))
+    if sys.argv[1:]:  # only the decks named (file names in tests/data/sim)
+        decks = [f for f in decks if f in sys.argv[1:]]
     passed = failed = 0
     for f in decks:
         deck = os.path.join(DATA, f)

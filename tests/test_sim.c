@@ -19,7 +19,14 @@
  *   its peak (the textbook half-wave results: mean of a half sine over a
  *   period 1 / pi, rms 1 / 2; from memory, and one line of integration);
  * - a loop of voltage sources is a singular matrix, reported as such;
- *   a transistor is refused with its name; a 0-ohm resistor is 1 mOhm and
+ *   a JFET and a VBIC transistor are refused with their names;
+ * - a bipolar transistor's operating point (NPN and PNP, forward active
+ *   and saturated, with and without the Early effect) meets the
+ *   Ebers-Moll equations at the junction voltages it settled at;
+ * - a level-1 MOSFET's (NMOS and PMOS, saturated and linear, with the
+ *   body effect) drain current is Shichman-Hodges' at its settled vds;
+ * - a voltage-controlled switch with hysteresis is off while its control
+ *   rises through the band between VT - VH and VT + VH, on while it falls; a 0-ohm resistor is 1 mOhm and
  *   out-of-range diode parameters fall back to defaults. */
 #include "testutil.h"
 
@@ -115,6 +122,153 @@ static void test_diode_operating_point(void **state)
 	/* about 4 mA: 1.5 x 25.86 mV x ln(4e-3 / 1e-14) = 1.04 V */
 	assert_true(vd > 1.0 && vd < 1.08);
 	finish(&c);
+}
+
+/* Ebers-Moll with the Early effect (SPICE's Gummel-Poon with IKF, IKR
+ * infinite; Vt = kT/q at 300.15 K): base and collector currents of the
+ * junction voltages the solver settled at, against the resistors'. */
+static void ebers_moll(double vbe, double vbc, double vaf, double *ib, double *ic)
+{
+	const double is = 1e-15, bf = 100, br = 2, vt = 0.0258648;
+	double ef = exp(vbe / vt) - 1, er = exp(vbc / vt) - 1;
+	double qb = vaf > 0 ? 1 / (1 - vbc / vaf) : 1;
+	*ib = is / bf * ef + is / br * er;
+	*ic = is * (ef - er) / qb - is / br * er;
+}
+
+/* One operating point: VCC over RC to the collector, VBB over RB to the
+ * base, the emitter grounded; pol -1 is the PNP mirror (all supplies
+ * negated, every current and voltage too). */
+static void bjt_point_area(const char *type, double pol, double rc, double vaf, double area)
+{
+	char deck[512];
+	/* IS / area on the card times the area on the part: IS 1e-15 */
+	snprintf(deck, sizeof deck,
+		 "ce\nVCC vcc 0 %g\nVBB vbb 0 %g\nRC vcc c %g\nRB vbb b 100k\nQ1 c b 0 qx %g\n"
+		 ".model qx %s(is=%g bf=100 br=2 vaf=%g)\n",
+		 10 * pol, 5 * pol, rc, area, type, 1e-15 / area, vaf);
+	struct simrun_case c;
+	const char *nodes[] = {"b", "c"};
+	start(&c, deck, nodes, 2, 1e-6);
+	assert_int_equal(sim_run(c.s, 20e-6, seen, &c), SIM_OK);
+	double vb = pol * c.v[0], vc = pol * c.v[1], ib, ic;
+	ebers_moll(vb, vb - vc, vaf, &ib, &ic);
+	double ib_r = (5 - vb) / 100e3, ic_r = (10 - vc) / rc;
+	if (fabs(ib - ib_r) > 2e-3 * ib_r || fabs(ic - ic_r) > 2e-3 * ic_r)
+		fail_msg("%s rc %g: base %g A (resistor %g A), collector %g A (resistor %g A)",
+			 type, rc, ib, ib_r, ic, ic_r);
+	if (rc < 2e3) /* forward active: ic near BF ib (the Early factor apart) */
+		assert_true(ic_r > 80 * ib_r && vc > vb);
+	else /* saturated: the collector below the base */
+		assert_true(vc < vb && ic_r < 50 * ib_r);
+	finish(&c);
+}
+
+static void bjt_point(const char *type, double pol, double rc, double vaf)
+{
+	bjt_point_area(type, pol, rc, vaf, 1);
+}
+
+static void test_bjt_operating_point(void **state)
+{
+	bjt_point_area("npn", 1, 1e3, 50, 4); /* the area scales IS */
+	(void)state;
+	bjt_point("npn", 1, 1e3, 0);
+	bjt_point("npn", 1, 1e3, 50);
+	bjt_point("npn", 1, 10e3, 0);
+	bjt_point("pnp", -1, 1e3, 50);
+	bjt_point("pnp", -1, 10e3, 0);
+}
+
+/* One MOSFET operating point: VDD over RD to the drain, the gate at vg,
+ * the source grounded, the bulk at vb; pol -1 is the PMOS mirror. The
+ * drain current from the resistor against Shichman-Hodges (SPICE level
+ * 1): beta = KP W / L, vth = VTO + GAMMA (sqrt(PHI - vbs) - sqrt(PHI)),
+ * saturation 0.5 beta (vgs - vth)^2 (1 + LAMBDA vds), linear
+ * beta vds (vgs - vth - vds / 2) (1 + LAMBDA vds). */
+static void mos_point(const char *type, double pol, double rd, double vb)
+{
+	const double kp = 100e-6, w = 10e-6, l = 1e-6, vto = 1, lambda = 0.02, gamma = 0.5,
+		     phi = 0.7, vg = 3;
+	char deck[512];
+	/* the PMOS as two in parallel (m=2) of half the width */
+	snprintf(deck, sizeof deck,
+		 "m\nVDD vdd 0 %g\nVG g 0 %g\nVB bk 0 %g\nRD vdd d %g\nM1 d g 0 bk mx %s\n"
+		 ".model mx %s(vto=%g kp=100u lambda=0.02 gamma=0.5 phi=0.7)\n",
+		 10 * pol, vg * pol, vb * pol, rd, pol > 0 ? "w=10u l=1u" : "l=1u w=5u m=2", type,
+		 vto * pol);
+	struct simrun_case c;
+	const char *nodes[] = {"d"};
+	start(&c, deck, nodes, 1, 1e-6);
+	assert_int_equal(sim_run(c.s, 20e-6, seen, &c), SIM_OK);
+	double vds = pol * c.v[0], beta = kp * w / l;
+	double vth = vto + gamma * (sqrt(phi - vb) - sqrt(phi)), vov = vg - vth;
+	double id = vds >= vov ? 0.5 * beta * vov * vov * (1 + lambda * vds)
+			       : beta * vds * (vov - vds / 2) * (1 + lambda * vds);
+	double id_r = (10 - vds) / rd;
+	if (fabs(id - id_r) > 1e-3 * id_r)
+		fail_msg("%s rd %g vb %g: vds %g V, resistor %g A, level 1 %g A", type, rd, vb, vds,
+			 id_r, id);
+	assert_true(rd < 2e3 ? vds > vov : vds < vov); /* saturated, linear */
+	finish(&c);
+}
+
+static void test_mos_operating_point(void **state)
+{
+	(void)state;
+	mos_point("nmos", 1, 1e3, 0);
+	mos_point("nmos", 1, 1e3, -2); /* body effect: vth 1.43 V */
+	mos_point("nmos", 1, 10e3, 0);
+	mos_point("pmos", -1, 1e3, -2);
+	mos_point("pmos", -1, 10e3, 0);
+}
+
+/* A switch (VT 1 V, VH 0.5 V: on above 1.5 V, off below 0.5 V, else as
+ * it was) pulls a 1 k load to ground as its control follows a 5 V sine:
+ * out is 10 V x 1M / (1M + 1k) off and 10 V x 1 / 1001 on. In the band
+ * between, it is off while the control rises and on while it falls. */
+struct sw_seen {
+	uint32_t c, out;
+	double vc_prev;
+	int points, band_up, band_down, bad;
+};
+
+static int sw_point(void *ud, double t, const double *v)
+{
+	struct sw_seen *w = ud;
+	double vc = v[w->c], out = v[w->out];
+	int on = out < 0.1, off = out > 9.9;
+	(void)t;
+	w->points++;
+	if (vc > 1.55 || (vc > 0.6 && vc < 1.4 && vc < w->vc_prev))
+		w->bad += !on, w->band_down += vc < 1.4;
+	else if (vc < 0.45 || (vc > 0.6 && vc < 1.4 && vc > w->vc_prev))
+		w->bad += !off, w->band_up += vc > 0.6;
+	w->vc_prev = vc;
+	return 0;
+}
+
+static void test_switch_hysteresis(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "sw\nVC c 0 sin(0 5 1k)\nVDD vdd 0 10\nRL vdd out 1k\nS1 out 0 c 0 sx\n"
+		     ".model sx sw(vt=1 vh=0.5 ron=1 roff=1meg)\n");
+	assert_string_equal(r.diags, "");
+	struct sim_opts o = {0};
+	o.max_step = 2e-6;
+	struct sim *s = NULL;
+	struct sim_refusal ref;
+	struct hr_alloc h = hr_alloc_default();
+	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_OK);
+	struct sw_seen w = {nl_node_find(r.r.circuit, "c", 1), nl_node_find(r.r.circuit, "out", 3),
+			    0, 0, 0, 0, 0};
+	assert_int_equal(sim_run(s, 2e-3, sw_point, &w), SIM_OK);
+	if (w.bad || w.band_up < 10 || w.band_down < 10)
+		fail_msg("%d of %d points in the wrong state (%d rising, %d falling in the band)", w.bad,
+			 w.points, w.band_up, w.band_down);
+	sim_destroy(s);
+	run_free(&r);
 }
 
 static void test_lc_tank(void **state)
@@ -216,10 +370,16 @@ static void test_refusals(void **state)
 	assert_int_equal(sim_run(s, 1e-6, NULL, NULL), SIM_SINGULAR);
 	sim_destroy(s);
 	run_free(&r);
-	run_text(&r, "bjt\nV1 a 0 1\nQ1 a b 0 qn\nR1 b 0 1k\n.model qn npn\n");
+	run_text(&r, "jfet\nV1 a 0 1\nJ1 a b 0 jn\nR1 b 0 1k\n.model jn njf\n");
 	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
 	assert_null(s);
+	assert_string_equal(nl_part_at(r.r.circuit, ref.part)->path, "J1");
+	run_free(&r);
+	/* a bipolar model the solver does not have (VBIC is level 4) */
+	run_text(&r, "vbic\nV1 a 0 1\nQ1 a b 0 qv\nR1 b 0 1k\n.model qv npn level=4\n");
+	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
 	assert_string_equal(nl_part_at(r.r.circuit, ref.part)->path, "Q1");
+	assert_non_null(strstr(ref.why, "level 1"));
 	run_free(&r);
 }
 
@@ -328,6 +488,9 @@ int main(void)
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_rc_step),
 		cmocka_unit_test(test_diode_operating_point),
+		cmocka_unit_test(test_bjt_operating_point),
+		cmocka_unit_test(test_mos_operating_point),
+		cmocka_unit_test(test_switch_hysteresis),
 		cmocka_unit_test(test_lc_tank),
 		cmocka_unit_test(test_transformer),
 		cmocka_unit_test(test_sources),
