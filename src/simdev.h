@@ -7,10 +7,11 @@
 #include <stdint.h>
 
 #include "nl.h"
+#include "simbehav.h"
 #include "simmat.h"
 
 enum simdev_kind { SD_R, SD_C, SD_L, SD_K, SD_V, SD_I, SD_E, SD_G, SD_F,
-		   SD_H, SD_D };
+		   SD_H, SD_D, SD_B };
 
 /* Diode parameters after area scaling (SPICE level 1 names). */
 struct simdev_diode {
@@ -32,6 +33,7 @@ struct simdev {
 	double ac_k, dc_v;    /* source: waveform about the mean times ac_k,
 				 plus dc_v (the corner's mean) */
 	struct simdev_diode *dm;
+	struct simbehav *bh;   /* SD_B: a behavioural source (B, E/G value=) */
 	long h[8];            /* matrix handles */
 	/* integration state: charge (C, D) or flux (L) and the element's
 	 * current (C, D) or voltage (L) at the last accepted point, and the
