@@ -23,12 +23,15 @@ struct simbehav {
 	const long *pa, *pb;
 	long *h; /* per probe 4 handles, then 4 for the branch */
 	long a, b, br;
-	double *p0; /* probe values of the last linearisation */
+	double *p0;       /* probe values of the last linearisation */
+	double *dp, *lim; /* per probe: its last step, its step limit */
+	double t_last;    /* time of the last stamp */
 	int have_p0;
 	double *g, *scratch; /* gradient; 2 np per nesting level */
 	unsigned depth;
 	double val;
 	int uses_time;
+	int steep; /* has a steep function: probes are limited */
 };
 
 struct bev {
@@ -117,6 +120,16 @@ static double power(const char *n, double a, double b, double *da, double *db)
 	return s * v;
 }
 
+/* Sum of |g|: at a tie of min or max the branch with a slope is kept,
+ * so that Newton at the corner of a clamp still sees the linear part. */
+static double slope(const double *g, size_t n)
+{
+	double s = 0;
+	for (size_t i = 0; i < n; i++)
+		s += fabs(g[i]);
+	return s;
+}
+
 static double call(const struct bev *b, const struct expr *e, unsigned d, double *g)
 {
 	double *ta = b->scratch + (size_t)d * 2 * b->np, *tb = ta + b->np;
@@ -139,7 +152,7 @@ static double call(const struct bev *b, const struct expr *e, unsigned d, double
 		double v = ev(b, e->args[0], d + 1, g);
 		for (uint32_t i = 1; i < e->nargs; i++) {
 			double w = ev(b, e->args[i], d + 1, ta);
-			if (mx ? w > v : w < v) {
+			if ((mx ? w > v : w < v) || (w == v && slope(ta, b->np) > slope(g, b->np))) {
 				v = w;
 				memcpy(g, ta, b->np * sizeof *g);
 			}
@@ -243,8 +256,24 @@ static double ev(const struct bev *b, const struct expr *e, unsigned d, double *
 	return clampv(v);
 }
 
-/* Nesting depth of e, and whether it reads the time. */
-static unsigned depth_of(const struct expr *e, int *time)
+/* Functions steep enough to throw Newton far (they get step limiting);
+ * piecewise-linear ones (min, max, comparisons, abs, uramp) do not: a
+ * limit would only slow a switching logic chain. */
+static int is_steep(const struct expr *e)
+{
+	static const char *const steep[] = {"exp", "sinh", "cosh", "tanh", "pow", "pwr",
+					    "log", "ln", "log10", "sqrt", "tan", NULL};
+	if (e->op == EXPR_POW || e->op == EXPR_DIV)
+		return 1;
+	for (int i = 0; e->op == EXPR_CALL && steep[i]; i++)
+		if (strcasecmp(e->name, steep[i]) == 0)
+			return 1;
+	return 0;
+}
+
+/* Nesting depth of e, and whether it reads the time or has a steep
+ * function (time: bit 0, steep: bit 1 of *flags). */
+static unsigned depth_of(const struct expr *e, int *flags)
 {
 	unsigned n = e->op == EXPR_CALL                                            ? e->nargs
 		     : e->op == EXPR_NUM || e->op == EXPR_VAR || e->op == EXPR_STR ? 0
@@ -253,9 +282,11 @@ static unsigned depth_of(const struct expr *e, int *time)
 										   : 2;
 	unsigned d = 0;
 	if (e->op == EXPR_VAR && e->name[0] != '$')
-		*time = 1;
+		*flags |= 1;
+	if (is_steep(e))
+		*flags |= 2;
 	for (unsigned i = 0; i < n; i++) {
-		unsigned k = depth_of(e->args[i], time);
+		unsigned k = depth_of(e->args[i], flags);
 		d = k > d ? k : d;
 	}
 	return d + 1;
@@ -269,14 +300,19 @@ struct simbehav *simbehav_create(struct arena *ar, const struct nl_behav *bh,
 		return NULL;
 	d->bh = bh;
 	d->np = bh->nprobes;
-	d->depth = depth_of(bh->e, &d->uses_time);
+	int flags = 0;
+	d->depth = depth_of(bh->e, &flags);
+	d->uses_time = flags & 1;
+	d->steep = (flags & 2) != 0;
 	size_t np = d->np ? d->np : 1;
 	long *a = arena_alloc(ar, np * sizeof *a), *b = arena_alloc(ar, np * sizeof *b);
 	d->h = arena_alloc(ar, (4 * np + 4) * sizeof *d->h);
 	d->p0 = arena_zalloc(ar, np * sizeof *d->p0);
+	d->dp = arena_zalloc(ar, np * sizeof *d->dp);
+	d->lim = arena_zalloc(ar, np * sizeof *d->lim);
 	d->g = arena_zalloc(ar, np * sizeof *d->g);
 	d->scratch = arena_zalloc(ar, ((size_t)d->depth + 2) * 2 * np * sizeof *d->scratch);
-	if (!a || !b || !d->h || !d->p0 || !d->g || !d->scratch)
+	if (!a || !b || !d->h || !d->p0 || !d->dp || !d->lim || !d->g || !d->scratch)
 		return NULL;
 	memcpy(a, pa, d->np * sizeof *a);
 	memcpy(b, pb, d->np * sizeof *b);
@@ -315,28 +351,46 @@ static double at(const double *x, long k)
 }
 
 /* Probe values at iterate x into p[], limited against the last
- * linearisation. */
-static void probes_at(struct simbehav *d, const double *x, double *p, int *limited)
+ * linearisation. Two limits: a steep expression's voltage probe moves at
+ * most SIMBEHAV_VSTEP plus half its value per iterate (as junction
+ * limiting does); and within one time point, a probe whose iterate turns
+ * back gets at most half its last step from then on (Newton bouncing
+ * between the two flat ends of a clamp, whose slopes are zero, closes in
+ * on the solution between them). */
+static void probes_at(struct simbehav *d, const double *x, double t, double *p, int *limited)
 {
+	int same = d->have_p0 && t == d->t_last;
 	for (size_t k = 0; k < d->np; k++) {
 		int volt = d->bh->probes[k].kind == NL_PROBE_V;
 		p[k] = at(x, d->pa[k]) - (volt ? at(x, d->pb[k]) : 0);
-		double step = p[k] - d->p0[k];
-		double most = SIMBEHAV_VSTEP + 0.5 * fabs(d->p0[k]);
-		if (volt && d->have_p0 && fabs(step) > most) {
-			p[k] = d->p0[k] + copysign(most, step);
+		double step = p[k] - d->p0[k], most = INFINITY;
+		if (!same)
+			d->lim[k] = INFINITY, d->dp[k] = 0;
+		double small = 1e-6 + 1e-3 * fabs(d->p0[k]); /* below: never limited */
+		if (same && step * d->dp[k] < 0 && fabs(step) > small)
+			d->lim[k] = fmax(fmin(d->lim[k], fabs(d->dp[k]) / 2), small);
+		if (same)
+			most = d->lim[k];
+		if (volt && d->steep && d->have_p0)
+			most = fmin(most, SIMBEHAV_VSTEP + 0.5 * fabs(d->p0[k]));
+		if (fabs(step) > most) {
+			step = copysign(most, step);
 			*limited = 1;
 		}
+		p[k] = d->p0[k] + step;
+		if (step != 0)
+			d->dp[k] = step;
 		d->p0[k] = p[k];
 	}
 	d->have_p0 = 1;
+	d->t_last = t;
 }
 
 void simbehav_stamp(struct simbehav *d, struct simmat *m, const double *x, double t,
 		    int *limited)
 {
 	double *p = d->scratch + (size_t)(d->depth + 1) * 2 * (d->np ? d->np : 1);
-	probes_at(d, x, p, limited);
+	probes_at(d, x, t, p, limited);
 	double f = simbehav_eval(d, p, t, d->g), lin = f;
 	d->val = f;
 	for (size_t k = 0; k < d->np; k++)

@@ -30,7 +30,8 @@ struct simbehav *simbehav_create(struct arena *ar, const struct nl_behav *bh,
 int simbehav_need(struct simbehav *d, struct simmat *m, long a, long b, long br);
 
 /* Stamps the expression linearised at iterate x and time t (the time
- * the sources are evaluated at). A voltage probe that moved more than
+ * the sources are evaluated at). In an expression with a steep function
+ * (exp, tanh, pow, a division, ...) a voltage probe that moved more than
  * SIMBEHAV_VSTEP plus half its value since the last linearisation is
  * taken that far only,
  * and *limited is set, as junction limiting does. */

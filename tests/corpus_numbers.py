@@ -71,7 +71,8 @@ BLOCKED = {
     "learning_ngspice/circuits/14_conversores_dcdc/01_buck_boost_conversores.cir":
         (["X_buck.S1", "X_boost.M2"], "a switch and a MOSFET drive the converters"),
     "ngspice/examples/vdmos/dcdc.sp":
-        (["B1"], "a behavioural source and a VDMOS switch drive the boost converter"),
+        (["R4", "M1"], "a VDMOS switch and a load resistance that follows the time "
+         "(R = expression of time) drive the boost converter; its B sources are simulated"),
     "xyce/Netlists/Certification_Tests/BUG_456/push_pull_xyce_baseline.cir":
         (["Q_Q1"], "bipolar transistors and MOSFETs drive the transformer"),
     "xyce/Netlists/TIA/TRAP/push_pull_xyce_baseline.cir":
@@ -89,7 +90,8 @@ BLOCKED = {
         (["xbr1.Ktrans", "xbr2.Ktrans"], "transformers coupled through Xyce's nonlinear CORE "
          "model, in whose reading (from memory) the inductor values are turns, not henries"),
     "learning_ngspice/circuits/10_timer_555/01_timer_555_astavel_monostavel_pwm.cir":
-        (["X555_PWM.Bdisch_ctrl"], "a 555 model made of behavioural sources"),
+        (["X555_PWM.Sdisch"], "the 555 model's discharge switch; its behavioural "
+         "comparators and flip-flop (B sources) are simulated"),
 }
 
 

@@ -27,7 +27,9 @@
  *   and fed back on its own node through 1 k from 3 V it settles where
  *   (3 - v)/1k = v^2/1k, v = (sqrt(13) - 1)/2 (the quadratic's positive
  *   root); a ternary comparator is 5 V exactly where its input is above
- *   0.5 V; poly() and expressions of temper stay refused by name. */
+ *   0.5 V; a high-gain clamp closing a resistive loop settles at its
+ *   linear solution; poly() and expressions of temper stay refused by
+ *   name. */
 #include "testutil.h"
 
 #include <math.h>
@@ -394,6 +396,35 @@ static void test_behav_comparator(void **state)
 	finish(&k.c);
 }
 
+/* A clamp max(0, min(5, 10k (2.5 - v(x)))) closing a loop through two
+ * 10 k resistors from 1 V: Newton starts on the clamp's flat end (slope 0)
+ * and must still reach the linear part, where err = 2e4 / 5001 V (from
+ * x = (1 + err) / 2 and err = 1e4 (2.5 - x)) once C2 has settled
+ * (R4 C2 = 0.5 ms; 24 of them leave 4e-11). And one whose iterates,
+ * without the solver's damping of a probe that turns back, bounce between
+ * the two flat ends for ever (no convergence). */
+static void test_behav_clamp_loop(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"err"};
+	start(&c, "clamp\nV2 ref 0 2.5\nV1 s 0 1\nR3 s x 10k\nR4 err x 10k\nC2 err x 50n\n"
+		  "B1 err 0 V={max(0,min(5,V(ref,x)*10k))}\n", nodes, 1, 10e-6);
+	assert_int_equal(sim_run(c.s, 12e-3, seen, &c), SIM_OK);
+	assert_near(c.v[0], 2e4 / 5001, 1e-5);
+	finish(&c);
+	/* the same clamp (gain 10) whose output drives its input through
+	   50 nF alone: from the zero state the first iterates jump between
+	   the clamp's ends; at the start (C2 uncharged, x = err) it sits on
+	   the linear part, err = 25/11 V, and once C2 has charged it is
+	   saturated at 5 V (x stays under 1.5 V) */
+	start(&c, "clamp2\nV2 ref 0 2.5\nV1 s 0 sin(1 0.5 1k)\nR3 s x 10k\nC2 err x 50n\n"
+		  "B1 err 0 V={max(0,min(5,V(ref,x)*10))}\n", nodes, 1, 10e-6);
+	assert_int_equal(sim_run(c.s, 3e-3, seen, &c), SIM_OK);
+	assert_near(c.v[0], 5, 1e-9);
+	finish(&c);
+}
+
 static void test_behav_refusals(void **state)
 {
 	(void)state;
@@ -442,6 +473,7 @@ int main(void)
 		cmocka_unit_test(test_behav_gain),
 		cmocka_unit_test(test_behav_square_law),
 		cmocka_unit_test(test_behav_comparator),
+		cmocka_unit_test(test_behav_clamp_loop),
 		cmocka_unit_test(test_behav_refusals),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
