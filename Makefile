@@ -136,6 +136,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_sim.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_behav.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_families.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/verify_families.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_powerup.py

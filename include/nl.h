@@ -45,6 +45,33 @@ struct nl_model {
 	struct diag_loc loc;
 };
 
+struct expr;
+
+/* What a behavioural expression reads (struct nl_behav). */
+enum nl_probe_kind { NL_PROBE_V, NL_PROBE_I };
+
+struct nl_probe {
+	uint8_t kind;        /* enum nl_probe_kind */
+	uint32_t a, b;       /* V: node ids, v(a) - v(b) (b ground for v(a)) */
+	const char *source;  /* I: hierarchical name of the part whose
+				branch current is read ("X1.V2") */
+};
+
+/* A behavioural source's expression as the solver evaluates it:
+ * parameters folded to numbers, every probe an EXPR_VAR named
+ * NL_PROBE_NAME whose num is its index in probes[], "time" the
+ * simulation time (behav.h builds it, simbehav.c evaluates it). */
+#define NL_PROBE_NAME "$probe"
+#define NL_MAX_PROBES 32 /* probes one expression may read */
+struct nl_behav {
+	const struct expr *e;
+	uint32_t nprobes;
+	const struct nl_probe *probes;
+	int current;         /* 1: a current from pin 0 through the part to
+				pin 1 (B I=, G); 0: the voltage of pin 0
+				over pin 1 (B V=, E) */
+};
+
 /* Extra data most parts do not need. */
 struct nl_extra {
 	double mult;               /* m= (1 when absent) */
@@ -60,6 +87,12 @@ struct nl_extra {
 	int off;                   /* D: "off" */
 	double w, l;               /* M: channel width and length (m), NaN
 				      when absent */
+	const struct nl_behav *behav; /* B, and E/G by value=: the expression
+				      to simulate, or NULL when it has a
+				      form the solver does not take */
+	const char *behav_why;     /* when behav is NULL for such a part: why
+				      the solver does not take its expression
+				      (static text), or NULL */
 };
 
 /* A source location packed small: a flat deck holds one per part. */

@@ -30,6 +30,7 @@ parse front
 spice.lex front
 spice.tab front
 device front
+behav front
 devval front
 wave front
 elab front
@@ -53,6 +54,7 @@ simsrc solver
 simmat solver
 simrun solver
 simpss solver
+simbehav solver
 profile check
 bomval check
 bom check

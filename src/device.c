@@ -8,6 +8,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "behav.h"
 #include "devval.h"
 #include "dialect.h"
 #include "num.h"
@@ -329,6 +330,84 @@ static int is_behavioural_form(const struct deck_field *f)
 	return 0;
 }
 
+/* The nodes a behavioural expression reads become pins of the part too,
+ * so that whatever groups parts by their connections (islands, the
+ * solver's blocking) sees the control path. */
+static enum dev_status probe_pins(struct build *b, const struct nl_behav *bh)
+{
+	for (uint32_t k = 0; k < bh->nprobes; k++) {
+		uint32_t n[2] = {bh->probes[k].a, bh->probes[k].b};
+		for (int j = 0; j < 2 && bh->probes[k].kind == NL_PROBE_V; j++) {
+			uint32_t i = 0;
+			while (i < b->part.npins && b->pins[i] != n[j])
+				i++;
+			if (n[j] == NL_GROUND || i < b->part.npins)
+				continue;
+			if (b->part.npins >= DEV_MAX_PINS)
+				return DEV_OK; /* the solver still reads them */
+			b->pins[b->part.npins++] = n[j];
+		}
+	}
+	return DEV_OK;
+}
+
+/* Keeps the expression of the value of field at for the solver (behav.h); a form
+ * it does not take leaves the part unsimulated, as before. */
+static enum dev_status keep_expression(struct build *b, uint32_t at, int current)
+{
+	int oom = 0;
+	const struct deck_card *c = b->card;
+	const struct deck_field *f = c->fields[at].value;
+	const struct expr *e = f->kind == FIELD_EXPR
+				       ? f->expr
+				       : behav_field_expr(b->s, f, c->fields + at + 1,
+							  c->nfields - at - 1, nl_arena(b->c), &oom);
+	if (oom)
+		return DEV_OOM;
+	if (!e)
+		return DEV_OK;
+	struct nl_behav *bh = NULL;
+	const char *why = NULL;
+	enum dev_status st = behav_build(b->s, e, current, nl_arena(b->c), &bh, &why);
+	if (st == DEV_OK && !bh) {
+		b->ext.behav_why = why;
+		b->has_ext = 1;
+	}
+	if (st != DEV_OK || !bh)
+		return st;
+	b->ext.behav = bh;
+	b->has_ext = 1;
+	return probe_pins(b, bh);
+}
+
+/* B: two nodes and v= or i= with an expression (ngspice's B source). */
+static enum dev_status build_b(struct build *b)
+{
+	b->part.kind = NL_OPAQUE;
+	enum dev_status st = take_nodes(b, 2);
+	for (uint32_t i = 2; st == DEV_OK && i < b->card->nfields; i++) {
+		const struct deck_field *f = &b->card->fields[i];
+		int v = f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "v");
+		int c = f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "i");
+		if ((v || c) && !b->ext.behav)
+			st = keep_expression(b, i, c);
+	}
+	return st;
+}
+
+/* E, G: the index of the value=, vol= or cur= field of a behavioural
+ * form, or 0 (never such a field: the nodes come first). */
+static uint32_t value_field(const struct deck_card *c)
+{
+	static const char *const keys[] = {"value", "vol", "cur", NULL};
+	for (uint32_t i = 2; i < c->nfields; i++)
+		for (int k = 0; keys[k]; k++)
+			if (c->fields[i].kind == FIELD_ASSIGN &&
+			    num_ieq(c->fields[i].text, c->fields[i].len, keys[k]))
+				return i;
+	return 0;
+}
+
 /* E, G: linear with two control nodes and a gain, or behavioural. */
 static enum dev_status build_ctrl_v(struct build *b)
 {
@@ -348,6 +427,9 @@ static enum dev_status build_ctrl_v(struct build *b)
 	if (c->nfields < 3 || !is_behavioural_form(&c->fields[2]))
 		return err_at(b, c->nfields ? &c->fields[c->nfields - 1] : NULL,
 			      "controlled source needs two control nodes and a gain, or value=, poly() or table%s", "");
+	uint32_t vf = value_field(c);
+	if (vf && (st = keep_expression(b, vf, b->part.kind == NL_G)) != DEV_OK)
+		return st;
 	return behavioural(b);
 }
 
@@ -638,6 +720,7 @@ static enum dev_status dispatch(struct build *b, char letter)
 	case 'f': b->part.kind = NL_F; return build_ctrl_i(b);
 	case 'h': b->part.kind = NL_H; return build_ctrl_i(b);
 	case 'k': b->part.kind = NL_K; return build_coupling(b);
+	case 'b': return build_b(b);
 	default: return build_opaque(b, letter);
 	}
 }

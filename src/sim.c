@@ -6,6 +6,7 @@
 #include <math.h>
 #include <stdio.h>
 #include <string.h>
+#include <strings.h>
 
 #include "dmodel.h"
 #include "simbjt.h"
@@ -122,6 +123,12 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 				      [NL_K] = SD_K, [NL_D] = SD_D, [NL_V] = SD_V,
 				      [NL_I] = SD_I, [NL_E] = SD_E, [NL_F] = SD_F,
 				      [NL_G] = SD_G, [NL_H] = SD_H};
+	if (p->ext && p->ext->behav) {
+		*kind = SD_B;
+		return 1;
+	}
+	if (p->ext && p->ext->behav_why)
+		return refuse(ref, i, p->ext->behav_why);
 	if (p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm'))
 		return transistor_kind(p, i, kind, ref);
 	if (p->kind == NL_OPAQUE && p->letter == 's')
@@ -176,7 +183,8 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 			continue;
 		}
 		s->ndev++;
-		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H)
+		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H ||
+		    (k == SD_B && !p->ext->behav->current))
 			s->n++;
 		if (k == SD_D && !s->o.ideal_diodes && dmodel_value(p->model, DM_RS) > 0)
 			s->n++;
@@ -230,7 +238,8 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 		d->val = p->value * mult;
 	else if (d->kind == SD_L)
 		d->val = p->value / mult;
-	if (d->kind == SD_V || d->kind == SD_L || d->kind == SD_E || d->kind == SD_H)
+	if (d->kind == SD_V || d->kind == SD_L || d->kind == SD_E || d->kind == SD_H ||
+	    (d->kind == SD_B && !p->ext->behav->current))
 		d->br = (*next)++;
 	if (d->kind == SD_D) {
 		d->dm = diode_model(s, p);
@@ -282,12 +291,54 @@ static int fill_part(struct sim *s, struct simdev *d, size_t i, long *next, size
 	return simbjt_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
 }
 
+/* Index of the part named path (any case), or NL_NONE. */
+static uint32_t part_named(const struct nl_circuit *c, const char *path)
+{
+	for (size_t i = 0; i < nl_part_count(c); i++)
+		if (strcasecmp(nl_part_at(c, i)->path, path) == 0)
+			return (uint32_t)i;
+	return NL_NONE;
+}
+
+/* A behavioural source's probes as unknowns: node voltages, and branch
+ * currents of parts the solver gives a branch (V, L, E, H, B V=). */
+static int link_behav(struct sim *s, struct simdev *d, struct sim_refusal *ref)
+{
+	const struct nl_behav *bh = nl_part_at(s->c, d->part)->ext->behav;
+	long pa[NL_MAX_PROBES], pb[NL_MAX_PROBES];
+	if (bh->nprobes > NL_MAX_PROBES)
+		return refuse(ref, d->part, "the expression reads too many voltages and currents");
+	for (uint32_t k = 0; k < bh->nprobes; k++) {
+		const struct nl_probe *q = &bh->probes[k];
+		pa[k] = unknown_of(q->a);
+		pb[k] = unknown_of(q->b);
+		if (q->kind == NL_PROBE_I) {
+			uint32_t i = part_named(s->c, q->source);
+			pa[k] = i == NL_NONE ? -1 : branch_of(s, i);
+			pb[k] = -1;
+			if (pa[k] < 0)
+				return refuse(ref, d->part, "the expression reads the current of a part "
+							    "that is not a simulated voltage source or inductor");
+		}
+	}
+	if (!(d->bh = simbehav_create(s->ar, bh, pa, pb)))
+		return refuse(ref, d->part, "out of memory");
+	if (simbehav_uses_time(d->bh))
+		s->behav_time = 1;
+	return 1;
+}
+
 /* Second pass: K needs its inductors' branches, F and H their sources'. */
 static int link_controls(struct sim *s, struct sim_refusal *ref)
 {
 	for (size_t i = 0; i < s->ndev; i++) {
 		struct simdev *d = &s->dev[i];
 		const struct nl_part *p = nl_part_at(s->c, d->part);
+		if (d->kind == SD_B) {
+			if (!link_behav(s, d, ref))
+				return 0;
+			continue;
+		}
 		if (d->kind != SD_K && d->kind != SD_F && d->kind != SD_H)
 			continue;
 		uint32_t c0 = p->ext ? p->ext->ctrl_part[0] : NL_NONE;
@@ -392,6 +443,9 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 		s->o.max_step = isfinite(shortest) ? shortest / 200 : s->o.stop / 200;
 	if (!(s->o.max_step > 0))
 		s->o.max_step = 1e-6;
+	/* an expression of time may jump anywhere: no step past TSTEP */
+	if (s->behav_time && s->span.step > 0)
+		s->o.max_step = fmin(s->o.max_step, s->span.step);
 	return SIM_OK;
 }
 

@@ -69,6 +69,8 @@ int simdev_need(struct simdev *d, struct simmat *m)
 		d->h[0] = need(m, d->br, d->br2, &ok);
 		d->h[1] = need(m, d->br2, d->br, &ok);
 		break;
+	case SD_B:
+		return simbehav_need(d->bh, m, d->a, d->b, d->br);
 	case SD_V: case SD_L: case SD_E: case SD_H:
 		need_branch(d, m, d->a, d->b, d->br, 0, &ok);
 		d->h[4] = need(m, d->br, d->br, &ok);
@@ -301,6 +303,8 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
 {
 	if (d->kind == SD_D)
 		stamp_diode(d, st, m, x, limited);
+	else if (d->kind == SD_B)
+		simbehav_stamp(d->bh, m, x, st->t_src, limited);
 	else if (d->kind == SD_E || d->kind == SD_H || d->kind == SD_G || d->kind == SD_F)
 		stamp_controlled(d, m);
 	else
@@ -321,6 +325,8 @@ double simdev_current(const struct simdev *d, const double *x)
 	case SD_L:
 	case SD_V:
 		return at(x, d->br);
+	case SD_B:
+		return d->br >= 0 ? at(x, d->br) : simbehav_value(d->bh);
 	default:
 		return NAN;
 	}

@@ -7,10 +7,11 @@
 #include <stdint.h>
 
 #include "nl.h"
+#include "simbehav.h"
 #include "simmat.h"
 
 enum simdev_kind { SD_R, SD_C, SD_L, SD_K, SD_V, SD_I, SD_E, SD_G, SD_F,
-		   SD_H, SD_D, SD_Q, SD_M, SD_S };
+		   SD_H, SD_D, SD_Q, SD_M, SD_S, SD_B };
 
 /* Diode parameters after area scaling (SPICE level 1 names). */
 struct simdev_diode {
@@ -39,6 +40,7 @@ struct simdev {
 	struct simbjt *bj;    /* Q: the transport source (simbjt.h) */
 	struct simmos *mos;   /* M: the channel (simmos.h) */
 	struct simsw *sw;     /* S: the switch's model (simsw.h) */
+	struct simbehav *bh;   /* SD_B: a behavioural source (B, E/G value=) */
 	long h[8];            /* matrix handles */
 	/* integration state: charge (C, D) or flux (L) and the element's
 	 * current (C, D) or voltage (L) at the last accepted point, and the

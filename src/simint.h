@@ -33,6 +33,7 @@ struct sim {
 	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
 	long *shunt;             /* matrix handle of each node's diagonal */
 	double t, hstep;
+	int behav_time;          /* a behavioural source reads the time */
 	int after_corner;        /* next step is backward Euler */
 	unsigned nhist;          /* accepted points in the error history */
 	double hprev;            /* the last accepted step */

@@ -505,7 +505,7 @@ run check --format json "$tmp/sag_ok.cir"
 check "*@expect: a loaded output inside its declared range is no finding" bash -c "test $rc -eq 0 && ! grep -q intent-miss '$tmp/out'"
 # a part the solver cannot take in the ladder's island: no simulation, the
 # analysis's unloaded bounds judged instead, the basis and the reason said
-sed -e 's/^RL d3 0 2meg/RL d3 0 2meg\nB1 d3 0 I=v(d3)\/1g/' "$sag" >"$tmp/sag_b.cir"
+sed -e 's/^RL d3 0 2meg/RL d3 0 2meg\nB1 d3 0 I={temper*v(d3)\/1g}/' "$sag" >"$tmp/sag_b.cir"
 run check --format json --fail-on never "$tmp/sag_b.cir"
 check "*@expect: where the solver cannot run, the analysis judges and the finding says so" bash -c "test $rc -eq 0 && python3 -c '
 import json,sys
@@ -517,6 +517,23 @@ g=[x for x in f[\"findings\"] if x[\"rule\"] == \"intent-miss\"]
 assert len(g) == 1 and \"basis: the analysis (ideal diodes, no load), as the loaded output of S1 was not simulated: B1\" in g[0][\"computation\"], g
 assert g[0][\"worst\"] == 2640 and g[0][\"limit\"] == 2600, g
 ' '$tmp/out'"
+# a behavioural load the solver takes (B I= written without braces and
+# with blanks, read again as one expression): the loaded output is
+# simulated, and the 1 Gohm the source stands for pulls it a little below
+# where the 2 Mohm load alone puts it (0.05 % more load current: well under
+# 2 V of its 124 V sag; a misread expression, v(d3) as 1 ohm, collapses it)
+run check --format json --fail-on never "$sag"
+cp "$tmp/out" "$tmp/sag_plain.json"
+sed -e 's/^RL d3 0 2meg/RL d3 0 2meg\nB1 d3 0 I = v(d3) \/ 1g/' "$sag" >"$tmp/sag_b2.cir"
+run check --format json --fail-on never "$tmp/sag_b2.cir"
+check "a B source's expression is simulated: the loaded output gets a number" bash -c "test $rc -eq 0 && python3 -c '
+import json,sys
+o=json.load(open(sys.argv[1]))[\"files\"][0][\"loaded_outputs\"]
+p=json.load(open(sys.argv[2]))[\"files\"][0][\"loaded_outputs\"]
+assert len(o) == 1 and o[0][\"simulated\"] and p[0][\"simulated\"], o
+d=p[0][\"low\"][\"mean\"] - o[0][\"low\"][\"mean\"]
+assert 0 < d < 2, (d, o, p)
+' '$tmp/out' '$tmp/sag_plain.json'"
 
 # rules --format json (docs/rules.schema.json); a format rules does not write is refused.
 run rules --format json --profile flight

@@ -69,7 +69,8 @@ BLOCKED = {
     "ngspice/examples/cider/serial/dbridge.cir":
         (["D1"], "numerical (device-level) diodes: no compact model to simulate"),
     "ngspice/examples/vdmos/dcdc.sp":
-        (["B1"], "a behavioural source and a VDMOS switch drive the boost converter"),
+        (["R4", "M1"], "a VDMOS switch and a load resistance that follows the time "
+         "(R = expression of time) drive the boost converter; its B sources are simulated"),
     "xyce/Netlists/Certification_Tests/BUG_456/push_pull_xyce_baseline.cir":
         (["X_M3.M1"], "a level-3 MOSFET (in the power switch's subcircuit) drives the "
          "transformer beside the bipolar transistors; only level 1 is simulated"),
@@ -90,7 +91,8 @@ BLOCKED = {
         (["xbr1.Ktrans", "xbr2.Ktrans"], "transformers coupled through Xyce's nonlinear CORE "
          "model, in whose reading (from memory) the inductor values are turns, not henries"),
     "learning_ngspice/circuits/10_timer_555/01_timer_555_astavel_monostavel_pwm.cir":
-        (["X555_PWM.Bdisch_ctrl"], "a 555 model made of behavioural sources"),
+        (["X555_PWM.Sdisch"], "the 555 model's discharge switch; its behavioural "
+         "comparators and flip-flop (B sources) are simulated"),
 }
 
 

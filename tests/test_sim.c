@@ -27,7 +27,16 @@
  *   body effect) drain current is Shichman-Hodges' at its settled vds;
  * - a voltage-controlled switch with hysteresis is off while its control
  *   rises through the band between VT - VH and VT + VH, on while it falls; a 0-ohm resistor is 1 mOhm and
- *   out-of-range diode parameters fall back to defaults. */
+ *   out-of-range diode parameters fall back to defaults;
+ * - behavioural sources: B V={2*V(a)} follows an E source of gain 2 point
+ *   by point; B I={V(a)*V(a)/1k} into 1 k gives v = -V(a)^2 (a current
+ *   from the + pin through the source, as ngspice's manual defines it),
+ *   and fed back on its own node through 1 k from 3 V it settles where
+ *   (3 - v)/1k = v^2/1k, v = (sqrt(13) - 1)/2 (the quadratic's positive
+ *   root); a ternary comparator is 5 V exactly where its input is above
+ *   0.5 V; a high-gain clamp closing a resistive loop settles at its
+ *   linear solution; poly() and expressions of temper stay refused by
+ *   name. */
 #include "testutil.h"
 
 #include <math.h>
@@ -483,6 +492,131 @@ static void test_flow_half_wave(void **state)
 	run_free(&r);
 }
 
+static void test_behav_gain(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"o", "e"};
+	start(&c, "b gain\nV1 a 0 sin(0 3 1k)\nR0 a 0 1k\nB1 o 0 V={2*V(a)}\nR1 o 0 1k\n"
+		  "E1 e 0 a 0 2\nR2 e 0 1k\n", nodes, 2, 10e-6);
+	for (int k = 1; k <= 13; k++) {
+		assert_int_equal(sim_run(c.s, k * 1e-4, seen, &c), SIM_OK);
+		assert_near(c.v[0], c.v[1], 1e-9);
+	}
+	assert_near(c.vmax, 6, 0.01);
+	finish(&c);
+}
+
+static void test_behav_square_law(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"p", "a", "f"};
+	start(&c, "b square\nV1 a 0 pwl(0 0 1m 4)\nR0 a 0 1k\nB1 p 0 I={V(a)*V(a)/1k}\n"
+		  "R1 p 0 1k\nV2 s 0 3\nR2 s f 1k\nB2 f 0 I={V(f)*V(f)/1k}\n", nodes, 3, 10e-6);
+	for (int k = 1; k <= 10; k++) {
+		assert_int_equal(sim_run(c.s, k * 1e-4, seen, &c), SIM_OK);
+		assert_near(c.v[0], -c.v[1] * c.v[1], 1e-9 + 1e-6 * c.v[1] * c.v[1]);
+		assert_near(c.v[2], (sqrt(13.0) - 1) / 2, 1e-6);
+	}
+	assert_near(c.v[1], 4, 1e-9);
+	finish(&c);
+}
+
+struct cmp_case {
+	struct simrun_case c;
+	int high, low, wrong;
+};
+
+static int comparator_seen(void *ud, double t, const double *v)
+{
+	struct cmp_case *k = ud;
+	double in = v[k->c.node[0]], q = v[k->c.node[1]];
+	(void)t;
+	if (fabs(in - 0.5) < 1e-6)
+		return 0; /* on the threshold: either is right */
+	int want = in > 0.5;
+	int at5 = fabs(q - 5) < 1e-9, at0 = fabs(q) < 1e-9;
+	k->high += want && at5;
+	k->low += !want && at0;
+	k->wrong += want ? !at5 : !at0;
+	return 0;
+}
+
+static void test_behav_comparator(void **state)
+{
+	(void)state;
+	struct cmp_case k = {0};
+	const char *nodes[] = {"a", "q"};
+	start(&k.c, "b cmp\nV1 a 0 sin(0 1 1k)\nR0 a 0 1k\nB1 q 0 V={V(a) > 0.5 ? 5 : 0}\n"
+		    "R1 q 0 1k\nC1 q 0 1n\n", nodes, 2, 10e-6);
+	assert_int_equal(sim_run(k.c.s, 3e-3, comparator_seen, &k), SIM_OK);
+	assert_int_equal(k.wrong, 0);
+	assert_true(k.high > 50 && k.low > 100);
+	finish(&k.c);
+}
+
+/* A clamp max(0, min(5, 10k (2.5 - v(x)))) closing a loop through two
+ * 10 k resistors from 1 V: Newton starts on the clamp's flat end (slope 0)
+ * and must still reach the linear part, where err = 2e4 / 5001 V (from
+ * x = (1 + err) / 2 and err = 1e4 (2.5 - x)) once C2 has settled
+ * (R4 C2 = 0.5 ms; 24 of them leave 4e-11). And one whose iterates,
+ * without the solver's damping of a probe that turns back, bounce between
+ * the two flat ends for ever (no convergence). */
+static void test_behav_clamp_loop(void **state)
+{
+	(void)state;
+	struct simrun_case c;
+	const char *nodes[] = {"err"};
+	start(&c, "clamp\nV2 ref 0 2.5\nV1 s 0 1\nR3 s x 10k\nR4 err x 10k\nC2 err x 50n\n"
+		  "B1 err 0 V={max(0,min(5,V(ref,x)*10k))}\n", nodes, 1, 10e-6);
+	assert_int_equal(sim_run(c.s, 12e-3, seen, &c), SIM_OK);
+	assert_near(c.v[0], 2e4 / 5001, 1e-5);
+	finish(&c);
+	/* the same clamp (gain 10) whose output drives its input through
+	   50 nF alone: from the zero state the first iterates jump between
+	   the clamp's ends; at the start (C2 uncharged, x = err) it sits on
+	   the linear part, err = 25/11 V, and once C2 has charged it is
+	   saturated at 5 V (x stays under 1.5 V) */
+	start(&c, "clamp2\nV2 ref 0 2.5\nV1 s 0 sin(1 0.5 1k)\nR3 s x 10k\nC2 err x 50n\n"
+		  "B1 err 0 V={max(0,min(5,V(ref,x)*10))}\n", nodes, 1, 10e-6);
+	assert_int_equal(sim_run(c.s, 3e-3, seen, &c), SIM_OK);
+	assert_near(c.v[0], 5, 1e-9);
+	finish(&c);
+}
+
+static void test_behav_refusals(void **state)
+{
+	(void)state;
+	const char *decks[] = {
+		"poly\nV1 a 0 1\nR1 a 0 1k\nE1 b 0 poly(1) a 0 0 2\nR2 b 0 1k\n",
+		"temper\nV1 a 0 1\nR1 a 0 1k\nB1 b 0 V={temper*V(a)}\nR2 b 0 1k\n",
+		NULL, /* -(-(...V(a)...)) 250 deep, filled in below */
+	};
+	const char *who[] = {"E1", "B1", "B1"};
+	static char nest[1200];
+	int n = snprintf(nest, sizeof nest, "nest\nV1 a 0 1\nR1 a 0 1k\nB1 b 0 V={");
+	for (int i = 0; i < 250; i++)
+		nest[n++] = '-', nest[n++] = '(';
+	n += snprintf(nest + n, sizeof nest - (size_t)n, "V(a)");
+	for (int i = 0; i < 250; i++)
+		nest[n++] = ')';
+	snprintf(nest + n, sizeof nest - (size_t)n, "}\nR2 b 0 1k\n");
+	decks[2] = nest;
+	for (int i = 0; i < 3; i++) {
+		struct run r;
+		struct sim *s = NULL;
+		struct sim_refusal ref;
+		struct hr_alloc h = hr_alloc_default();
+		struct sim_opts o = {0};
+		run_text(&r, decks[i]);
+		assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
+		assert_null(s);
+		assert_string_equal(nl_part_at(r.r.circuit, ref.part)->path, who[i]);
+		run_free(&r);
+	}
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -499,6 +633,11 @@ int main(void)
 		cmocka_unit_test(test_dense_solve),
 		cmocka_unit_test(test_flow_resistors),
 		cmocka_unit_test(test_flow_half_wave),
+		cmocka_unit_test(test_behav_gain),
+		cmocka_unit_test(test_behav_square_law),
+		cmocka_unit_test(test_behav_comparator),
+		cmocka_unit_test(test_behav_clamp_loop),
+		cmocka_unit_test(test_behav_refusals),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
