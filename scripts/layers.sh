@@ -48,6 +48,7 @@ sim solver
 simdev solver
 simbjt solver
 simmos solver
+simjfet solver
 simsw solver
 simsrc solver
 simmat solver
