@@ -49,6 +49,7 @@ simdev solver
 simbjt solver
 simmos solver
 simjfet solver
+simvdmos solver
 simsw solver
 simsrc solver
 simmat solver

@@ -12,6 +12,7 @@
 #include "simjfet.h"
 #include "simmos.h"
 #include "simsw.h"
+#include "simvdmos.h"
 #include "simdev.h"
 #include "simint.h"
 #include "simmat.h"
@@ -99,6 +100,7 @@ static int transistor_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 {
 	const char *why = p->letter == 'q'   ? simbjt_refusal(p)
 			  : p->letter == 'j' ? simjfet_refusal(p)
+			  : simvdmos_is(p)   ? simvdmos_refusal(p)
 					     : simmos_refusal(p);
 	if (why)
 		return refuse(ref, i, why);
@@ -174,6 +176,8 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 				simbjt_size(p, &nd, &ni);
 			else if (p->letter == 'j')
 				simjfet_size(p, &nd, &ni);
+			else if (simvdmos_is(p))
+				simvdmos_size(p, &nd, &ni);
 			else
 				simmos_size(p, &nd, &ni);
 			s->ndev += nd;
@@ -282,6 +286,10 @@ static int fill_part(struct sim *s, struct simdev *d, size_t i, long *next, size
 	if (p->letter == 'j') {
 		simjfet_size(p, used, &ni);
 		return simjfet_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
+	}
+	if (p->letter == 'm' && simvdmos_is(p)) {
+		simvdmos_size(p, used, &ni);
+		return simvdmos_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
 	}
 	if (p->letter == 'm') {
 		simmos_size(p, used, &ni);

@@ -273,9 +273,9 @@ check "sim with an unknown node names it" bash -c "test $rc -eq 2 && grep -q \"n
 printf 't\nV1 a 0 sin(0 1 1k)\nZ1 a b 0 zn\nR1 b 0 1k\n.model zn nmf\n' > "$tmp/bjt.cir"
 run sim "$tmp/bjt.cir" --node b
 check "sim refuses a MESFET, naming it" bash -c "test $rc -eq 2 && grep -q 'Z1: the solver has no model' '$tmp/err'"
-printf 't\nV1 a 0 sin(0 1 1k)\nQ1 a b 0 qn\nR1 b 0 1k\nM1 a b 0 0 mn w=2u l=1u\nS1 a 0 b 0 sx\nJ1 a b 0 jn\nJ2 a b 0 jp 2\n.model qn npn\n.model mn nmos level=1\n.model sx sw(vt=0.5)\n.model jn njf\n.model jp pjf\n' > "$tmp/trans.cir"
+printf 't\nV1 a 0 sin(0 1 1k)\nQ1 a b 0 qn\nR1 b 0 1k\nM1 a b 0 0 mn w=2u l=1u\nS1 a 0 b 0 sx\nJ1 a b 0 jn\nJ2 a b 0 jp 2\nM3 a b 0 vd\n.model qn npn\n.model mn nmos level=1\n.model sx sw(vt=0.5)\n.model jn njf\n.model jp pjf\n.model vd vdmos pchan vto=-2 cgdmax=1n\n' > "$tmp/trans.cir"
 run sim "$tmp/trans.cir" --node b
-check "sim simulates a bipolar transistor, a level-1 MOSFET, a switch and two JFETs" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err'"
+check "sim simulates a bipolar transistor, a level-1 MOSFET, a switch, two JFETs and a VDMOS" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err'"
 printf 't\nV1 a 0 sin(0 1 1k)\nM1 a b 0 0 mb\nR1 b 0 1k\n.model mb nmos level=49\n' > "$tmp/bsim.cir"
 run sim "$tmp/bsim.cir" --node b
 check "sim refuses a MOSFET beyond level 1, saying so" bash -c "test $rc -eq 2 && grep -q 'M1: only level-1 (Shichman-Hodges) MOSFETs are simulated' '$tmp/err'"

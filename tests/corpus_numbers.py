@@ -70,7 +70,8 @@ BLOCKED = {
     "ngspice/examples/cider/serial/dbridge.cir":
         (["D1"], "numerical (device-level) diodes: no compact model to simulate"),
     "ngspice/examples/vdmos/dcdc.sp":
-        (["B1"], "a behavioural source and a VDMOS switch drive the boost converter"),
+        (["B1"], "behavioural sources (error amplifier, PWM) drive the VDMOS switch of the "
+         "boost converter"),
     "xyce/Netlists/Certification_Tests/BUG_456/push_pull_xyce_baseline.cir":
         (["X_M3.M1"], "a level-3 MOSFET (in the power switch's subcircuit) drives the "
          "transformer beside the bipolar transistors; only level 1 is simulated"),
