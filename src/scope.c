@@ -362,8 +362,8 @@ static uint32_t count_assigns(const struct deck_field *f, uint32_t n)
 	uint32_t k = 0;
 	for (uint32_t i = 0; i < n; i++)
 		k += f[i].kind == FIELD_ASSIGN || is_flag(&f[i]) ? 1
-		     : f[i].kind == FIELD_CALL ? count_assigns(f[i].args, f[i].nargs)
-					       : 0;
+		     : f[i].kind == FIELD_CALL                   ? count_assigns(f[i].args, f[i].nargs)
+								 : 0;
 	return k;
 }
 
