@@ -49,6 +49,8 @@ sim solver
 simdev solver
 simbjt solver
 simmos solver
+simjfet solver
+simvdmos solver
 simsw solver
 simsrc solver
 simmat solver

@@ -596,7 +596,7 @@ static enum dev_status build_modelled(struct build *b,
 	return st;
 }
 
-/* A bipolar transistor: its area (the first number after the model, or
+/* A bipolar transistor or a JFET: its area (the first number after the model, or
  * area=) and m= are kept for the solver; the rest (off, ic=, temp=) is
  * not used. */
 static enum dev_status build_bjt(struct build *b, const struct opaque_rule *r)
@@ -697,7 +697,7 @@ static enum dev_status build_opaque(struct build *b, char letter)
 			}
 		return DEV_OK;
 	}
-	if (r->model && letter == 'q')
+	if (r->model && (letter == 'q' || letter == 'j'))
 		return build_bjt(b, r);
 	if (r->model && letter == 'm')
 		return build_mos(b, r);

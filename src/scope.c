@@ -317,12 +317,31 @@ static double model_value(struct elab *el, const struct deck_field *v)
 	return x;
 }
 
+/* A flag word of a model card (VDMOS's pchan and nchan): kept as a
+ * parameter of value 1. */
+static int is_flag(const struct deck_field *f)
+{
+	return f->kind == FIELD_ATOM &&
+	       (num_ieq(f->text, f->len, "pchan") || num_ieq(f->text, f->len, "nchan"));
+}
+
 static void model_params(struct elab *el, struct nl_model *m,
 			 const struct deck_field *f, uint32_t n)
 {
 	for (uint32_t i = 0; i < n; i++) {
 		if (f[i].kind == FIELD_CALL && f[i].len == 0) {
 			model_params(el, m, f[i].args, f[i].nargs);
+			continue;
+		}
+		if (is_flag(&f[i])) {
+			char *flag = arena_strndup(el->ar, f[i].text, f[i].len);
+			if (!flag) {
+				el->oom = 1;
+				return;
+			}
+			num_fold(flag, f[i].len);
+			m->keys[m->nparams] = flag;
+			m->values[m->nparams++] = 1;
 			continue;
 		}
 		if (f[i].kind != FIELD_ASSIGN)
@@ -342,9 +361,9 @@ static uint32_t count_assigns(const struct deck_field *f, uint32_t n)
 {
 	uint32_t k = 0;
 	for (uint32_t i = 0; i < n; i++)
-		k += f[i].kind == FIELD_ASSIGN ? 1
-		     : f[i].kind == FIELD_CALL ? count_assigns(f[i].args, f[i].nargs)
-					       : 0;
+		k += f[i].kind == FIELD_ASSIGN || is_flag(&f[i]) ? 1
+		     : f[i].kind == FIELD_CALL                   ? count_assigns(f[i].args, f[i].nargs)
+								 : 0;
 	return k;
 }
 

@@ -10,8 +10,10 @@
 
 #include "dmodel.h"
 #include "simbjt.h"
+#include "simjfet.h"
 #include "simmos.h"
 #include "simsw.h"
+#include "simvdmos.h"
 #include "simdev.h"
 #include "simint.h"
 #include "simmat.h"
@@ -93,11 +95,14 @@ static int refuse(struct sim_refusal *ref, uint32_t part, const char *why)
 	return 0;
 }
 
-/* A Q or M part: a transistor when its model is one the solver has. */
+/* A Q, M or J part: a transistor when its model is one the solver has. */
 static int transistor_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 			   struct sim_refusal *ref)
 {
-	const char *why = p->letter == 'q' ? simbjt_refusal(p) : simmos_refusal(p);
+	const char *why = p->letter == 'q'   ? simbjt_refusal(p)
+			  : p->letter == 'j' ? simjfet_refusal(p)
+			  : simvdmos_is(p)   ? simvdmos_refusal(p)
+					     : simmos_refusal(p);
 	if (why)
 		return refuse(ref, i, why);
 	*kind = p->letter == 'q' ? SD_Q : SD_M;
@@ -129,7 +134,7 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 	}
 	if (p->ext && p->ext->behav_why)
 		return refuse(ref, i, p->ext->behav_why);
-	if (p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm'))
+	if (p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm' || p->letter == 'j'))
 		return transistor_kind(p, i, kind, ref);
 	if (p->kind == NL_OPAQUE && p->letter == 's')
 		return switch_kind(p, i, kind, ref);
@@ -176,6 +181,10 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 			size_t nd, ni;
 			if (k == SD_Q)
 				simbjt_size(p, &nd, &ni);
+			else if (p->letter == 'j')
+				simjfet_size(p, &nd, &ni);
+			else if (simvdmos_is(p))
+				simvdmos_size(p, &nd, &ni);
 			else
 				simmos_size(p, &nd, &ni);
 			s->ndev += nd;
@@ -275,7 +284,7 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 static int fill_part(struct sim *s, struct simdev *d, size_t i, long *next, size_t *used)
 {
 	const struct nl_part *p = nl_part_at(s->c, i);
-	if (!(p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm')))
+	if (!(p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm' || p->letter == 'j')))
 		return fill_device(s, d, i, next);
 	const uint32_t *pin = nl_pins(s->c, p);
 	long u[4] = {-1, -1, -1, -1}; /* C B E, or D G S B */
@@ -283,6 +292,14 @@ static int fill_part(struct sim *s, struct simdev *d, size_t i, long *next, size
 		u[k] = unknown_of(pin[k]);
 	double mult = p->ext && isfinite(p->ext->mult) && p->ext->mult > 0 ? p->ext->mult : 1;
 	size_t ni;
+	if (p->letter == 'j') {
+		simjfet_size(p, used, &ni);
+		return simjfet_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
+	}
+	if (p->letter == 'm' && simvdmos_is(p)) {
+		simvdmos_size(p, used, &ni);
+		return simvdmos_fill(s->ar, p, (uint32_t)i, u, mult, d, next);
+	}
 	if (p->letter == 'm') {
 		simmos_size(p, used, &ni);
 		return simmos_fill(s->ar, p, (uint32_t)i, u, mult, d, next);

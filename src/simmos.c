@@ -208,20 +208,30 @@ static double drain(const struct simmos *t, double vgs, double vds, double vbs, 
 		sarg = fmax(0, sphi - vbs / (2 * sphi));
 	*von = t->vto + t->gamma * (sarg - sphi);
 	double arg = sarg > 0 ? t->gamma / (2 * sarg) : 0;
-	double vgst = vgs - *von;
+	double vgst = vgs - *von, dvgst = 1, beta = t->beta, dbeta = 0;
 	g[0] = g[1] = g[2] = 0;
+	if (t->ksub > 0) { /* VDMOS: ksub ln(1 + e^{vgst/ksub}) in place of vgst */
+		double z = vgst / t->ksub;
+		vgst = z > 40 ? vgst : t->ksub * log1p(exp(z));
+		dvgst = z > 40 ? 1 : 1 / (1 + exp(-z));
+	}
+	if (t->theta > 0 && vgs > 0) { /* VDMOS: beta / (1 + THETA vgs) */
+		beta /= 1 + t->theta * vgs;
+		dbeta = -beta * t->theta / (1 + t->theta * vgs);
+	}
 	if (vgst <= 0)
 		return 0;
-	double betap = t->beta * (1 + t->lambda * vds), id;
+	double betap = beta * (1 + t->lambda * vds), id;
 	if (vgst <= vds) { /* saturation */
 		id = betap * vgst * vgst / 2;
 		g[0] = betap * vgst;
-		g[1] = t->lambda * t->beta * vgst * vgst / 2;
+		g[1] = t->lambda * beta * vgst * vgst / 2;
 	} else { /* linear */
 		id = betap * vds * (vgst - vds / 2);
 		g[0] = betap * vds;
-		g[1] = betap * (vgst - vds) + t->lambda * t->beta * vds * (vgst - vds / 2);
+		g[1] = betap * (vgst - vds) + t->lambda * beta * vds * (vgst - vds / 2);
 	}
+	g[0] = g[0] * dvgst + (beta > 0 ? id / beta * dbeta : 0);
 	g[2] = g[0] * arg;
 	return id;
 }

@@ -20,6 +20,9 @@ struct simmos {
 	double type;               /* +1 NMOS, -1 PMOS */
 	double vto, beta;          /* V (in the device's own polarity); A/V^2 */
 	double lambda, gamma, phi; /* 1/V; sqrt(V); V */
+	double ksub, theta;        /* VDMOS only (0 for the others): the
+				      subthreshold smoothing (V) and the
+				      mobility modulation (1/V) */
 	double vgs, vds;           /* limited, of the last stamp (own polarity) */
 	const struct simdev *jbs;  /* bulk-source diode: its vd is vbs */
 };

@@ -270,12 +270,12 @@ run sim "$simdeck"
 check "sim without --node is a usage error" bash -c "test $rc -eq 2 && grep -q 'usage: headroom sim' '$tmp/err'"
 run sim "$simdeck" --node nowhere
 check "sim with an unknown node names it" bash -c "test $rc -eq 2 && grep -q \"no node named 'nowhere'\" '$tmp/err'"
-printf 't\nV1 a 0 sin(0 1 1k)\nJ1 a b 0 jn\nR1 b 0 1k\n.model jn njf\n' > "$tmp/bjt.cir"
+printf 't\nV1 a 0 sin(0 1 1k)\nZ1 a b 0 zn\nR1 b 0 1k\n.model zn nmf\n' > "$tmp/bjt.cir"
 run sim "$tmp/bjt.cir" --node b
-check "sim refuses a JFET, naming it" bash -c "test $rc -eq 2 && grep -q 'J1: the solver has no model' '$tmp/err'"
-printf 't\nV1 a 0 sin(0 1 1k)\nQ1 a b 0 qn\nR1 b 0 1k\nM1 a b 0 0 mn w=2u l=1u\nS1 a 0 b 0 sx\n.model qn npn\n.model mn nmos level=1\n.model sx sw(vt=0.5)\n' > "$tmp/trans.cir"
+check "sim refuses a MESFET, naming it" bash -c "test $rc -eq 2 && grep -q 'Z1: the solver has no model' '$tmp/err'"
+printf 't\nV1 a 0 sin(0 1 1k)\nQ1 a b 0 qn\nR1 b 0 1k\nM1 a b 0 0 mn w=2u l=1u\nS1 a 0 b 0 sx\nJ1 a b 0 jn\nJ2 a b 0 jp 2\nM3 a b 0 vd\n.model qn npn\n.model mn nmos level=1\n.model sx sw(vt=0.5)\n.model jn njf\n.model jp pjf\n.model vd vdmos pchan vto=-2 cgdmax=1n\n' > "$tmp/trans.cir"
 run sim "$tmp/trans.cir" --node b
-check "sim simulates a bipolar transistor, a level-1 MOSFET and a switch" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err'"
+check "sim simulates a bipolar transistor, a level-1 MOSFET, a switch, two JFETs and a VDMOS" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err'"
 printf 't\nV1 a 0 sin(0 1 1k)\nM1 a b 0 0 mb\nR1 b 0 1k\n.model mb nmos level=49\n' > "$tmp/bsim.cir"
 run sim "$tmp/bsim.cir" --node b
 check "sim refuses a MOSFET beyond level 1, saying so" bash -c "test $rc -eq 2 && grep -q 'M1: only level-1 (Shichman-Hodges) MOSFETs are simulated' '$tmp/err'"
@@ -304,9 +304,9 @@ assert n >= 40, n
 ' '$tmp/out'"
 run check --verify --format html -o "$tmp/verify.html" --fail-on never "$here/../examples"
 check "check --verify --format html: every plot carries its simulated waveform, all finite" bash -c "test $rc -eq 0 && test \$(grep -o '<polyline class=\"wave\"' '$tmp/verify.html' | wc -l) -eq \$(grep -o '<polyline class=\"sim\"' '$tmp/verify.html' | wc -l) && test \$(grep -o '<polyline class=\"sim\"' '$tmp/verify.html' | wc -l) -ge 20 && ! grep -qiE '[ ,\"]-?nan[ ,\"]' '$tmp/verify.html'"
-printf 't\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nRL b 0 100k\nR2 a e 1k\nC2 e 0 1n\nJ1 e f 0 jn\nR3 f 0 1k\n.model dm d\n.model jn njf\n' > "$tmp/bjt2.cir"
+printf 't\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nRL b 0 100k\nR2 a e 1k\nC2 e 0 1n\nZ1 e f 0 zn\nR3 f 0 1k\n.model dm d\n.model zn nmf\n' > "$tmp/bjt2.cir"
 run check --verify "$tmp/bjt2.cir"
-check "check --verify leaves a JFET open, compares the clamp (10.3 V against 11 V: holds, not confirmed); the cap beside it, in no diode-capacitor network and unproven, is not listed" bash -c "grep -q 'simulated (--verify): steady' '$tmp/out' && grep -q 'left open in the simulation (no solver model): J1' '$tmp/out' && grep -q 'reverse = max v(b) - v(0) over a period = 11 V.*simulated 10\.[0-9]* V: the bound holds, simulated [5-9] % below it' '$tmp/out' && grep -q '^  C1 ' '$tmp/out' && ! grep -q '^  C2 ' '$tmp/out' && ! grep -q 'C2 has no worst case' '$tmp/out'"
+check "check --verify leaves a MESFET open, compares the clamp (10.3 V against 11 V: holds, not confirmed); the cap beside it, in no diode-capacitor network and unproven, is not listed" bash -c "grep -q 'simulated (--verify): steady' '$tmp/out' && grep -q 'left open in the simulation (no solver model): Z1' '$tmp/out' && grep -q 'reverse = max v(b) - v(0) over a period = 11 V.*simulated 10\.[0-9]* V: the bound holds, simulated [5-9] % below it' '$tmp/out' && grep -q '^  C1 ' '$tmp/out' && ! grep -q '^  C2 ' '$tmp/out' && ! grep -q 'C2 has no worst case' '$tmp/out'"
 printf 't\nV1 a 0 pwl(0 0 1m 5)\nC1 a b 1u\nD1 0 b dm\n.model dm d\n' > "$tmp/once.cir"
 run check --verify "$tmp/once.cir"
 check "check --verify on a circuit with nothing periodic says why it did not simulate" grep -q 'not simulated (--verify): no source repeats' "$tmp/out"
@@ -883,7 +883,7 @@ cp "$data/tantalum_hot.cir" "$tmp/amb/"
 inproj "$tmp/amb" check tantalum_hot.cir
 check "ambient: the config key gives the same limit" grep -q "(limit 42%) \[cap-derating\]" "$tmp/out"
 
-# A surge the solver cannot simulate (a JFET beside the rectifier) keeps
+# A surge the solver cannot simulate (a MESFET beside the rectifier) keeps
 # the first-pulse formula, labelled an estimate, not proven.
 run check --fail-on never "$data/surge_estimate.cir"
 check "surge: the formula's figure is an estimate" grep -q "^  D1 .* surge_current .* 11 A .* estimate" "$tmp/out"

@@ -407,22 +407,22 @@ static void test_ideal_run_share(void **state)
 	checked_free(&c);
 }
 
-/* A JFET drives a transformer's primary; the detector on the
+/* A MESFET drives a transformer's primary; the detector on the
  * secondary shares no node with it (the coupling is magnetic), but the
- * solver, which leaves the JFET open, would simulate a secondary with
- * no drive at all: the detector gets no number and the JFET is the
+ * solver, which leaves the MESFET open, would simulate a secondary with
+ * no drive at all: the detector gets no number and the MESFET is the
  * reason. The same through a current-controlled source (F), whose
- * controlling current flows beside the JFET. */
+ * controlling current flows beside the MESFET. */
 static void test_blocked_across_coupling(void **state)
 {
 	(void)state;
 	static const char *const decks[] = {
-		"k\nVIN in 0 sin(0 10 1k)\nJ1 in b p jn\nRB b 0 1k\nLP p 0 1m\n"
+		"k\nVIN in 0 sin(0 10 1k)\nZ1 in b p zn\nRB b 0 1k\nLP p 0 1m\n"
 		"LS a 0 1m\nKT LP LS 0.99\nD1 a o dm\nCO o 0 1u\nRL o 0 10k\n"
-		".model dm d\n.model jn njf\n",
-		"f\nVIN in 0 sin(0 10 1k)\nJ1 in b p jn\nRB b 0 1k\nVS p 0 0\n"
+		".model dm d\n.model zn nmf\n",
+		"f\nVIN in 0 sin(0 10 1k)\nZ1 in b p zn\nRB b 0 1k\nVS p 0 0\n"
 		"F1 0 a VS 2\nRA a 0 1k\nD1 a o dm\nCO o 0 1u\nRL o 0 10k\n"
-		".model dm d\n.model jn njf\n",
+		".model dm d\n.model zn nmf\n",
 	};
 	for (size_t i = 0; i < sizeof decks / sizeof decks[0]; i++) {
 		struct checked c;
@@ -432,14 +432,14 @@ static void test_blocked_across_coupling(void **state)
 		if (co->basis != SB_NONE)
 			fail_msg("deck %zu: CO has a number, %g V (%s)", i, co->worst, co->corner);
 		assert_non_null(co->unproven);
-		assert_non_null(strstr(co->unproven, "J1 has no model in the solver"));
+		assert_non_null(strstr(co->unproven, "Z1 has no model in the solver"));
 		assert_true(fired(&c, "stress-unsettled", "CO"));
 		checked_free(&c);
 	}
 }
 
 /* A clamp beside an amplifier stage: the stage's coupling and bypass
- * capacitors sit in an island with a JFET and no diode, so their
+ * capacitors sit in an island with a MESFET and no diode, so their
  * analytic bounds are not proven and no simulation can give a number; they
  * belong to no diode-capacitor network and are not listed (they were once
  * listed as unsettled, a warning each: 170,000 of them on the amplifier
@@ -449,7 +449,7 @@ static void test_blocked_across_coupling(void **state)
  * the stage still gets its range at every corner. */
 #define AMP_CELL                                                             \
 	"VCC vcc 0 12\nCB vcc 0 100n\nRB1 vcc b 47k\nRB2 b 0 10k\nRC vcc c 4.7k\n" \
-	"RE e 0 1k\nCE e 0 10u\nCIN a b 100n\nJ1 c b e jn\n.model jn njf\n"
+	"RE e 0 1k\nCE e 0 10u\nCIN a b 100n\nZ1 c b e zn\n.model zn nmf\n"
 
 static void test_amplifier_beside(void **state)
 {
@@ -475,7 +475,7 @@ static void test_amplifier_beside(void **state)
 	assert_int_equal(cb->basis, SB_ANALYSIS);
 	assert_true(fabs(cb->worst - 13.2) < 1e-9);
 	/* the analysis puts b on the rail through RB1 (its own no-current
-	   rule; the JFET is what it does not model): 12 V nominal,
+	   rule; the MESFET is what it does not model): 12 V nominal,
 	   13.2 V at +10 %, so the line is missed only if the corner runs
 	   settled b */
 	assert_true(fired(&both, "intent-miss", NULL));
@@ -721,10 +721,10 @@ static void test_verify_delay(void **state)
 }
 
 /* A stress without a number is never dropped: a bridge on a floating
- * source (the analysis does not settle its nodes) beside a JFET the
+ * source (the analysis does not settle its nodes) beside a MESFET the
  * solver has no model for has no power-up surge figure, and each diode's
  * surge is a stress-unsettled warning that says why. Without the
- * JFET the solver runs the switch-on and each surge is simulated. */
+ * MESFET the solver runs the switch-on and each surge is simulated. */
 static void test_surge_without_number(void **state)
 {
 	(void)state;
@@ -732,7 +732,7 @@ static void test_surge_without_number(void **state)
 	const char *bridge = "bridge\nVS a b SIN(0 15 60)\nD1 0 a dm\nD2 a out dm\nD3 0 b dm\n"
 			     "D4 b out dm\nRL out 0 2k\n.model dm d is=1e-14\n";
 	char text[400];
-	snprintf(text, sizeof text, "%sJ1 out bq 0 jn\nRB bq 0 1k\n.model jn njf\n", bridge);
+	snprintf(text, sizeof text, "%sZ1 out bq 0 zn\nRB bq 0 1k\n.model zn nmf\n", bridge);
 	check_text(&c, text, "industrial", 0.10, 0);
 	const struct stress *s = stress_of(&c, "D1", SQ_SURGE);
 	assert_non_null(s);
@@ -741,7 +741,7 @@ static void test_surge_without_number(void **state)
 	for (size_t i = 0; i < c.run.rr.n; i++) {
 		const struct finding *f = &c.run.rr.f[i];
 		if (strcmp(f->rule->id, "stress-unsettled") == 0 && strstr(f->message, "power-up surge") &&
-		    strstr(f->computation, "not simulated: J1 has no model"))
+		    strstr(f->computation, "not simulated: Z1 has no model"))
 			n++;
 	}
 	assert_int_equal(n, 4);
@@ -843,7 +843,7 @@ static void test_check_every_failure(void **state)
 /* Proven, simulated, none (docs/check.md "Proven and simulated"): a pin fed
  * through 10 k into 1 nF at 5 kHz (RC = 10 us, a twentieth of a period)
  * breaks the analysis's assumption and is simulated, with the reason; a
- * JFET in a clamp's island has no model anywhere, so the clamp gets
+ * MESFET in a clamp's island has no model anywhere, so the clamp gets
  * no number and a warning that names it; a plain clamp stays proven. */
 static void test_proof_basis(void **state)
 {
@@ -858,14 +858,14 @@ static void test_proof_basis(void **state)
 	/* clamped between the rails less a diode drop or so: 3.3 V + Vf */
 	assert_true(c1->worst > 3.3 && c1->worst < 4.5);
 	checked_free(&c);
-	check_text(&c, "q\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nJ1 b c 0 jn\n"
-		       "RC c 0 1k\n.model dm d\n.model jn njf\n", "industrial", 0, 0);
+	check_text(&c, "q\nV1 a 0 sin(0 5 1k)\nC1 a b 1u\nD1 0 b dm\nZ1 b c 0 zn\n"
+		       "RC c 0 1k\n.model dm d\n.model zn nmf\n", "industrial", 0, 0);
 	c1 = stress_of(&c, "C1", SQ_VOLTAGE);
 	assert_non_null(c1);
 	assert_int_equal(c1->basis, SB_NONE);
 	assert_false(c1->bounded);
 	assert_true(fired(&c, "stress-unsettled", "C1"));
-	assert_non_null(strstr(c1->unproven, "J1"));
+	assert_non_null(strstr(c1->unproven, "Z1"));
 	checked_free(&c);
 	check_text(&c, CLAMP("50", "100"), "industrial", 0, 0);
 	assert_int_equal(stress_of(&c, "CC", SQ_VOLTAGE)->basis, SB_ANALYSIS);

@@ -19,12 +19,19 @@
  *   its peak (the textbook half-wave results: mean of a half sine over a
  *   period 1 / pi, rms 1 / 2; from memory, and one line of integration);
  * - a loop of voltage sources is a singular matrix, reported as such;
- *   a JFET and a VBIC transistor are refused with their names;
+ *   a MESFET, a JFET with a doping tail and a VBIC transistor are
+ *   refused with their names;
  * - a bipolar transistor's operating point (NPN and PNP, forward active
  *   and saturated, with and without the Early effect) meets the
  *   Ebers-Moll equations at the junction voltages it settled at;
  * - a level-1 MOSFET's (NMOS and PMOS, saturated and linear, with the
  *   body effect) drain current is Shichman-Hodges' at its settled vds;
+ * - a level-1 JFET's (NJF and PJF, saturated and linear, area 1 and 3)
+ *   drain current is BETA (Vgs-VTO)^2 (1 + LAMBDA Vds) saturated and
+ *   BETA Vds (2 (Vgs-VTO) - Vds) (1 + LAMBDA Vds) linear at its vds;
+ * - a VDMOS (nchan and pchan) conducts KP/2 (Vgs-VTO)^2 (1 + LAMBDA Vds)
+ *   saturated, level 1's linear current below, and its body diode
+ *   Shockley's current when the drain is pulled past the source;
  * - a voltage-controlled switch with hysteresis is off while its control
  *   rises through the band between VT - VH and VT + VH, on while it falls; a 0-ohm resistor is 1 mOhm and
  *   out-of-range diode parameters fall back to defaults;
@@ -232,6 +239,111 @@ static void test_mos_operating_point(void **state)
 	mos_point("pmos", -1, 10e3, 0);
 }
 
+/* One JFET operating point: VDD over RD to the drain, the gate at
+ * -0.5 V, the source grounded; pol -1 is the PJF mirror, whose VTO keeps
+ * its negative sign (ngspice's convention for a depletion PJF). The
+ * drain current from the resistor against Shichman-Hodges as the ngspice
+ * manual's JFET chapter gives it (from memory): BETA area (Vgs-VTO)^2
+ * (1 + LAMBDA Vds) saturated, BETA area Vds (2 (Vgs-VTO) - Vds)
+ * (1 + LAMBDA Vds) linear. */
+static void jfet_point(const char *type, double pol, double rd, double area)
+{
+	const double beta = 1e-3, vto = -2, lambda = 0.02, vg = -0.5;
+	char deck[512];
+	snprintf(deck, sizeof deck,
+		 "j\nVDD vdd 0 %g\nVG g 0 %g\nRD vdd d %g\nJ1 d g 0 jx %g\n"
+		 ".model jx %s(vto=-2 beta=1m lambda=0.02 is=1e-14)\n",
+		 10 * pol, vg * pol, rd, area, type);
+	struct simrun_case c;
+	const char *nodes[] = {"d"};
+	start(&c, deck, nodes, 1, 1e-6);
+	assert_int_equal(sim_run(c.s, 20e-6, seen, &c), SIM_OK);
+	double vds = pol * c.v[0], vov = vg - vto, b = beta * area;
+	double id = vds >= vov ? b * vov * vov * (1 + lambda * vds)
+			       : b * vds * (2 * vov - vds) * (1 + lambda * vds);
+	double id_r = (10 - vds) / rd;
+	if (fabs(id - id_r) > 1e-3 * id_r)
+		fail_msg("%s rd %g area %g: vds %g V, resistor %g A, level 1 %g A", type, rd, area,
+			 vds, id_r, id);
+	assert_true(rd < 2e3 ? vds > vov : vds < vov); /* saturated, linear */
+	finish(&c);
+}
+
+static void test_jfet_operating_point(void **state)
+{
+	(void)state;
+	jfet_point("njf", 1, 1e3, 1);
+	jfet_point("njf", 1, 10e3, 1);
+	jfet_point("njf", 1, 1e3, 3);
+	jfet_point("pjf", -1, 1e3, 1);
+	jfet_point("pjf", -1, 10e3, 1);
+}
+
+/* A VDMOS (ngspice's vertical power MOSFET) as the level-1 channel:
+ * VDD over RD to the drain, the gate at 5 V (pol -1: the pchan mirror,
+ * whose VTO is written negative as for a PMOS); the drain current from the
+ * resistor against KP/2 (vgs - VTO)^2 (1 + LAMBDA vds) saturated and
+ * KP vds (vgs - VTO - vds/2) (1 + LAMBDA vds) linear (ngspice's VDMOS,
+ * from memory; its subthreshold smoothing KSUBTHRES is e^-20 of the
+ * overdrive here). */
+static void vdmos_point(const char *flag, double pol, double rd)
+{
+	const double kp = 0.5, vto = 3, lambda = 0.01, vg = 5;
+	char deck[512];
+	snprintf(deck, sizeof deck,
+		 "v\nVDD vdd 0 %g\nVG g 0 %g\nRD vdd d %g\nM1 d g 0 vx\n"
+		 ".model vx VDMOS(%s vto=%g kp=0.5 lambda=0.01)\n",
+		 10 * pol, vg * pol, rd, flag, vto * pol);
+	struct simrun_case c;
+	const char *nodes[] = {"d"};
+	start(&c, deck, nodes, 1, 1e-6);
+	assert_int_equal(sim_run(c.s, 20e-6, seen, &c), SIM_OK);
+	double vds = pol * c.v[0], vov = vg - vto;
+	double id = vds >= vov ? 0.5 * kp * vov * vov * (1 + lambda * vds)
+			       : kp * vds * (vov - vds / 2) * (1 + lambda * vds);
+	double id_r = (10 - vds) / rd;
+	if (fabs(id - id_r) > 1e-3 * id_r)
+		fail_msg("%s rd %g: vds %g V, resistor %g A, level 1 %g A", flag, rd, vds, id_r, id);
+	assert_true(rd < 10 ? vds > vov : vds < vov); /* saturated, linear */
+	finish(&c);
+}
+
+/* The VDMOS's body diode: the gate tied to the source, the drain pulled
+ * 10 V below it through 10 ohm; the diode current (the resistor's) is
+ * Shockley's IS (e^{v/(N Vt)} - 1) at the settled source-drain voltage
+ * (Vt = kT/q at 300.15 K), and it conducts amps: the channel is off. For
+ * pchan the diode runs from drain to source, so the drain is pushed 10 V
+ * above. */
+static void vdmos_body(const char *flag, double pol)
+{
+	char deck[512];
+	snprintf(deck, sizeof deck,
+		 "b\nVSS vss 0 %g\nRD vss d 10\nM1 d 0 0 vx\n"
+		 ".model vx VDMOS(%s vto=%g kp=0.5 is=1e-12 n=1.2)\n",
+		 -10 * pol, flag, 3 * pol);
+	struct simrun_case c;
+	const char *nodes[] = {"d"};
+	start(&c, deck, nodes, 1, 1e-6);
+	assert_int_equal(sim_run(c.s, 20e-6, seen, &c), SIM_OK);
+	double v = -pol * c.v[0], i_r = (10 - v) / 10;
+	double i_d = 1e-12 * (exp(v / (1.2 * 0.0258648)) - 1);
+	if (fabs(i_d - i_r) > 2e-3 * i_r)
+		fail_msg("%s: body diode at %g V: resistor %g A, Shockley %g A", flag, v, i_r, i_d);
+	assert_true(i_r > 0.9 && v > 0.5 && v < 1);
+	finish(&c);
+}
+
+static void test_vdmos(void **state)
+{
+	(void)state;
+	vdmos_point("nchan", 1, 1);
+	vdmos_point("nchan", 1, 100);
+	vdmos_point("pchan", -1, 1);
+	vdmos_point("pchan", -1, 100);
+	vdmos_body("nchan", 1);
+	vdmos_body("pchan", -1);
+}
+
 /* A switch (VT 1 V, VH 0.5 V: on above 1.5 V, off below 0.5 V, else as
  * it was) pulls a 1 k load to ground as its control follows a 5 V sine:
  * out is 10 V x 1M / (1M + 1k) off and 10 V x 1 / 1001 on. In the band
@@ -379,10 +491,21 @@ static void test_refusals(void **state)
 	assert_int_equal(sim_run(s, 1e-6, NULL, NULL), SIM_SINGULAR);
 	sim_destroy(s);
 	run_free(&r);
-	run_text(&r, "jfet\nV1 a 0 1\nJ1 a b 0 jn\nR1 b 0 1k\n.model jn njf\n");
+	run_text(&r, "mesfet\nV1 a 0 1\nZ1 a b 0 zn\nR1 b 0 1k\n.model zn nmf\n");
 	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
 	assert_null(s);
+	assert_string_equal(nl_part_at(r.r.circuit, ref.part)->path, "Z1");
+	run_free(&r);
+	/* a JFET with a doping tail (B other than its default 1) */
+	run_text(&r, "jfet\nV1 a 0 1\nJ1 a b 0 jn\nR1 b 0 1k\n.model jn njf b=0.9\n");
+	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
 	assert_string_equal(nl_part_at(r.r.circuit, ref.part)->path, "J1");
+	assert_non_null(strstr(ref.why, "doping-tail"));
+	run_free(&r);
+	/* a VDMOS with quasi-saturation */
+	run_text(&r, "q\nV1 a 0 1\nM1 a b 0 vq\nR1 b 0 1k\n.model vq vdmos rq=0.1\n");
+	assert_int_equal(sim_create(r.r.circuit, &o, &h, &s, &ref), SIM_REFUSED);
+	assert_non_null(strstr(ref.why, "quasi-saturation"));
 	run_free(&r);
 	/* a bipolar model the solver does not have (VBIC is level 4) */
 	run_text(&r, "vbic\nV1 a 0 1\nQ1 a b 0 qv\nR1 b 0 1k\n.model qv npn level=4\n");
@@ -624,6 +747,8 @@ int main(void)
 		cmocka_unit_test(test_diode_operating_point),
 		cmocka_unit_test(test_bjt_operating_point),
 		cmocka_unit_test(test_mos_operating_point),
+		cmocka_unit_test(test_jfet_operating_point),
+		cmocka_unit_test(test_vdmos),
 		cmocka_unit_test(test_switch_hysteresis),
 		cmocka_unit_test(test_lc_tank),
 		cmocka_unit_test(test_transformer),
