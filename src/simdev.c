@@ -10,6 +10,7 @@
 #include "simdev.h"
 
 #include <math.h>
+#include <string.h>
 
 #include "simsrc.h"
 
@@ -226,6 +227,16 @@ static void stamp_diode(struct simdev *d, const struct simdev_step *st,
 }
 
 /* ---- the rest ---- */
+
+void simdev_blank(struct simdev *d, uint8_t kind, uint32_t part, long a, long b)
+{
+	memset(d, 0, sizeof *d);
+	d->kind = kind;
+	d->part = part;
+	d->a = d->p = a;
+	d->b = b;
+	d->c = d->d = d->br = d->br2 = -1;
+}
 
 static void stamp_linear(struct simdev *d, const struct simdev_step *st,
 			 struct simmat *m)

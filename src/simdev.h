@@ -92,4 +92,8 @@ double simdev_current(const struct simdev *d, const double *x);
 /* Fills the derived diode parameters. */
 void simdev_diode_init(struct simdev_diode *m);
 
+/* A zeroed device of kind between unknowns a (also its junction side p) and
+ * b, with no other unknowns: what the transistor models build from. */
+void simdev_blank(struct simdev *d, uint8_t kind, uint32_t part, long a, long b);
+
 #endif

@@ -52,23 +52,13 @@ void simjfet_size(const struct nl_part *p, size_t *ndev, size_t *nint)
 	*ndev = *nint + 3;
 }
 
-static void blank(struct simdev *d, uint8_t kind, uint32_t part, long a, long b)
-{
-	memset(d, 0, sizeof *d);
-	d->kind = kind;
-	d->part = part;
-	d->a = d->p = a;
-	d->b = b;
-	d->c = d->d = d->br = d->br2 = -1;
-}
-
 /* A gate junction from anode a to cathode k: IS and N, depletion
  * capacitance cj at PB with grading 0.5 (ngspice's fixed JFET grading),
  * FC; no transit time, no breakdown. */
 static int gate_diode(struct arena *ar, struct simdev *d, uint32_t part, long a, long k,
 		      const struct nl_model *m, double cj, double scale)
 {
-	blank(d, SD_D, part, a, k);
+	simdev_blank(d, SD_D, part, a, k);
 	struct simdev_diode *dm = arena_zalloc(ar, sizeof *dm);
 	if (!dm)
 		return 0;
@@ -114,11 +104,11 @@ int simjfet_fill(struct arena *ar, const struct nl_part *p, uint32_t part, const
 	size_t k = 0;
 	long dp = rd > 0 ? (*next)++ : dgs[0], sp = rs > 0 ? (*next)++ : dgs[2], g = dgs[1];
 	if (rd > 0) {
-		blank(&d[k], SD_R, part, dgs[0], dp);
+		simdev_blank(&d[k], SD_R, part, dgs[0], dp);
 		d[k++].val = scale / rd;
 	}
 	if (rs > 0) {
-		blank(&d[k], SD_R, part, dgs[2], sp);
+		simdev_blank(&d[k], SD_R, part, dgs[2], sp);
 		d[k++].val = scale / rs;
 	}
 	struct simmos *t = channel(ar, m, scale);
@@ -129,7 +119,7 @@ int simjfet_fill(struct arena *ar, const struct nl_part *p, uint32_t part, const
 	if (!gate_diode(ar, &d[k++], part, n ? g : sp, n ? sp : g, m, PARAM(m, 0, "cgs"), scale) ||
 	    !gate_diode(ar, &d[k++], part, n ? g : dp, n ? dp : g, m, PARAM(m, 0, "cgd"), scale))
 		return 0;
-	blank(&d[k], SD_M, part, dp, sp);
+	simdev_blank(&d[k], SD_M, part, dp, sp);
 	d[k].c = g;
 	d[k].d = sp; /* the bulk column: its slope is zero */
 	d[k].mos = t;

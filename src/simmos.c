@@ -50,21 +50,11 @@ void simmos_size(const struct nl_part *p, size_t *ndev, size_t *nint)
 		(size_t)(positive(PARAM(m, 0, "cgbo")) > 0);
 }
 
-static void blank(struct simdev *d, uint8_t kind, uint32_t part, long a, long b)
-{
-	memset(d, 0, sizeof *d);
-	d->kind = kind;
-	d->part = part;
-	d->a = d->p = a;
-	d->b = b;
-	d->c = d->d = d->br = d->br2 = -1;
-}
-
 /* A bulk junction from anode a to cathode k: IS, CBD or CBS at PB, MJ. */
 static int bulk_diode(struct arena *ar, struct simdev *d, uint32_t part, long a, long k,
 		      const struct nl_model *m, double cj, double mult)
 {
-	blank(d, SD_D, part, a, k);
+	simdev_blank(d, SD_D, part, a, k);
 	struct simdev_diode *dm = arena_zalloc(ar, sizeof *dm);
 	if (!dm)
 		return 0;
@@ -119,11 +109,11 @@ int simmos_fill(struct arena *ar, const struct nl_part *p, uint32_t part,
 	long dp = rd > 0 ? (*next)++ : dgsb[0], sp = rs > 0 ? (*next)++ : dgsb[2];
 	long g = dgsb[1], b = dgsb[3];
 	if (rd > 0) {
-		blank(&d[k], SD_R, part, dgsb[0], dp);
+		simdev_blank(&d[k], SD_R, part, dgsb[0], dp);
 		d[k++].val = mult / rd;
 	}
 	if (rs > 0) {
-		blank(&d[k], SD_R, part, dgsb[2], sp);
+		simdev_blank(&d[k], SD_R, part, dgsb[2], sp);
 		d[k++].val = mult / rs;
 	}
 	struct simmos *t = channel(ar, p, mult);
@@ -141,10 +131,10 @@ int simmos_fill(struct arena *ar, const struct nl_part *p, uint32_t part,
 	const long to[3] = {sp, dp, b};
 	for (int j = 0; j < 3; j++)
 		if (cap[j] > 0) {
-			blank(&d[k], SD_C, part, g, to[j]);
+			simdev_blank(&d[k], SD_C, part, g, to[j]);
 			d[k++].val = cap[j] * mult;
 		}
-	blank(&d[k], SD_M, part, dp, sp);
+	simdev_blank(&d[k], SD_M, part, dp, sp);
 	d[k].c = g;
 	d[k].d = b;
 	t->vgs = 0;

@@ -61,22 +61,12 @@ void simvdmos_size(const struct nl_part *p, size_t *ndev, size_t *nint)
 		(size_t)(positive(PARAM(m, 0, "cgdmax", "cgdmin")) > 0);
 }
 
-static void blank(struct simdev *d, uint8_t kind, uint32_t part, long a, long b)
-{
-	memset(d, 0, sizeof *d);
-	d->kind = kind;
-	d->part = part;
-	d->a = d->p = a;
-	d->b = b;
-	d->c = d->d = d->br = d->br2 = -1;
-}
-
 /* The body diode from anode a to cathode k (IS, N, RB, CJO, VJ, M, FC,
  * TT, BV, IBV), its junction node internal when RB is given. */
 static int body_diode(struct arena *ar, struct simdev *d, uint32_t part, long a, long k,
 		      const struct nl_model *m, double mult, long *next)
 {
-	blank(d, SD_D, part, a, k);
+	simdev_blank(d, SD_D, part, a, k);
 	struct simdev_diode *dm = arena_zalloc(ar, sizeof *dm);
 	if (!dm)
 		return 0;
@@ -130,13 +120,13 @@ int simvdmos_fill(struct arena *ar, const struct nl_part *p, uint32_t part, cons
 	for (int j = 0; j < 3; j++) {
 		in[j] = r[j] > 0 ? (*next)++ : dgs[j];
 		if (r[j] > 0) {
-			blank(&d[k], SD_R, part, dgs[j], in[j]);
+			simdev_blank(&d[k], SD_R, part, dgs[j], in[j]);
 			d[k++].val = mult / r[j];
 		}
 	}
 	double rds = positive(PARAM(m, 0, "rds"));
 	if (rds > 0) {
-		blank(&d[k], SD_R, part, dgs[0], dgs[2]);
+		simdev_blank(&d[k], SD_R, part, dgs[0], dgs[2]);
 		d[k++].val = mult / rds;
 	}
 	int pch = PARAM(m, 0, "pchan") == 1;
@@ -152,10 +142,10 @@ int simvdmos_fill(struct arena *ar, const struct nl_part *p, uint32_t part, cons
 	const long to[2] = {in[2], in[0]};
 	for (int j = 0; j < 2; j++)
 		if (cap[j] > 0) {
-			blank(&d[k], SD_C, part, in[1], to[j]);
+			simdev_blank(&d[k], SD_C, part, in[1], to[j]);
 			d[k++].val = cap[j] * mult;
 		}
-	blank(&d[k], SD_M, part, in[0], in[2]);
+	simdev_blank(&d[k], SD_M, part, in[0], in[2]);
 	d[k].c = in[1];
 	d[k].d = in[2];
 	d[k].mos = t;
