@@ -63,12 +63,7 @@ void simbjt_size(const struct nl_part *p, size_t *ndev, size_t *nint)
 static int junction_dev(struct arena *ar, struct simdev *d, uint32_t part, long a, long k,
 			const struct simdev_diode *proto, double vcrit)
 {
-	memset(d, 0, sizeof *d);
-	d->kind = SD_D;
-	d->part = part;
-	d->a = d->p = a;
-	d->b = k;
-	d->c = d->d = d->br = d->br2 = -1;
+	simdev_blank(d, SD_D, part, a, k);
 	d->dm = arena_alloc(ar, sizeof *d->dm);
 	if (!d->dm)
 		return 0;
@@ -81,12 +76,7 @@ static int junction_dev(struct arena *ar, struct simdev *d, uint32_t part, long 
 
 static void resistor_dev(struct simdev *d, uint32_t part, long a, long b, double g)
 {
-	memset(d, 0, sizeof *d);
-	d->kind = SD_R;
-	d->part = part;
-	d->a = d->p = a;
-	d->b = b;
-	d->c = d->d = d->br = d->br2 = -1;
+	simdev_blank(d, SD_R, part, a, b);
 	d->val = g;
 }
 
