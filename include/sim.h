@@ -115,6 +115,13 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 			   double tol, unsigned *periods, int *settled,
 			   sim_point_fn fn, void *ud);
 
+/* When the sources' non-repeating parts (delays, single pulses, PWL
+ * points, EXP) are over, s; 0 when nothing moves. */
+double sim_events_end(const struct sim *s);
+
+/* The largest time step from here on, s (> 0). */
+void sim_set_max_step(struct sim *s, double h);
+
 struct sim_stats {
 	unsigned long points, rejected, newton, fresh_lu, refactor_lu;
 	size_t unknowns;

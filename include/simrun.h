@@ -34,6 +34,11 @@ struct simrun_opts {
 	double gshunt;         /* S from every node to ground (sim.h) */
 	int ideal_diodes;      /* nearly ideal diodes (sim.h) */
 	double t_shift;        /* switch-on instant of the sources (sim.h) */
+	int oneshot;           /* simrun_peaks, steady state asked for, no
+				  source repeats: the extremes of the run
+				  from switch-on (the zero state) through the
+				  sources' events and of the state it settles
+				  to (docs/solver.md, "No repeating source") */
 	double *cap_end;       /* per part, or NULL: each capacitor's voltage
 				  where the run ends (simrun_peaks, _track) */
 	/* simrun_peaks: parts whose voltage (pin 0 minus pin 1) is sampled at
@@ -61,6 +66,7 @@ struct simrun_result {
 	unsigned periods;
 	int settled;           /* steady state reached within the cap */
 	double period;         /* s; 0 when no source repeats */
+	int oneshot;           /* the run was o->oneshot's, and settled */
 	double t_end;          /* time reached */
 	struct sim_stats stats;
 };

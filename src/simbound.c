@@ -134,7 +134,9 @@ static const char *fail_why(struct sb *b, const struct simrun_result *r, const c
 {
 	char buf[400];
 	const char *what = r->status != SIM_OK ? sim_status_text(r->status)
-			 : r->period <= 0 ? "no source repeats, so there is no steady state"
+			 : r->period <= 0 && r->oneshot
+			     ? "no source repeats, so there is no period to take currents over"
+			 : r->period <= 0 ? "no source repeats, and the run from switch-on did not settle"
 					  : "the steady state was not reached within the periods allowed";
 	snprintf(buf, sizeof buf, "the simulation (%.200s) failed: %s", corner, what);
 	return arena_strdup(b->ar, buf);
@@ -204,7 +206,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			return 1;
 		}
 		struct simrun_result r;
-		char buf[320];
+		char buf[420];
 		b->o.ideal_diodes = !real;
 		/* work is Newton iterations times unknowns: a run may use what
 		   is left of the file's allowance, up to its own limit; the
@@ -224,7 +226,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		b->work += r.stats.newton * b->size;
 		if (r.status == SIM_OOM || (flows && real && !keep_flow(b, &r, name)))
 			return 0;
-		int ran = r.status == SIM_OK && r.period > 0;
+		int ran = r.status == SIM_OK && (r.period > 0 || r.oneshot);
 		int rising = real && ran && !r.settled && ideal_ok && under_ideal(b, imin, imax);
 		if (ran && !r.settled)
 			b->fb->unsettled++;
@@ -240,7 +242,10 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			memcpy(imin, b->vmin, np * sizeof *imin);
 			memcpy(imax, b->vmax, np * sizeof *imax);
 		}
-		snprintf(buf, sizeof buf, "simulated, %.200s%s", name, how[rising ? 2 : real]);
+		snprintf(buf, sizeof buf, "simulated, %.200s%s%s", name, how[rising ? 2 : real],
+			 r.oneshot ? "; no source repeats: from switch-on through the sources' "
+				     "events to the settled state"
+				   : "");
 		const char *corner = arena_strdup(b->ar, buf);
 		if (!corner)
 			return 0;
@@ -395,6 +400,7 @@ static int leave_out(struct sb *b)
 		return 0;
 	b->o.leave_out = mask;
 	b->o.gshunt = SIMRUN_GSHUNT;
+	b->o.oneshot = 1;
 	return 1;
 }
 

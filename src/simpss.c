@@ -135,6 +135,17 @@ static double settled_from(const struct sim *s)
 	return from;
 }
 
+double sim_events_end(const struct sim *s)
+{
+	return settled_from(s);
+}
+
+void sim_set_max_step(struct sim *s, double h)
+{
+	if (h > 0)
+		s->o.max_step = h;
+}
+
 /* 1 when every repeating source's period divides period: only then is
  * one period of the transient the same map wherever it starts. */
 static int one_map(const struct sim *s, double period)

@@ -6,6 +6,7 @@
 
 #define SIMRUN_PERIODS 2000
 #define SIMRUN_TOL 1e-4
+#define SIMRUN_HOLD 1e-3 /* s: the stand-in period of a circuit with no events */
 
 struct probe {
 	uint32_t pos, neg;   /* node ids (neg NL_GROUND for a plain node) */
@@ -269,6 +270,30 @@ static int track(void *ud, double t, const double *v)
 	return 0;
 }
 
+/* No source repeats: from the zero state through the sources' events
+ * (every point tracked), then settled with a stand-in period (the events'
+ * span, at least SIMRUN_HOLD; Newton's trial states are not tracked) and
+ * one more such span tracked. Traces, flows and probes stay empty. */
+static void oneshot(struct sim *s, const struct simrun_opts *o, struct simrun_result *r,
+		    struct extremes *e)
+{
+	double ev = sim_events_end(s), span = fmax(ev, SIMRUN_HOLD);
+	if (o->max_step <= 0)
+		sim_set_max_step(s, span / 200);
+	track(e, sim_time(s), sim_voltages(s));
+	if (ev > 0)
+		r->status = sim_run(s, ev, track, e);
+	if (r->status == SIM_OK)
+		r->status = sim_settle(s, span, o->max_periods ? o->max_periods : SIMRUN_PERIODS,
+				       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL, &r->periods,
+				       &r->settled, NULL, NULL);
+	if (r->status == SIM_OK && r->settled)
+		r->status = sim_run(s, sim_time(s) + span, track, e);
+	r->oneshot = r->status == SIM_OK && r->settled;
+	if (o->cap_end)
+		cap_voltages(e->c, s, o->cap_end);
+}
+
 void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		  const struct hr_alloc *h, double *vmin, double *vmax,
 		  double *node_min, double *node_max, struct simrun_result *r)
@@ -289,7 +314,10 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 	if (o->flow && !scratch)
 		r->status = SIM_OOM;
 	double *pprev = o->nprobe ? hr_malloc(h, o->nprobe * sizeof *pprev) : NULL;
-	if (s && r->status == SIM_OK && (pprev || !o->nprobe)) {
+	if (s && r->status == SIM_OK && r->period <= 0 && o->until <= 0 && o->oneshot) {
+		struct extremes e = {c, vmin, vmax, node_min, node_max, o, 0, 0, 0, NULL, 0, NULL, NULL, NAN};
+		oneshot(s, o, r, &e);
+	} else if (s && r->status == SIM_OK && (pprev || !o->nprobe)) {
 		double span = r->period > 0 ? r->period : o->until;
 		struct extremes e = {c, vmin, vmax, node_min, node_max, o, sim_time(s), span,
 				     sim_time(s), vprev, 0, scratch ? &fw : NULL, pprev, NAN};

@@ -98,9 +98,6 @@ NO_RUN = {
         ("the run needs more work than allowed", "three 555 timers (behavioural comparators "
          "and switches, all simulated now) whose common steady state needs more than a "
          "file's simulation allowance"),
-    "xyce/Netlists/TIA/TRAP/teststep1.cir":
-        ("no source repeats", "an op-amp macro-model (bipolar transistors beside JFETs "
-         "wired as diodes) on DC supplies only: no period, so no steady state to simulate"),
 }
 
 
