@@ -71,6 +71,10 @@ enum sim_status sim_create(const struct nl_circuit *c, const struct sim_opts *o,
 			   struct sim_refusal *ref);
 /* 1 when the solver has a model for part i of c; else 0 with *ref set. */
 int sim_part_supported(const struct nl_circuit *c, size_t i, struct sim_refusal *ref);
+/* 1 when it has one with every diode nearly ideal (sim_opts.ideal_diodes):
+ * a diode whose model is not a compact one (a device-level model) then
+ * needs none. */
+int sim_part_supported_ideal(const struct nl_circuit *c, size_t i);
 
 /* Frees the solver. NULL is a no-op. */
 void sim_destroy(struct sim *s);

@@ -122,7 +122,7 @@ static int switch_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 
 /* Which solver device a part becomes; 0 with *ref filled when none. */
 static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
-		       struct sim_refusal *ref)
+		       struct sim_refusal *ref, int ideal)
 {
 	static const uint8_t map[] = {[NL_R] = SD_R, [NL_C] = SD_C, [NL_L] = SD_L,
 				      [NL_K] = SD_K, [NL_D] = SD_D, [NL_V] = SD_V,
@@ -148,7 +148,7 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 				      "voltage or a current) is not simulated");
 	if (p->ext && p->ext->behavioural)
 		return refuse(ref, i, "behavioural sources (value=, poly, table) are not simulated");
-	if (p->kind == NL_D && p->model && strcmp(p->model->type, "d") != 0)
+	if (p->kind == NL_D && p->model && strcmp(p->model->type, "d") != 0 && !ideal)
 		return refuse(ref, i, "the diode's model is not of type D");
 	if (p->kind == NL_L && !(p->value != 0 && isfinite(p->value)))
 		return refuse(ref, i, "an inductor with a zero or missing value");
@@ -161,7 +161,14 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 int sim_part_supported(const struct nl_circuit *c, size_t i, struct sim_refusal *ref)
 {
 	uint8_t k;
-	return device_kind(nl_part_at(c, i), (uint32_t)i, &k, ref);
+	return device_kind(nl_part_at(c, i), (uint32_t)i, &k, ref, 0);
+}
+
+int sim_part_supported_ideal(const struct nl_circuit *c, size_t i)
+{
+	uint8_t k;
+	struct sim_refusal ref;
+	return device_kind(nl_part_at(c, i), (uint32_t)i, &k, &ref, 1);
 }
 
 /* Unknowns: nodes but ground, then diode internal nodes, then branches. */
@@ -175,7 +182,7 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 		uint8_t k;
 		if (s->o.leave_out && s->o.leave_out[i])
 			continue;
-		if (!device_kind(p, (uint32_t)i, &k, ref))
+		if (!device_kind(p, (uint32_t)i, &k, ref, s->o.ideal_diodes))
 			return 0;
 		if (k == SD_Q || k == SD_M) { /* several devices and internal nodes */
 			size_t nd, ni;
@@ -231,7 +238,7 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 	const uint32_t *pin = nl_pins(s->c, p);
 	struct sim_refusal ignore;
 	memset(d, 0, sizeof *d);
-	device_kind(p, (uint32_t)i, &d->kind, &ignore);
+	device_kind(p, (uint32_t)i, &d->kind, &ignore, s->o.ideal_diodes);
 	d->part = (uint32_t)i;
 	d->a = p->npins > 0 ? unknown_of(pin[0]) : -1;
 	d->b = p->npins > 1 ? unknown_of(pin[1]) : -1;

@@ -41,6 +41,8 @@ struct sb {
 	size_t real_left;        /* real-diode runs still to come, this one's included */
 	struct simrun_flow *flow; /* the currents' run writes here */
 	int volts;               /* unproven voltages to simulate */
+	const char *ideal_only;  /* every run with nearly ideal diodes: why
+				    (a diode with a device-level model) */
 };
 
 static int needs_run(const struct stress_result *sr, const unsigned char *blocked)
@@ -196,6 +198,8 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 	size_t np = nl_part_count(c) + 1;
 	struct hr_alloc h = *arena_hook(b->ar);
 	int ideal_ok = 0;
+	if (b->ideal_only) /* one run, its diodes nearly ideal, standing in for the real one */
+		ideal = flows = 0;
 	for (int real = !ideal; real < 2; real++) {
 		if (b->work >= b->total_work) {
 			const char *why = "the simulation needs more work than allowed for one file";
@@ -207,7 +211,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		}
 		struct simrun_result r;
 		char buf[420];
-		b->o.ideal_diodes = !real;
+		b->o.ideal_diodes = !real || b->ideal_only;
 		/* work is Newton iterations times unknowns: a run may use what
 		   is left of the file's allowance, up to its own limit; the
 		   nearly-ideal run, an extra, only its share, so that it never
@@ -242,7 +246,9 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			memcpy(imin, b->vmin, np * sizeof *imin);
 			memcpy(imax, b->vmax, np * sizeof *imax);
 		}
-		snprintf(buf, sizeof buf, "simulated, %.200s%s%s", name, how[rising ? 2 : real],
+		snprintf(buf, sizeof buf, "simulated, %.200s%s%s", name,
+			 b->ideal_only ? "; diodes nearly ideal (a device-level diode model)"
+				       : how[rising ? 2 : real],
 			 r.oneshot ? "; no source repeats: from switch-on through the sources' "
 				     "events to the settled state"
 				   : "");
@@ -369,6 +375,35 @@ static const char *no_model(struct sb *b, uint32_t part, const char *why)
 	return arena_strdup(b->ar, buf);
 }
 
+/* Diodes the solver takes only as nearly ideal (device-level models):
+ * when they are all it lacks, every run is made with nearly ideal diodes
+ * and none is left out. The smallest forward drop is the worst for
+ * reverse voltages and for the charge capacitors take, but not the real
+ * circuit's lower bound, so these runs give no best case (fill). */
+static int ideal_stand_in(struct sb *b, unsigned char *mask, size_t *count,
+			  struct sim_refusal *first)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t np = nl_part_count(c);
+	if (!*count)
+		return 1;
+	for (size_t i = 0; i < np; i++)
+		if (mask[i] && !sim_part_supported_ideal(c, i))
+			return 1;
+	char buf[600];
+	snprintf(buf, sizeof buf,
+		 "%s's model (%.40s) is not a compact diode model: every diode taken as nearly "
+		 "ideal, whose smaller forward drop is the worse case for reverse voltages and "
+		 "charge",
+		 nl_part_at(c, first->part)->path, nl_part_at(c, first->part)->model->type);
+	if (!(b->ideal_only = arena_strdup(b->ar, buf)))
+		return 0;
+	memset(mask, 0, np + 1);
+	*count = 0;
+	b->o.ideal_diodes = 1;
+	return 1;
+}
+
 /* Parts the solver has no model for are left open; their islands get no
  * simulated number (the circuit simulated would not be the real one), each
  * with the first such part of that island as the reason. */
@@ -378,7 +413,7 @@ static int leave_out(struct sb *b)
 	size_t count;
 	struct sim_refusal first;
 	unsigned char *mask = simrun_unsupported(c, b->ar, &count, &first);
-	if (!mask)
+	if (!mask || !ideal_stand_in(b, mask, &count, &first))
 		return 0;
 	for (size_t i = 0; i < nl_part_count(c); i++) {
 		uint32_t is = b->sr->island[i];
@@ -482,7 +517,7 @@ static void fill(struct sb *b)
 		s->bounded = 1;
 		s->basis = SB_SIMULATED;
 		s->worst = x->worst[k] * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
-		s->best = isfinite(x->best[k]) ? x->best[k] : x->worst[k];
+		s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? x->best[k] : x->worst[k];
 		s->rev_min = x->rev_min[k];
 		s->corner = x->corner[k];
 		const struct nl_part *pt = nl_part_at(c, k);
@@ -516,6 +551,9 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	b.fb->flow_blocked = fblock;
 	b.fb->flow_blocked_why = b.acc.blocked_why;
 	int volts = b.volts = needs_run(sr, b.acc.blocked), flows = wants_flow(sr, b.acc.blocked);
+	if (b.ideal_only && flows) /* currents need the diodes as they are */
+		b.fb->flow_why = b.ideal_only;
+	flows = flows && !b.ideal_only;
 	if (!volts && !flows) {
 		fill(&b); /* every stressed island has a part the solver cannot take */
 		b.fb->flow_why = b.acc.blocked_why;

@@ -916,6 +916,23 @@ check "life: the finding gives the core, the heating and 10 C hotter" bash -c "g
 run check --fail-on never --ambient 50 "$data/life_doubler.cir"
 check "life: at 50 C the 2000 h / 105 C parts last 90,000 h, enough" bash -c "! grep -q 'cap-life-short' '$tmp/out' && grep -q '^  C1 .* life .* simulated' '$tmp/out'"
 
+# Device-level (NUMD) diodes: no compact equations to simulate, so the run
+# takes every diode as nearly ideal (docs/solver.md, "Device-level diodes"):
+# the blocking diodes of the bridge see the source peak, 12 V x 1.1 = 13.2 V
+# (Kirchhoff's voltage law around the bridge with zero forward drops), plus the
+# simulation's allowance; no best case.
+run check --fail-on never --format json "$data/numd_bridge.cir"
+check "numd: bridge diodes simulated as nearly ideal at 13.2 V, no best case, no currents" python3 -c "
+import json,sys
+d=json.load(open(sys.argv[1]))['files'][0]
+rv=[s for s in d['stresses'] if s['quantity'] == 'reverse_voltage']
+assert len(rv) == 4, rv
+for s in rv:
+    assert s['basis'] == 'simulated' and 13.2 <= s['worst'] <= 13.2 * 1.01 + 0.05, s
+    assert s['best'] is None and 'device-level' in s['corner'], s
+assert 'not a compact diode model' in d['fallback']['currents']['why'], d['fallback']
+" "$tmp/out"
+
 # Class-2 ceramics under DC bias: droop uses the capacitance the c_bias curve
 # leaves at the part's worst voltage (11 V on a 0 V=100 %, 16 V=10 % line:
 # 38.1 %). Droop = Vcap T / (R C), docs/design.md §6.

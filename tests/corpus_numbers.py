@@ -67,8 +67,6 @@ FILES = {
 
 # file -> (parts the solver has no model for, why no number can be given)
 BLOCKED = {
-    "ngspice/examples/cider/serial/dbridge.cir":
-        (["D1"], "numerical (device-level) diodes: no compact model to simulate"),
     "ngspice/examples/vdmos/dcdc.sp":
         (["R4", "M1"], "a VDMOS switch and a load resistance that follows the time "
          "(R = expression of time) drive the boost converter; its B sources are simulated"),
