@@ -70,6 +70,9 @@ struct nl_behav {
 	int current;         /* 1: a current from pin 0 through the part to
 				pin 1 (B I=, G); 0: the voltage of pin 0
 				over pin 1 (B V=, E) */
+	int resistance;      /* 1 (with current 1): e is a resistance in ohms
+				and the current is the part's own voltage,
+				its last probe, over it (R = expression) */
 };
 
 /* Extra data most parts do not need. */

@@ -239,7 +239,7 @@ enum dev_status behav_build(const struct dev_scope *s, const struct expr *e, int
 	if (!b || !p)
 		return DEV_OOM;
 	memcpy(p, x.pr, x.np * sizeof *p);
-	*b = (struct nl_behav){r, x.np, p, current};
+	*b = (struct nl_behav){r, x.np, p, current, 0};
 	*out = b;
 	return DEV_OK;
 }
@@ -266,10 +266,54 @@ static int put(struct text *t, const char *s, size_t n)
 	return 1;
 }
 
+/* A braced expression inside a value ("(time<1m ? {R1} : {R1/2})"), the
+ * reader's tree, back to text, fully parenthesised. */
+static int put_expr(struct text *t, const struct expr *e, unsigned depth)
+{
+	static const char *const op[] = {[EXPR_ADD] = "+", [EXPR_SUB] = "-", [EXPR_MUL] = "*",
+					 [EXPR_DIV] = "/", [EXPR_MOD] = "%",  [EXPR_POW] = "**",
+					 [EXPR_LT] = "<",  [EXPR_GT] = ">",  [EXPR_LE] = "<=",
+					 [EXPR_GE] = ">=", [EXPR_EQ] = "==", [EXPR_NE] = "!=",
+					 [EXPR_AND] = "&&", [EXPR_OR] = "||"};
+	char num[40];
+	if (!e || depth > BEHAV_MAX_DEPTH)
+		return 0;
+	switch (e->op) {
+	case EXPR_NUM:
+		snprintf(num, sizeof num, "%.17g", e->num);
+		return put(t, num, strlen(num));
+	case EXPR_VAR:
+		return put(t, e->name, strlen(e->name));
+	case EXPR_CALL:
+		if (!put(t, e->name, strlen(e->name)) || !put(t, "(", 1))
+			return 0;
+		for (uint32_t i = 0; i < e->nargs; i++)
+			if ((i && !put(t, ",", 1)) || !put_expr(t, e->args[i], depth + 1))
+				return 0;
+		return put(t, ")", 1);
+	case EXPR_NEG:
+	case EXPR_NOT:
+		return put(t, e->op == EXPR_NEG ? "(-" : "(!", 2) &&
+		       put_expr(t, e->args[0], depth + 1) && put(t, ")", 1);
+	case EXPR_COND:
+		return put(t, "(", 1) && put_expr(t, e->args[0], depth + 1) && put(t, "?", 1) &&
+		       put_expr(t, e->args[1], depth + 1) && put(t, ":", 1) &&
+		       put_expr(t, e->args[2], depth + 1) && put(t, ")", 1);
+	default:
+		if (e->op >= sizeof op / sizeof op[0] || !op[e->op])
+			return 0; /* strings, xor: not rendered */
+		return put(t, "(", 1) && put_expr(t, e->args[0], depth + 1) &&
+		       put(t, op[e->op], strlen(op[e->op])) && put_expr(t, e->args[1], depth + 1) &&
+		       put(t, ")", 1);
+	}
+}
+
 /* The reader splits "min(5,v(a)*2)" into 5, v(a) and "*2": arguments are
  * joined by commas except where an operator already joins them. */
 static int render(struct text *t, const struct deck_field *f, unsigned depth)
 {
+	if (depth <= BEHAV_MAX_DEPTH && f->kind == FIELD_EXPR)
+		return put(t, "(", 1) && put_expr(t, f->expr, depth + 1) && put(t, ")", 1);
 	if (depth > BEHAV_MAX_DEPTH || (f->kind != FIELD_ATOM && f->kind != FIELD_CALL))
 		return 0;
 	if (!put(t, f->text, f->len))
@@ -280,7 +324,9 @@ static int render(struct text *t, const struct deck_field *f, unsigned depth)
 		return 0;
 	for (uint32_t i = 0; i < f->nargs; i++) {
 		const struct deck_field *a = &f->args[i];
-		char first = a->kind == FIELD_ATOM || a->kind == FIELD_CALL ? a->text[0] : 0;
+		char first = a->kind == FIELD_ATOM || a->kind == FIELD_CALL ? a->text[0]
+			     : a->kind == FIELD_EXPR		       ? '('
+								       : 0;
 		if (i > 0 && !is_op_char(t->buf[t->n - 1]) && !is_op_char(first) && !put(t, ",", 1))
 			return 0;
 		if (!render(t, a, depth + 1))

@@ -250,6 +250,9 @@ static enum dev_status model_or_code(struct build *b, const struct deck_field *f
 }
 
 /* R, C, L: two nodes, then a value (positional or r=/c=/l=) and/or a model. */
+static enum dev_status keep_value(struct build *b, uint32_t at, const struct deck_field *f,
+				  int current, int resistance);
+
 static enum dev_status build_rcl(struct build *b, char letter)
 {
 	enum dev_status st = take_nodes(b, 2);
@@ -258,12 +261,16 @@ static enum dev_status build_rcl(struct build *b, char letter)
 		const struct deck_field *f = &b->card->fields[i];
 		if (is_positional(f) && !have && is_numeric(f)) {
 			st = rcl_value(b, f);
+			if (st == DEV_OK && letter == 'r' && b->ext.behavioural)
+				st = keep_value(b, i, f, 1, 1);
 			have = 1;
 		} else if (f->kind == FIELD_ATOM && !b->part.model && !have) {
 			st = model_or_code(b, f, &have);
 		} else if (f->kind == FIELD_ASSIGN && is_value_key(f, letter)) {
 			st = f->value->kind == FIELD_CALL ? behavioural(b)
 							  : rcl_value(b, f->value);
+			if (st == DEV_OK && letter == 'r' && b->ext.behavioural)
+				st = keep_value(b, i, f->value, 1, 1);
 			have = 1;
 		} else if (f->kind == FIELD_ASSIGN) {
 			common_assign(b, f, &st); /* other keys: temperature etc. */
@@ -351,13 +358,29 @@ static enum dev_status probe_pins(struct build *b, const struct nl_behav *bh)
 	return DEV_OK;
 }
 
+/* An R valued by an expression: its own voltage becomes the last probe. */
+static int self_probe(struct build *b, struct nl_behav *bh)
+{
+	struct nl_probe *p = arena_alloc(nl_arena(b->c), (bh->nprobes + 1) * sizeof *p);
+	if (!p)
+		return 0;
+	if (bh->nprobes)
+		memcpy(p, bh->probes, bh->nprobes * sizeof *p);
+	p[bh->nprobes] = (struct nl_probe){NL_PROBE_V, b->pins[0], b->pins[1], NULL};
+	bh->probes = p;
+	bh->nprobes++;
+	bh->resistance = 1;
+	return 1;
+}
+
 /* Keeps the expression of the value of field at for the solver (behav.h); a form
- * it does not take leaves the part unsimulated, as before. */
-static enum dev_status keep_expression(struct build *b, uint32_t at, int current)
+ * it does not take leaves the part unsimulated, as before. resistance: the
+ * value is an R's ohms (nl.h). */
+static enum dev_status keep_value(struct build *b, uint32_t at, const struct deck_field *f,
+				  int current, int resistance)
 {
 	int oom = 0;
 	const struct deck_card *c = b->card;
-	const struct deck_field *f = c->fields[at].value;
 	const struct expr *e = f->kind == FIELD_EXPR
 				       ? f->expr
 				       : behav_field_expr(b->s, f, c->fields + at + 1,
@@ -375,9 +398,16 @@ static enum dev_status keep_expression(struct build *b, uint32_t at, int current
 	}
 	if (st != DEV_OK || !bh)
 		return st;
+	if (resistance && !self_probe(b, bh))
+		return DEV_OOM;
 	b->ext.behav = bh;
 	b->has_ext = 1;
 	return probe_pins(b, bh);
+}
+
+static enum dev_status keep_expression(struct build *b, uint32_t at, int current)
+{
+	return keep_value(b, at, b->card->fields[at].value, current, 0);
 }
 
 /* B: two nodes and v= or i= with an expression (ngspice's B source). */

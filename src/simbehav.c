@@ -48,6 +48,8 @@ static double clampv(double v)
 	return fmax(-SIMBEHAV_HUGE, fmin(SIMBEHAV_HUGE, v));
 }
 
+#define SIMBEHAV_RMIN 1e-3 /* ohm: as the solver's plain resistors */
+
 static void zero(double *g, size_t n)
 {
 	memset(g, 0, n * sizeof *g);
@@ -386,12 +388,33 @@ static void probes_at(struct simbehav *d, const double *x, double t, double *p, 
 	d->t_last = t;
 }
 
+/* R = expression: from the resistance r (slopes in d->g) to the current
+ * v / r through it, v being the last probe, and that current's slopes.
+ * |r| below SIMBEHAV_RMIN is taken as SIMBEHAV_RMIN, as a plain R's. */
+static double resistor_current(struct simbehav *d, const double *p, double r)
+{
+	size_t self = d->np - 1;
+	double v = p[self];
+	if (fabs(r) < SIMBEHAV_RMIN) {
+		r = r < 0 ? -SIMBEHAV_RMIN : SIMBEHAV_RMIN;
+		for (size_t k = 0; k < d->np; k++)
+			d->g[k] = 0;
+	}
+	for (size_t k = 0; k < d->np; k++)
+		d->g[k] = -v / (r * r) * d->g[k];
+	d->g[self] += 1 / r;
+	return v / r;
+}
+
 void simbehav_stamp(struct simbehav *d, struct simmat *m, const double *x, double t,
 		    int *limited)
 {
 	double *p = d->scratch + (size_t)(d->depth + 1) * 2 * (d->np ? d->np : 1);
 	probes_at(d, x, t, p, limited);
-	double f = simbehav_eval(d, p, t, d->g), lin = f;
+	double f = simbehav_eval(d, p, t, d->g), lin;
+	if (d->bh->resistance)
+		f = resistor_current(d, p, f);
+	lin = f;
 	d->val = f;
 	for (size_t k = 0; k < d->np; k++)
 		lin -= d->g[k] * p[k];

@@ -67,6 +67,13 @@ static int wants_flow(const struct stress_result *sr, const unsigned char *block
 	return 0;
 }
 
+/* A source at 0 V with no waveform (a current probe): scaling leaves it. */
+static int zero_source(const struct nl_part *pt)
+{
+	const struct nl_source *src = pt->ext ? pt->ext->src : NULL;
+	return src && src->dc == 0 && src->wave == NL_WAVE_NONE && !src->unknown;
+}
+
 /* Sources with a tolerance or a range: the corners move them. */
 static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
 {
@@ -74,8 +81,9 @@ static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
 	size_t n = 0;
 	for (size_t i = 0; i < nl_part_count(c) && n < max; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		if (pt->kind == NL_V && (stress_tolerance(b->a, b->p, (uint32_t)i) > 0 ||
-					 isfinite(b->a->sources[i].max)))
+		if (pt->kind == NL_V && (isfinite(b->a->sources[i].max) ||
+					 (stress_tolerance(b->a, b->p, (uint32_t)i) > 0 &&
+					  !zero_source(pt))))
 			out[n++] = (uint32_t)i;
 	}
 	return n;

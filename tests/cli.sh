@@ -933,6 +933,18 @@ for s in rv:
 assert 'not a compact diode model' in d['fallback']['currents']['why'], d['fallback']
 " "$tmp/out"
 
+# A resistor valued by an expression of time (braced parameters inside it):
+# 1 V over 100 ohm and R4, R4 = 100 ohm before 1 ms and 50 ohm after, so the
+# divider gives 0.5 V, then 50 / 150 = 0.3333 V (Ohm's law).
+run sim "$data/r_of_time.cir" --node m --until 2m
+check "R = expression of time: the divider steps from 0.5 V to 0.3333 V at 1 ms" python3 -c "
+import sys
+rows=[tuple(map(float, l.split(','))) for l in open(sys.argv[1]) if l[0].isdigit()]
+early=[v for t, v in rows if 0.1e-3 < t < 0.95e-3]; late=[v for t, v in rows if t > 1.05e-3]
+assert early and late and all(abs(v - 0.5) < 1e-6 for v in early), early[:3]
+assert all(abs(v - 1 / 3) < 1e-6 for v in late), late[:3]
+" "$tmp/out"
+
 # Class-2 ceramics under DC bias: droop uses the capacitance the c_bias curve
 # leaves at the part's worst voltage (11 V on a 0 V=100 %, 16 V=10 % line:
 # 38.1 %). Droop = Vcap T / (R C), docs/design.md §6.

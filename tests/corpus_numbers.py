@@ -67,9 +67,6 @@ FILES = {
 
 # file -> (parts the solver has no model for, why no number can be given)
 BLOCKED = {
-    "ngspice/examples/vdmos/dcdc.sp":
-        (["R4", "M1"], "a VDMOS switch and a load resistance that follows the time "
-         "(R = expression of time) drive the boost converter; its B sources are simulated"),
     "xyce/Netlists/Certification_Tests/BUG_456/push_pull_xyce_baseline.cir":
         (["X_M3.M1"], "a level-3 MOSFET (in the power switch's subcircuit) drives the "
          "transformer beside the bipolar transistors; only level 1 is simulated"),
