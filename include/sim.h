@@ -123,6 +123,10 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
  * points, EXP) are over, s; 0 when nothing moves. */
 double sim_events_end(const struct sim *s);
 
+/* 1 when a moving source's waveform happens once: a single pulse, a PWL
+ * without repeat or an EXP whose levels differ (simsrc_oneshot). */
+int sim_has_oneshot(const struct sim *s);
+
 /* The largest time step from here on, s (> 0). */
 void sim_set_max_step(struct sim *s, double h);
 

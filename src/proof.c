@@ -9,6 +9,7 @@
 #include <stdio.h>
 
 #include "num.h"
+#include "sig.h"
 
 struct pctx {
 	const struct nl_circuit *c;
@@ -18,6 +19,7 @@ struct pctx {
 	const char **why;        /* per island root: the first broken assumption */
 	unsigned char *taint;    /* per held node: depends on an unknown waveform */
 	const char *taint_why;
+	int taint_once;          /* taint_why's source happens once (sig_oneshot) */
 	int oom;
 };
 
@@ -80,11 +82,15 @@ static void spread_taint(struct pctx *x)
 	int changed = 1;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(x->c, i);
-		if (p->kind == NL_V && p->ext && p->ext->src && p->ext->src->unknown) {
+		const struct nl_source *src = p->kind == NL_V && p->ext ? p->ext->src : NULL;
+		int once = src && src->wave != NL_WAVE_SIN && sig_oneshot(src);
+		if (src && (src->unknown || once)) {
 			const uint32_t *q = nl_pins(x->c, p);
 			x->taint[q[0]] = x->taint[q[1]] = 1;
-			if (!x->taint_why)
+			if (!x->taint_why) {
 				x->taint_why = p->path;
+				x->taint_once = once && !src->unknown;
+			}
 		}
 	}
 	x->taint[NL_GROUND] = 0;
@@ -206,7 +212,7 @@ int proof_run(const struct nl_circuit *c, const struct prop_result *nom,
 {
 	size_t nn = nl_node_count(c), np = nl_part_count(c);
 	struct pctx x = {c, nom, ar, arena_alloc(ar, (nn + 1) * sizeof *x.up),
-			 arena_zalloc(ar, (nn + 1) * sizeof *x.why), arena_zalloc(ar, nn + 1), NULL, 0};
+			 arena_zalloc(ar, (nn + 1) * sizeof *x.why), arena_zalloc(ar, nn + 1), NULL, 0, 0};
 	const char **why = arena_alloc(ar, (np + 1) * sizeof *why);
 	uint32_t *island = arena_alloc(ar, (np + 1) * sizeof *island);
 	if (!x.up || !x.why || !x.taint || !why || !island)
@@ -219,7 +225,12 @@ int proof_run(const struct nl_circuit *c, const struct prop_result *nom,
 	spread_taint(&x);
 	if (x.taint_why) {
 		char buf[200];
-		snprintf(buf, sizeof buf, "source %s has a waveform that is not understood", x.taint_why);
+		snprintf(buf, sizeof buf,
+			 x.taint_once ? "source %s has a waveform that happens once (a single pulse, a "
+					"PWL without repeat, an EXP): its events, not a steady state, "
+					"are the worst case"
+				      : "source %s has a waveform that is not understood",
+			 x.taint_why);
 		if (!(x.taint_why = arena_strdup(ar, buf)))
 			return 0;
 	}

@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "dense.h"
+#include "sig.h"
 #include "simint.h"
 
 #define PSS_MAX_STATES 400  /* shooting up to this many state entries */
@@ -138,6 +139,14 @@ static double settled_from(const struct sim *s)
 double sim_events_end(const struct sim *s)
 {
 	return settled_from(s);
+}
+
+int sim_has_oneshot(const struct sim *s)
+{
+	for (size_t i = 0; i < s->ndev; i++)
+		if (s->dev[i].src && s->dev[i].ac_k != 0 && sig_oneshot(s->dev[i].src))
+			return 1;
+	return 0;
 }
 
 void sim_set_max_step(struct sim *s, double h)

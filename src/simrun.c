@@ -56,9 +56,15 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 	so->t_shift = o->t_shift;
 }
 
-/* Creates the solver and, for the steady state, runs to it. */
+struct extremes;
+static int track(void *ud, double t, const double *v);
+
+/* Creates the solver and, for the steady state, runs to it; with
+ * o->oneshot and a source whose waveform happens once (a single pulse,
+ * a PWL without repeat, an EXP), the way there through the sources'
+ * events is tracked into e (its extremes). */
 static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o,
-			 const struct hr_alloc *h, struct simrun_result *r)
+			 const struct hr_alloc *h, struct simrun_result *r, struct extremes *e)
 {
 	struct sim_opts so;
 	struct sim *s;
@@ -70,6 +76,13 @@ static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o
 	r->period = sim_period(s);
 	if (o->until > 0 || r->period <= 0)
 		return s;
+	if (o->oneshot && e && sim_has_oneshot(s)) {
+		double ev = sim_events_end(s);
+		track(e, sim_time(s), sim_voltages(s));
+		r->status = sim_run(s, ev, track, e);
+		if (r->status != SIM_OK)
+			return s;
+	}
 	r->status = sim_settle(s, r->period, o->max_periods ? o->max_periods : SIMRUN_PERIODS,
 			       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
 			       &r->periods, &r->settled, NULL, NULL);
@@ -108,7 +121,7 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 			*bad = names[i];
 			return 0;
 		}
-	struct sim *s = start(c, o, h, r);
+	struct sim *s = start(c, o, h, r, NULL);
 	if (s && r->status == SIM_OK) {
 		fputs("time", out);
 		for (size_t i = 0; i < n; i++)
@@ -307,7 +320,8 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		o->probe_min[k] = INFINITY, o->probe_max[k] = -INFINITY;
 		o->probe_mean[k] = NAN;
 	}
-	struct sim *s = start(c, o, h, r);
+	struct extremes pre = {c, vmin, vmax, node_min, node_max, o, 0, 0, 0, NULL, 0, NULL, NULL, NAN};
+	struct sim *s = start(c, o, h, r, &pre);
 	double *vprev = o->ntrace ? hr_malloc(h, (nn + 1) * sizeof *vprev) : NULL;
 	double *scratch = o->flow ? hr_malloc(h, 3 * (np + 1) * sizeof *scratch) : NULL;
 	struct flows fw = {NULL, o->flow, scratch, scratch + np + 1, scratch + 2 * (np + 1), 0, 0};
