@@ -98,5 +98,9 @@ int rating_breakdown(const struct nl_part *p, const struct rating *r, double rev
  * ln(1 + I/(IS*area)) + RS*I, Vt at 27 C), else by kind (silicon 0.7 V,
  * Schottky 0.3 V). */
 double rating_vf(const struct nl_part *d, const char *kind);
+/* The same at a forward current of amps (A): from the model's IS, N, RS
+ * (area scaled); without IS, 0.3 V (Schottky) or 0.7 V at 1 mA and below,
+ * 0.4 V or 0.85 V above (common practice, no source). */
+double rating_vf_at(const struct nl_part *d, const char *kind, double amps);
 
 #endif

@@ -536,7 +536,7 @@ int rating_breakdown(const struct nl_part *p, const struct rating *r, double rev
 	       reverse_v >= bv * RATING_BREAKDOWN_SHARE;
 }
 
-double rating_vf(const struct nl_part *d, const char *kind)
+double rating_vf_at(const struct nl_part *d, const char *kind, double amps)
 {
 	const double vt = 0.025852; /* kT/q at 300.15 K */
 	double is = dmodel_given(d->model, DM_IS), n = dmodel_given(d->model, DM_N);
@@ -544,9 +544,14 @@ double rating_vf(const struct nl_part *d, const char *kind)
 	if (!isnan(is) && is > 0) {
 		if (isnan(n) || n <= 0)
 			n = 1;
-		return n * vt * log1p(1e-3 / (is * area)) + (isnan(rs) ? 0 : rs / area * 1e-3);
+		return n * vt * log1p(amps / (is * area)) + (isnan(rs) ? 0 : rs / area * amps);
 	}
 	if (kind && strcmp(kind, "schottky") == 0)
-		return 0.3;
-	return 0.7;
+		return amps > 1e-3 ? 0.4 : 0.3;
+	return amps > 1e-3 ? 0.85 : 0.7;
+}
+
+double rating_vf(const struct nl_part *d, const char *kind)
+{
+	return rating_vf_at(d, kind, 1e-3);
 }

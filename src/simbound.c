@@ -1,8 +1,9 @@
 /* simbound.c: simulated numbers for the stresses the analysis cannot
  * prove (simbound.h). Corners: every toleranced source at +tol, every one
- * at -tol, and each of the first SIMBOUND_MAX_SOLO alone at +tol with the
+ * at -tol, each of the first SIMBOUND_MAX_SOLO alone at +tol with the
  * rest at -tol (a bootstrap diode sees most with its rail low and the
- * switch node high). A source's whole waveform scales in a corner, so a
+ * switch node high) and, with three or more, each alone at -tol with the
+ * rest at +tol (a three-phase bridge sees most with one phase low). A source's whole waveform scales in a corner, so a
  * PULSE level at 0 V stays at 0 V. The all-high corner's run with the
  * diodes as modelled also gives every part's current (the file's only
  * run when every voltage is proven); current.c makes stresses of them. */
@@ -96,7 +97,10 @@ static void set_corner(struct sb *b, long solo, char *name, size_t n)
 	const struct nl_circuit *c = b->a->er.circuit;
 	for (size_t i = 0; i < nl_part_count(c); i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		int high = solo == -1 || (solo >= 0 && (size_t)solo == i);
+		/* solo <= -3: source -solo - 3 low, the others high */
+		long low = solo <= -3 ? -solo - 3 : -1;
+		int high = solo == -1 || (solo >= 0 && (size_t)solo == i) ||
+			   (low >= 0 && (size_t)low != i);
 		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
 		const struct audit_source *as = &b->a->sources[i];
 		b->scale[i] = high ? 1 + t : 1 - t;
@@ -105,6 +109,9 @@ static void set_corner(struct sb *b, long solo, char *name, size_t n)
 	if (solo >= 0)
 		snprintf(name, n, "%s at its high end, the other sources at their low end",
 			 nl_part_at(c, (size_t)solo)->path);
+	else if (solo <= -3)
+		snprintf(name, n, "%s at its low end, the other sources at their high end",
+			 nl_part_at(c, (size_t)(-solo - 3))->path);
 	else
 		snprintf(name, n, "every source at its %s end", solo == -1 ? "high" : "low");
 }
@@ -541,7 +548,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 {
 	struct sb b;
 	uint32_t solo[SIMBOUND_MAX_SOLO];
-	char names[SIMBOUND_MAX_SOLO + 2][200];
+	char names[2 * SIMBOUND_MAX_SOLO + 2][200];
 	if (!needs_run(sr, NULL) && !wants_flow(sr, NULL))
 		return 1;
 	memset(&b, 0, sizeof b);
@@ -581,11 +588,15 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	}
 	b.size = nl_node_count(a->er.circuit) + 1;
 	size_t ns = moving_sources(&b, solo, SIMBOUND_MAX_SOLO);
-	long corners[SIMBOUND_MAX_SOLO + 2] = {-1, -2};
+	long corners[2 * SIMBOUND_MAX_SOLO + 2] = {-1, -2};
 	/* every voltage proven: the currents' run alone */
 	size_t nc = !volts ? 1 : ns ? 2 : 1;
 	for (size_t k = 0; volts && ns > 1 && k < ns; k++)
 		corners[nc++] = (long)solo[k];
+	/* three sources or more (three phases): each alone low as well; with
+	   two, those are the corners above */
+	for (size_t k = 0; volts && ns > 2 && k < ns; k++)
+		corners[nc++] = -3 - (long)solo[k];
 	size_t np = nl_part_count(a->er.circuit) + 1;
 	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
 	if (!imin || !imax)

@@ -18,7 +18,14 @@
 #include <stdio.h>
 #include <string.h>
 
-enum { C_NOM, C_HI, C_LO, C_VF, NCORNER };
+enum { C_NOM, C_HI, C_LO, C_VF, C_VFH, C_VFL, NCORNER };
+
+/* A: the forward current of the high corner's drops. A clamp's capacitor
+ * holds the lowest input plus its diode's drop at the peak of the current
+ * that recharges it, far above the 1 mA of the low corner's drops (which
+ * lower stresses); 10 mA is the small-signal diodes' usual datasheet test
+ * point (common practice, no source). */
+#define STRESS_VF_HIGH_A 10e-3
 
 /* Offsets are intervals in the two tolerance corners: each source's DC
  * independently anywhere in its band, so rails that move apart are seen. */
@@ -26,7 +33,11 @@ static const char *const corner_names[NCORNER] = {
 	"nominal sources, ideal diodes",
 	"amplitudes at +tol, each offset anywhere in its band (pulse and pwl scaled whole), ideal diodes",
 	"amplitudes at -tol, each offset anywhere in its band (pulse and pwl scaled whole), ideal diodes",
-	"amplitudes and offsets at -tol, diode forward drops"};
+	"amplitudes and offsets at -tol, diode forward drops",
+	"amplitudes at +tol, each offset anywhere in its band (pulse and pwl scaled whole), diode "
+	"forward drops at 10 mA",
+	"amplitudes at -tol, each offset anywhere in its band (pulse and pwl scaled whole), diode "
+	"forward drops at 10 mA"};
 
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part)
@@ -65,21 +76,27 @@ static int run_corner(struct ctx *x, int k)
 	double *amp = arena_alloc(x->ar, (np + 1) * sizeof *amp);
 	double *olo = arena_alloc(x->ar, (np + 1) * sizeof *olo);
 	double *ohi = arena_alloc(x->ar, (np + 1) * sizeof *ohi);
-	double *vf = k == C_VF ? arena_alloc(x->ar, (np + 1) * sizeof *vf) : NULL;
-	if (!amp || !olo || !ohi || (k == C_VF && !vf))
+	int drops = k == C_VF || k == C_VFH || k == C_VFL, high = k == C_HI || k == C_VFH;
+	int low = k == C_LO || k == C_VFL;
+	double *vf = drops ? arena_alloc(x->ar, (np + 1) * sizeof *vf) : NULL;
+	if (!amp || !olo || !ohi || (drops && !vf))
 		return 0;
+	/* a forward drop raises some stresses (a clamp's capacitor holds the
+	   lowest input plus its diode's drop): the high corner with drops */
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(c, i);
 		double t = p->kind == NL_V ? stress_tolerance(x->a, x->p, (uint32_t)i) : 0;
-		amp[i] = k == C_HI ? 1 + t : k == C_LO || k == C_VF ? 1 - t : 1;
-		olo[i] = k == C_HI || k == C_LO ? 1 - t : k == C_VF ? 1 - t : 1;
-		ohi[i] = k == C_HI || k == C_LO ? 1 + t : k == C_VF ? 1 - t : 1;
+		amp[i] = high ? 1 + t : low || k == C_VF ? 1 - t : 1;
+		olo[i] = high || low ? 1 - t : k == C_VF ? 1 - t : 1;
+		ohi[i] = high || low ? 1 + t : k == C_VF ? 1 - t : 1;
 		/* a PULSE or PWL scales whole: its levels move together, so a
 		   level at 0 V stays at 0 V (the mean moves with the swing) */
 		if (scales_whole(p))
 			olo[i] = ohi[i] = amp[i];
 		if (vf)
-			vf[i] = p->kind == NL_D ? rating_vf(p, x->r[i].kind) : 0;
+			vf[i] = p->kind != NL_D  ? 0
+				: k != C_VF ? rating_vf_at(p, x->r[i].kind, STRESS_VF_HIGH_A)
+					     : rating_vf(p, x->r[i].kind);
 	}
 	struct prop_corner corner = {amp, olo, ohi, vf, x->skip};
 	return prop_run(c, x->a->ranges, &corner, x->ar, &x->runs[k]);
