@@ -703,8 +703,15 @@ static enum sim_status step(struct sim *s, double t_end)
 			if (hits)
 				s->nhist = 0;
 			s->hstep = fmin(2 * h, allowed);
-			if (hits)
+			if (hits) {
+				/* as SPICE: a tenth of the way to the next corner
+				   (an edge's rise), so what the corner sets off is
+				   followed from its start */
+				double next = next_corner(s);
 				s->hstep = fmin(s->hstep, s->o.max_step / 10);
+				if (isfinite(next) && next > s->t)
+					s->hstep = fmin(s->hstep, fmax((next - s->t) / 10, hmin * 10));
+			}
 			return SIM_OK;
 		}
 		reject(s);
