@@ -144,6 +144,7 @@ test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_currents.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_loadout.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_oneshot.py
+	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_forms.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_charge.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
 	@HEADROOM=$(BUILD)/headroom python3 tests/doc_profiles.py

@@ -521,6 +521,47 @@ def family(name):
 # (f09_charge_pump_pulse D1 was one until the DC offsets became symbols that a
 # clamp's level shares with its rail: docs/check.md, "Correlated offsets")
 KNOWN_LOOSE = {}
+_LOOSE_FILES = {
+    "f03_b1_doubler_slow_diodes_20khz.cir": (
+        ("c1", "c2", "cw", "d1", "d2"),
+        "the solver's diodes with a long transit time (TT 4.3 us) recover into a leaky "
+        "winding at 20 kHz and pump the ladder about 3x above what ngspice shows; with TT 0 "
+        "the bound is tight (docs/solver.md, Limits)"),
+    "f03_b1_greinacher_heavy.cir": (
+        ("c2", "d1", "d2"),
+        "the proof is the unloaded 2 Vp; a 100 ohm load takes 4 V a period out of C2 "
+        "(the loaded-output figures give it; the proof does not use them)"),
+    "f07_b2_halfwave_short_rc.cir": (
+        ("d1",),
+        "the proof takes the reservoir as holding its peak (2 Vp on the diode); its "
+        "10 k x 10 nF empties it within the period"),
+    "f09_b2_narrow_spike_zener.cir": (
+        ("c1", "dz"),
+        "a 200 ns spike every 1 ms: the solver's default steps overshoot the zener's "
+        "corner by 1 V (17.6 V with 2 ns steps)"),
+    "f10_b2_relay_flyback_zener.cir": (
+        ("d1",),
+        "after the flyback the diode's cathode floats, held by leakage and junction "
+        "capacitance; the bound is the flyback level"),
+    "f10_b2_three_phase_bridge_stiff.cir": (
+        ("cdc", "d1", "d2", "d3", "d4", "d5", "d6"),
+        "stiffly driven bridge (0.1 ohm lines): the solver's trapezoidal steps ring at "
+        "the diodes' turn-off with the models' transit time and reach 1 kV; ngspice "
+        "shows 619 V (docs/solver.md, Limits)"),
+}
+for _f, (_parts, _why) in _LOOSE_FILES.items():
+    for _p in _parts:
+        KNOWN_LOOSE[(_f, _p)] = _why
+
+# Parts known to get no number, each with its reason: the tool must still
+# name them in a stress-unsettled warning (docs/rules/stress-unsettled.md).
+KNOWN_MISSING = {
+    "f02_b1_doubler_source_rl_bare.cir":
+        "every diode turn-off rings the 3 mH source inductance against the diodes' 10 pF at "
+        "0.9 MHz, barely damped, in a 60 Hz circuit: the steady state needs more solver work "
+        "than a file's allowance (with a 150 ohm + 100 nF snubber the same doubler is bounded "
+        "and tight: f02_b1_doubler_source_rl)",
+}
 
 
 def main():
@@ -572,7 +613,8 @@ def main():
                        "files": keep}, fh, indent=1, sort_keys=True)
             fh.write("\n")
 
-    totals = dict(parts=0, sound=0, unsound=0, tight=0, loose=0, missing=0, by_real=0, known=0)
+    totals = dict(parts=0, sound=0, unsound=0, tight=0, loose=0, missing=0, by_real=0, known=0,
+                  known_missing=0)
     per_family = {}
     for f in files:
         e = cache[f]
@@ -593,7 +635,10 @@ def main():
             real, ideal, pu = r["sim_peak_real"], r["sim_peak_ideal"], r["powerup_peak_real"]
             totals["parts"] += 1
             fam["parts"] += 1
-            if w is None:
+            if w is None and f in KNOWN_MISSING:
+                verdict = "missing (known: %s)" % KNOWN_MISSING[f][:60]
+                totals["known_missing"] += 1
+            elif w is None:
                 verdict = "MISSING"
                 totals["missing"] += 1
                 fam["missing"] += 1
@@ -621,9 +666,11 @@ def main():
         print("  family %2d: %2d parts, %2d unsound, %2d loose, %2d missing"
               % (k, v["parts"], v["unsound"], v["loose"], v["missing"]))
     print("%s: %d parts in %d circuits: %d sound, %d UNSOUND, %d tight (%d of them tight* only "
-          "against the real diodes' larger peak), %d known loose, %d LOOSE, %d MISSING"
+          "against the real diodes' larger peak), %d known loose, %d LOOSE, %d known missing, "
+          "%d MISSING"
           % (TAG, totals["parts"], len(files), totals["sound"], totals["unsound"], totals["tight"],
-             totals["by_real"], totals["known"], totals["loose"], totals["missing"]))
+             totals["by_real"], totals["known"], totals["loose"], totals["known_missing"],
+             totals["missing"]))
     bad = totals["unsound"] + totals["loose"] + totals["missing"]
     return 0 if opt.report_only or not bad else 1
 
