@@ -36,6 +36,13 @@ struct nl_source {
 				the value is not known (only its DC was read) */
 };
 
+/* 1 when src's waveform happens once and then settles: a single pulse, a
+ * PWL without repeat, an EXP, a damped SIN (their levels differing). Its
+ * steady state is not its worst: the analysis leaves what it feeds
+ * unproven (proof.c) and the solver follows it from switch-on
+ * (simrun.c). */
+int nl_source_once(const struct nl_source *src);
+
 struct nl_model {
 	const char *name;    /* as written */
 	const char *type;    /* lower-case: "d", "npn", "nmos", ... */

@@ -32,13 +32,6 @@ struct sig {
 	const char *note;     /* why the steady state differs from the card, or NULL */
 };
 
-/* 1 when src's waveform happens once and then settles: a single pulse, a
- * PWL without repeat, an EXP, a damped SIN (their levels differing). Its
- * steady state is not its worst: the analysis leaves what it feeds
- * unproven (proof.c) and the solver follows it from switch-on
- * (simrun.c). */
-int sig_oneshot(const struct nl_source *src);
-
 /* Builds the steady-state signal of source src (V or I card) into *out;
  * breakpoint arrays are allocated in ar. Returns 0 on out-of-memory. */
 int sig_from_source(const struct nl_source *src, struct arena *ar,

@@ -124,7 +124,7 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 double sim_events_end(const struct sim *s);
 
 /* 1 when a moving source's waveform happens once: a single pulse, a PWL
- * without repeat or an EXP whose levels differ (simsrc_oneshot). */
+ * without repeat or an EXP whose levels differ (nl_source_once). */
 int sim_has_oneshot(const struct sim *s);
 
 /* The largest time step from here on, s (> 0). */

@@ -330,3 +330,30 @@ const char *nl_value_unit(const struct nl_part *p)
 	default: return "";
 	}
 }
+
+static double src_arg(const struct nl_source *s, uint32_t i, double dflt)
+{
+	return i < s->nargs ? s->args[i] : dflt;
+}
+
+int nl_source_once(const struct nl_source *src)
+{
+	size_t n = src->nargs / 2;
+	switch (src->wave) {
+	case NL_WAVE_PULSE:
+		return src_arg(src, 6, 0) <= 0 && src_arg(src, 0, 0) != src_arg(src, 1, 0);
+	case NL_WAVE_PWL:
+		if (src->pwl_repeat >= 0 && n && src->args[2 * (n - 1)] - src->pwl_repeat > 0)
+			return 0;
+		for (size_t i = 1; i < n; i++)
+			if (src->args[2 * i + 1] != src->args[1])
+				return 1;
+		return 0;
+	case NL_WAVE_EXP:
+		return src->nargs >= 2 && src_arg(src, 0, 0) != src_arg(src, 1, 0);
+	case NL_WAVE_SIN:
+		return src_arg(src, 4, 0) > 0 && src_arg(src, 1, 0) != 0 && src_arg(src, 2, 0) > 0;
+	default:
+		return 0;
+	}
+}

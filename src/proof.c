@@ -9,7 +9,6 @@
 #include <stdio.h>
 
 #include "num.h"
-#include "sig.h"
 
 struct pctx {
 	const struct nl_circuit *c;
@@ -19,7 +18,7 @@ struct pctx {
 	const char **why;        /* per island root: the first broken assumption */
 	unsigned char *taint;    /* per held node: depends on an unknown waveform */
 	const char *taint_why;
-	int taint_once;          /* taint_why's source happens once (sig_oneshot) */
+	int taint_once;          /* taint_why's source happens once (nl_source_once) */
 	int oom;
 };
 
@@ -83,7 +82,7 @@ static void spread_taint(struct pctx *x)
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *p = nl_part_at(x->c, i);
 		const struct nl_source *src = p->kind == NL_V && p->ext ? p->ext->src : NULL;
-		int once = src && src->wave != NL_WAVE_SIN && sig_oneshot(src);
+		int once = src && src->wave != NL_WAVE_SIN && nl_source_once(src);
 		if (src && (src->unknown || once)) {
 			const uint32_t *q = nl_pins(x->c, p);
 			x->taint[q[0]] = x->taint[q[1]] = 1;

@@ -213,28 +213,6 @@ static void from_am(const struct nl_source *s, struct sig *o)
 	o->ac_max = hi + slack;
 }
 
-int sig_oneshot(const struct nl_source *src)
-{
-	size_t n = src->nargs / 2;
-	switch (src->wave) {
-	case NL_WAVE_PULSE:
-		return arg(src, 6, 0) <= 0 && arg(src, 0, 0) != arg(src, 1, 0);
-	case NL_WAVE_PWL:
-		if (src->pwl_repeat >= 0 && n && src->args[2 * (n - 1)] - src->pwl_repeat > 0)
-			return 0;
-		for (size_t i = 1; i < n; i++)
-			if (src->args[2 * i + 1] != src->args[1])
-				return 1;
-		return 0;
-	case NL_WAVE_EXP:
-		return src->nargs >= 2 && arg(src, 0, 0) != arg(src, 1, 0);
-	case NL_WAVE_SIN:
-		return arg(src, 4, 0) > 0 && arg(src, 1, 0) != 0 && arg(src, 2, 0) > 0;
-	default:
-		return 0;
-	}
-}
-
 int sig_from_source(const struct nl_source *src, struct arena *ar,
 		    struct sig *out)
 {

@@ -11,7 +11,6 @@
 #include <string.h>
 
 #include "dense.h"
-#include "sig.h"
 #include "simint.h"
 
 #define PSS_MAX_STATES 400  /* shooting up to this many state entries */
@@ -144,7 +143,7 @@ double sim_events_end(const struct sim *s)
 int sim_has_oneshot(const struct sim *s)
 {
 	for (size_t i = 0; i < s->ndev; i++)
-		if (s->dev[i].src && s->dev[i].ac_k != 0 && sig_oneshot(s->dev[i].src))
+		if (s->dev[i].src && s->dev[i].ac_k != 0 && nl_source_once(s->dev[i].src))
 			return 1;
 	return 0;
 }
