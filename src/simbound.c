@@ -2,8 +2,9 @@
  * prove (simbound.h). Corners: every toleranced source at +tol, every one
  * at -tol, each of the first SIMBOUND_MAX_SOLO alone at +tol with the
  * rest at -tol (a bootstrap diode sees most with its rail low and the
- * switch node high) and, with three or more, each alone at -tol with the
- * rest at +tol (a three-phase bridge sees most with one phase low). A source's whole waveform scales in a corner, so a
+ * switch node high) and, for three sines or more of one frequency, each
+ * alone at -tol with the rest at +tol (a three-phase bridge sees most with
+ * one phase low). A source's whole waveform scales in a corner, so a
  * PULSE level at 0 V stays at 0 V. The all-high corner's run with the
  * diodes as modelled also gives every part's current (the file's only
  * run when every voltage is proven); current.c makes stresses of them. */
@@ -88,6 +89,24 @@ static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
 			out[n++] = (uint32_t)i;
 	}
 	return n;
+}
+
+/* 1 when the n >= 3 moving sources are sines of one frequency (the
+ * phases of a polyphase supply). */
+static int polyphase(const struct sb *b, const uint32_t *src, size_t n)
+{
+	double f0 = NAN;
+	for (size_t k = 0; k < n; k++) {
+		const struct nl_part *pt = nl_part_at(b->a->er.circuit, src[k]);
+		const struct nl_source *w = pt->ext ? pt->ext->src : NULL;
+		if (!w || w->wave != NL_WAVE_SIN || w->nargs < 3 || !(w->args[2] > 0))
+			return 0;
+		if (k == 0)
+			f0 = w->args[2];
+		else if (fabs(w->args[2] - f0) > 1e-9 * f0)
+			return 0;
+	}
+	return n >= 3;
 }
 
 /* Sets the corner: solo < 0 moves everything to one end (high when
@@ -593,9 +612,9 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	size_t nc = !volts ? 1 : ns ? 2 : 1;
 	for (size_t k = 0; volts && ns > 1 && k < ns; k++)
 		corners[nc++] = (long)solo[k];
-	/* three sources or more (three phases): each alone low as well; with
-	   two, those are the corners above */
-	for (size_t k = 0; volts && ns > 2 && k < ns; k++)
+	/* a polyphase supply (three sines or more of one frequency): each
+	   alone low as well; with two sources those are the corners above */
+	for (size_t k = 0; volts && polyphase(&b, solo, ns) && k < ns; k++)
 		corners[nc++] = -3 - (long)solo[k];
 	size_t np = nl_part_count(a->er.circuit) + 1;
 	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
