@@ -59,6 +59,15 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 struct extremes;
 static int track(void *ud, double t, const double *v);
 
+/* From the zero state to the end of the sources' events, every point
+ * tracked into e. */
+static enum sim_status follow_events(struct sim *s, struct extremes *e)
+{
+	double ev = sim_events_end(s);
+	track(e, sim_time(s), sim_voltages(s));
+	return ev > 0 ? sim_run(s, ev, track, e) : SIM_OK;
+}
+
 /* Creates the solver and, for the steady state, runs to it; with
  * o->oneshot and a source whose waveform happens once (a single pulse,
  * a PWL without repeat, an EXP), the way there through the sources'
@@ -76,13 +85,9 @@ static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o
 	r->period = sim_period(s);
 	if (o->until > 0 || r->period <= 0)
 		return s;
-	if (o->oneshot && e && sim_has_oneshot(s)) {
-		double ev = sim_events_end(s);
-		track(e, sim_time(s), sim_voltages(s));
-		r->status = sim_run(s, ev, track, e);
-		if (r->status != SIM_OK)
-			return s;
-	}
+	if (o->oneshot && e && sim_has_oneshot(s) &&
+	    (r->status = follow_events(s, e)) != SIM_OK)
+		return s;
 	r->status = sim_settle(s, r->period, o->max_periods ? o->max_periods : SIMRUN_PERIODS,
 			       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL,
 			       &r->periods, &r->settled, NULL, NULL);
@@ -293,9 +298,7 @@ static void oneshot(struct sim *s, const struct simrun_opts *o, struct simrun_re
 	double ev = sim_events_end(s), span = fmax(ev, SIMRUN_HOLD);
 	if (o->max_step <= 0)
 		sim_set_max_step(s, span / 200);
-	track(e, sim_time(s), sim_voltages(s));
-	if (ev > 0)
-		r->status = sim_run(s, ev, track, e);
+	r->status = follow_events(s, e);
 	if (r->status == SIM_OK)
 		r->status = sim_settle(s, span, o->max_periods ? o->max_periods : SIMRUN_PERIODS,
 				       o->settle_tol > 0 ? o->settle_tol : SIMRUN_TOL, &r->periods,
@@ -329,8 +332,7 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 		r->status = SIM_OOM;
 	double *pprev = o->nprobe ? hr_malloc(h, o->nprobe * sizeof *pprev) : NULL;
 	if (s && r->status == SIM_OK && r->period <= 0 && o->until <= 0 && o->oneshot) {
-		struct extremes e = {c, vmin, vmax, node_min, node_max, o, 0, 0, 0, NULL, 0, NULL, NULL, NAN};
-		oneshot(s, o, r, &e);
+		oneshot(s, o, r, &pre);
 	} else if (s && r->status == SIM_OK && (pprev || !o->nprobe)) {
 		double span = r->period > 0 ? r->period : o->until;
 		struct extremes e = {c, vmin, vmax, node_min, node_max, o, sim_time(s), span,
