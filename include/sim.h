@@ -40,7 +40,14 @@ struct sim_opts {
 			      t_shift, so a run from the zero state switches
 			      the circuit on at that instant of the sources'
 			      waveforms (0: as written) */
+	int hold_slow;     /* a PULSE whose period and width are each at least
+			      SIM_SLOW_RATIO times the shortest period of the
+			      other sources is held at its second level after
+			      its first rise (sim_held) */
 };
+
+/* How much slower than the fastest source a PULSE must be to be held. */
+#define SIM_SLOW_RATIO 1000
 
 /* The nearly ideal diode: IS 1e-9 A per unit area, N 0.05 (about 27 mV
  * at 1 mA), no RS, CJO or TT; BV and IBV as the model gives them. */
@@ -75,6 +82,14 @@ int sim_part_supported(const struct nl_circuit *c, size_t i, struct sim_refusal 
  * a diode whose model is not a compact one (a device-level model) then
  * needs none. */
 int sim_part_supported_ideal(const struct nl_circuit *c, size_t i);
+
+/* The first source part held by hold_slow (NL_NONE: none), its period
+ * and its width (s). */
+uint32_t sim_held(const struct sim *s, double *period, double *width);
+
+/* NULL when part i is simulated as its model is written, else what the
+ * solver leaves out of that model (a static string). */
+const char *sim_part_approx(const struct nl_circuit *c, size_t i);
 
 /* Frees the solver. NULL is a no-op. */
 void sim_destroy(struct sim *s);

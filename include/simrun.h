@@ -34,6 +34,8 @@ struct simrun_opts {
 	double gshunt;         /* S from every node to ground (sim.h) */
 	int ideal_diodes;      /* nearly ideal diodes (sim.h) */
 	double t_shift;        /* switch-on instant of the sources (sim.h) */
+	int hold_slow;         /* a far slower PULSE held at its second level
+				  after its rise (sim.h) */
 	int oneshot;           /* simrun_peaks, steady state asked for, no
 				  source repeats: the extremes of the run
 				  from switch-on (the zero state) through the
@@ -68,6 +70,9 @@ struct simrun_result {
 	double period;         /* s; 0 when no source repeats */
 	int oneshot;           /* the run was o->oneshot's, and settled */
 	double t_end;          /* time reached */
+	uint32_t held;         /* first source held by hold_slow (NL_NONE:
+				  none), its period and width (s) */
+	double held_per, held_pw;
 	struct sim_stats stats;
 };
 

@@ -25,6 +25,10 @@ double simsrc_next_corner(const struct nl_source *src,
  * or 0 when it does not repeat. */
 double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp);
 
+/* A PULSE width that stands for "held for ever" (sim.c's slow PULSE):
+ * such a pulse has played out its events at the end of its rise. */
+#define SIMSRC_HELD 1e300
+
 /* The time by which src has played out everything that does not repeat:
  * its delay, a single pulse, a PWL's part before its repeat (or all of a
  * PWL that does not repeat), ten time constants of a damped SIN or of an

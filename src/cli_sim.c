@@ -127,7 +127,9 @@ static int run(const struct sim_cli *c, struct nl_circuit *circ)
 	FILE *out = c->out_path ? o.f : stdout;
 	struct simrun_result r;
 	const char *bad = NULL;
-	int ok = simrun_csv(out, circ, c->nodes, c->nnodes, &c->o, &hook, &r, &bad);
+	struct simrun_opts so = c->o;
+	so.hold_slow = so.until <= 0; /* the steady state of a far slower PULSE's high level */
+	int ok = simrun_csv(out, circ, c->nodes, c->nnodes, &so, &hook, &r, &bad);
 	int good = ok && r.status == SIM_OK;
 	if (c->out_path && !cli_out_close(&o, good))
 		good = ok = 0;

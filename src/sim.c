@@ -24,6 +24,7 @@
 #define SIM_MAX_WORK 20000000ul /* Newton iterations: some 5 M time points */
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
+#define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
 
 
 /* ---- setup ---- */
@@ -171,6 +172,64 @@ int sim_part_supported_ideal(const struct nl_circuit *c, size_t i)
 	return device_kind(nl_part_at(c, i), (uint32_t)i, &k, &ref, 1);
 }
 
+const char *sim_part_approx(const struct nl_circuit *c, size_t i)
+{
+	const struct nl_part *p = nl_part_at(c, i);
+	if (p->letter != 'm' || simvdmos_is(p) || simmos_refusal(p))
+		return NULL;
+	return simmos_approx(p);
+}
+
+/* A PULSE far slower than the fastest source (a supply switched on for
+ * seconds under a converter's microseconds): the solver cannot run its
+ * period, so it is held at its second level after its first rise, and
+ * the run follows that switch-on (sim_held). Its fall is not run. */
+static const struct nl_source *held_or_own(struct sim *s, uint32_t i,
+					   const struct nl_source *src)
+{
+	double per = simsrc_period(src, &s->span), pw = src->nargs > 5 ? src->args[5] : 0;
+	if (src->wave != NL_WAVE_PULSE || !(s->fastest > 0) ||
+	    per < SIM_SLOW_RATIO * s->fastest || pw < SIM_SLOW_RATIO * s->fastest)
+		return src;
+	struct nl_source *h = arena_alloc(s->ar, sizeof *h);
+	double *args = arena_alloc(s->ar, 7 * sizeof *args);
+	if (!h || !args)
+		return NULL;
+	*h = *src;
+	memcpy(args, src->args, 5 * sizeof *args);
+	args[5] = SIMSRC_HELD;
+	args[6] = 0;        /* no repeat */
+	h->args = args;
+	h->nargs = 7;
+	if (s->held == NL_NONE)
+		s->held = i, s->held_per = per, s->held_pw = pw;
+	return h;
+}
+
+/* The shortest period of the sources that are not slow PULSEs. */
+static double fastest_period(const struct sim *s)
+{
+	double lo = INFINITY;
+	for (size_t i = 0; i < nl_part_count(s->c); i++) {
+		const struct nl_part *p = nl_part_at(s->c, i);
+		const struct nl_source *src = p->ext ? p->ext->src : NULL;
+		if (!src || (p->kind != NL_V && p->kind != NL_I) ||
+		    (s->o.leave_out && s->o.leave_out[i]) || (s->o.ac_scale && s->o.ac_scale[i] == 0))
+			continue;
+		double per = simsrc_period(src, &s->span);
+		if (per > 0)
+			lo = fmin(lo, per);
+	}
+	return isfinite(lo) ? lo : 0;
+}
+
+uint32_t sim_held(const struct sim *s, double *period, double *width)
+{
+	*period = s->held_per;
+	*width = s->held_pw;
+	return s->held;
+}
+
 /* Unknowns: nodes but ground, then diode internal nodes, then branches. */
 static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 {
@@ -273,6 +332,8 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 		d->src = p->ext ? p->ext->src : NULL;
 		if (!d->src)
 			return 1;
+		if (s->o.hold_slow && !(d->src = held_or_own(s, (uint32_t)i, d->src)))
+			return 0;
 		d->mean = simsrc_mean(d->src, &s->span);
 		d->ac_k = s->o.ac_scale ? s->o.ac_scale[i] : 1;
 		d->dc_v = d->mean * (s->o.dc_scale ? s->o.dc_scale[i] : 1);
@@ -352,6 +413,30 @@ static int link_behav(struct sim *s, struct simdev *d, struct sim_refusal *ref)
 	return 1;
 }
 
+/* Windings coupled to one another, however loosely, take their steps by
+ * one rule: a winding's equation holds its self flux and each mutual flux
+ * alike, so a tight pair on BDF2 makes every winding coupled to it (and
+ * its couplings) BDF2 too. Mixed, the mutual terms of one row would be
+ * taken by a rule its history was not, and the windings would pump energy
+ * in from nowhere. */
+static void one_method_per_coupling(struct sim *s)
+{
+	for (int changed = 1; changed;) {
+		changed = 0;
+		for (size_t i = 0; i < s->ndev; i++) {
+			struct simdev *k = &s->dev[i];
+			if (k->kind != SD_K)
+				continue;
+			struct simdev *a = &s->dev[k->c], *b = &s->dev[k->d];
+			int any = k->coupled || a->coupled || b->coupled;
+			if (any && !(k->coupled && a->coupled && b->coupled)) {
+				k->coupled = a->coupled = b->coupled = 1;
+				changed = 1;
+			}
+		}
+	}
+}
+
 /* Second pass: K needs its inductors' branches, F and H their sources'. */
 static int link_controls(struct sim *s, struct sim_refusal *ref)
 {
@@ -393,22 +478,48 @@ static int link_controls(struct sim *s, struct sim_refusal *ref)
 				return refuse(ref, d->part, "the controlling voltage source is not known");
 		}
 	}
+	one_method_per_coupling(s);
 	return 1;
 }
 
-static double shortest_period(struct sim *s, double *longest)
+/* The smallest multiple of *common that per divides (up to SIM_LCM_MAX
+ * times it; beyond, *common is left as it is). */
+static void common_multiple(double *common, double per)
 {
-	double lo = INFINITY;
-	*longest = 0;
+	for (int k = 1; k <= SIM_LCM_MAX; k++) {
+		double q = k * *common / per;
+		if (fabs(q - nearbyint(q)) <= 1e-6 * q) {
+			*common *= k;
+			return;
+		}
+	}
+}
+
+/* The shortest source period; into *common the period of them all: the
+ * least common multiple of the periods where they have one within
+ * SIM_LCM_MAX times the longest, else the longest. */
+static double shortest_period(struct sim *s, double *common)
+{
+	double lo = INFINITY, longest = 0;
 	for (size_t i = 0; i < s->ndev; i++) {
 		if (!s->dev[i].src || s->dev[i].ac_k == 0) /* held at a value */
 			continue;
 		double per = simsrc_period(s->dev[i].src, &s->span);
 		if (per > 0) {
 			lo = fmin(lo, per);
-			*longest = fmax(*longest, per);
+			longest = fmax(longest, per);
 		}
 	}
+	*common = longest;
+	for (size_t i = 0; longest > 0 && i < s->ndev; i++) {
+		if (!s->dev[i].src || s->dev[i].ac_k == 0)
+			continue;
+		double per = simsrc_period(s->dev[i].src, &s->span);
+		if (per > 0)
+			common_multiple(common, per);
+	}
+	if (*common > SIM_LCM_MAX * longest)
+		*common = longest;
 	return lo;
 }
 
@@ -441,6 +552,8 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 	if (!s->dev || !s->shunt || !s->x || !s->xprev || !s->v || !s->m)
 		return SIM_OOM;
 	long next = (long)s->nnodes - 1;
+	s->held = NL_NONE;
+	s->fastest = s->o.hold_slow ? fastest_period(s) : 0;
 	for (size_t i = 0, k = 0; i < nl_part_count(s->c); i++) {
 		if (s->o.leave_out && s->o.leave_out[i])
 			continue;

@@ -45,6 +45,8 @@ struct sb {
 	int volts;               /* unproven voltages to simulate */
 	const char *ideal_only;  /* every run with nearly ideal diodes: why
 				    (a diode with a device-level model) */
+	const char *approx;      /* the first part simulated with less than
+				    its model, and what is left out */
 };
 
 static int needs_run(const struct stress_result *sr, const unsigned char *blocked)
@@ -244,7 +246,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			return 1;
 		}
 		struct simrun_result r;
-		char buf[420];
+		char buf[900];
 		b->o.ideal_diodes = !real || b->ideal_only;
 		/* work is Newton iterations times unknowns: a run may use what
 		   is left of the file's allowance, up to its own limit; the
@@ -280,12 +282,19 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			memcpy(imin, b->vmin, np * sizeof *imin);
 			memcpy(imax, b->vmax, np * sizeof *imax);
 		}
-		snprintf(buf, sizeof buf, "simulated, %.200s%s%s", name,
+		char held[300] = "";
+		if (r.held != NL_NONE)
+			snprintf(held, sizeof held,
+				 "; %.80s's PULSE (period %.3g s, width %.3g s) held at its second "
+				 "level after its rise, its fall not run",
+				 nl_part_at(c, r.held)->path, r.held_per, r.held_pw);
+		snprintf(buf, sizeof buf, "simulated, %.200s%s%s%s%s", name,
 			 b->ideal_only ? "; diodes nearly ideal (a device-level diode model)"
 				       : how[rising ? 2 : real],
 			 r.oneshot ? "; no source repeats: from switch-on through the sources' "
 				     "events to the settled state"
-				   : "");
+				   : "",
+			 held, b->approx ? b->approx : "");
 		const char *corner = arena_strdup(b->ar, buf);
 		if (!corner)
 			return 0;
@@ -438,6 +447,22 @@ static int ideal_stand_in(struct sb *b, unsigned char *mask, size_t *count,
 	return 1;
 }
 
+/* The first part simulated with less than its model (a level-3 MOSFET
+ * run as level 1): the simulated numbers say so. */
+static int note_approx(struct sb *b, const unsigned char *mask)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const char *what = mask[i] ? NULL : sim_part_approx(c, i);
+		if (!what)
+			continue;
+		char buf[600];
+		snprintf(buf, sizeof buf, "; %.200s %s", nl_part_at(c, i)->path, what);
+		return (b->approx = arena_strdup(b->ar, buf)) != NULL;
+	}
+	return 1;
+}
+
 /* Parts the solver has no model for are left open; their islands get no
  * simulated number (the circuit simulated would not be the real one), each
  * with the first such part of that island as the reason. */
@@ -467,9 +492,12 @@ static int leave_out(struct sb *b)
 		return 0;
 	if (count && !block_groups(b))
 		return 0;
+	if (!note_approx(b, mask))
+		return 0;
 	b->o.leave_out = mask;
 	b->o.gshunt = SIMRUN_GSHUNT;
 	b->o.oneshot = 1;
+	b->o.hold_slow = 1;
 	return 1;
 }
 

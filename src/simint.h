@@ -38,6 +38,9 @@ struct sim {
 	unsigned nhist;          /* accepted points in the error history */
 	double hprev;            /* the last accepted step */
 	double period;
+	double fastest;          /* shortest source period (hold_slow) */
+	uint32_t held;           /* first source held by hold_slow, or NL_NONE */
+	double held_per, held_pw;
 	struct sim_stats st;
 	struct sim_sens *sens;    /* shooting: sensitivities to track, or NULL */
 	/* called at every accepted step before its charges become the

@@ -28,12 +28,22 @@ const char *simmos_refusal(const struct nl_part *p)
 		return "a VDMOS power MOSFET model is not simulated";
 	if (!m || (strcmp(m->type, "nmos") != 0 && strcmp(m->type, "pmos") != 0))
 		return "the MOSFET's model is not of type NMOS or PMOS";
-	if (PARAM(m, 1, "level") != 1)
-		return "only level-1 (Shichman-Hodges) MOSFETs are simulated, not higher levels "
+	double level = PARAM(m, 1, "level");
+	if (level != 1 && level != 2 && level != 3)
+		return "only MOSFETs of levels 1 to 3 are simulated, not higher levels "
 		       "(BSIM and others)";
 	if (p->npins < 4)
 		return "a MOSFET needs four nodes (drain, gate, source, bulk)";
 	return NULL;
+}
+
+const char *simmos_approx(const struct nl_part *p)
+{
+	double level = p->model ? PARAM(p->model, 1, "level") : 1;
+	if (strcmp(p->model ? p->model->type : "", "vdmos") == 0 || level == 1)
+		return NULL;
+	return "run with the level-1 square law and its mobility falling with THETA; the "
+	       "short-channel terms of levels 2 and 3 (VMAX, KAPPA, ETA, NFS) are left out";
 }
 
 static double positive(double v)
@@ -97,6 +107,10 @@ static struct simmos *channel(struct arena *ar, const struct nl_part *p, double 
 	t->gamma = positive(PARAM(m, 0, "gamma"));
 	t->phi = PARAM(m, 0.6, "phi");
 	t->phi = t->phi > 0 ? t->phi : 0.6;
+	if (PARAM(m, 1, "level") == 3) { /* beta / (1 + THETA (vgs - vth)) */
+		t->theta = positive(PARAM(m, 0, "theta"));
+		t->theta_on_vgst = 1;
+	}
 	return t;
 }
 
@@ -205,12 +219,13 @@ static double drain(const struct simmos *t, double vgs, double vds, double vbs, 
 		vgst = z > 40 ? vgst : t->ksub * log1p(exp(z));
 		dvgst = z > 40 ? 1 : 1 / (1 + exp(-z));
 	}
-	if (t->theta > 0 && vgs > 0) { /* VDMOS: beta / (1 + THETA vgs) */
-		beta /= 1 + t->theta * vgs;
-		dbeta = -beta * t->theta / (1 + t->theta * vgs);
-	}
 	if (vgst <= 0)
 		return 0;
+	double over = t->theta_on_vgst ? vgst : vgs;
+	if (t->theta > 0 && over > 0) { /* VDMOS: beta / (1 + THETA vgs); level 3 on vgst */
+		beta /= 1 + t->theta * over;
+		dbeta = -beta * t->theta / (1 + t->theta * over);
+	}
 	double betap = beta * (1 + t->lambda * vds), id;
 	if (vgst <= vds) { /* saturation */
 		id = betap * vgst * vgst / 2;

@@ -20,9 +20,10 @@ struct simmos {
 	double type;               /* +1 NMOS, -1 PMOS */
 	double vto, beta;          /* V (in the device's own polarity); A/V^2 */
 	double lambda, gamma, phi; /* 1/V; sqrt(V); V */
-	double ksub, theta;        /* VDMOS only (0 for the others): the
-				      subthreshold smoothing (V) and the
-				      mobility modulation (1/V) */
+	double ksub, theta;        /* VDMOS and level 3 (0 for the others):
+				      the subthreshold smoothing (V, VDMOS)
+				      and the mobility modulation (1/V) */
+	int theta_on_vgst;         /* level 3: THETA acts on vgs - vth */
 	double vgs, vds;           /* limited, of the last stamp (own polarity) */
 	const struct simdev *jbs;  /* bulk-source diode: its vd is vbs */
 };
@@ -30,6 +31,11 @@ struct simmos {
 /* NULL when p (an opaque part) is a MOSFET the solver models, else why
  * not (a static string). */
 const char *simmos_refusal(const struct nl_part *p);
+
+/* NULL when M part p's model is simulated as it is written, else what
+ * the solver leaves out of it (a static string): levels 2 and 3 run as
+ * level 1 with THETA. */
+const char *simmos_approx(const struct nl_part *p);
 
 /* How many solver devices and extra unknowns M part p becomes. */
 void simmos_size(const struct nl_part *p, size_t *ndev, size_t *nint);

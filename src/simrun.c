@@ -54,6 +54,7 @@ static void opts_of(const struct simrun_opts *o, double stop, struct sim_opts *s
 	so->max_work = o->max_work;
 	so->ideal_diodes = o->ideal_diodes;
 	so->t_shift = o->t_shift;
+	so->hold_slow = o->hold_slow;
 }
 
 struct extremes;
@@ -78,11 +79,13 @@ static struct sim *start(const struct nl_circuit *c, const struct simrun_opts *o
 	struct sim_opts so;
 	struct sim *s;
 	memset(r, 0, sizeof *r);
+	r->held = NL_NONE;
 	opts_of(o, o->until, &so);
 	r->status = sim_create(c, &so, h, &s, &r->refusal);
 	if (r->status != SIM_OK)
 		return NULL;
 	r->period = sim_period(s);
+	r->held = sim_held(s, &r->held_per, &r->held_pw);
 	if (o->until > 0 || r->period <= 0)
 		return s;
 	if (o->oneshot && e && sim_has_oneshot(s) &&
@@ -376,6 +379,7 @@ void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,
 	struct sim_opts so;
 	struct sim *s = NULL;
 	memset(r, 0, sizeof *r);
+	r->held = NL_NONE;
 	opts_of(&zero, 0, &so);
 	so.no_shooting = 1; /* the trajectory itself is wanted */
 	r->status = sim_create(c, &so, h, &s, &r->refusal);
@@ -473,6 +477,7 @@ void simrun_surge(const struct nl_circuit *c, const struct simrun_opts *o, doubl
 	struct sim *s = NULL;
 	zero.cap_v0 = NULL;
 	memset(r, 0, sizeof *r);
+	r->held = NL_NONE;
 	opts_of(&zero, span, &so);
 	long *dev = hr_malloc(h, (n + 1) * sizeof *dev);
 	double *iprev = hr_malloc(h, (n + 1) * sizeof *iprev);

@@ -266,7 +266,9 @@ double simsrc_settled_from(const struct nl_source *src,
 	}
 	case NL_WAVE_PULSE: {
 		struct pulse p = pulse_of(src, sp);
-		return isfinite(p.per) ? p.td : p.td + p.tr + p.pw + p.tf;
+		return isfinite(p.per)		? p.td
+		       : p.pw >= SIMSRC_HELD ? p.td + p.tr /* held (sim.c) */
+					     : p.td + p.tr + p.pw + p.tf;
 	}
 	case NL_WAVE_PWL: {
 		uint32_t n = src->nargs / 2;
