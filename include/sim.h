@@ -154,6 +154,9 @@ struct sim_stats {
 			      relative to its largest value */
 	double settled_from; /* sim_settle: when the sources' non-repeating
 				parts end (s); no steady state before it */
+	double noise;      /* sim_settle: V; a steady state taken at the solver's
+			      noise floor wanders by this much from one period
+			      to the next (0: it settled outright) */
 };
 void sim_stats(const struct sim *s, struct sim_stats *out);
 

@@ -111,6 +111,10 @@ static void summary(const struct sim_cli *c, const struct simrun_result *r)
 		r->stats.newton, r->stats.fresh_lu, r->stats.refactor_lu);
 	if (c->o.until > 0)
 		fprintf(stderr, "; 0 to %g s\n", c->o.until);
+	else if (r->period > 0 && r->settled && r->stats.noise > 0)
+		fprintf(stderr, "; steady after %u periods of %g s, to within %.3g V from one "
+				"period to the next (the solver's noise floor)\n",
+			r->periods, r->period, r->stats.noise);
 	else if (r->period > 0)
 		fprintf(stderr, "; %s after %u periods of %g s\n",
 			r->settled ? "steady" : "NOT settled", r->periods, r->period);

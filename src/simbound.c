@@ -223,6 +223,14 @@ static int keep_flow(struct sb *b, const struct simrun_result *r, const char *na
 	return 1;
 }
 
+/* A run settled at the solver's noise floor: its period's extremes may
+ * be off by that much either way (sim_stats). */
+static void widen(double *vmin, double *vmax, size_t n, double noise)
+{
+	for (size_t i = 0; noise > 0 && i < n; i++)
+		vmin[i] -= noise, vmax[i] += noise;
+}
+
 /* One corner: with nearly ideal diodes (when asked) and as modelled;
  * with flows the real run's currents are kept. */
 static int run_corner(struct sb *b, const char *name, double *imin, double *imax, int ideal,
@@ -298,6 +306,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		const char *corner = arena_strdup(b->ar, buf);
 		if (!corner)
 			return 0;
+		widen(b->vmin, b->vmax, np - 1, r.stats.noise);
 		take(b, corner, real);
 	}
 	return 1;

@@ -19,6 +19,8 @@
 #define PSS_RADIUS 0.05     /* the first trust radius: 5 % of the largest value */
 #define PSS_ATTEMPTS 6      /* shooting attempts in one settling */
 #define PSS_PLAIN 20        /* plain periods after the first failed attempt */
+#define PSS_WINDOW 8        /* periods over which a noise floor is judged */
+#define PSS_NOISE 1e-2      /* the largest change a noise floor may have */
 
 /* The circuit's state: each capacitor's voltage and each inductor's
  * current (node voltages would do badly: a node on a fast edge at the
@@ -479,6 +481,43 @@ static enum sim_status try_shooting(struct sim *s, double period, double tol,
 	return r;
 }
 
+/* Plain settling that has reached its noise floor: the steps of the
+ * solver fall at other instants each period, and a circuit that switches
+ * hard (an amplifier slamming into its rails) never repeats itself closer
+ * than that. Over PSS_WINDOW periods, each change below PSS_NOISE and the
+ * state PSS_WINDOW periods back no further away than twice the largest of
+ * them: nothing is still on its way (a slow decay moves the state on,
+ * period after period). The largest change, in volts, is the run's noise
+ * (sim_stats), which the numbers taken from it must allow for. */
+struct noise {
+	double *anchor;  /* the state at the window's start */
+	double largest;  /* the largest change in the window (relative) */
+	unsigned n;      /* periods in the window */
+};
+
+static int noise_floor(struct sim *s, struct noise *w, const double *now, double change)
+{
+	double scale[2];
+	int caps;
+	state_scale(s, now, scale, &caps);
+	if (!caps || !(change < PSS_NOISE)) {
+		w->n = 0;
+		return 0;
+	}
+	if (w->n == 0) {
+		memcpy(w->anchor, now, s->ndev * sizeof *now);
+		w->largest = 0;
+	}
+	w->largest = fmax(w->largest, change);
+	if (++w->n <= PSS_WINDOW)
+		return 0;
+	w->n = 0;
+	if (!(state_change(s, now, w->anchor) <= 2 * w->largest))
+		return 0;
+	s->st.noise = w->largest * scale[0];
+	return 1;
+}
+
 enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 			   double tol, unsigned *periods, int *settled,
 			   sim_point_fn fn, void *ud)
@@ -494,6 +533,10 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 	s->st.residual = NAN;
 	int may_shoot = !s->o.no_shooting && one_map(s, period);
 	unsigned since = 0, next_shot = 1, shots = 0, plain = 0;
+	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor), 0, 0};
+	if (!nf.anchor)
+		return SIM_OOM;
+	s->st.noise = 0;
 	enum sim_status r = sim_run(s, s->t, NULL, NULL);
 	state_of(s, now);
 	while (r == SIM_OK && *periods < max_periods) {
@@ -522,6 +565,11 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 		if (r == SIM_OK && since >= 2 && *periods >= 3 &&
 		    s->t - 2 * period >= from * (1 - 1e-9) && change < tol &&
 		    (to_come < tol || change < tol / 10)) {
+			*settled = 1;
+			break;
+		}
+		if (r == SIM_OK && s->t - period >= from * (1 - 1e-9) &&
+		    noise_floor(s, &nf, now, change)) {
 			*settled = 1;
 			break;
 		}
