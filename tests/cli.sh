@@ -278,7 +278,7 @@ run sim "$tmp/trans.cir" --node b
 check "sim simulates a bipolar transistor, a level-1 MOSFET, a switch, two JFETs and a VDMOS" bash -c "test $rc -eq 0 && grep -q 'steady after' '$tmp/err'"
 printf 't\nV1 a 0 sin(0 1 1k)\nM1 a b 0 0 mb\nR1 b 0 1k\n.model mb nmos level=49\n' > "$tmp/bsim.cir"
 run sim "$tmp/bsim.cir" --node b
-check "sim refuses a MOSFET beyond level 1, saying so" bash -c "test $rc -eq 2 && grep -q 'M1: only level-1 (Shichman-Hodges) MOSFETs are simulated' '$tmp/err'"
+check "sim refuses a MOSFET beyond level 3, saying so" bash -c "test $rc -eq 2 && grep -q 'M1: only MOSFETs of levels 1 to 3 are simulated' '$tmp/err'"
 run sim "$simdeck" --node out --node a,out --until 3m --from 2m
 check "sim --until: CSV header and rows from --from to --until" bash -c "test $rc -eq 0 && head -1 '$tmp/out' | grep -qx 'time,v(out),v(a,out)' && awk -F, 'NR==2 && \$1 < 0.002 {exit 1} END {if (\$1 != 0.003) exit 1}' '$tmp/out'"
 run sim "$simdeck" --node out -o "$tmp/wave.csv"
