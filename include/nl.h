@@ -91,6 +91,8 @@ struct nl_extra {
 	const char **coupled;      /* K: every inductor named (ncoupled >= 2) */
 	uint32_t ncoupled;
 	uint32_t ctrl_part[2];     /* resolved part index of ctrl, or NL_NONE */
+	uint32_t *coupled_part;    /* K: each of coupled resolved (NL_NONE
+				      where not), or NULL */
 	int behavioural;           /* E/G/F/H given by value=, poly(), table;
 				      R/C/L valued by the circuit's state; K over
 				      more than two inductors or with a core */

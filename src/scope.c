@@ -833,7 +833,13 @@ static void link_part(struct elab *el, struct smap *paths, struct nl_part *p)
 	if (k && p->ext->coupled)
 		n = p->ext->ncoupled;
 	enum nl_kind want = k ? NL_L : NL_V;
+	uint32_t *all = k && p->ext->coupled ? arena_alloc(nl_arena(el->c), n * sizeof *all) : NULL;
+	if (k && p->ext->coupled && !all)
+		el->oom = 1;
+	p->ext->coupled_part = all;
 	for (uint32_t i = 0; i < n; i++) {
+		if (all)
+			all[i] = NL_NONE;
 		const char *name = k && p->ext->coupled ? p->ext->coupled[i] : p->ext->ctrl[i];
 		uint32_t q = find_part(el, paths, p->path, name);
 		if (q == NL_NONE || nl_part_at(el->c, q)->kind != want) {
@@ -842,6 +848,8 @@ static void link_part(struct elab *el, struct smap *paths, struct nl_part *p)
 				 p->path, name, want == NL_L ? "an inductor" : "a voltage source");
 			continue;
 		}
+		if (all)
+			all[i] = q;
 		if (i < 2 && !p->ext->behavioural)
 			p->ext->ctrl_part[i] = q;
 	}

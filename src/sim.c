@@ -121,6 +121,71 @@ static int switch_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 	return 1;
 }
 
+
+/* A K over several inductors (every pair coupled by its coefficient), or
+ * a pair on a magnetic core model (CORE: taken as linear, core_al). */
+static const char *coupling_refusal(const struct nl_part *p)
+{
+	if (p->model && strcmp(p->model->type, "core") != 0)
+		return "a coupling through a magnetic model other than a core is not simulated";
+	if (!p->ext->coupled_part)
+		return "the coupled inductors are not all known";
+	for (uint32_t k = 0; k < p->ext->ncoupled; k++)
+		if (p->ext->coupled_part[k] == NL_NONE)
+			return "the coupled inductors are not all known";
+	return NULL;
+}
+
+static size_t coupling_pairs(const struct nl_part *p)
+{
+	size_t n = p->ext && p->ext->coupled_part ? p->ext->ncoupled : 2;
+	return n * (n - 1) / 2;
+}
+
+#define MU0 1.25663706e-6 /* H/m */
+#define CORE_PARAM(m, dflt, name) dmodel_param((m), (const char *const[]){name, NULL}, (dflt))
+
+/* A core model's windings taken as linear: H per turn squared through
+ * AREA (cm^2) and PATH (cm) with an air GAP (cm), the core's relative
+ * permeability 1 + MS/(3 A), the slope at zero of the Jiles-Atherton
+ * anhysteretic curve (Langevin's). Defaults AREA 0.1, PATH 1, GAP 0, MS
+ * 1e6 A/m, A 1e3 A/m (the core model's, from memory). */
+static double core_al(const struct nl_model *m)
+{
+	double area = CORE_PARAM(m, 0.1, "area") * 1e-4, path = CORE_PARAM(m, 1, "path") * 1e-2;
+	double gap = fmax(CORE_PARAM(m, 0, "gap") * 1e-2, 0);
+	double ms = CORE_PARAM(m, 1e6, "ms"), a = CORE_PARAM(m, 1e3, "a");
+	double mur = 1 + (ms > 0 && a > 0 ? ms / (3 * a) : 0);
+	if (!(area > 0) || !(path > 0))
+		return 0;
+	double rel = fmax(path - gap, 0) / (MU0 * mur * area) + gap / (MU0 * area);
+	return rel > 0 ? 1 / rel : 0;
+}
+
+/* Each winding of a core model: its H per turn squared, for fill_device. */
+static int core_windings(struct sim *s)
+{
+	size_t np = nl_part_count(s->c);
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *p = nl_part_at(s->c, i);
+		if (p->kind != NL_K || !p->model || !p->ext || !p->ext->coupled_part ||
+		    (s->o.leave_out && s->o.leave_out[i]))
+			continue;
+		if (!s->turns_al && !(s->turns_al = arena_zalloc(s->ar, (np + 1) * sizeof(double))))
+			return 0;
+		for (uint32_t k = 0; k < p->ext->ncoupled; k++)
+			if (p->ext->coupled_part[k] != NL_NONE)
+				s->turns_al[p->ext->coupled_part[k]] = core_al(p->model);
+	}
+	return 1;
+}
+
+/* An inductor's value in henries (a core's windings are given in turns). */
+static double henries(const struct sim *s, uint32_t i)
+{
+	double v = nl_part_at(s->c, i)->value;
+	return s->turns_al && s->turns_al[i] > 0 ? v * v * s->turns_al[i] : v;
+}
 /* Which solver device a part becomes; 0 with *ref filled when none. */
 static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 		       struct sim_refusal *ref, int ideal)
@@ -141,9 +206,13 @@ static int device_kind(const struct nl_part *p, uint32_t i, uint8_t *kind,
 		return switch_kind(p, i, kind, ref);
 	if (p->kind > NL_H || p->kind == NL_X_UNUSED)
 		return refuse(ref, i, "the solver has no model for this kind of part");
-	if (p->ext && p->ext->behavioural && p->kind == NL_K)
-		return refuse(ref, i, "a coupling over more than two inductors or with a magnetic "
-				      "core model is not simulated");
+	if (p->kind == NL_K && (p->ext->behavioural || p->model)) {
+		const char *why = coupling_refusal(p);
+		if (why)
+			return refuse(ref, i, why);
+		*kind = SD_K;
+		return 1;
+	}
 	if (p->ext && p->ext->behavioural && p->kind <= NL_L)
 		return refuse(ref, i, "a value that follows the circuit's state (time, a node "
 				      "voltage or a current) is not simulated");
@@ -175,6 +244,11 @@ int sim_part_supported_ideal(const struct nl_circuit *c, size_t i)
 const char *sim_part_approx(const struct nl_circuit *c, size_t i)
 {
 	const struct nl_part *p = nl_part_at(c, i);
+	if (p->kind == NL_K && p->model && !coupling_refusal(p))
+		return "(a magnetic core model) taken as a linear core: its windings' values as "
+		       "turns on the core's AREA, PATH and GAP, its permeability 1 + MS/(3 A) "
+		       "from the magnetisation curve's slope at zero; saturation and hysteresis "
+		       "left out";
 	if (p->letter != 'm' || simvdmos_is(p) || simmos_refusal(p))
 		return NULL;
 	return simmos_approx(p);
@@ -257,7 +331,7 @@ static int count_unknowns(struct sim *s, struct sim_refusal *ref)
 			s->n += ni;
 			continue;
 		}
-		s->ndev++;
+		s->ndev += k == SD_K ? coupling_pairs(p) : 1;
 		if (k == SD_V || k == SD_L || k == SD_E || k == SD_H ||
 		    (k == SD_B && !p->ext->behav->current))
 			s->n++;
@@ -312,7 +386,7 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 	else if (d->kind == SD_C)
 		d->val = p->value * mult;
 	else if (d->kind == SD_L)
-		d->val = p->value / mult;
+		d->val = henries(s, (uint32_t)i) / mult;
 	if (d->kind == SD_V || d->kind == SD_L || d->kind == SD_E || d->kind == SD_H ||
 	    (d->kind == SD_B && !p->ext->behav->current))
 		d->br = (*next)++;
@@ -349,9 +423,29 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 
 /* The devices of part i from d on, *used of them: one for most parts,
  * a transistor's several. */
+/* A K: one device per pair of its windings (l1, l2; linked later). */
+static int fill_coupling(struct sim *s, struct simdev *d, size_t i, long *next, size_t *used)
+{
+	const struct nl_part *p = nl_part_at(s->c, i);
+	*used = coupling_pairs(p);
+	const uint32_t *w = p->ext && p->ext->coupled_part ? p->ext->coupled_part : p->ext->ctrl_part;
+	uint32_t n = p->ext && p->ext->coupled_part ? p->ext->ncoupled : 2;
+	size_t k = 0;
+	for (uint32_t a = 0; a < n; a++)
+		for (uint32_t b = a + 1; b < n; b++, k++) {
+			if (!fill_device(s, &d[k], i, next))
+				return 0;
+			d[k].l1 = w[a];
+			d[k].l2 = w[b];
+		}
+	return 1;
+}
+
 static int fill_part(struct sim *s, struct simdev *d, size_t i, long *next, size_t *used)
 {
 	const struct nl_part *p = nl_part_at(s->c, i);
+	if (p->kind == NL_K)
+		return fill_coupling(s, d, i, next, used);
 	if (!(p->kind == NL_OPAQUE && (p->letter == 'q' || p->letter == 'm' || p->letter == 'j')))
 		return fill_device(s, d, i, next);
 	const uint32_t *pin = nl_pins(s->c, p);
@@ -453,9 +547,9 @@ static int link_controls(struct sim *s, struct sim_refusal *ref)
 		uint32_t c0 = p->ext ? p->ext->ctrl_part[0] : NL_NONE;
 		uint32_t c1 = p->ext ? p->ext->ctrl_part[1] : NL_NONE;
 		if (d->kind == SD_K) {
+			c0 = d->l1, c1 = d->l2;
 			if (c0 == NL_NONE || c1 == NL_NONE)
 				return refuse(ref, d->part, "the coupled inductors are not both known");
-			const struct nl_part *l1 = nl_part_at(s->c, c0), *l2 = nl_part_at(s->c, c1);
 			d->br = branch_of(s, c0);
 			d->br2 = branch_of(s, c1);
 			d->c = device_of(s, c0);
@@ -467,7 +561,7 @@ static int link_controls(struct sim *s, struct sim_refusal *ref)
 			   the run never settles. A 0.01 % leakage holds it and
 			   moves no voltage by more than about that much. */
 			double k = fmax(fmin(p->value, SIM_K_MAX), -SIM_K_MAX);
-			d->val = k * sqrt(fabs(l1->value * l2->value));
+			d->val = k * sqrt(fabs(henries(s, c0) * henries(s, c1)));
 			/* a tight coupling leaves a stiff leakage mode that the
 			   trapezoidal rule rings on: those windings use BDF2 */
 			if (fabs(k) >= SIM_K_STIFF)
@@ -554,6 +648,8 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 	long next = (long)s->nnodes - 1;
 	s->held = NL_NONE;
 	s->fastest = s->o.hold_slow ? fastest_period(s) : 0;
+	if (!core_windings(s))
+		return SIM_OOM;
 	for (size_t i = 0, k = 0; i < nl_part_count(s->c); i++) {
 		if (s->o.leave_out && s->o.leave_out[i])
 			continue;

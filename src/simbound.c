@@ -403,7 +403,10 @@ static int block_groups(struct sb *b)
 		const struct nl_part *p = nl_part_at(c, i);
 		if (!p->ext)
 			continue;
-		if (p->kind == NL_K)
+		if (p->kind == NL_K && p->ext->coupled_part)
+			for (uint32_t k = 1; k < p->ext->ncoupled; k++)
+				couple(b, up, p->ext->coupled_part[0], p->ext->coupled_part[k]);
+		else if (p->kind == NL_K)
 			couple(b, up, p->ext->ctrl_part[0], p->ext->ctrl_part[1]);
 		else if ((p->kind == NL_F || p->kind == NL_H) && p->ext->ctrl_part[0] != NL_NONE)
 			couple_sensed(b, &w, (uint32_t)i, p->ext->ctrl_part[0]);

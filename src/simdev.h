@@ -31,6 +31,7 @@ struct simdev {
 	long br;              /* branch current unknown, or -1 */
 	long br2;             /* K: second inductor's branch; F, H: control */
 	long p;               /* diode: junction anode (internal node if rs) */
+	uint32_t l1, l2;      /* K: the two windings' parts of this pair */
 	double val;           /* conductance, C, L, M (for K), gain */
 	const struct nl_source *src;
 	double mean;          /* source: mean of its waveform */

@@ -39,6 +39,9 @@ struct sim {
 	double hprev;            /* the last accepted step */
 	double period;
 	double fastest;          /* shortest source period (hold_slow) */
+	double *turns_al;        /* per part: H per turn squared when the
+				    inductor is a winding on a core model
+				    (its value is turns), else 0; or NULL */
 	uint32_t held;           /* first source held by hold_slow, or NL_NONE */
 	double held_per, held_pw;
 	struct sim_stats st;

@@ -484,35 +484,45 @@ static enum sim_status try_shooting(struct sim *s, double period, double tol,
 /* Plain settling that has reached its noise floor: the steps of the
  * solver fall at other instants each period, and a circuit that switches
  * hard (an amplifier slamming into its rails) never repeats itself closer
- * than that. Over PSS_WINDOW periods, each change below PSS_NOISE and the
- * state PSS_WINDOW periods back no further away than twice the largest of
- * them: nothing is still on its way (a slow decay moves the state on,
- * period after period). The largest change, in volts, is the run's noise
+ * than that. Over PSS_WINDOW plain periods, each change below PSS_NOISE,
+ * a third of them larger than the one before, and the state PSS_WINDOW
+ * periods back no further away than twice the largest of them: nothing is
+ * still on its way (a slow decay shrinks its change period after period
+ * and moves the state on). The largest change, in volts, is the run's noise
  * (sim_stats), which the numbers taken from it must allow for. */
 struct noise {
 	double *anchor;  /* the state at the window's start */
 	double largest;  /* the largest change in the window (relative) */
+	double last;     /* the change before this one */
 	unsigned n;      /* periods in the window */
+	unsigned ups;    /* changes in the window larger than the one before */
 };
 
-static int noise_floor(struct sim *s, struct noise *w, const double *now, double change)
+static int noise_floor(struct sim *s, struct noise *w, const double *now, double change,
+		       int fresh)
 {
 	double scale[2];
 	int caps;
 	state_scale(s, now, scale, &caps);
-	if (!caps || !(change < PSS_NOISE)) {
+	if (!caps || fresh || !(change < PSS_NOISE)) {
 		w->n = 0;
 		return 0;
 	}
 	if (w->n == 0) {
 		memcpy(w->anchor, now, s->ndev * sizeof *now);
 		w->largest = 0;
+		w->ups = 0;
+		w->last = change;
 	}
 	w->largest = fmax(w->largest, change);
+	w->ups += change > w->last;
+	w->last = change;
 	if (++w->n <= PSS_WINDOW)
 		return 0;
 	w->n = 0;
-	if (!(state_change(s, now, w->anchor) <= 2 * w->largest))
+	/* a decay, however slow, shrinks period after period: noise goes up
+	   and down */
+	if (w->ups < PSS_WINDOW / 3 || !(state_change(s, now, w->anchor) <= 2 * w->largest))
 		return 0;
 	s->st.noise = w->largest * scale[0];
 	return 1;
@@ -533,7 +543,7 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 	s->st.residual = NAN;
 	int may_shoot = !s->o.no_shooting && one_map(s, period);
 	unsigned since = 0, next_shot = 1, shots = 0, plain = 0;
-	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor), 0, 0};
+	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor), 0, 0, 0, 0};
 	if (!nf.anchor)
 		return SIM_OOM;
 	s->st.noise = 0;
@@ -569,7 +579,7 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 			break;
 		}
 		if (r == SIM_OK && s->t - period >= from * (1 - 1e-9) &&
-		    noise_floor(s, &nf, now, change)) {
+		    noise_floor(s, &nf, now, change, since < 2)) {
 			*settled = 1;
 			break;
 		}
