@@ -438,6 +438,99 @@ static uint32_t value_field(const struct deck_card *c)
 	return 0;
 }
 
+/* The dimension n of a POLY(n) field, or 0. */
+static uint32_t poly_dims(struct build *b, const struct deck_field *f)
+{
+	double n = 0;
+	if (f->kind != FIELD_CALL || !num_ieq(f->text, f->len, "poly") || f->nargs != 1 ||
+	    const_value(b, &f->args[0], &n) != DEV_OK)
+		return 0;
+	return n >= 1 && n <= 8 && n == floor(n) ? (uint32_t)n : 0;
+}
+
+/* The control k of a POLY: v(a,b) from fields 2k, 2k+1 after the POLY
+ * field (E, G), or i(name) from field k (F, H), as the probe text that
+ * behav_build reads. */
+static struct expr *poly_control(struct build *b, const struct deck_field *ctl, uint32_t k,
+				 int by_current)
+{
+	char buf[300];
+	const struct deck_field *a = &ctl[by_current ? k : 2 * k], *z = a + 1;
+	if (by_current)
+		snprintf(buf, sizeof buf, "i(%.*s)", (int)a->len, a->text);
+	else
+		snprintf(buf, sizeof buf, "v(%.*s,%.*s)", (int)a->len, a->text, (int)z->len, z->text);
+	char *name = arena_strdup(nl_arena(b->c), buf);
+	return name ? expr_var(nl_arena(b->c), name, a->line, a->col) : NULL;
+}
+
+/* Advances t, a non-decreasing tuple of d indices below n, to the next in
+ * lexicographic order; 0 after the last. */
+static int next_tuple(uint32_t *t, uint32_t d, uint32_t n)
+{
+	for (uint32_t i = d; i-- > 0;)
+		if (t[i] + 1 < n) {
+			t[i]++;
+			for (uint32_t j = i + 1; j < d; j++)
+				t[j] = t[i];
+			return 1;
+		}
+	return 0;
+}
+
+/* POLY(n) (E, G: n control node pairs; F, H: n control sources) and its
+ * coefficients: SPICE's polynomial, the constant first, then the terms
+ * of each degree in turn, each a product of controls with non-decreasing
+ * indices in lexicographic order (x1, x2; x1^2, x1 x2, x2^2; ...). Kept
+ * as an expression for the solver; a form it cannot read stays
+ * behavioural without one. */
+static enum dev_status keep_poly(struct build *b, uint32_t n, int by_current, int current)
+{
+	const struct deck_card *c = b->card;
+	struct arena *ar = nl_arena(b->c);
+	uint32_t first = 3 + (by_current ? n : 2 * n), deg = 0, t[16] = {0};
+	struct expr *sum = NULL;
+	for (uint32_t i = 3; i < first && i < c->nfields; i++)
+		if (c->fields[i].kind != FIELD_ATOM)
+			return behavioural(b);
+	for (uint32_t k = first; k < c->nfields; k++) {
+		double coef;
+		enum dev_status cs = c->fields[k].kind == FIELD_ATOM
+					     ? const_value(b, &c->fields[k], &coef)
+					     : DEV_STATE;
+		if (cs == DEV_DEFER || cs == DEV_OOM)
+			return cs;
+		if (cs != DEV_OK)
+			return behavioural(b);
+		struct expr *term = expr_num(ar, coef, c->fields[k].line, c->fields[k].col);
+		for (uint32_t j = 0; j < deg; j++)
+			term = expr_op(ar, EXPR_MUL, term,
+				       poly_control(b, c->fields + 3, t[j], by_current), NULL);
+		if (coef != 0 || !sum)
+			sum = sum ? expr_op(ar, EXPR_ADD, sum, term, NULL) : term;
+		if (!sum)
+			return DEV_OOM;
+		if (deg == 0 || !next_tuple(t, deg, n)) {
+			if (++deg > 16)
+				return behavioural(b);
+			memset(t, 0, sizeof t);
+		}
+	}
+	if (first > c->nfields || !sum)
+		return behavioural(b);
+	struct nl_behav *bh = NULL;
+	const char *why = NULL;
+	enum dev_status st = behav_build(b->s, sum, current, ar, &bh, &why);
+	b->has_ext = 1;
+	if (st != DEV_OK)
+		return st;
+	if (!bh)
+		b->ext.behav_why = why;
+	b->ext.behav = bh;
+	st = bh ? probe_pins(b, bh) : DEV_OK;
+	return st == DEV_OK ? behavioural(b) : st;
+}
+
 /* E, G: linear with two control nodes and a gain, or behavioural. */
 static enum dev_status build_ctrl_v(struct build *b)
 {
@@ -457,7 +550,9 @@ static enum dev_status build_ctrl_v(struct build *b)
 	if (c->nfields < 3 || !is_behavioural_form(&c->fields[2]))
 		return err_at(b, c->nfields ? &c->fields[c->nfields - 1] : NULL,
 			      "controlled source needs two control nodes and a gain, or value=, poly() or table%s", "");
-	uint32_t vf = value_field(c);
+	uint32_t vf = value_field(c), dims = poly_dims(b, &c->fields[2]);
+	if (dims)
+		return keep_poly(b, dims, 0, b->part.kind == NL_G);
 	if (vf && (st = keep_expression(b, vf, b->part.kind == NL_G)) != DEV_OK)
 		return st;
 	return behavioural(b);
@@ -482,7 +577,8 @@ static enum dev_status build_ctrl_i(struct build *b)
 	if (c->nfields < 3 || !is_behavioural_form(&c->fields[2]))
 		return err_at(b, c->nfields ? &c->fields[c->nfields - 1] : NULL,
 			      "current-controlled source needs a controlling source and a gain, or poly()%s", "");
-	return behavioural(b);
+	uint32_t dims = poly_dims(b, &c->fields[2]);
+	return dims ? keep_poly(b, dims, 1, b->part.kind == NL_F) : behavioural(b);
 }
 
 static enum dev_status coupling_value(struct build *b, const struct deck_field *f)

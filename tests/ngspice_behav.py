@@ -3,7 +3,7 @@
 package): the decks of tests/data/behav drive diode-capacitor networks
 through B sources (a comparator's square wave, a tanh amplifier, a clamped
 I= load), E/G sources given by value=, and a clamped amplifier fed back
-through a capacitor (Newton's hard case: both ends of the clamp flat). Each runs to its periodic steady
+through a capacitor (Newton's hard case: both ends of the clamp flat), and polynomial (POLY) controlled sources. Each runs to its periodic steady
 state in `headroom sim` and in ngspice from zero; the checks are those of
 tests/ngspice_sim.py (same code): per probe the peak within 0.5 % of
 ngspice's steady state, the waveform within 2 % of its peak-to-peak, and
