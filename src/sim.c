@@ -641,9 +641,11 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 	size_t bytes = (s->n + 1) * sizeof(double);
 	s->x = arena_zalloc(s->ar, bytes);
 	s->xprev = arena_zalloc(s->ar, bytes);
+	s->d1 = arena_zalloc(s->ar, bytes);
+	s->d2 = arena_zalloc(s->ar, bytes);
 	s->v = arena_zalloc(s->ar, (s->nnodes + 1) * sizeof(double));
 	s->m = simmat_create(s->n, &s->h);
-	if (!s->dev || !s->shunt || !s->x || !s->xprev || !s->v || !s->m)
+	if (!s->dev || !s->shunt || !s->x || !s->xprev || !s->d1 || !s->d2 || !s->v || !s->m)
 		return SIM_OOM;
 	long next = (long)s->nnodes - 1;
 	s->held = NL_NONE;
@@ -853,6 +855,28 @@ static void accept(struct sim *s, double h)
 	s->nhist++;
 }
 
+/* The trapezoidal rule leaves a stiff mode undamped: it flips sign from
+ * one step to the next (a floating bus held by junction capacitances
+ * while a bridge commutes, a diode's stored charge against a stiff
+ * line). A node whose last three changes alternate in sign, each above
+ * the Newton tolerance tenfold, is ringing at the step itself, which no
+ * waveform sampled finely enough does: the next step is then backward
+ * Euler, which damps such a mode at once. 1 when a node rang. */
+static int rang(struct sim *s)
+{
+	int any = 0;
+	for (size_t k = 0; k + 1 < s->nnodes; k++) {
+		double d = s->x[k] - s->xprev[k];
+		double tol = 10 * (s->o.vntol + s->o.reltol * fabs(s->x[k]));
+		if (fabs(d) > tol && fabs(s->d1[k]) > tol && fabs(s->d2[k]) > tol &&
+		    (d > 0) != (s->d1[k] > 0) && (s->d1[k] > 0) != (s->d2[k] > 0))
+			any = 1;
+		s->d2[k] = s->d1[k];
+		s->d1[k] = d;
+	}
+	return any;
+}
+
 static void reject(struct sim *s)
 {
 	memcpy(s->x, s->xprev, s->n * sizeof *s->x);
@@ -907,8 +931,9 @@ static enum sim_status step(struct sim *s, double t_end)
 		if (r == SIM_OK && allowed >= 0.9 * h) {
 			if (s->on_step)
 				s->on_step(s, &st);
+			int ring = !be && rang(s);
 			accept(s, h);
-			s->after_corner = hits;
+			s->after_corner = hits || ring;
 			if (hits)
 				s->nhist = 0;
 			s->hstep = fmin(2 * h, allowed);

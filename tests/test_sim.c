@@ -712,7 +712,7 @@ static void test_behav_refusals(void **state)
 {
 	(void)state;
 	const char *decks[] = {
-		"poly\nV1 a 0 1\nR1 a 0 1k\nE1 b 0 poly(1) a 0 0 2\nR2 b 0 1k\n",
+		"table\nV1 a 0 1\nR1 a 0 1k\nE1 b 0 value={table(V(a),0,0,1,2)}\nR2 b 0 1k\n",
 		"temper\nV1 a 0 1\nR1 a 0 1k\nB1 b 0 V={temper*V(a)}\nR2 b 0 1k\n",
 		NULL, /* -(-(...V(a)...)) 250 deep, filled in below */
 	};
