@@ -24,6 +24,9 @@
 #define SIM_MAX_WORK 20000000ul /* Newton iterations: some 5 M time points */
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
+#define SIM_RING_CUT 4  /* a node ringing at the step: the next step this much shorter, */
+#define SIM_RING_CUTS 2 /* this many times, then damped (backward Euler) */
+#define SIM_RING_QUIET 8 /* steps without ringing that start the count again */
 #define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
 
 
@@ -877,6 +880,28 @@ static int rang(struct sim *s)
 	return any;
 }
 
+/* What a ringing node gets: a shorter step first, which resolves an
+ * oscillation the steps were too long for (a gate's LC ring); when it
+ * rings on at the shorter steps too, the mode is stiff (far faster than
+ * any step: a junction capacitance against a fraction of an ohm) and
+ * only damping ends it, so the next step is backward Euler. A quiet
+ * stretch of SIM_RING_QUIET steps starts the count again. */
+static void ringing(struct sim *s, int ring, double h)
+{
+	if (!ring) {
+		if (s->ring_quiet < SIM_RING_QUIET && ++s->ring_quiet == SIM_RING_QUIET)
+			s->ring_cuts = 0;
+		return;
+	}
+	s->ring_quiet = 0;
+	if (s->ring_cuts < SIM_RING_CUTS) {
+		s->ring_cuts++;
+		s->hstep = h / SIM_RING_CUT;
+	} else {
+		s->after_corner = 1;
+	}
+}
+
 static void reject(struct sim *s)
 {
 	memcpy(s->x, s->xprev, s->n * sizeof *s->x);
@@ -933,10 +958,11 @@ static enum sim_status step(struct sim *s, double t_end)
 				s->on_step(s, &st);
 			int ring = !be && rang(s);
 			accept(s, h);
-			s->after_corner = hits || ring;
+			s->after_corner = hits;
 			if (hits)
 				s->nhist = 0;
 			s->hstep = fmin(2 * h, allowed);
+			ringing(s, ring, h);
 			if (hits) {
 				/* as SPICE: a tenth of the way to the next corner
 				   (an edge's rise), so what the corner sets off is
@@ -952,8 +978,9 @@ static enum sim_status step(struct sim *s, double t_end)
 		if (r == SIM_SINGULAR || r == SIM_OOM)
 			return r;
 		s->hstep = r == SIM_OK ? fmax(allowed, h / 4) : h / 8;
-		if (s->hstep < hmin)
+		if (s->hstep < hmin) {
 			return SIM_NO_CONVERGENCE;
+		}
 	}
 }
 

@@ -32,6 +32,7 @@ struct sim {
 	struct simmat *m;
 	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
 	double *d1, *d2;         /* each node unknown's last two accepted changes */
+	unsigned ring_cuts, ring_quiet; /* sim.c's ringing() */
 	long *shunt;             /* matrix handle of each node's diagonal */
 	double t, hstep;
 	int behav_time;          /* a behavioural source reads the time */
