@@ -210,8 +210,9 @@ static int keep_flow(struct sb *b, const struct simrun_result *r, const char *na
 		return fb->flow_why != NULL;
 	}
 	struct stress_flow *f = arena_alloc(b->ar, (np + 1) * sizeof *f);
-	char buf[320];
-	snprintf(buf, sizeof buf, "simulated, %.200s; diodes as modelled", name);
+	char buf[1000];
+	snprintf(buf, sizeof buf, "simulated, %.200s; diodes as modelled%s", name,
+		 b->approx ? b->approx : "");
 	fb->flow_corner = arena_strdup(b->ar, buf);
 	if (!f || !fb->flow_corner)
 		return 0;
@@ -464,15 +465,20 @@ static int ideal_stand_in(struct sb *b, unsigned char *mask, size_t *count,
 static int note_approx(struct sb *b, const unsigned char *mask)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
-	for (size_t i = 0; i < nl_part_count(c); i++) {
-		const char *what = mask[i] ? NULL : sim_part_approx(c, i);
-		if (!what)
-			continue;
-		char buf[600];
-		snprintf(buf, sizeof buf, "; %.200s %s", nl_part_at(c, i)->path, what);
-		return (b->approx = arena_strdup(b->ar, buf)) != NULL;
-	}
-	return 1;
+	size_t first = NL_NONE, more = 0;
+	for (size_t i = 0; i < nl_part_count(c); i++)
+		if (!mask[i] && sim_part_approx(c, i)) {
+			more += first != NL_NONE;
+			first = first != NL_NONE ? first : i;
+		}
+	if (first == NL_NONE)
+		return 1;
+	char buf[700], also[60] = "";
+	if (more)
+		snprintf(also, sizeof also, " (and %zu more part%s like it)", more, more > 1 ? "s" : "");
+	snprintf(buf, sizeof buf, "; %.200s%s %s", nl_part_at(c, first)->path, also,
+		 sim_part_approx(c, first));
+	return (b->approx = arena_strdup(b->ar, buf)) != NULL;
 }
 
 /* Parts the solver has no model for are left open; their islands get no
