@@ -1,8 +1,10 @@
 #!/usr/bin/env python3
 """The built-in transient solver against ngspice (Debian package), on the
 same netlists (tests/data/sim: one per structure kind, both polarities, a
-transformer-driven doubler, a loaded ladder, a 1 MHz pump, resistor-capacitor
-loads, a zener in breakdown).
+transformer-driven doubler, a three-winding transformer with one tight and
+two loose couplings, a loaded ladder, a 1 MHz pump, a boost switched by a
+level-3 MOSFET, resistor-capacitor loads, a zener in breakdown, a pump fed from
+a supply switched on for seconds).
 
 For each deck, `headroom sim` runs to its periodic steady state from zero
 initial conditions (shooting-Newton, docs/solver.md) and prints the last
@@ -13,7 +15,9 @@ has reached its own steady state: the peaks over its last period and over
 the period half-way through the run agree within 1e-4, the run made four
 times longer until they do. The steady state is compared, not the same
 window of time from zero: the shooting reaches it in fewer periods than a
-transient needs.
+transient needs. The period is the one `sim` reports: beside a far slower
+PULSE supply (held at its high level, docs/solver.md) that of the fast
+sources, so ngspice's run stays within the supply's high phase.
 
 And per deck, the time steps do not collapse: over the first 20 periods
 from zero, headroom takes at most twice as many time points as ngspice
