@@ -36,6 +36,15 @@ int loadout_kind(enum topo_kind k);
 int loadout_run(const struct audit *a, const struct profile *p, const struct simbound_limits *lim,
 		size_t max_parts, struct arena *ar, struct stress_result *sr);
 
+/* A loaded output that stays below the analysis's unloaded one by more
+ * than LOADOUT_LOOSE_REL of it plus LOADOUT_LOOSE_ABS at the high corner
+ * marks its structure's proven voltages to be tightened by the solver
+ * (stress.tighten, with the reason in unproven). Call after loadout_run,
+ * before simbound_run. Returns 0 on out-of-memory. */
+#define LOADOUT_LOOSE_REL 0.03
+#define LOADOUT_LOOSE_ABS 0.1
+int loadout_tighten(const struct audit *a, struct arena *ar, struct stress_result *sr);
+
 /* The loaded structure whose output (either side) is node, or -1. */
 int32_t loadout_of_node(const struct audit *a, const struct stress_result *sr, uint32_t node);
 

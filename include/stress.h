@@ -104,6 +104,11 @@ struct stress {
 	enum stress_basis basis;
 	const char *unproven;   /* why the analysis's proof does not hold, or NULL */
 	double analytic;        /* the analysis's own worst (NaN when none) */
+	int tighten;            /* the proof (analytic) holds but leaves out its
+				   structure's load, which the loaded output shows
+				   to matter: the solver is asked for a tighter
+				   number, and the proof stands where it gives none
+				   (loadout_tighten, simbound.c) */
 	/* capacitors: stored energy at the worst voltage and discharge
 	   (discharge.h; set only above the hazard voltage) */
 	double energy_j;

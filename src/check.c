@@ -103,7 +103,8 @@ static int simulate_unproven(const struct check_opts *o, struct check_run *r)
 	size_t cap = o->sim_max_parts ? o->sim_max_parts : 20000;
 	size_t np = nl_part_count(r->a.er.circuit);
 	/* the loaded outputs say themselves when the circuit is too big */
-	if (!loadout_run(&r->a, r->profile, &o->sim_lim, cap, r->a.ar, &r->sr))
+	if (!loadout_run(&r->a, r->profile, &o->sim_lim, cap, r->a.ar, &r->sr) ||
+	    !loadout_tighten(&r->a, r->a.ar, &r->sr))
 		return 0;
 	if (np <= cap)
 		return simbound_run(&r->a, r->profile, &o->sim_lim, r->a.ar, &r->sr) &&

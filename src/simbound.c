@@ -574,6 +574,27 @@ static int start_caps(struct sb *b)
 	return 1;
 }
 
+/* A proven number the load leaves loose (loadout_tighten): the simulated
+ * one where it is lower, else the proof as it was. */
+static void tighten(struct sb *b, struct stress *s, int unseen)
+{
+	const struct acc *x = &b->acc;
+	uint32_t k = s->part;
+	double sim = unseen ? NAN : x->worst[k] * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
+	if (!(sim < s->analytic)) {
+		s->unproven = NULL;
+		s->tighten = 0;
+		s->worst = s->analytic;
+		return;
+	}
+	s->basis = SB_SIMULATED;
+	s->worst = sim;
+	s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? fmin(x->best[k], s->best) : s->best;
+	s->rev_min = x->rev_min[k];
+	s->corner = x->corner[k];
+	b->fb->given++;
+}
+
 /* Writes the numbers into the unproven stresses. */
 static void fill(struct sb *b)
 {
@@ -585,6 +606,10 @@ static void fill(struct sb *b)
 		if (!stress_qty_is_voltage(s->qty) || !s->unproven)
 			continue;
 		int blocked = is != NL_NONE && x->blocked[is];
+		if (s->tighten) {
+			tighten(b, s, blocked || !x->seen[k]);
+			continue;
+		}
 		if (blocked || !x->seen[k]) {
 			s->bounded = 0;
 			s->basis = SB_NONE;

@@ -522,14 +522,6 @@ def family(name):
 # clamp's level shares with its rail: docs/check.md, "Correlated offsets")
 KNOWN_LOOSE = {}
 _LOOSE_FILES = {
-    "f03_b1_greinacher_heavy.cir": (
-        ("c2", "d1", "d2"),
-        "the proof is the unloaded 2 Vp; a 100 ohm load takes 4 V a period out of C2 "
-        "(the loaded-output figures give it; the proof does not use them)"),
-    "f07_b2_halfwave_short_rc.cir": (
-        ("d1",),
-        "the proof takes the reservoir as holding its peak (2 Vp on the diode); its "
-        "10 k x 10 nF empties it within the period"),
     "f09_b2_narrow_spike_zener.cir": (
         ("c1", "dz"),
         "a 200 ns spike every 1 ms: the solver's default steps overshoot the zener's "
