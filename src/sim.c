@@ -27,6 +27,7 @@
 #define SIM_RING_CUT 4  /* a node ringing at the step: the next step this much shorter, */
 #define SIM_RING_CUTS 2 /* this many times, then damped (backward Euler) */
 #define SIM_RING_QUIET 8 /* steps without ringing that start the count again */
+#define SIM_RING_FLOOR 1e-6 /* no cut below this share of the largest step: damped instead */
 #define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
 
 
@@ -884,7 +885,8 @@ static int rang(struct sim *s)
  * oscillation the steps were too long for (a gate's LC ring); when it
  * rings on at the shorter steps too, the mode is stiff (far faster than
  * any step: a junction capacitance against a fraction of an ohm) and
- * only damping ends it, so the next step is backward Euler. A quiet
+ * only damping ends it, so the next step is backward Euler (as it is at
+ * once for a step already below SIM_RING_FLOOR of the largest). A quiet
  * stretch of SIM_RING_QUIET steps starts the count again. */
 static void ringing(struct sim *s, int ring, double h)
 {
@@ -894,7 +896,7 @@ static void ringing(struct sim *s, int ring, double h)
 		return;
 	}
 	s->ring_quiet = 0;
-	if (s->ring_cuts < SIM_RING_CUTS) {
+	if (s->ring_cuts < SIM_RING_CUTS && h / SIM_RING_CUT > s->o.max_step * SIM_RING_FLOOR) {
 		s->ring_cuts++;
 		s->hstep = h / SIM_RING_CUT;
 	} else {
@@ -978,9 +980,8 @@ static enum sim_status step(struct sim *s, double t_end)
 		if (r == SIM_SINGULAR || r == SIM_OOM)
 			return r;
 		s->hstep = r == SIM_OK ? fmax(allowed, h / 4) : h / 8;
-		if (s->hstep < hmin) {
+		if (s->hstep < hmin)
 			return SIM_NO_CONVERGENCE;
-		}
 	}
 }
 
