@@ -4,18 +4,28 @@
  * rest at -tol (a bootstrap diode sees most with its rail low and the
  * switch node high) and, for three sines or more of one frequency, each
  * alone at -tol with the rest at +tol (a three-phase bridge sees most with
- * one phase low). A source's whole waveform scales in a corner, so a
- * PULSE level at 0 V stays at 0 V. The all-high corner's run with the
+ * one phase low), and every swing at +tol with the levels (DC values,
+ * offsets, rails, whole PULSE and PWL) at each combination of their ends
+ * (set_mask). A PULSE or PWL scales whole in a corner, so a level at 0 V
+ * stays at 0 V. The all-high corner's run with the
  * diodes as modelled also gives every part's current (the file's only
  * run when every voltage is proven); current.c makes stresses of them. */
 #include "simbound.h"
 
+#include <limits.h>
 #include <math.h>
 #include <stdlib.h>
 #include <stdio.h>
 #include <string.h>
 
 #include "simrun.h"
+
+/* The offset corners' codes among the solo codes (set_corner): SB_MASK
+ * plus the mask of levels at their high end, over at most SB_MAX_OFFSETS
+ * levels (more: the one corner with every level low). */
+#define SB_MASK LONG_MIN
+#define SB_MAX_OFFSETS 3
+#define SB_CORNERS (2 * SIMBOUND_MAX_SOLO + 2 + (1 << SB_MAX_OFFSETS))
 
 /* What the runs found, per part. */
 struct acc {
@@ -35,7 +45,8 @@ struct sb {
 	struct simrun_opts o;
 	struct acc acc;
 	struct stress_fallback *fb;
-	double *scale, *set;     /* the corner being run */
+	double *scale, *dcs, *set; /* the corner being run: swing and offset
+				      scales, rail levels */
 	double *vmin, *vmax;
 	unsigned long work, total_work; /* Newton iterations times unknowns */
 	unsigned long run_work;  /* Newton iterations allowed in one run */
@@ -43,6 +54,8 @@ struct sb {
 	size_t real_left;        /* real-diode runs still to come, this one's included */
 	struct simrun_flow *flow; /* the currents' run writes here */
 	int volts;               /* unproven voltages to simulate */
+	uint32_t off[SB_MAX_OFFSETS]; /* the levels the offset corners move */
+	size_t noff;
 	const char *ideal_only;  /* every run with nearly ideal diodes: why
 				    (a diode with a device-level model) */
 	const char *approx;      /* the first part simulated with less than
@@ -111,11 +124,70 @@ static int polyphase(const struct sb *b, const uint32_t *src, size_t n)
 	return n >= 3;
 }
 
+/* A PULSE or PWL scales whole: its levels move together, so a level at
+ * 0 V stays there; a SIN's offset and swing are toleranced apart. */
+static int scales_whole(const struct nl_part *pt)
+{
+	const struct nl_source *w = pt->ext ? pt->ext->src : NULL;
+	return w && (w->wave == NL_WAVE_PULSE || w->wave == NL_WAVE_PWL);
+}
+
+/* 1 when moving source i carries a level of its own that its tolerance
+ * moves apart from any swing: a DC value, a SIN's, SFFM's or EXP's
+ * offset, a rail's band, or a PULSE or PWL (scaled whole, level and swing
+ * together). */
+static int has_offset(const struct sb *b, uint32_t i)
+{
+	const struct nl_part *pt = nl_part_at(b->a->er.circuit, i);
+	const struct nl_source *w = pt->ext ? pt->ext->src : NULL;
+	if (isfinite(b->a->sources[i].max) || scales_whole(pt))
+		return 1;
+	if (!w)
+		return 0;
+	if (w->wave == NL_WAVE_NONE)
+		return w->dc != 0;
+	return (w->wave == NL_WAVE_SIN || w->wave == NL_WAVE_SFFM || w->wave == NL_WAVE_EXP) &&
+	       w->nargs > 0 && w->args[0] != 0;
+}
+
+/* An offset corner: every swing at its high end, and offset j of the
+ * list off (its offset, a whole PULSE or PWL, or a rail) at its high end
+ * where bit j of mask is set, at its low end elsewhere; offsets past the
+ * list at their low end. A diode from a rail to a SIN riding on an
+ * offset sees most with the swing up, the offset down and the rail up. */
+static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m, char *name,
+		     size_t n)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
+		int up = 0;
+		for (size_t j = 0; j < m; j++)
+			up |= off[j] == i && (mask >> j & 1);
+		b->scale[i] = scales_whole(pt) && !up ? 1 - t : 1 + t;
+		b->dcs[i] = up ? 1 + t : 1 - t;
+		b->set[i] = pt->kind == NL_V && isfinite(b->a->sources[i].max)
+				    ? (up ? b->a->sources[i].max : b->a->sources[i].min)
+				    : NAN;
+	}
+	size_t w = (size_t)snprintf(name, n, "every swing at its high end; levels");
+	for (size_t j = 0; j < m && w < n; j++)
+		w += (size_t)snprintf(name + w, n - w, "%s %.40s %s", j ? "," : "",
+				      nl_part_at(c, off[j])->path, mask >> j & 1 ? "high" : "low");
+	if (w < n)
+		snprintf(name + w, n - w, "%s", m ? "" : " all low");
+}
+
 /* Sets the corner: solo < 0 moves everything to one end (high when
  * solo == -1), else source solo high and the others low. */
 static void set_corner(struct sb *b, long solo, char *name, size_t n)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
+	if (solo >= SB_MASK && solo < SB_MASK + (1L << SB_MAX_OFFSETS)) {
+		set_mask(b, (unsigned)(solo - SB_MASK), b->off, b->noff, name, n);
+		return;
+	}
 	for (size_t i = 0; i < nl_part_count(c); i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
 		/* solo <= -3: source -solo - 3 low, the others high */
@@ -124,7 +196,7 @@ static void set_corner(struct sb *b, long solo, char *name, size_t n)
 			   (low >= 0 && (size_t)low != i);
 		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
 		const struct audit_source *as = &b->a->sources[i];
-		b->scale[i] = high ? 1 + t : 1 - t;
+		b->scale[i] = b->dcs[i] = high ? 1 + t : 1 - t;
 		b->set[i] = pt->kind == NL_V && isfinite(as->max) ? (high ? as->max : as->min) : NAN;
 	}
 	if (solo >= 0)
@@ -533,6 +605,7 @@ static int alloc_all(struct sb *b)
 	x->island_why = arena_zalloc(b->ar, nn * sizeof *x->island_why);
 	b->scale = arena_alloc(b->ar, np * sizeof *b->scale);
 	b->set = arena_alloc(b->ar, np * sizeof *b->set);
+	b->dcs = arena_alloc(b->ar, np * sizeof *b->dcs);
 	b->vmin = arena_alloc(b->ar, np * sizeof *b->vmin);
 	b->vmax = arena_alloc(b->ar, np * sizeof *b->vmax);
 	b->fb = arena_zalloc(b->ar, sizeof *b->fb);
@@ -540,7 +613,7 @@ static int alloc_all(struct sb *b)
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
 	return x->worst && x->best && x->rev_min && x->corner && x->seen && x->blocked &&
-	       x->island_why && b->scale && b->set && b->vmin && b->vmax && b->fb && b->flow;
+	       x->island_why && b->scale && b->dcs && b->set && b->vmin && b->vmax && b->fb && b->flow;
 }
 
 /* A corner failed: no simulated value is a worst case any more. */
@@ -632,13 +705,68 @@ static void fill(struct sb *b)
 	}
 }
 
+/* Appends the offset corners to corners[0..nc) and returns the new
+ * count: with up to SB_MAX_OFFSETS toleranced levels every mask but the
+ * all-high one (that is the all-high corner), with more the one mask
+ * with every level low. */
+static size_t offset_corners(struct sb *b, int volts, long *corners, size_t nc)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	uint32_t all[SB_MAX_OFFSETS + 1];
+	size_t m = 0;
+	if (!volts)
+		return nc;
+	for (size_t i = 0; i < nl_part_count(c) && m <= SB_MAX_OFFSETS; i++) {
+		const struct nl_part *pt = nl_part_at(c, i);
+		if (pt->kind == NL_V && has_offset(b, (uint32_t)i) &&
+		    (isfinite(b->a->sources[i].max) || stress_tolerance(b->a, b->p, (uint32_t)i) > 0))
+			all[m++] = (uint32_t)i;
+	}
+	if (m == 0)
+		return nc;
+	if (m > SB_MAX_OFFSETS) {
+		b->noff = 0;
+		corners[nc++] = SB_MASK;
+		return nc;
+	}
+	memcpy(b->off, all, m * sizeof *all);
+	b->noff = m;
+	for (unsigned mask = 0; mask + 1 < 1U << m; mask++)
+		corners[nc++] = SB_MASK + (long)mask;
+	return nc;
+}
+
+/* 1 when the corner just set moves every source as corner k of the
+ * earlier ones did (sig holds theirs: scale, offset scale and level per
+ * source, over the first SB_SIG sources); such a corner is not run. */
+#define SB_SIG 64
+static int seen_corner(const struct sb *b, double (*sig)[3 * SB_SIG], size_t k)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	size_t n = 0;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		if (nl_part_at(c, i)->kind != NL_V)
+			continue;
+		if (n == SB_SIG)
+			return 0; /* too many sources to tell */
+		sig[k][3 * n] = b->scale[i];
+		sig[k][3 * n + 1] = b->dcs[i];
+		sig[k][3 * n + 2] = isnan(b->set[i]) ? -HUGE_VAL : b->set[i];
+		n++;
+	}
+	for (size_t j = 0; j < k; j++)
+		if (!memcmp(sig[j], sig[k], 3 * n * sizeof **sig))
+			return 1;
+	return 0;
+}
+
 int simbound_run(const struct audit *a, const struct profile *p,
 		 const struct simbound_limits *lim, struct arena *ar,
 		 struct stress_result *sr)
 {
 	struct sb b;
 	uint32_t solo[SIMBOUND_MAX_SOLO];
-	char names[2 * SIMBOUND_MAX_SOLO + 2][200];
+	char names[SB_CORNERS][200];
 	if (!needs_run(sr, NULL) && !wants_flow(sr, NULL))
 		return 1;
 	memset(&b, 0, sizeof b);
@@ -664,7 +792,8 @@ int simbound_run(const struct audit *a, const struct profile *p,
 		b.fb->flow_why = b.acc.blocked_why;
 		return 1;
 	}
-	b.o.ac_scale = b.o.dc_scale = b.scale;
+	b.o.ac_scale = b.scale;
+	b.o.dc_scale = b.dcs;
 	b.o.dc_set = b.set;
 	if (!start_caps(&b))
 		return 0;
@@ -678,7 +807,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	}
 	b.size = nl_node_count(a->er.circuit) + 1;
 	size_t ns = moving_sources(&b, solo, SIMBOUND_MAX_SOLO);
-	long corners[2 * SIMBOUND_MAX_SOLO + 2] = {-1, -2};
+	long corners[SB_CORNERS] = {-1, -2};
 	/* every voltage proven: the currents' run alone */
 	size_t nc = !volts ? 1 : ns ? 2 : 1;
 	for (size_t k = 0; volts && ns > 1 && k < ns; k++)
@@ -687,6 +816,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	   alone low as well; with two sources those are the corners above */
 	for (size_t k = 0; volts && polyphase(&b, solo, ns) && k < ns; k++)
 		corners[nc++] = -3 - (long)solo[k];
+	nc = offset_corners(&b, volts, corners, nc);
 	size_t np = nl_part_count(a->er.circuit) + 1;
 	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
 	if (!imin || !imax)
@@ -696,8 +826,13 @@ int simbound_run(const struct audit *a, const struct profile *p,
 		b.total_work = SIMBOUND_FLOW_TOTAL;
 	/* nearly ideal diodes at the all-high corner only, where the
 	   analysis's own worst case lies; the real diodes everywhere */
+	double(*sig)[3 * SB_SIG] = arena_alloc(ar, SB_CORNERS * sizeof *sig);
+	if (!sig)
+		return 0;
 	for (size_t k = 0; k < nc && !b.fb->why; k++) {
 		set_corner(&b, corners[k], names[k], sizeof names[k]);
+		if (k > 0 && seen_corner(&b, sig, k))
+			continue;
 		b.real_left = nc - k;
 		if (!run_corner(&b, names[k], imin, imax, volts && k == 0, flows && k == 0))
 			return 0;
