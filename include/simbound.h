@@ -28,6 +28,9 @@
  * times unknowns: a tenth of the allowance of a voltage run (the examples
  * settle within 60 periods and 800,000 iterations times unknowns). */
 #define SIMBOUND_FLOW_PERIODS 400
+/* The currents' run settles to this change per period, relative to the
+ * largest capacitor voltage (the voltage runs: 1e-4). */
+#define SIMBOUND_FLOW_TOL 1e-6
 #define SIMBOUND_FLOW_WORK 500000ul
 #define SIMBOUND_FLOW_TOTAL 3000000ul
 
@@ -35,7 +38,8 @@ struct simbound_limits {
 	unsigned max_periods;     /* per run; 0: 4000 */
 	unsigned long max_work;   /* Newton iterations per run; 0: 5,000,000 */
 	unsigned long total_work; /* per file, all runs, in Newton iterations
-				     times unknowns; 0: 30,000,000 */
+				     times unknowns; 0: 30,000,000; a
+				     fifth more for each corner past five */
 };
 
 /* Simulates where sr has unproven stresses and fills their numbers (basis,

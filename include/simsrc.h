@@ -24,6 +24,9 @@ double simsrc_next_corner(const struct nl_source *src,
 /* The repetition period of src (SIN, PULSE, repeating PWL, SFFM carrier),
  * or 0 when it does not repeat. */
 double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp);
+/* The period of the source's fastest content (an AM's carrier, an
+ * SFFM's highest instantaneous frequency), else its period; 0 if none. */
+double simsrc_fastest(const struct nl_source *src, const struct simsrc_span *sp);
 
 /* A PULSE width that stands for "held for ever" (sim.c's slow PULSE):
  * such a pulse has played out its events at the end of its rise. */

@@ -27,6 +27,7 @@
 #define SIM_RING_CUT 4  /* a node ringing at the step: the next step this much shorter, */
 #define SIM_RING_CUTS 2 /* this many times, then damped (backward Euler) */
 #define SIM_RING_QUIET 8 /* steps without ringing that start the count again */
+#define SIM_SW_RESOLVE 1e-3 /* a switch's crossing found to this share of the largest step */
 #define SIM_RING_FLOOR 1e-6 /* no cut below this share of the largest step: damped instead */
 #define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
 
@@ -602,11 +603,12 @@ static double shortest_period(struct sim *s, double *common)
 	for (size_t i = 0; i < s->ndev; i++) {
 		if (!s->dev[i].src || s->dev[i].ac_k == 0) /* held at a value */
 			continue;
-		double per = simsrc_period(s->dev[i].src, &s->span);
-		if (per > 0) {
-			lo = fmin(lo, per);
+		double per = simsrc_period(s->dev[i].src, &s->span),
+		       fast = simsrc_fastest(s->dev[i].src, &s->span);
+		if (fast > 0)
+			lo = fmin(lo, fast);
+		if (per > 0)
 			longest = fmax(longest, per);
-		}
 	}
 	*common = longest;
 	for (size_t i = 0; longest > 0 && i < s->ndev; i++) {
@@ -934,6 +936,21 @@ static void bdf2(const struct sim *s, double h, int be, struct simdev_step *st)
 	st->g2 = r * r / ((1 + r) * h);
 }
 
+/* A switch that changed state within the step: the step ends just past
+ * the instant its control crossed the threshold (as a breakpoint would),
+ * down to SIM_SW_RESOLVE of the largest step, so that the edge it makes
+ * falls where it belongs, not at the step's end. */
+static double switch_step(const struct sim *s, double h)
+{
+	double f = 1;
+	for (size_t i = 0; i < s->ndev; i++)
+		if (s->dev[i].kind == SD_S)
+			f = fmin(f, simsw_crossing(&s->dev[i], s->xprev, s->x));
+	if (f >= 0.9 || h * f < s->o.max_step * SIM_SW_RESOLVE)
+		return 2 * h;
+	return fmax(h * f * 1.001, s->o.max_step * SIM_SW_RESOLVE);
+}
+
 /* One accepted step towards t_end (shorter when rejected and retried). */
 static enum sim_status step(struct sim *s, double t_end)
 {
@@ -955,6 +972,8 @@ static enum sim_status step(struct sim *s, double t_end)
 		bdf2(s, h, be, &st);
 		enum sim_status r = newton(s, &st);
 		double allowed = r == SIM_OK && s->nhist >= 3 && !be ? lte_step(s, h) : 2 * h;
+		if (r == SIM_OK)
+			allowed = fmin(allowed, switch_step(s, h));
 		if (r == SIM_OK && allowed >= 0.9 * h) {
 			if (s->on_step)
 				s->on_step(s, &st);

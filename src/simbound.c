@@ -4,8 +4,8 @@
  * rest at -tol (a bootstrap diode sees most with its rail low and the
  * switch node high) and, for three sines or more of one frequency, each
  * alone at -tol with the rest at +tol (a three-phase bridge sees most with
- * one phase low), and every swing at +tol with the levels (DC values,
- * offsets, rails, whole PULSE and PWL) at each combination of their ends
+ * one phase low), and every swing at +tol (PULSE and PWL whole) with the
+ * levels (DC values, offsets, rails) at each combination of their ends
  * (set_mask). A PULSE or PWL scales whole in a corner, so a level at 0 V
  * stays at 0 V. The all-high corner's run with the
  * diodes as modelled also gives every part's current (the file's only
@@ -25,6 +25,7 @@
  * levels (more: the one corner with every level low). */
 #define SB_MASK LONG_MIN
 #define SB_MAX_OFFSETS 3
+#define SB_BASE_CORNERS 5
 #define SB_CORNERS (2 * SIMBOUND_MAX_SOLO + 2 + (1 << SB_MAX_OFFSETS))
 
 /* What the runs found, per part. */
@@ -134,14 +135,16 @@ static int scales_whole(const struct nl_part *pt)
 
 /* 1 when moving source i carries a level of its own that its tolerance
  * moves apart from any swing: a DC value, a SIN's, SFFM's or EXP's
- * offset, a rail's band, or a PULSE or PWL (scaled whole, level and swing
- * together). */
+ * offset, a rail's band. A PULSE or PWL scales whole: its swing, high in
+ * these corners, takes its levels with it (the solo corners take it low). */
 static int has_offset(const struct sb *b, uint32_t i)
 {
 	const struct nl_part *pt = nl_part_at(b->a->er.circuit, i);
 	const struct nl_source *w = pt->ext ? pt->ext->src : NULL;
-	if (isfinite(b->a->sources[i].max) || scales_whole(pt))
+	if (isfinite(b->a->sources[i].max))
 		return 1;
+	if (scales_whole(pt))
+		return 0;
 	if (!w)
 		return 0;
 	if (w->wave == NL_WAVE_NONE)
@@ -150,10 +153,10 @@ static int has_offset(const struct sb *b, uint32_t i)
 	       w->nargs > 0 && w->args[0] != 0;
 }
 
-/* An offset corner: every swing at its high end, and offset j of the
- * list off (its offset, a whole PULSE or PWL, or a rail) at its high end
- * where bit j of mask is set, at its low end elsewhere; offsets past the
- * list at their low end. A diode from a rail to a SIN riding on an
+/* An offset corner: every swing at its high end (a PULSE or PWL whole),
+ * and level j of the list off (a DC value, an offset, a rail) at its high
+ * end where bit j of mask is set, at its low end elsewhere; levels past
+ * the list at their low end. A diode from a rail to a SIN riding on an
  * offset sees most with the swing up, the offset down and the rail up. */
 static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m, char *name,
 		     size_t n)
@@ -165,8 +168,8 @@ static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m,
 		int up = 0;
 		for (size_t j = 0; j < m; j++)
 			up |= off[j] == i && (mask >> j & 1);
-		b->scale[i] = scales_whole(pt) && !up ? 1 - t : 1 + t;
-		b->dcs[i] = up ? 1 + t : 1 - t;
+		b->scale[i] = 1 + t;
+		b->dcs[i] = up || scales_whole(pt) ? 1 + t : 1 - t;
 		b->set[i] = pt->kind == NL_V && isfinite(b->a->sources[i].max)
 				    ? (up ? b->a->sources[i].max : b->a->sources[i].min)
 				    : NAN;
@@ -339,8 +342,13 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			left /= b->real_left + 1;
 		b->o.max_work = left < b->run_work ? (left ? left : 1) : b->run_work;
 		b->o.flow = flows && real ? b->flow : NULL;
+		/* a mean current is the small difference of large charges: the
+		   state left drifting by 1e-4 of a ladder's 1 kV each period
+		   misplaces a tenth of a 10 nF stage's charge (SIMBOUND_FLOW_TOL) */
+		b->o.settle_tol = b->o.flow ? SIMBOUND_FLOW_TOL : 0;
 		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, NULL, NULL, &r);
 		b->o.flow = NULL;
+		b->o.settle_tol = 0;
 		b->fb->runs++;
 		if (r.stats.unknowns)
 			b->size = r.stats.unknowns;
@@ -749,8 +757,12 @@ static int seen_corner(const struct sb *b, double (*sig)[3 * SB_SIG], size_t k)
 			continue;
 		if (n == SB_SIG)
 			return 0; /* too many sources to tell */
-		sig[k][3 * n] = b->scale[i];
-		sig[k][3 * n + 1] = b->dcs[i];
+		/* a DC value has no swing to scale, a source with no level of
+		   its own no level (a PULSE's moves with its swing) */
+		const struct nl_source *w = nl_part_at(c, i)->ext ? nl_part_at(c, i)->ext->src : NULL;
+		int swing = w && w->wave != NL_WAVE_NONE;
+		sig[k][3 * n] = swing ? b->scale[i] : 0;
+		sig[k][3 * n + 1] = has_offset(b, (uint32_t)i) ? b->dcs[i] : 0;
 		sig[k][3 * n + 2] = isnan(b->set[i]) ? -HUGE_VAL : b->set[i];
 		n++;
 	}
@@ -822,6 +834,10 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	if (!imin || !imax)
 		return 0;
 	b.total_work = lim && lim->total_work ? lim->total_work : 30000000;
+	/* the allowance is sized for SB_BASE_CORNERS corners; each one more
+	   (the level corners of several toleranced rails) gets its share */
+	if (nc > SB_BASE_CORNERS)
+		b.total_work = b.total_work / SB_BASE_CORNERS * nc;
 	if (!volts && b.total_work > SIMBOUND_FLOW_TOTAL)
 		b.total_work = SIMBOUND_FLOW_TOTAL;
 	/* nearly ideal diodes at the all-high corner only, where the

@@ -256,6 +256,16 @@ double simsrc_period(const struct nl_source *src, const struct simsrc_span *sp)
 	}
 }
 
+double simsrc_fastest(const struct nl_source *src, const struct simsrc_span *sp)
+{
+	double per = simsrc_period(src, sp);
+	if (src->wave == NL_WAVE_AM && arg(src, 3, 0) > 0)
+		return per > 0 ? fmin(per, 1 / arg(src, 3, 0)) : 1 / arg(src, 3, 0);
+	if (src->wave == NL_WAVE_SFFM && arg(src, 2, 0) > 0)
+		return 1 / (arg(src, 2, 0) + fabs(arg(src, 3, 0) * arg(src, 4, 0)));
+	return per;
+}
+
 double simsrc_settled_from(const struct nl_source *src,
 			   const struct simsrc_span *sp)
 {

@@ -73,3 +73,16 @@ void simsw_stamp(struct simdev *d, struct simmat *m, const double *x, int *limit
 	simmat_add(m, d->h[1], -g);
 	simmat_add(m, d->h[2], -g);
 }
+
+double simsw_crossing(const struct simdev *d, const double *xprev, const double *x)
+{
+	const struct simsw *w = d->sw;
+	if (d->q == d->q0)
+		return 1;
+	double v0 = at(xprev, d->c) - at(xprev, d->d), v1 = at(x, d->c) - at(x, d->d);
+	double thr = d->q != 0 ? w->vt + w->vh : w->vt - w->vh;
+	if (!(fabs(v1 - v0) > 0))
+		return 1;
+	double f = (thr - v0) / (v1 - v0);
+	return f > 0 && f < 1 ? f : 1;
+}

@@ -33,4 +33,10 @@ int simsw_need(struct simdev *d, struct simmat *m);
  * that Newton does not stop on it. */
 void simsw_stamp(struct simdev *d, struct simmat *m, const double *x, int *limited);
 
+/* Where in the step from the accepted point xprev to x the control
+ * voltage crossed the threshold that changed the switch's state, as a
+ * share of the step in (0, 1] (linear between the two points); 1 when
+ * the state did not change. */
+double simsw_crossing(const struct simdev *d, const double *xprev, const double *x);
+
 #endif
