@@ -13,6 +13,8 @@
 #include "arena.h"
 #include "nl.h"
 
+#define SIM_MAX_WORK 20000000ul /* Newton iterations: some 5 M time points */
+
 struct sim_opts {
 	double stop;       /* SPICE's TSTOP, for waveform defaults only */
 	double step;       /* SPICE's TSTEP, for pulse edges (0: stop/1000) */

@@ -28,6 +28,9 @@ struct simrun_opts {
 	unsigned max_periods;  /* steady state: cap (0: 2000) */
 	unsigned long max_work; /* Newton iterations in all (0: the solver's) */
 	double settle_tol;     /* steady state: relative (0: 1e-4) */
+	double flow_tol;       /* > 0, with flow: once settled, up to as many
+				  periods again towards this tolerance, when
+				  the work so far leaves room for it */
 	const double *ac_scale, *dc_scale, *dc_set; /* source corner (sim.h) */
 	const double *cap_v0;  /* capacitor start voltages per part, or NULL */
 	const unsigned char *leave_out; /* parts left out (open), or NULL */

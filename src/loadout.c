@@ -377,6 +377,22 @@ static int any_band(const struct audit *a)
 	return 0;
 }
 
+/* 1 when s's part lies outside every structure with a pin on o's output
+ * (a Y capacitor from a bridge's output to ground): its proof rests on
+ * the same unloaded output. */
+static int on_output(const struct audit *a, const struct stress *s,
+		     const struct stress_output *o)
+{
+	if (s->structure >= 0)
+		return 0;
+	const struct nl_part *pt = nl_part_at(a->er.circuit, s->part);
+	const uint32_t *pin = nl_pins(a->er.circuit, pt);
+	for (uint32_t j = 0; j < pt->npins; j++)
+		if ((pin[j] == o->pos || pin[j] == o->neg) && pin[j] != NL_GROUND)
+			return 1;
+	return 0;
+}
+
 int loadout_tighten(const struct audit *a, struct arena *ar, struct stress_result *sr)
 {
 	if (any_band(a))
@@ -397,8 +413,9 @@ int loadout_tighten(const struct audit *a, struct arena *ar, struct stress_resul
 			return 0;
 		for (size_t i = 0; i < sr->n; i++) {
 			struct stress *s = &sr->s[i];
-			if (s->structure != (int32_t)k || !stress_qty_is_voltage(s->qty) ||
-			    s->unproven || s->basis != SB_ANALYSIS || !isfinite(s->worst))
+			if ((s->structure != (int32_t)k && !on_output(a, s, o)) ||
+			    !stress_qty_is_voltage(s->qty) || s->unproven ||
+			    s->basis != SB_ANALYSIS || !isfinite(s->worst))
 				continue;
 			s->tighten = 1;
 			s->analytic = s->worst;

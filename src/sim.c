@@ -21,7 +21,6 @@
 
 #define SIM_MAX_NEWTON 20 /* per time point, then the step is cut (SPICE: ITL4 = 10) */
 #define SIM_RMIN 1e-3      /* ohm: the smallest resistance (SPICE's, from memory) */
-#define SIM_MAX_WORK 20000000ul /* Newton iterations: some 5 M time points */
 #define SIM_TRTOL 7.0     /* SPICE's allowance over the raw error estimate */
 #define SIM_CHGTOL 1e-14  /* C: charge below which the error is not judged */
 #define SIM_RING_CUT 4  /* a node ringing at the step: the next step this much shorter, */

@@ -26,7 +26,7 @@
 #define SB_MASK LONG_MIN
 #define SB_MAX_OFFSETS 3
 #define SB_BASE_CORNERS 5
-#define SB_CORNERS (2 * SIMBOUND_MAX_SOLO + 2 + (1 << SB_MAX_OFFSETS))
+#define SB_CORNERS (2 * SIMBOUND_MAX_SOLO + 3 + (1 << SB_MAX_OFFSETS))
 
 /* What the runs found, per part. */
 struct acc {
@@ -153,10 +153,11 @@ static int has_offset(const struct sb *b, uint32_t i)
 	       w->nargs > 0 && w->args[0] != 0;
 }
 
-/* An offset corner: every swing at its high end (a PULSE or PWL whole),
- * and level j of the list off (a DC value, an offset, a rail) at its high
- * end where bit j of mask is set, at its low end elsewhere; levels past
- * the list at their low end. A diode from a rail to a SIN riding on an
+/* An offset corner: every swing at its high end (a PULSE or PWL whole;
+ * at its low end with bit SB_MAX_OFFSETS of mask), and level j of the
+ * list off (a DC value, an offset, a rail) at its high end where bit j of
+ * mask is set, at its low end elsewhere; levels past the list at their
+ * low end; every level high with bit SB_MAX_OFFSETS + 1. A diode from a rail to a SIN riding on an
  * offset sees most with the swing up, the offset down and the rail up. */
 static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m, char *name,
 		     size_t n)
@@ -165,16 +166,21 @@ static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m,
 	for (size_t i = 0; i < nl_part_count(c); i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
 		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
-		int up = 0;
+		int up = mask >> (SB_MAX_OFFSETS + 1) & 1, down = mask >> SB_MAX_OFFSETS & 1;
 		for (size_t j = 0; j < m; j++)
 			up |= off[j] == i && (mask >> j & 1);
-		b->scale[i] = 1 + t;
-		b->dcs[i] = up || scales_whole(pt) ? 1 + t : 1 - t;
+		b->scale[i] = down ? 1 - t : 1 + t;
+		b->dcs[i] = scales_whole(pt) ? b->scale[i] : up ? 1 + t : 1 - t;
 		b->set[i] = pt->kind == NL_V && isfinite(b->a->sources[i].max)
 				    ? (up ? b->a->sources[i].max : b->a->sources[i].min)
 				    : NAN;
 	}
-	size_t w = (size_t)snprintf(name, n, "every swing at its high end; levels");
+	size_t w = (size_t)snprintf(name, n, "every swing at its %s end; levels",
+				    mask >> SB_MAX_OFFSETS & 1 ? "low" : "high");
+	if (mask >> (SB_MAX_OFFSETS + 1) & 1) {
+		snprintf(name + w, n - w, " all high");
+		return;
+	}
 	for (size_t j = 0; j < m && w < n; j++)
 		w += (size_t)snprintf(name + w, n - w, "%s %.40s %s", j ? "," : "",
 				      nl_part_at(c, off[j])->path, mask >> j & 1 ? "high" : "low");
@@ -187,7 +193,7 @@ static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m,
 static void set_corner(struct sb *b, long solo, char *name, size_t n)
 {
 	const struct nl_circuit *c = b->a->er.circuit;
-	if (solo >= SB_MASK && solo < SB_MASK + (1L << SB_MAX_OFFSETS)) {
+	if (solo >= SB_MASK && solo < SB_MASK + (4L << SB_MAX_OFFSETS)) {
 		set_mask(b, (unsigned)(solo - SB_MASK), b->off, b->noff, name, n);
 		return;
 	}
@@ -342,13 +348,11 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			left /= b->real_left + 1;
 		b->o.max_work = left < b->run_work ? (left ? left : 1) : b->run_work;
 		b->o.flow = flows && real ? b->flow : NULL;
-		/* a mean current is the small difference of large charges: the
-		   state left drifting by 1e-4 of a ladder's 1 kV each period
-		   misplaces a tenth of a 10 nF stage's charge (SIMBOUND_FLOW_TOL) */
-		b->o.settle_tol = b->o.flow ? SIMBOUND_FLOW_TOL : 0;
+		/* the currents' run settles further where it can (simrun.h) */
+		b->o.flow_tol = b->o.flow ? SIMBOUND_FLOW_TOL : 0;
 		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, NULL, NULL, &r);
 		b->o.flow = NULL;
-		b->o.settle_tol = 0;
+		b->o.flow_tol = 0;
 		b->fb->runs++;
 		if (r.stats.unknowns)
 			b->size = r.stats.unknowns;
@@ -735,12 +739,16 @@ static size_t offset_corners(struct sb *b, int volts, long *corners, size_t nc)
 	if (m > SB_MAX_OFFSETS) {
 		b->noff = 0;
 		corners[nc++] = SB_MASK;
+		corners[nc++] = SB_MASK + (long)(3U << SB_MAX_OFFSETS);
 		return nc;
 	}
 	memcpy(b->off, all, m * sizeof *all);
 	b->noff = m;
 	for (unsigned mask = 0; mask + 1 < 1U << m; mask++)
 		corners[nc++] = SB_MASK + (long)mask;
+	/* and every swing low with every level high: a clipper's output
+	   leans furthest to one side with a small swing on a high offset */
+	corners[nc++] = SB_MASK + (long)(3U << SB_MAX_OFFSETS);
 	return nc;
 }
 
