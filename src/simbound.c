@@ -157,8 +157,9 @@ static int has_offset(const struct sb *b, uint32_t i)
  * at its low end with bit SB_MAX_OFFSETS of mask), and level j of the
  * list off (a DC value, an offset, a rail) at its high end where bit j of
  * mask is set, at its low end elsewhere; levels past the list at their
- * low end; every level high with bit SB_MAX_OFFSETS + 1. A diode from a rail to a SIN riding on an
- * offset sees most with the swing up, the offset down and the rail up. */
+ * low end; every level high with bit SB_MAX_OFFSETS + 1. A diode from a
+ * rail to a SIN riding on an offset sees most with the swing up, the
+ * offset down and the rail up. */
 static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m, char *name,
 		     size_t n)
 {
