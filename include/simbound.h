@@ -25,20 +25,22 @@
 
 /* A file whose voltages are all proven is run once, for its currents, with
  * at most this many periods, Newton iterations, and Newton iterations
- * times unknowns: a tenth of the allowance of a voltage run (the examples
- * settle within 60 periods and 800,000 iterations times unknowns). */
+ * times unknowns: a tenth to a twentieth of the allowance of a voltage run
+ * (the examples settle within 60 periods and 800,000 iterations times
+ * unknowns). */
 #define SIMBOUND_FLOW_PERIODS 400
-/* The currents' run settles to this change per period, relative to the
- * largest capacitor voltage (the voltage runs: 1e-4). */
+/* The currents' run settles on towards this change per period, relative
+ * to the largest capacitor voltage, where its allowance leaves room
+ * (simrun.h; the voltage runs: 1e-4). */
 #define SIMBOUND_FLOW_TOL 1e-6
 #define SIMBOUND_FLOW_WORK 500000ul
 #define SIMBOUND_FLOW_TOTAL 3000000ul
 
 struct simbound_limits {
 	unsigned max_periods;     /* per run; 0: 4000 */
-	unsigned long max_work;   /* Newton iterations per run; 0: 5,000,000 */
+	unsigned long max_work;   /* Newton iterations per run; 0: 10,000,000 */
 	unsigned long total_work; /* per file, all runs, in Newton iterations
-				     times unknowns; 0: 30,000,000; a
+				     times unknowns; 0: 60,000,000; a
 				     fifth more for each corner past five */
 };
 
