@@ -316,6 +316,11 @@ struct stress_verify {
 int stress_run(const struct audit *a, const struct rating *r, const struct profile *p,
 	       struct arena *ar, struct stress_result *out);
 
+/* 1 when part p is a voltage source whose waveform a tolerance scales
+ * whole (a PULSE or PWL: its levels move together, so a level at 0 V
+ * stays at 0 V); a SIN's offset and swing are toleranced apart. */
+int stress_scales_whole(const struct nl_part *p);
+
 /* Source tolerance used for part (annotation, --source-tol, profile). */
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part);

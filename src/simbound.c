@@ -125,14 +125,6 @@ static int polyphase(const struct sb *b, const uint32_t *src, size_t n)
 	return n >= 3;
 }
 
-/* A PULSE or PWL scales whole: its levels move together, so a level at
- * 0 V stays there; a SIN's offset and swing are toleranced apart. */
-static int scales_whole(const struct nl_part *pt)
-{
-	const struct nl_source *w = pt->ext ? pt->ext->src : NULL;
-	return w && (w->wave == NL_WAVE_PULSE || w->wave == NL_WAVE_PWL);
-}
-
 /* 1 when moving source i carries a level of its own that its tolerance
  * moves apart from any swing: a DC value, a SIN's, SFFM's or EXP's
  * offset, a rail's band. A PULSE or PWL scales whole: its swing, high in
@@ -143,7 +135,7 @@ static int has_offset(const struct sb *b, uint32_t i)
 	const struct nl_source *w = pt->ext ? pt->ext->src : NULL;
 	if (isfinite(b->a->sources[i].max))
 		return 1;
-	if (scales_whole(pt))
+	if (stress_scales_whole(pt))
 		return 0;
 	if (!w)
 		return 0;
@@ -171,7 +163,7 @@ static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m,
 		for (size_t j = 0; j < m; j++)
 			up |= off[j] == i && (mask >> j & 1);
 		b->scale[i] = down ? 1 - t : 1 + t;
-		b->dcs[i] = scales_whole(pt) ? b->scale[i] : up ? 1 + t : 1 - t;
+		b->dcs[i] = stress_scales_whole(pt) ? b->scale[i] : up ? 1 + t : 1 - t;
 		b->set[i] = pt->kind == NL_V && isfinite(b->a->sources[i].max)
 				    ? (up ? b->a->sources[i].max : b->a->sources[i].min)
 				    : NAN;

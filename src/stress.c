@@ -63,7 +63,7 @@ struct ctx {
 	struct stress_struct *fig; /* the structure being figured */
 };
 
-static int scales_whole(const struct nl_part *p)
+int stress_scales_whole(const struct nl_part *p)
 {
 	const struct nl_source *src = p->kind == NL_V && p->ext ? p->ext->src : NULL;
 	return src && (src->wave == NL_WAVE_PULSE || src->wave == NL_WAVE_PWL);
@@ -91,7 +91,7 @@ static int run_corner(struct ctx *x, int k)
 		ohi[i] = high || low ? 1 + t : k == C_VF ? 1 - t : 1;
 		/* a PULSE or PWL scales whole: its levels move together, so a
 		   level at 0 V stays at 0 V (the mean moves with the swing) */
-		if (scales_whole(p))
+		if (stress_scales_whole(p))
 			olo[i] = ohi[i] = amp[i];
 		if (vf)
 			vf[i] = p->kind != NL_D  ? 0

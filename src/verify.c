@@ -10,14 +10,6 @@
 #include "simsrc.h"
 
 
-/* A pulse or piecewise-linear source scales whole: its low level stays
- * where it is (docs/check.md, per-waveform tolerance). */
-static int scales_whole(const struct nl_part *pt)
-{
-	const struct nl_source *s = pt->ext ? pt->ext->src : NULL;
-	return s && (s->wave == NL_WAVE_PULSE || s->wave == NL_WAVE_PWL);
-}
-
 /* The corners (VERIFY_CORNERS): every amplitude at +tol; the offsets and
  * rails at the top of their band (low 0) or at the bottom (low 1). Per
  * part source scales and capacitor start voltages; *moves is set when the
@@ -38,7 +30,7 @@ static int corner(const struct audit *a, struct arena *ar, const struct profile 
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
 		double tol = pt->kind == NL_V ? stress_tolerance(a, p, (uint32_t)i) : 0;
-		int whole = scales_whole(pt);
+		int whole = stress_scales_whole(pt);
 		k[i] = 1 + tol;
 		dk[i] = low && !whole ? 1 - tol : 1 + tol;
 		set[i] = pt->kind != NL_V ? NAN : low ? a->sources[i].min : a->sources[i].max;
