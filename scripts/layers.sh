@@ -71,6 +71,7 @@ rules check
 waiver check
 check check
 simbound check
+dstring check
 surge check
 loadout check
 defects check

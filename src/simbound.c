@@ -18,6 +18,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "dstring.h"
 #include "simrun.h"
 
 /* The offset corners' codes among the solo codes (set_corner): SB_MASK
@@ -49,6 +50,8 @@ struct sb {
 	double *scale, *dcs, *set; /* the corner being run: swing and offset
 				      scales, rail levels */
 	double *vmin, *vmax;
+	struct dstring ds;       /* ungraded diode strings */
+	double *nmin, *nmax;     /* a run's node extremes, when there are any */
 	unsigned long work, total_work; /* Newton iterations times unknowns */
 	unsigned long run_work;  /* Newton iterations allowed in one run */
 	unsigned long size;      /* unknowns of the circuit (estimate first) */
@@ -343,7 +346,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 		b->o.flow = flows && real ? b->flow : NULL;
 		/* the currents' run settles further where it can (simrun.h) */
 		b->o.flow_tol = b->o.flow ? SIMBOUND_FLOW_TOL : 0;
-		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, NULL, NULL, &r);
+		simrun_peaks(c, &b->o, &h, b->vmin, b->vmax, b->nmin, b->nmax, &r);
 		b->o.flow = NULL;
 		b->o.flow_tol = 0;
 		b->fb->runs++;
@@ -363,6 +366,8 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 				return 0;
 			continue;
 		}
+		if (b->nmin)
+			dstring_widen(c, &b->ds, b->nmin, b->nmax, b->vmin);
 		if (!real) {
 			ideal_ok = 1;
 			memcpy(imin, b->vmin, np * sizeof *imin);
@@ -617,6 +622,14 @@ static int alloc_all(struct sb *b)
 	b->flow = arena_alloc(b->ar, np * sizeof *b->flow);
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
+	if (!dstring_find(c, b->ar, &b->ds))
+		return 0;
+	if (b->ds.n) {
+		b->nmin = arena_alloc(b->ar, nn * sizeof *b->nmin);
+		b->nmax = arena_alloc(b->ar, nn * sizeof *b->nmax);
+		if (!b->nmin || !b->nmax)
+			return 0;
+	}
 	return x->worst && x->best && x->rev_min && x->corner && x->seen && x->blocked &&
 	       x->island_why && b->scale && b->dcs && b->set && b->vmin && b->vmax && b->fb && b->flow;
 }
@@ -673,6 +686,22 @@ static void tighten(struct sb *b, struct stress *s, int unseen)
 	b->fb->given++;
 }
 
+/* The corner of a member of an ungraded string, with why its number is
+ * the string's (dstring.h); the corner as it was on out-of-memory. */
+static const char *string_corner(struct sb *b, uint32_t k, const char *corner)
+{
+	uint32_t s = b->ds.n ? b->ds.of[k] : NL_NONE;
+	if (s == NL_NONE)
+		return corner;
+	char buf[1200];
+	snprintf(buf, sizeof buf,
+		 "%.900s; one of %u diodes in series with nothing at their joints: leakage and "
+		 "junction capacitance set their sharing, so each may take the string's whole "
+		 "reverse voltage (up to its own BV)", corner, b->ds.count[s]);
+	const char *out = arena_strdup(b->ar, buf);
+	return out ? out : corner;
+}
+
 /* Writes the numbers into the unproven stresses. */
 static void fill(struct sb *b)
 {
@@ -702,7 +731,9 @@ static void fill(struct sb *b)
 		s->worst = x->worst[k] * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
 		s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? x->best[k] : x->worst[k];
 		s->rev_min = x->rev_min[k];
-		s->corner = x->corner[k];
+		s->corner = string_corner(b, k, x->corner[k]);
+		if (b->ds.n && b->ds.of[k] != NL_NONE) /* its share may be nothing */
+			s->best = NAN;
 		const struct nl_part *pt = nl_part_at(c, k);
 		if (pt->kind == NL_C)
 			stress_set_energy(s, pt->value * (pt->ext ? pt->ext->mult : 1.0));
