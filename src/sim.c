@@ -842,27 +842,6 @@ static double lte_step(const struct sim *s, double h)
 	return best;
 }
 
-/* kink_step over the capacitors in the first steps after a corner,
- * where the truncation error has no history yet to be taken on: the
- * steps that follow an edge cross a zener's or a diode's knee unchecked
- * otherwise (a 200 ns spike into 1 nF and a zener: one 24 ns step ran
- * 1 V past the clamp, and rang). */
-#define SIM_KINK_FLOOR 1e-4 /* of the largest step: kinks_step goes no lower */
-
-static double kinks_step(const struct sim *s, double h)
-{
-	double best = INFINITY;
-	for (size_t i = 0; i < s->ndev; i++) {
-		const struct simdev *d = &s->dev[i];
-		if (d->kind != SD_C)
-			continue;
-		double itol = s->o.abstol + s->o.reltol * fmax(fabs(d->f), fabs(d->f0));
-		double qtol = s->o.reltol * fmax(fmax(fabs(d->q), fabs(d->qh[0])), SIM_CHGTOL) / h;
-		best = fmin(best, kink_step(d, h, fmax(itol, qtol)));
-	}
-	return best;
-}
-
 static void accept(struct sim *s, double h)
 {
 	s->t += h;
@@ -992,8 +971,6 @@ static enum sim_status step(struct sim *s, double t_end)
 		bdf2(s, h, be, &st);
 		enum sim_status r = newton(s, &st);
 		double allowed = r == SIM_OK && s->nhist >= 3 && !be ? lte_step(s, h) : 2 * h;
-		if (r == SIM_OK && !be && s->nhist < 3 && h > s->o.max_step * SIM_KINK_FLOOR)
-			allowed = fmin(allowed, fmax(kinks_step(s, h), s->o.max_step * SIM_KINK_FLOOR));
 		if (r == SIM_OK)
 			allowed = fmin(allowed, switch_step(s, h));
 		if (r == SIM_OK && allowed >= 0.9 * h) {
