@@ -21,6 +21,10 @@
 #define PSS_PLAIN 20        /* plain periods after the first failed attempt */
 #define PSS_WINDOW 8        /* periods over which a noise floor is judged */
 #define PSS_NOISE 1e-2      /* the largest change a noise floor may have */
+#define PSS_RATIOS 4        /* changes whose ratios judge a decay */
+#define PSS_LONG 4          /* a long baseline's allowance, in tolerances */
+#define PSS_DRIFT 0.5       /* a window that moves the state on by this share
+			       of its changes' sum drifts: no noise floor */
 
 /* The circuit's state: each capacitor's voltage and each inductor's
  * current (node voltages would do badly: a node on a fast edge at the
@@ -493,6 +497,7 @@ static enum sim_status try_shooting(struct sim *s, double period, double tol,
 struct noise {
 	double *anchor;  /* the state at the window's start */
 	double largest;  /* the largest change in the window (relative) */
+	double path;     /* the sum of the window's changes */
 	double last;     /* the change before this one */
 	unsigned n;      /* periods in the window */
 	unsigned ups;    /* changes in the window larger than the one before */
@@ -511,10 +516,12 @@ static int noise_floor(struct sim *s, struct noise *w, const double *now, double
 	if (w->n == 0) {
 		memcpy(w->anchor, now, s->ndev * sizeof *now);
 		w->largest = 0;
+		w->path = 0;
 		w->ups = 0;
 		w->last = change;
 	}
 	w->largest = fmax(w->largest, change);
+	w->path += change;
 	w->ups += change > w->last;
 	w->last = change;
 	if (++w->n <= PSS_WINDOW)
@@ -522,10 +529,27 @@ static int noise_floor(struct sim *s, struct noise *w, const double *now, double
 	w->n = 0;
 	/* a decay, however slow, shrinks period after period: noise goes up
 	   and down */
-	if (w->ups < PSS_WINDOW / 3 || !(state_change(s, now, w->anchor) <= 2 * w->largest))
+	double net = state_change(s, now, w->anchor);
+	if (w->ups < PSS_WINDOW / 3 || !(net <= 2 * w->largest) || !(net < PSS_DRIFT * w->path))
 		return 0;
 	s->st.noise = w->largest * scale[0];
 	return 1;
+}
+
+/* A drift over a long baseline: the state has moved, since the baseline
+ * taken age periods ago (at the last power of two of the periods run, so
+ * a quarter to a half of them back), by more than PSS_LONG times the
+ * tolerance (or twice the noise window's largest change, where the state
+ * is noisy). A constant slow drift under period-to-period noise (a ladder
+ * behind leakage inductance, emptying by a fixed charge a period) shows
+ * only there. */
+static int long_drift(const struct sim *s, const double *now, const double *snap,
+		      unsigned age, int have, double tol, const struct noise *w)
+{
+	if (!have || age < PSS_WINDOW)
+		return 0;
+	double limit = fmax(PSS_LONG * tol, 2 * w->largest);
+	return !(state_change(s, now, snap) <= limit);
 }
 
 enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
@@ -539,12 +563,15 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 	*settled = 0;
 	*periods = 0;
 	double from = settled_from(s), last_change = INFINITY;
+	double ratios[PSS_RATIOS] = {INFINITY, INFINITY, INFINITY, INFINITY};
 	s->st.settled_from = from;
 	s->st.residual = NAN;
 	int may_shoot = !s->o.no_shooting && one_map(s, period);
 	unsigned since = 0, next_shot = 1, shots = 0, plain = 0;
-	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor), 0, 0, 0, 0};
-	if (!nf.anchor)
+	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor), 0, 0, 0, 0, 0};
+	double *snap = arena_alloc(s->ar, (s->ndev + 1) * sizeof *snap);
+	unsigned snap_at = 0; /* since, when snap was taken (0: none) */
+	if (!nf.anchor || !snap)
 		return SIM_OOM;
 	s->st.noise = 0;
 	enum sim_status r = sim_run(s, s->t, NULL, NULL);
@@ -557,7 +584,9 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 			may_shoot = ++shots < PSS_ATTEMPTS;
 			r = try_shooting(s, period, tol, max_periods, periods, plain);
 			state_of(s, now);
-			last_change = INFINITY, since = 0;
+			last_change = INFINITY, since = 0, snap_at = 0;
+			for (int k = 0; k < PSS_RATIOS; k++)
+				ratios[k] = INFINITY;
 			continue;
 		}
 		memcpy(prev, now, s->ndev * sizeof *prev);
@@ -566,19 +595,31 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 		state_of(s, now);
 		double change = state_change(s, now, prev);
 		double ratio = change / last_change;
-		/* geometric decay: what is still to come is change r/(1-r) */
-		double to_come = ratio < 0.98 ? change * ratio / (1 - ratio) : INFINITY;
+		/* geometric decay: what is still to come is change r/(1-r), r
+		   the largest of the last PSS_RATIOS ratios: one small ratio
+		   among noisy ones near 1 is no decay (a ladder behind leakage
+		   inductance drifts at a constant rate under its ringing) */
+		double rmax = ratio;
+		ratios[since % PSS_RATIOS] = ratio;
+		for (int k = 0; k < PSS_RATIOS; k++)
+			rmax = fmax(rmax, ratios[k]);
+		double to_come = rmax < 0.98 ? change * rmax / (1 - rmax) : INFINITY;
 		last_change = change;
 		s->st.residual = change;
+		int drifting = long_drift(s, now, snap, since - snap_at, snap_at != 0, tol, &nf);
+		if ((since & (since - 1)) == 0) { /* a power of two: the next baseline */
+			memcpy(snap, now, s->ndev * sizeof *snap);
+			snap_at = since;
+		}
 		/* a decay needs two changes to be seen: two periods since the
 		   state was last set, three in all, after the sources' delays */
-		if (r == SIM_OK && since >= 2 && *periods >= 3 &&
+		if (r == SIM_OK && since >= 2 && *periods >= 3 && !drifting &&
 		    s->t - 2 * period >= from * (1 - 1e-9) && change < tol &&
 		    (to_come < tol || change < tol / 10)) {
 			*settled = 1;
 			break;
 		}
-		if (r == SIM_OK && s->t - period >= from * (1 - 1e-9) &&
+		if (r == SIM_OK && s->t - period >= from * (1 - 1e-9) && !drifting &&
 		    noise_floor(s, &nf, now, change, since < 2)) {
 			*settled = 1;
 			break;

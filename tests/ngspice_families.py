@@ -536,12 +536,6 @@ _LOOSE_FILES = {
         ("d1",),
         "after the flyback the diode's cathode floats, held by leakage and junction "
         "capacitance; the bound is the flyback level"),
-    "f10_b6_quadrupler_xfmr_leakage.cir": (
-        ("c1", "c2", "d1"),
-        "a ladder behind 0.59 mH of leakage inductance with a 50 Mohm load: the nearly-ideal "
-        "run's state changes by under 1e-4 a period after 14 periods, while a slow mode "
-        "still holds C1 8 % above ngspice's steady state (137.8 V for 127.3 V; C2 and D1 "
-        "4 %); sound"),
     "f10_b7_relay_coil_zener_clamp.cir": (
         ("d1",),
         "the flyback clamp's diode after the coil's ring is caught by the body diode: the "
