@@ -18,9 +18,6 @@
  * is 1e-3; steady state is judged to 1e-4 a period): relative, plus volts. */
 #define SIMBOUND_REL 5e-3
 #define SIMBOUND_ABS 0.01
-/* The noise floor (sim_stats) above which the extra nearly-ideal run is
- * left out, relative to the largest stress it gives. */
-#define SIMBOUND_IDEAL_NOISE 1e-3
 
 /* At most this many sources get a corner of their own (the others move
  * together in the all-high and all-low corners). */

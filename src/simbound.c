@@ -309,24 +309,6 @@ static void widen(double *vmin, double *vmax, size_t n, double noise)
 		vmin[i] -= noise, vmax[i] += noise;
 }
 
-/* The extra nearly-ideal run settled only at a noise floor above
- * SIMBOUND_IDEAL_NOISE of the largest stress it gives (sharp diodes
- * keeping a leakage inductance ringing: a ladder's run whose state moved
- * by 1 % a period and had not shed its power-up charge): it is left out,
- * as one that does not settle is; the runs with the diodes as modelled
- * stand. */
-static int noisy(const struct sb *b, const struct simrun_result *r)
-{
-	const struct nl_circuit *c = b->a->er.circuit;
-	double big = 0;
-	for (size_t i = 0; i < b->sr->n; i++) {
-		const struct stress *s = &b->sr->s[i];
-		if (stress_qty_is_voltage(s->qty) && isfinite(b->vmin[s->part]))
-			big = fmax(big, peak_of(c, s->part, b->vmin, b->vmax));
-	}
-	return r->stats.noise > SIMBOUND_IDEAL_NOISE * big;
-}
-
 /* One corner: with nearly ideal diodes (when asked) and as modelled;
  * with flows the real run's currents are kept. */
 static int run_corner(struct sb *b, const char *name, double *imin, double *imax, int ideal,
@@ -384,8 +366,6 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 				return 0;
 			continue;
 		}
-		if (!real && noisy(b, &r))
-			continue;
 		if (b->nmin)
 			dstring_widen(c, &b->ds, b->nmin, b->nmax, b->vmin);
 		if (!real) {
