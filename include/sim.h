@@ -59,7 +59,7 @@ struct sim_opts {
 /* The largest coupling coefficient the solver takes (sim.c). */
 #define SIM_K_MAX 0.9999
 /* From this coupling on, both windings are integrated by BDF2 (sim.c). */
-#define SIM_K_STIFF 0.99
+#define SIM_K_STIFF 0.999
 
 struct sim;
 

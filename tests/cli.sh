@@ -126,11 +126,12 @@ ex=$here/../examples
 run check --parts "$ex/parts.csv" "$ex"
 check "check on the examples finds errors: exit 1" test $rc -eq 1
 # X2.CAC's number is simulated (nearly ideal diodes, all-high corner): its last
-# digit moves with the solver's step placement, 0.02 % either way
-check "an under-rated ladder cap is an error with its location" grep -q "detector_bias_ladder.cir:37:1: error: X2.CAC sees 288.[45] V across it worst case, above its 250 V rating \[cap-overvoltage\]" "$tmp/out"
+# digit moves with the solver's step placement and the crest between its
+# points, 0.05 % either way
+check "an under-rated ladder cap is an error with its location" grep -q "detector_bias_ladder.cir:37:1: error: X2.CAC sees 288.[4-7] V across it worst case, above its 250 V rating \[cap-overvoltage\]" "$tmp/out"
 check "each finding explains its number" grep -q "^    how:    ladder stage 2, coupling column in S1 (ladder)" "$tmp/out"
 check "each finding gives the limit and its source" grep -q "^    limits: rating 250 V (annotation" "$tmp/out"
-check "each finding suggests a fix" grep -q "^    fix:    use a part rated 450 V or more: the smallest standard step at or above 288.[45] V / 70% = 41[12][.0-9]* V" "$tmp/out"
+check "each finding suggests a fix" grep -q "^    fix:    use a part rated 450 V or more: the smallest standard step at or above 288.[4-7] V / 70% = 41[12][.0-9]* V" "$tmp/out"
 check "a number the analysis cannot prove says so: simulated, with the reason" grep -q "simulated, not proven: LSEC adds inductance" "$tmp/out"
 check "the stress table is printed" grep -q "^  X2.CAC  S1   voltage         ladder stage 2, coupling column" "$tmp/out"
 check "hazardous voltages carry the caution" grep -q "^caution: this design involves voltages above the hazard level" "$tmp/out"
@@ -914,7 +915,7 @@ rules=sorted((f['part'], f['rule']) for f in d['findings'] if f['rule'] == 'cap-
 assert rules == [('C1', 'cap-life-short'), ('C2', 'cap-life-short')], rules
 " "$tmp/out"
 run check --fail-on never --ambient 70 "$data/life_doubler.cir"
-check "life: the finding gives the core, the heating and 10 C hotter" bash -c "grep -q 'C1 is estimated to last 22425 h (2.6 years) at 70 C ambient, less than the 50000 h' '$tmp/out' && grep -q '10 C hotter: 11213 h' '$tmp/out' && grep -q 'without its self-heating: shorter still' '$tmp/out'"
+check "life: the finding gives the core, the heating and 10 C hotter" bash -c "grep -q 'C1 is estimated to last 2242[3-6] h (2.6 years) at 70 C ambient, less than the 50000 h' '$tmp/out' && grep -q '10 C hotter: 1121[1-4] h' '$tmp/out' && grep -q 'without its self-heating: shorter still' '$tmp/out'"
 run check --fail-on never --ambient 50 "$data/life_doubler.cir"
 check "life: at 50 C the 2000 h / 105 C parts last 90,000 h, enough" bash -c "! grep -q 'cap-life-short' '$tmp/out' && grep -q '^  C1 .* life .* simulated' '$tmp/out'"
 
