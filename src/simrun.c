@@ -227,10 +227,15 @@ static double crest(double t0, double x0, double t1, double x1, double t2, doubl
 }
 
 /* 1 when four points rise (or fall) into the third and curve the same
- * way throughout: the slope into the second is steeper than the slope
- * into the third. A trapezoidal ring flips sign at every point and an
- * edge leaves a plateau with a slope steeper than the one it had; neither
- * is a crest. */
+ * way throughout, alike: the slope into the second is steeper than the
+ * slope into the third, and the curvatures of the first three and of the
+ * last three are within CREST_BEND of each other (a parabola's are equal,
+ * a sine's sampled seven times a period within 4: 1.6 with a point on
+ * its crest, 4 with the crest half way between two). A trapezoidal ring
+ * flips sign at every point, an edge leaves a plateau with a slope
+ * steeper than the one it had, and a spike (a diode's recovery) turns far
+ * harder than it came in: none is a crest. */
+#define CREST_BEND 5.0
 static int bends_alike(const struct crests *cr, double x3, double x2, double x1, double t,
 		       double x0)
 {
@@ -238,7 +243,9 @@ static int bends_alike(const struct crests *cr, double x3, double x2, double x1,
 		return 0;
 	double s32 = (x2 - x3) / (cr->t2 - cr->t3), s21 = (x1 - x2) / (cr->t1 - cr->t2);
 	double s10 = (x0 - x1) / (t - cr->t1);
-	return s32 * s21 > 0 && fabs(s32) > fabs(s21) && (s21 - s32) * (s10 - s21) > 0;
+	double a1 = (s21 - s32) / (cr->t1 - cr->t3), a2 = (s10 - s21) / (t - cr->t2);
+	return s32 * s21 > 0 && fabs(s32) > fabs(s21) && a1 * a2 > 0 &&
+	       fmax(fabs(a1), fabs(a2)) <= CREST_BEND * fmin(fabs(a1), fabs(a2));
 }
 
 /* One value into an extreme pair, with the crest of the last three where
