@@ -21,6 +21,9 @@
  * (the AC it lets through is then below about 1 % of the swing across it:
  * I T / (2 C) over a half period with I = V / R). */
 #define PROOF_RC_PERIODS 50.0
+/* Series nodes followed up from a capacitor's pin in search of its other pin
+ * (proof.c): a bleeder chain is a few resistors long. */
+#define PROOF_SERIES_HOPS 16
 
 /* Per part of c (nl_part_count entries): NULL when the analysis's
  * assumptions hold in its island, else why not (a sentence naming the

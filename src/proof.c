@@ -157,14 +157,71 @@ static void check_resistor(struct pctx *x, const struct nl_part *p)
 	}
 }
 
+/* A node the analysis holds at its source's voltage through a series
+ * resistor or inductor (no current through it) is not so held when
+ * another resistor joins it to a node the analysis could not settle: that
+ * one's current flows through the series resistor, and a part across the
+ * series resistor (a bleeder's capacitor) sees its drop, not 0 V. */
+static void check_series_load(struct pctx *x, uint32_t part, const struct nl_part *p)
+{
+	const uint32_t *q = nl_pins(x->c, p);
+	for (int k = 0; k < 2; k++) {
+		const struct prop_node *n = &x->nom->nodes[q[k]], *o = &x->nom->nodes[q[1 - k]];
+		if (n->state == PS_RESOLVED && n->how == PH_SERIES && n->by != part &&
+		    o->state != PS_RESOLVED) {
+			mark(x, p, "%s joins node %s, held at its source's voltage through a series "
+				   "resistance, to nodes the analysis could not settle: its current is "
+				   "neglected", nl_node_at(x->c, q[k])->name);
+			return;
+		}
+	}
+}
+
+/* The node a series node is held from (the far pin of its series part),
+ * or NL_NONE. */
+static uint32_t series_up(const struct pctx *x, uint32_t n)
+{
+	const struct prop_node *pn = &x->nom->nodes[n];
+	if (pn->state != PS_RESOLVED || pn->how != PH_SERIES || pn->by == NL_NONE)
+		return NL_NONE;
+	const struct nl_part *s = nl_part_at(x->c, pn->by);
+	const uint32_t *q = nl_pins(x->c, s);
+	return q[0] == n ? q[1] : q[0];
+}
+
+/* 1 when b is reached from a up a chain of series nodes. */
+static int series_chain(const struct pctx *x, uint32_t a, uint32_t b)
+{
+	for (int hops = 0; hops < PROOF_SERIES_HOPS && a != NL_NONE; hops++) {
+		a = series_up(x, a);
+		if (a == b)
+			return 1;
+	}
+	return 0;
+}
+
+/* A capacitor across a chain of series resistors (a bleeder across a
+ * pump capacitor) holds whatever charge the current through them leaves
+ * on it, which the chain's no-current assumption sets to 0 V. */
+static void check_cap_across_series(struct pctx *x, const struct nl_part *p)
+{
+	const uint32_t *q = nl_pins(x->c, p);
+	if (q[0] == q[1] || !(series_chain(x, q[0], q[1]) || series_chain(x, q[1], q[0])))
+		return;
+	mark(x, p, "%s%s sits across a series resistance that the analysis takes to carry no "
+		   "current", "");
+}
+
 static void check_part(struct pctx *x, size_t i, const unsigned char *breakdown)
 {
 	const struct nl_part *p = nl_part_at(x->c, i);
 	switch (p->kind) {
 	case NL_R:
 		check_resistor(x, p);
+		check_series_load(x, (uint32_t)i, p);
 		return;
 	case NL_C:
+		check_cap_across_series(x, p);
 		return;
 	case NL_L:
 	case NL_K:

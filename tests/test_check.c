@@ -867,6 +867,23 @@ static void test_proof_basis(void **state)
 	assert_true(fired(&c, "stress-unsettled", "C1"));
 	assert_non_null(strstr(c1->unproven, "Z1"));
 	checked_free(&c);
+	/* a bleeder across a Villard doubler's pump capacitor, 47 ohm between
+	   it and the diodes: node m is not at the source's voltage (the
+	   clamp's current flows through RB), and C1 holds about the source's
+	   50 V peak (a clamp charges its capacitor to the peak; from memory),
+	   not the 0 V of a resistor that carries no current */
+	check_text(&c, "b\nV1 in 0 sin(0 50 2k)\nC1 in m 100n\nRB in m 220k\nR1 m a 47\n"
+		       "D1 0 a dm\nD2 a o dm\nC2 o 0 100n\nRL o 0 1meg\n.model dm d\n",
+		   "industrial", 0, 0);
+	c1 = stress_of(&c, "C1", SQ_VOLTAGE);
+	assert_non_null(c1);
+	assert_int_equal(c1->basis, SB_SIMULATED);
+	assert_non_null(strstr(c1->unproven, "C1 sits across a series resistance"));
+	assert_true(c1->worst > 45 && c1->worst < 52);
+	/* and the doubler's output is twice the peak, not the source's peak
+	   that a resistor with no current would give it */
+	assert_true(stress_of(&c, "C2", SQ_VOLTAGE)->worst > 90);
+	checked_free(&c);
 	check_text(&c, CLAMP("50", "100"), "industrial", 0, 0);
 	assert_int_equal(stress_of(&c, "CC", SQ_VOLTAGE)->basis, SB_ANALYSIS);
 	assert_null(stress_of(&c, "CC", SQ_VOLTAGE)->unproven);
