@@ -18,8 +18,9 @@ Checked, each within 20 %:
   - the peak and the I2t at the instant headroom found worst, against
     ngspice at that instant;
   - the peak and the I2t against ngspice's worst over the 24 instants;
-and that the surge-excess finding, with a 30 A / 8.3 ms rating given in a
-parts table, states the pulse's peak, width and I2t. The shipped mains
+and that the surge finding, with a 30 A / 8.3 ms rating given in a parts
+table, states the pulse's peak, width and I2t (surge-excess or surge-derating:
+the rating's I2t is within 0.3 % of ngspice's pulse, so either is right). The shipped mains
 doubler (examples/mains_doubler.cir: a 4.7 ohm limiter, diodes with a 4.3 us
 transit time) is compared the same way at headroom's worst instant.
 Fails, not skips, when CI is set and ngspice is missing."""
@@ -143,8 +144,18 @@ def main():
             ok(math.isclose(s.get("surge_width") or -1.0, wide, rel_tol=1e-6), "%s width is 2 I2t / peak^2" % d)
             fs = [x for x in f["findings"] if x["part"] == d and x["rule"].startswith("surge-")]
             msg = fs[0]["message"] if fs else ""
-            ok(len(fs) == 1 and fs[0]["rule"] == "surge-excess" and "peak" in msg and "wide" in msg
-               and "I2t" in msg, "%s surge finding states peak, width and I2t: %s" % (d, msg or "none"))
+            # the rating's I2t (a half-sine of 30 A over 8.3 ms: 30^2 x 8.3 ms / 2 = 3.735 A^2 s)
+            # sits within 0.3 % of ngspice's pulse: within 0.5 % either rule is right, past it
+            # the one ngspice's I2t gives
+            rated = 30.0 ** 2 * 8.3e-3 / 2
+            want = {"surge-excess", "surge-derating"}
+            if worst[1] > rated * 1.005:
+                want = {"surge-excess"}
+            elif worst[1] < rated * 0.995:
+                want = {"surge-derating"}
+            ok(len(fs) == 1 and fs[0]["rule"] in want and "peak" in msg and "wide" in msg
+               and "I2t" in msg, "%s surge finding (%s) states peak, width and I2t: %s"
+               % (d, " or ".join(sorted(want)), msg or "none"))
         # a second deck: the shipped mains doubler (no transformer, a
         # limiter resistor, diodes with a 4.3 us transit time)
         r = subprocess.run([BIN, "check", "--format", "json", "--fail-on", "never", "--source-tol", "10",
