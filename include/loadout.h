@@ -44,6 +44,12 @@ int loadout_run(const struct audit *a, const struct profile *p, const struct sim
 #define LOADOUT_LOOSE_REL 0.03
 #define LOADOUT_LOOSE_ABS 0.1
 int loadout_tighten(const struct audit *a, struct arena *ar, struct stress_result *sr);
+/* The parts outside structures whose proof also rests on a loaded output:
+ * those with a pin on it or on a node at most LOADOUT_FILTER_HOPS
+ * resistors from it, over nodes of at most LOADOUT_FILTER_DEGREE parts
+ * that no source holds. */
+#define LOADOUT_FILTER_HOPS 3
+#define LOADOUT_FILTER_DEGREE 16
 
 /* The loaded structure whose output (either side) is node, or -1. */
 int32_t loadout_of_node(const struct audit *a, const struct stress_result *sr, uint32_t node);

@@ -377,9 +377,43 @@ static int any_band(const struct audit *a)
 	return 0;
 }
 
+/* A node a source holds (or ground): no path to an output runs through it. */
+static int held_node(const struct audit *a, uint32_t n)
+{
+	const struct prop_node *pn = &a->prop.nodes[n];
+	return n == NL_GROUND || (pn->state == PS_RESOLVED &&
+				  (pn->how == PH_SOURCE || pn->how == PH_VCVS || pn->how == PH_GROUND));
+}
+
+/* 1 when node n reaches o's output through at most hops resistors, over
+ * nodes no source holds and with few parts each (a filter's resistor
+ * from a reservoir to its second capacitor). */
+static int by_resistors(const struct audit *a, uint32_t n, const struct stress_output *o,
+			int hops)
+{
+	if (n == NL_GROUND)
+		return 0;
+	if (n == o->pos || n == o->neg)
+		return 1;
+	uint32_t deg;
+	const uint32_t *adj = nl_adjacency(a->er.circuit, n, &deg);
+	if (hops == 0 || held_node(a, n) || deg > LOADOUT_FILTER_DEGREE)
+		return 0;
+	for (uint32_t i = 0; i < deg; i++) {
+		const struct nl_part *r = nl_part_at(a->er.circuit, adj[i]);
+		if (r->kind != NL_R || r->npins != 2)
+			continue;
+		const uint32_t *q = nl_pins(a->er.circuit, r);
+		if (q[0] != q[1] && by_resistors(a, q[0] == n ? q[1] : q[0], o, hops - 1))
+			return 1;
+	}
+	return 0;
+}
+
 /* 1 when s's part lies outside every structure with a pin on o's output
- * (a Y capacitor from a bridge's output to ground): its proof rests on
- * the same unloaded output. */
+ * (a Y capacitor from a bridge's output to ground) or on a node resistors
+ * join to it (a pi filter's second capacitor): its proof rests on the
+ * same unloaded output. */
 static int on_output(const struct audit *a, const struct stress *s,
 		     const struct stress_output *o)
 {
@@ -388,7 +422,7 @@ static int on_output(const struct audit *a, const struct stress *s,
 	const struct nl_part *pt = nl_part_at(a->er.circuit, s->part);
 	const uint32_t *pin = nl_pins(a->er.circuit, pt);
 	for (uint32_t j = 0; j < pt->npins; j++)
-		if ((pin[j] == o->pos || pin[j] == o->neg) && pin[j] != NL_GROUND)
+		if (by_resistors(a, pin[j], o, LOADOUT_FILTER_HOPS))
 			return 1;
 	return 0;
 }
