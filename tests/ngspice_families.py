@@ -414,7 +414,13 @@ def steady_run(job):
     with tempfile.TemporaryDirectory() as tmp:
         while True:
             for options in OPTIONS:
-                res, out = simulate(text, subst, ideal, parts, period, tmax, n, tmp, "run", options)
+                try:
+                    res, out = simulate(text, subst, ideal, parts, period, tmax, n, tmp, "run",
+                                        options)
+                except subprocess.TimeoutExpired as e:
+                    # a run that hangs (seen with method=gear on a fast edge)
+                    # is a failed run: the next options are tried
+                    res, out = None, "ngspice timed out after %s s with %s" % (e.timeout, options)
                 if res is not None:
                     break
             if res is None:
