@@ -121,38 +121,15 @@ fuzz: deps
 	SEEDS_baseline="$(seeds_baseline)" SEEDS_check="$(seeds_check)" \
 		bash scripts/fuzz.sh build/fuzz $(FUZZ)
 
-# Runs every unit test, then the command-line and corpus checks.
+# Runs every unit test, then the suites of tests/suites.list two at a time
+# (scripts/suites.sh: each suite's output whole as it ends, the failures
+# summed up at the end).
 test-run: $(BUILD)/headroom $(TESTS) fuzz-replay
 	@bash scripts/layers.sh --self-test
 	@bash scripts/layers.sh $(BUILD)/obj && echo "layers: every module calls and includes only its own or lower layers"
 	@set -e; for t in $(TESTS); do echo "== $$t"; \
 		HEADROOM=$(BUILD)/headroom $$t; done
-	@HEADROOM=$(BUILD)/headroom bash tests/cli.sh
-	@HEADROOM=$(BUILD)/headroom bash tests/bom.sh
-	@HEADROOM=$(BUILD)/headroom bash tests/hostile.sh
-	@HEADROOM=$(BUILD)/headroom bash tests/corpus.sh
-	@HEADROOM=$(BUILD)/headroom python3 tests/corpus_numbers.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_parts.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_topo.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_check.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_sim.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_behav.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_families.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/verify_families.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_powerup.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_surge.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_currents.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_loadout.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_oneshot.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_forms.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/ngspice_charge.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/report_schema.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/doc_profiles.py
-	@HEADROOM=$(BUILD)/headroom bash tests/reports.sh
-	@HEADROOM=$(BUILD)/headroom bash tests/ci_recipe.sh
-	@HEADROOM=$(BUILD)/headroom bash tests/build.sh
-	@HEADROOM=$(BUILD)/headroom python3 tests/html_report.py
-	@HEADROOM=$(BUILD)/headroom python3 tests/html_browser.py
+	@HEADROOM=$(BUILD)/headroom bash scripts/suites.sh tests/suites.list
 
 check: deps
 	@$(MAKE) --no-print-directory test-run

@@ -32,9 +32,15 @@ Checks, per probe, over the last period of each:
             fraction of a step later is not a wrong voltage); for the ripple of a near-DC
             node, smaller than either simulator's own tolerance, the bound
             is 0.1 % of the peak (reltol).
-Every comparison is printed. Fails, not skips, when CI is set and ngspice
-is missing."""
+ngspice's side (its last steady-state period, the periods it took, its
+time points over the first 20) is kept in tests/data/sim/reference.json
+with each deck's SHA-256, probes, period and largest step, and simulated
+again only when one of those changes (or with --regen); our side is run
+every time. Every comparison is printed. Fails, not skips, when CI is set
+and ngspice is missing."""
 import bisect
+import hashlib
+import json
 import os
 import re
 import shutil
@@ -179,18 +185,60 @@ def compare(name, probe, ot, ov, nt, nv, t0, step):
     return peak_ok, wave_ok
 
 
-def step_counts(deck, names, period, step, tmp):
+def step_counts(deck, names, period, step):
     """Time points over the first 20 periods from zero: ours (`sim
-    --until`, its summary's accepted points) and ngspice's (the rows its
-    wrdata writes: one per accepted time point), same largest step."""
-    tmax = step or period / 200
+    --until`, its summary's accepted points); ngspice's (the rows its
+    wrdata writes: one per accepted time point, same largest step) are
+    kept with its reference."""
     args = [BIN, "sim", deck, "--until", "%g" % (20 * period), "--node", names[0]]
     if step:
         args += ["--max-step", "%g" % step]
     r = subprocess.run(args, capture_output=True, text=True)
     m = re.search(r"(\d+) points", r.stderr)
-    nt, _ = ngspice(deck, names[:1], 20 * period, tmax, tmp)
-    return (int(m.group(1)) if m else None), len(nt)
+    return int(m.group(1)) if m else None
+
+
+REFERENCE = os.path.join(DATA, "reference.json")
+
+
+def load_cache():
+    try:
+        with open(REFERENCE, encoding="utf-8") as fh:
+            return json.load(fh).get("decks", {})
+    except (OSError, ValueError):
+        return {}
+
+
+def save_cache(cache):
+    version = subprocess.run(["ngspice", "-v"], capture_output=True, text=True).stdout
+    m = re.search(r"ngspice-\S+", version)
+    with open(REFERENCE, "w", encoding="utf-8") as fh:
+        json.dump({"generator": "tests/ngspice_sim.py", "ngspice": m.group(0) if m else "?",
+                   "decks": cache}, fh, indent=1, sort_keys=True)
+        fh.write("\n")
+
+
+def reference(f, deck, text, names, period, step, periods, cache, regen):
+    """ngspice's last steady-state period (times from its start) and its
+    time points over 20 periods from zero, from the cache while the deck,
+    its probes, its period and the largest step are the same; otherwise
+    simulated again (and the cache updated)."""
+    tmax = step or period / 200
+    e = cache.get(f)
+    digest = hashlib.sha256(text.encode()).hexdigest()
+    if (regen or not e or e["sha256"] != digest or e["names"] != names or
+            abs(e["period"] - period) > 1e-9 * period or e["tmax"] != tmax):
+        with tempfile.TemporaryDirectory() as tmp:
+            k, nt, ncols = ngspice_converged(deck, names, period, tmax, tmp, 2 * periods)
+        with tempfile.TemporaryDirectory() as tmp:
+            theirs = len(ngspice(deck, names[:1], 20 * period, tmax, tmp)[0])
+        t0 = (k - 1) * period
+        keep = [i for i, x in enumerate(nt) if x >= t0 - 1e-15]
+        e = cache[f] = {"sha256": digest, "names": names, "period": period, "tmax": tmax,
+                        "periods": k, "t": [nt[i] - t0 for i in keep],
+                        "cols": [[c[i] for i in keep] for c in ncols], "points20": theirs}
+        cache["__changed__"] = True
+    return e
 
 
 def main():
@@ -200,9 +248,13 @@ def main():
             return 1
         print("ngspice-sim: SKIPPED: ngspice not installed (scripts/deps.sh installs it)")
         return 0
+    args = sys.argv[1:]
+    regen = "--regen" in args
+    args = [a for a in args if a != "--regen"]
     decks = sorted(f for f in os.listdir(DATA) if f.endswith(".cir"))
-    if sys.argv[1:]:  # only the decks named (file names in tests/data/sim)
-        decks = [f for f in decks if f in sys.argv[1:]]
+    if args:  # only the decks named (file names in tests/data/sim)
+        decks = [f for f in decks if f in args]
+    cache = load_cache()
     passed = failed = 0
     for f in decks:
         deck = os.path.join(DATA, f)
@@ -211,27 +263,27 @@ def main():
         periods, period, rows, summary = ours(deck, names, step)
         print("ngspice-sim: " + summary)
         t0 = periods * period
-        with tempfile.TemporaryDirectory() as tmp:
-            k, nt, ncols = ngspice_converged(deck, names, period, step or period / 200, tmp,
-                                             2 * periods)
-        print("ngspice-sim: ngspice from zero to its own steady state: %d periods" % k)
+        e = reference(f, deck, text, names, period, step, periods, cache, regen)
+        print("ngspice-sim: ngspice from zero to its own steady state: %d periods" % e["periods"])
         # ngspice's last period laid over ours (both start at a period boundary)
-        nt = [x - (k - 1) * period + t0 for x in nt]
+        nt = [x + t0 for x in e["t"]]
         ot = [r[0] for r in rows]
         for i, n in enumerate(names):
-            ok = compare(f, n, ot, [r[i + 1] for r in rows], nt, ncols[i], t0,
+            ok = compare(f, n, ot, [r[i + 1] for r in rows], nt, e["cols"][i], t0,
                          step or period / 200)
             for good in ok:
                 passed += good
                 failed += not good
-        with tempfile.TemporaryDirectory() as tmp:
-            mine, theirs = step_counts(deck, names, period, step, tmp)
+        mine, theirs = step_counts(deck, names, period, step), e["points20"]
         good = mine is not None and mine <= 2 * theirs
         print("ngspice-sim: %-18s time points over 20 periods from zero: headroom %s, ngspice %d "
               "(%.2fx; at most 2x) %s" % (f, mine, theirs, (mine or 0) / max(theirs, 1),
                                           "ok" if good else "FAIL"))
         passed += good
         failed += not good
+    if cache.pop("__changed__", False):
+        save_cache(cache)
+        print("ngspice-sim: ngspice's runs written to %s" % os.path.relpath(REFERENCE, ROOT))
     print("ngspice-sim: %d passed, %d failed (%d decks)" % (passed, failed, len(decks)))
     return 1 if failed else 0
 
