@@ -26,6 +26,7 @@
 #define SIM_RING_CUT 4  /* a node ringing at the step: the next step this much shorter, */
 #define SIM_RING_CUTS 2 /* this many times, then damped (backward Euler) */
 #define SIM_RING_QUIET 8 /* steps without ringing that start the count again */
+#define SIM_TIE_G 1.0     /* S: a part with no path to ground, tied to it at one node */
 #define SIM_SW_RESOLVE 1e-3 /* a switch's crossing found to this share of the largest step */
 #define SIM_RING_FLOOR 1e-6 /* no cut below this share of the largest step: damped instead */
 #define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
@@ -637,6 +638,45 @@ static void defaults(struct sim *s)
 	s->span.step = o->step > 0 ? o->step : o->stop / 1000;
 }
 
+static uint32_t root_of(uint32_t *up, uint32_t n)
+{
+	while (up[n] != n)
+		n = up[n] = up[up[n]];
+	return n;
+}
+
+/* A part of the circuit with no path to ground (a floating winding and
+ * what it feeds, written without a node 0) leaves the matrix singular:
+ * one node of each such part is tied to ground by SIM_TIE_G, through which
+ * no current can flow, since it is that part's only connection. Every pin
+ * of a part counts as connected to its others. Sets s->tie (per node). */
+static int ground_ties(struct sim *s)
+{
+	size_t nn = s->nnodes;
+	uint32_t *up = arena_alloc(s->ar, (nn + 1) * sizeof *up);
+	s->tie = arena_zalloc(s->ar, nn + 1);
+	unsigned char *seen = arena_zalloc(s->ar, nn + 1);
+	if (!up || !s->tie || !seen)
+		return 0;
+	for (uint32_t k = 0; k < nn; k++)
+		up[k] = k;
+	for (size_t i = 0; i < nl_part_count(s->c); i++) {
+		const struct nl_part *p = nl_part_at(s->c, i);
+		const uint32_t *q = nl_pins(s->c, p);
+		if (s->o.leave_out && s->o.leave_out[i])
+			continue;
+		for (uint32_t j = 1; j < p->npins; j++)
+			up[root_of(up, q[j])] = root_of(up, q[0]);
+	}
+	uint32_t g = root_of(up, NL_GROUND);
+	for (uint32_t k = 1; k < nn; k++) {
+		uint32_t r = root_of(up, k);
+		if (r != g && !seen[r])
+			seen[r] = s->tie[k] = 1;
+	}
+	return 1;
+}
+
 static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 {
 	if (!count_unknowns(s, ref))
@@ -676,7 +716,7 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 	for (size_t k = 0; k + 1 < s->nnodes; k++)
 		if ((s->shunt[k] = simmat_need(s->m, (long)k, (long)k)) == -2)
 			return SIM_OOM;
-	if (!simmat_freeze(s->m))
+	if (!simmat_freeze(s->m) || !ground_ties(s))
 		return SIM_OOM;
 	double shortest = shortest_period(s, &s->period);
 	if (s->o.max_step <= 0)
@@ -780,6 +820,9 @@ static enum sim_status newton(struct sim *s, const struct simdev_step *st)
 				simdev_stamp(&s->dev[i], st, s->m, s->x, &limited);
 		for (size_t k = 0; s->o.gshunt > 0 && k + 1 < s->nnodes; k++)
 			simmat_add(s->m, s->shunt[k], s->o.gshunt);
+		for (size_t k = 0; k + 1 < s->nnodes; k++)
+			if (s->tie[k + 1])
+				simmat_add(s->m, s->shunt[k], SIM_TIE_G);
 		const double *xn = simmat_solve(s->m);
 		s->st.newton++;
 		if (!xn)

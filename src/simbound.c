@@ -95,6 +95,13 @@ static int zero_source(const struct nl_part *pt)
 	return src && src->dc == 0 && src->wave == NL_WAVE_NONE && !src->unknown;
 }
 
+/* An independent source: a voltage source, or a current source (a
+ * winding written in Norton form), whose tolerance the corners apply. */
+static int is_source(const struct nl_part *pt)
+{
+	return pt->kind == NL_V || pt->kind == NL_I;
+}
+
 /* Sources with a tolerance or a range: the corners move them. */
 static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
 {
@@ -102,9 +109,8 @@ static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
 	size_t n = 0;
 	for (size_t i = 0; i < nl_part_count(c) && n < max; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		if (pt->kind == NL_V && (isfinite(b->a->sources[i].max) ||
-					 (stress_tolerance(b->a, b->p, (uint32_t)i) > 0 &&
-					  !zero_source(pt))))
+		if (is_source(pt) && (isfinite(b->a->sources[i].max) ||
+				      (stress_tolerance(b->a, b->p, (uint32_t)i) > 0 && !zero_source(pt))))
 			out[n++] = (uint32_t)i;
 	}
 	return n;
@@ -161,7 +167,7 @@ static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m,
 	const struct nl_circuit *c = b->a->er.circuit;
 	for (size_t i = 0; i < nl_part_count(c); i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
+		double t = is_source(pt) ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
 		int up = mask >> (SB_MAX_OFFSETS + 1) & 1, down = mask >> SB_MAX_OFFSETS & 1;
 		for (size_t j = 0; j < m; j++)
 			up |= off[j] == i && (mask >> j & 1);
@@ -199,7 +205,7 @@ static void set_corner(struct sb *b, long solo, char *name, size_t n)
 		long low = solo <= -3 ? -solo - 3 : -1;
 		int high = solo == -1 || (solo >= 0 && (size_t)solo == i) ||
 			   (low >= 0 && (size_t)low != i);
-		double t = pt->kind == NL_V ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
+		double t = is_source(pt) ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
 		const struct audit_source *as = &b->a->sources[i];
 		b->scale[i] = b->dcs[i] = high ? 1 + t : 1 - t;
 		b->set[i] = pt->kind == NL_V && isfinite(as->max) ? (high ? as->max : as->min) : NAN;
@@ -785,7 +791,7 @@ static int seen_corner(const struct sb *b, double (*sig)[3 * SB_SIG], size_t k)
 	const struct nl_circuit *c = b->a->er.circuit;
 	size_t n = 0;
 	for (size_t i = 0; i < nl_part_count(c); i++) {
-		if (nl_part_at(c, i)->kind != NL_V)
+		if (!is_source(nl_part_at(c, i)))
 			continue;
 		if (n == SB_SIG)
 			return 0; /* too many sources to tell */

@@ -34,6 +34,7 @@ struct sim {
 	double *d1, *d2;         /* each node unknown's last two accepted changes */
 	unsigned ring_cuts, ring_quiet; /* sim.c's ringing() */
 	long *shunt;             /* matrix handle of each node's diagonal */
+	unsigned char *tie;      /* per node: tied to ground (sim.c's ground_ties) */
 	double t, hstep;
 	int behav_time;          /* a behavioural source reads the time */
 	int after_corner;        /* next step is backward Euler */

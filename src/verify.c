@@ -29,12 +29,13 @@ static int corner(const struct audit *a, struct arena *ar, const struct profile 
 	*started = 0;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		double tol = pt->kind == NL_V ? stress_tolerance(a, p, (uint32_t)i) : 0;
+		/* a current source too (a winding in Norton form) */
+		double tol = pt->kind == NL_V || pt->kind == NL_I ? stress_tolerance(a, p, (uint32_t)i) : 0;
 		int whole = stress_scales_whole(pt);
 		k[i] = 1 + tol;
 		dk[i] = low && !whole ? 1 - tol : 1 + tol;
 		set[i] = pt->kind != NL_V ? NAN : low ? a->sources[i].min : a->sources[i].max;
-		if (pt->kind == NL_V && ((tol > 0 && !whole) || isfinite(a->sources[i].min)))
+		if ((tol > 0 && !whole) || (pt->kind == NL_V && isfinite(a->sources[i].min)))
 			*moves = 1;
 		v0[i] = pt->kind == NL_C && pt->npins == 2 ? stress_low_dc(a, sr, ar, pt) : NAN;
 		if (isfinite(v0[i]))
