@@ -36,19 +36,12 @@
 #define SIMBOUND_FLOW_WORK 500000ul
 #define SIMBOUND_FLOW_TOTAL 3000000ul
 
-/* The simulation's allowance: Newton iterations in one run, and Newton
- * iterations times unknowns over a file's runs (some 12 s of a small
- * circuit's solving). It was a quarter of this until a doubler behind a
- * barely damped 3 mH source (each diode turn-off ringing at 0.9 MHz in a
- * 60 Hz circuit) needed 9 s. */
-#define SIMBOUND_RUN_WORK 40000000ul
-#define SIMBOUND_FILE_WORK 240000000ul
-
 struct simbound_limits {
 	unsigned max_periods;     /* per run; 0: 4000 */
-	unsigned long max_work;   /* per run; 0: SIMBOUND_RUN_WORK */
-	unsigned long total_work; /* per file, all runs; 0: SIMBOUND_FILE_WORK;
-				     a fifth more for each corner past five */
+	unsigned long max_work;   /* Newton iterations per run; 0: 10,000,000 */
+	unsigned long total_work; /* per file, all runs, in Newton iterations
+				     times unknowns; 0: 60,000,000; a
+				     fifth more for each corner past five */
 };
 
 /* Simulates where sr has unproven stresses and fills their numbers (basis,

@@ -848,7 +848,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	if (!start_caps(&b))
 		return 0;
 	b.o.max_periods = lim && lim->max_periods ? lim->max_periods : 4000;
-	b.run_work = lim && lim->max_work ? lim->max_work : SIMBOUND_RUN_WORK;
+	b.run_work = lim && lim->max_work ? lim->max_work : 10000000;
 	if (!volts) {
 		/* the currents alone: a tenth of the allowance (simbound.h) */
 		b.o.max_periods = b.o.max_periods < SIMBOUND_FLOW_PERIODS ? b.o.max_periods
@@ -871,7 +871,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
 	if (!imin || !imax)
 		return 0;
-	b.total_work = lim && lim->total_work ? lim->total_work : SIMBOUND_FILE_WORK;
+	b.total_work = lim && lim->total_work ? lim->total_work : 60000000;
 	/* the allowance is sized for SB_BASE_CORNERS corners; each one more
 	   (the level corners of several toleranced rails) gets its share */
 	if (nc > SB_BASE_CORNERS)
