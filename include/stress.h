@@ -324,6 +324,10 @@ int stress_scales_whole(const struct nl_part *p);
 /* Source tolerance used for part (annotation, --source-tol, profile). */
 double stress_tolerance(const struct audit *a, const struct profile *p,
 			uint32_t part);
+/* The tolerance the solver's corners move source part by: a voltage
+ * source's (stress_tolerance), a current source's only where one is
+ * declared on it (*@source), 0 for other parts. */
+double stress_source_tol(const struct audit *a, const struct profile *p, uint32_t part);
 
 /* Sets a capacitor stress's stored energy from its worst voltage (cap_f
  * farads). Its discharge is set later, by discharge_run (discharge.h). */

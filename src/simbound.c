@@ -110,7 +110,7 @@ static size_t moving_sources(const struct sb *b, uint32_t *out, size_t max)
 	for (size_t i = 0; i < nl_part_count(c) && n < max; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
 		if (is_source(pt) && (isfinite(b->a->sources[i].max) ||
-				      (stress_tolerance(b->a, b->p, (uint32_t)i) > 0 && !zero_source(pt))))
+				      (stress_source_tol(b->a, b->p, (uint32_t)i) > 0 && !zero_source(pt))))
 			out[n++] = (uint32_t)i;
 	}
 	return n;
@@ -167,7 +167,7 @@ static void set_mask(struct sb *b, unsigned mask, const uint32_t *off, size_t m,
 	const struct nl_circuit *c = b->a->er.circuit;
 	for (size_t i = 0; i < nl_part_count(c); i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		double t = is_source(pt) ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
+		double t = stress_source_tol(b->a, b->p, (uint32_t)i);
 		int up = mask >> (SB_MAX_OFFSETS + 1) & 1, down = mask >> SB_MAX_OFFSETS & 1;
 		for (size_t j = 0; j < m; j++)
 			up |= off[j] == i && (mask >> j & 1);
@@ -205,7 +205,7 @@ static void set_corner(struct sb *b, long solo, char *name, size_t n)
 		long low = solo <= -3 ? -solo - 3 : -1;
 		int high = solo == -1 || (solo >= 0 && (size_t)solo == i) ||
 			   (low >= 0 && (size_t)low != i);
-		double t = is_source(pt) ? stress_tolerance(b->a, b->p, (uint32_t)i) : 0;
+		double t = stress_source_tol(b->a, b->p, (uint32_t)i);
 		const struct audit_source *as = &b->a->sources[i];
 		b->scale[i] = b->dcs[i] = high ? 1 + t : 1 - t;
 		b->set[i] = pt->kind == NL_V && isfinite(as->max) ? (high ? as->max : as->min) : NAN;

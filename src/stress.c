@@ -48,6 +48,16 @@ double stress_tolerance(const struct audit *a, const struct profile *p,
 	return isnan(t) ? 0 : t;
 }
 
+double stress_source_tol(const struct audit *a, const struct profile *p, uint32_t part)
+{
+	const struct nl_part *pt = nl_part_at(a->er.circuit, part);
+	if (pt->kind == NL_V)
+		return stress_tolerance(a, p, part);
+	/* a current source moves only by a tolerance declared on it: inside
+	   a model (an amplifier's bias currents) it is no supply */
+	return pt->kind == NL_I && !isnan(a->sources[part].tol) ? a->sources[part].tol : 0;
+}
+
 struct ctx {
 	const struct audit *a;
 	struct arena *ar;        /* the stage's memory */

@@ -29,8 +29,7 @@ static int corner(const struct audit *a, struct arena *ar, const struct profile 
 	*started = 0;
 	for (size_t i = 0; i < np; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
-		/* a current source too (a winding in Norton form) */
-		double tol = pt->kind == NL_V || pt->kind == NL_I ? stress_tolerance(a, p, (uint32_t)i) : 0;
+		double tol = stress_source_tol(a, p, (uint32_t)i);
 		int whole = stress_scales_whole(pt);
 		k[i] = 1 + tol;
 		dk[i] = low && !whole ? 1 - tol : 1 + tol;
