@@ -104,6 +104,8 @@ struct stress {
 	enum stress_basis basis;
 	const char *unproven;   /* why the analysis's proof does not hold, or NULL */
 	double analytic;        /* the analysis's own worst (NaN when none) */
+	int hull;               /* the number is the supply range's (hull.h): no
+				   steady state, every node between its supplies */
 	int tighten;            /* the proof (analytic) holds but leaves out its
 				   structure's load, which the loaded output shows
 				   to matter: the solver is asked for a tighter

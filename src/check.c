@@ -1,7 +1,7 @@
 /* check.c: one netlist file through the whole check (check.h). The order
  * is fixed: analysis, the file's own profile, ratings, stresses, the loaded
  * outputs simulated, simulated numbers for what the analysis cannot prove
- * and the currents, the optional --verify, rules
+ * and the currents, the supply range for what is left, the optional --verify, rules
  * and circuit defects, waivers, baseline. Printing and exit codes belong to
  * the program. */
 #include "check.h"
@@ -14,6 +14,7 @@
 #include "current.h"
 #include "defects.h"
 #include "discharge.h"
+#include "hull.h"
 #include "loadout.h"
 #include "num.h"
 #include "suggest.h"
@@ -138,7 +139,8 @@ static int judge(const struct check_opts *o, struct check_run *r)
 	int sim = o->verify && (!o->verify_max_parts ||
 				nl_part_count(a->er.circuit) <= o->verify_max_parts);
 	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
-	       simulate_unproven(o, r) && current_run(a, rt, profile_ambient(r->profile, NAN), a->ar, &r->sr) &&
+	       simulate_unproven(o, r) && hull_run(a, r->profile, a->ar, &r->sr) &&
+	       current_run(a, rt, profile_ambient(r->profile, NAN), a->ar, &r->sr) &&
 	       discharge_run(a, r->profile, a->ar, &r->sr) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&
 	       rules_run(a, rt, r->profile, &r->sr, a->ar, &r->rr) &&

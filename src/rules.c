@@ -222,9 +222,11 @@ static const char *computation(struct ctx *x, const struct stress *s)
 	if (s->basis == SB_SIMULATED)
 		simulated = str(x, "%s; simulated, not proven: %s", simulated, s->unproven);
 	const char *best = isfinite(s->best) ? str(x, "best case %s", v(x, s->best, "V"))
-					     : "no best case (the run's diodes were nearly ideal)";
-	const char *over = s->corner && strstr(s->corner, "no source repeats") ? "over the run"
-									       : "over a period";
+			   : s->hull ? "no best case"
+				     : "no best case (the run's diodes were nearly ideal)";
+	const char *over = s->hull ? "at any time"
+			   : s->corner && strstr(s->corner, "no source repeats") ? "over the run"
+										 : "over a period";
 	if (p->kind == NL_D)
 		return str(x, "%s: reverse = max v(%s) - v(%s) %s = %s (%s); %s%s", where(x, s), n1,
 			   n0, over, v(x, s->worst, "V"), s->corner, best, simulated);

@@ -81,10 +81,6 @@ PUSH_PULL = ("the run needs more work than allowed",
              "keeps it charging over some 100,000 periods of its 352 us drive; shooting "
              "does not converge through its switching, and plain periods would take hours")
 NO_RUN = {
-    "learning_ngspice/circuits/10_timer_555/01_timer_555_astavel_monostavel_pwm.cir":
-        ("the run needs more work than allowed", "three 555 timers (behavioural comparators "
-         "and switches, all simulated now) whose common steady state needs more than a "
-         "file's simulation allowance"),
     "xyce/Netlists/Certification_Tests/BUG_456/push_pull_xyce_baseline.cir": PUSH_PULL,
     "xyce/Netlists/TIA/TRAP/push_pull_xyce_baseline.cir": PUSH_PULL,
 }

@@ -890,10 +890,56 @@ static void test_proof_basis(void **state)
 	checked_free(&c);
 }
 
+/* The supply range (hull.h) where the solver gives out (an allowance of
+ * one Newton iteration here): a switch and diodes charge C1 from a 12 V
+ * rail, toleranced 10 %. No node of a network of resistors, diodes and
+ * switches fed from sources leaves the range of those sources (the
+ * "no-gain" property of networks of monotone passive resistors, Wolaver,
+ * IEEE Trans. Circuit Theory 17(3), 1970; from memory), and capacitors
+ * to ground do not change that: C1 and D1 get 13.2 V, proven. A
+ * capacitor returned to the clock instead can pump its node past the
+ * rail (a charge pump), and one between two free nodes can too: those
+ * stay without a number. */
+static void test_supply_range(void **state)
+{
+	(void)state;
+	static const char *const net =
+		"s\nVCC vcc 0 DC 12\nVCK ck 0 PULSE(0 5 0 1u 1u 0.5m 1m)\nS1 x 0 ck 0 swm\n"
+		".model swm sw(vt=2.5 ron=10 roff=1g)\nR1 vcc a 10k\nD1 a x dm\n%s\nD2 x y dm\n"
+		"C2 y 0 100n\nR2 y 0 100k\n.model dm d(is=1e-14)\n";
+	const struct simbound_limits lim = {4, 1, 1};
+	struct checked c;
+	char text[600];
+	snprintf(text, sizeof text, net, "C1 x 0 1u");
+	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
+	const struct stress *c1 = stress_of(&c, "C1", SQ_VOLTAGE);
+	const struct stress *d1 = stress_of(&c, "D1", SQ_REVERSE);
+	assert_true(c1 && d1 && c1->bounded && d1->bounded);
+	assert_int_equal(c1->basis, SB_ANALYSIS);
+	assert_true(c1->hull && d1->hull);
+	assert_float_equal(c1->worst, 13.2, 1e-9);
+	assert_float_equal(d1->worst, 13.2, 1e-9);
+	assert_true(isnan(c1->best));
+	assert_false(fired(&c, "stress-unsettled", "C1"));
+	checked_free(&c);
+	snprintf(text, sizeof text, net, "C1 x ck 1u");
+	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
+	c1 = stress_of(&c, "C1", SQ_VOLTAGE);
+	assert_true(c1 && !c1->bounded && !c1->hull);
+	assert_true(fired(&c, "stress-unsettled", "C1"));
+	assert_false(stress_of(&c, "C2", SQ_VOLTAGE)->bounded);
+	checked_free(&c);
+	snprintf(text, sizeof text, net, "C1 x 0 1u\nC3 x y 1n");
+	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
+	assert_false(stress_of(&c, "C1", SQ_VOLTAGE)->bounded);
+	checked_free(&c);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(test_each_rule),
+		cmocka_unit_test(test_supply_range),
 		cmocka_unit_test(test_clamp_stresses),
 		cmocka_unit_test(test_rating_precedence),
 		cmocka_unit_test(test_current_ratings),
