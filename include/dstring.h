@@ -19,6 +19,7 @@ struct dstring {
 	uint32_t *anode;   /* per string: the first member's anode node */
 	uint32_t *cathode; /* per string: the last member's cathode node */
 	uint32_t *count;   /* per string: its members */
+	double *sum;       /* per string: scratch for dstring_widen */
 	size_t n;          /* strings */
 };
 
@@ -30,7 +31,11 @@ int dstring_find(const struct nl_circuit *c, struct arena *ar, struct dstring *o
 /* For each member diode k (vmin[k]: its lowest anode-to-cathode voltage
  * over a run): vmin[k] lowered to minus the string's largest reverse
  * voltage over that run, as the nodes' extremes bound it (nmin, nmax per
- * node), capped at the member's own breakdown voltage (BV, plus 1 %). */
+ * node) and as the members' own largest reverse voltages, summed, bound
+ * it (a string that only ever conducts, an LED string, is then widened
+ * by nothing: its ends' extremes, taken at different instants, would
+ * say it blocks its ripple), capped at the member's own breakdown
+ * voltage (BV, plus 1 %). */
 void dstring_widen(const struct nl_circuit *c, const struct dstring *d, const double *nmin,
 		   const double *nmax, double *vmin);
 

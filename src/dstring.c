@@ -64,7 +64,8 @@ int dstring_find(const struct nl_circuit *c, struct arena *ar, struct dstring *o
 	out->anode = arena_alloc(ar, (np + 1) * sizeof *out->anode);
 	out->cathode = arena_alloc(ar, (np + 1) * sizeof *out->cathode);
 	out->count = arena_alloc(ar, (np + 1) * sizeof *out->count);
-	if (!out->of || !out->anode || !out->cathode || !out->count)
+	out->sum = arena_alloc(ar, (np + 1) * sizeof *out->sum);
+	if (!out->of || !out->anode || !out->cathode || !out->count || !out->sum)
 		return 0;
 	for (size_t i = 0; i < np; i++)
 		out->of[i] = NL_NONE;
@@ -90,11 +91,16 @@ void dstring_widen(const struct nl_circuit *c, const struct dstring *d, const do
 {
 	if (d->n == 0)
 		return;
+	for (size_t s = 0; s < d->n; s++)
+		d->sum[s] = 0;
+	for (size_t k = 0; k < nl_part_count(c); k++)
+		if (d->of[k] != NL_NONE)
+			d->sum[d->of[k]] += isfinite(vmin[k]) ? -vmin[k] : INFINITY;
 	for (size_t k = 0; k < nl_part_count(c); k++) {
 		uint32_t s = d->of[k];
 		if (s == NL_NONE || !isfinite(vmin[k]))
 			continue;
-		double whole = nmax[d->cathode[s]] - nmin[d->anode[s]];
+		double whole = fmin(nmax[d->cathode[s]] - nmin[d->anode[s]], d->sum[s]);
 		double bv = dmodel_given(nl_part_at(c, k)->model, DM_BV);
 		if (bv > 0)
 			whole = fmin(whole, bv * DSTRING_BV_OVER);

@@ -54,6 +54,15 @@ static void test_three_in_series(void **state)
 	assert_float_equal(vmin[d1], -2200, 1e-9);
 	assert_float_equal(vmin[d2], -2500, 1e-9); /* never raised */
 	assert_float_equal(vmin[d3], -1010, 1e-9);
+	/* a string that only conducts (an LED string from a rippling rail):
+	   its ends' extremes, at different instants, say 0.5 V of reverse,
+	   but each member stays forward (0.6 V and more) all the time */
+	nmin[node_id(c, "in")] = 9.0, nmax[node_id(c, "in")] = 10;
+	nmin[node_id(c, "out")] = 7.5, nmax[node_id(c, "out")] = 9.5;
+	vmin[d1] = 0.6, vmin[d2] = 0.7, vmin[d3] = 0.6;
+	dstring_widen(c, &d, nmin, nmax, vmin);
+	assert_float_equal(vmin[d1], 0.6, 1e-12);
+	assert_float_equal(vmin[d2], 0.7, 1e-12);
 	free(nmin), free(nmax), free(vmin);
 	run_free(&r);
 }
