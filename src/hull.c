@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "dmodel.h"
+#include "expr.h"
 
 struct hx {
 	const struct audit *a;
@@ -75,6 +76,40 @@ static int source_range(const struct hx *x, uint32_t i, double *lo, double *hi)
 	return isfinite(*lo) && isfinite(*hi);
 }
 
+/* The values a behavioural expression can take when each is a number
+ * written in it: a choice between such values (a comparator's `c ? 5 :
+ * 0`), nested or negated; 0 for anything else (a probe, arithmetic). */
+static int levels(const struct expr *e, unsigned depth, double *lo, double *hi)
+{
+	if (!e || depth > 32)
+		return 0;
+	switch (e->op) {
+	case EXPR_NUM:
+		*lo = fmin(*lo, e->num), *hi = fmax(*hi, e->num);
+		return isfinite(e->num);
+	case EXPR_NEG: {
+		double l = INFINITY, h = -INFINITY;
+		if (!levels(e->args[0], depth + 1, &l, &h))
+			return 0;
+		*lo = fmin(*lo, -h), *hi = fmax(*hi, -l);
+		return 1;
+	}
+	case EXPR_COND:
+		return levels(e->args[1], depth + 1, lo, hi) && levels(e->args[2], depth + 1, lo, hi);
+	default:
+		return 0;
+	}
+}
+
+/* A behavioural voltage source whose output takes only written values
+ * (a macro-model's comparator or latch): its range, pin 0 over pin 1. */
+static int behav_range(const struct nl_part *pt, double *lo, double *hi)
+{
+	const struct nl_behav *b = pt->ext ? pt->ext->behav : NULL;
+	*lo = INFINITY, *hi = -INFINITY;
+	return b && !b->current && !b->resistance && levels(b->e, 0, lo, hi);
+}
+
 static int is_steady(const struct nl_part *pt)
 {
 	const struct nl_source *s = pt->ext ? pt->ext->src : NULL;
@@ -95,16 +130,20 @@ static void hold(struct hx *x, uint32_t *queue)
 		for (uint32_t j = 0; j < n; j++) {
 			const struct nl_part *pt = nl_part_at(x->c, adj[j]);
 			double vlo, vhi;
-			if (pt->kind != NL_V || pt->npins != 2 || !source_range(x, adj[j], &vlo, &vhi))
-				continue;
 			const uint32_t *q = nl_pins(x->c, pt);
+			int src = pt->kind == NL_V && pt->npins == 2 && source_range(x, adj[j], &vlo, &vhi);
+			/* a behavioural output from its reference pin: whatever
+			   it reads, its value is one of the numbers written in it */
+			int beh = !src && pt->npins >= 2 && q[1] == m && behav_range(pt, &vlo, &vhi);
+			if (!src && !beh)
+				continue;
 			int up = q[1] == m; /* v(q0) - v(q1) = value */
 			uint32_t o = up ? q[0] : q[1];
 			if (!isnan(x->lo[o]))
 				continue;
 			x->lo[o] = up ? x->lo[m] + vlo : x->lo[m] - vhi;
 			x->hi[o] = up ? x->hi[m] + vhi : x->hi[m] - vlo;
-			x->steady[o] = x->steady[m] && is_steady(pt);
+			x->steady[o] = x->steady[m] && src && is_steady(pt);
 			queue[tail++] = o;
 		}
 	}

@@ -933,6 +933,19 @@ static void test_supply_range(void **state)
 	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
 	assert_false(stress_of(&c, "C1", SQ_VOLTAGE)->bounded);
 	checked_free(&c);
+	/* a comparator written as a behavioural source takes only the values
+	   written in it, 0 V or 5 V: the RC after it (a diode to ground on
+	   its capacitor) stays within them; one
+	   that computes its output (twice the clock) is not bounded so */
+	snprintf(text, sizeof text, net, "C1 x 0 1u\nB1 n 0 V={V(ck) > 2.5 ? 5 : 0}\n"
+		 "R3 n f 1k\nC4 f 0 100n\nDC4 0 f dm\nB2 n2 0 V={2*V(ck)}\nR4 n2 f2 1k\n"
+		 "C5 f2 0 100n\nDC5 0 f2 dm");
+	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
+	const struct stress *c4 = stress_of(&c, "C4", SQ_VOLTAGE);
+	assert_true(c4 && c4->bounded && c4->hull);
+	assert_float_equal(c4->worst, 5.0, 1e-9);
+	assert_false(stress_of(&c, "C5", SQ_VOLTAGE)->bounded);
+	checked_free(&c);
 }
 
 int main(void)
