@@ -254,6 +254,25 @@ static int node_range(const struct hx *x, uint32_t n, double *lo, double *hi)
 	return !x->bad[r];
 }
 
+/* A part kept as opaque with its connections not known (a code-model
+ * instance) could touch any node of its subcircuit instance, or of the
+ * whole circuit at the top level: every island a part of that instance
+ * touches is not covered, as the solver treats it (simbound.c). */
+static void unknown_pins(struct hx *x, const char *path)
+{
+	const char *dot = strrchr(path, '.');
+	size_t n = dot ? (size_t)(dot - path) + 1 : 0;
+	for (size_t i = 0; i < nl_part_count(x->c); i++) {
+		const struct nl_part *pt = nl_part_at(x->c, i);
+		const uint32_t *q = nl_pins(x->c, pt);
+		if (strncmp(pt->path, path, n) != 0)
+			continue;
+		for (uint32_t k = 0; k < pt->npins; k++)
+			if (is_free(x, q[k]))
+				x->bad[root(x->up, q[k])] = 1;
+	}
+}
+
 static int setup(struct hx *x, struct arena *ar)
 {
 	size_t nn = nl_node_count(x->c), np = nl_part_count(x->c);
@@ -284,6 +303,11 @@ static int setup(struct hx *x, struct arena *ar)
 	}
 	for (size_t i = 0; i < np; i++)
 		touch(x, (uint32_t)i);
+	for (size_t i = 0; i < np; i++) {
+		const struct nl_part *pt = nl_part_at(x->c, i);
+		if (pt->kind == NL_OPAQUE && pt->npins == 0)
+			unknown_pins(x, pt->path);
+	}
 	return 1;
 }
 

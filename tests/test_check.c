@@ -933,6 +933,13 @@ static void test_supply_range(void **state)
 	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
 	assert_false(stress_of(&c, "C1", SQ_VOLTAGE)->bounded);
 	checked_free(&c);
+	/* a code-model switch kept opaque, its connections not known, could
+	   tie x to anything: nothing at the top level is covered then */
+	snprintf(text, sizeof text, net, "C1 x 0 1u\na1 ck (x 0) swa\n"
+		 ".model swa aswitch(cntl_off=0 cntl_on=1 r_on=1 r_off=1e12)");
+	check_text_lim(&c, text, "industrial", 0.10, 0, &lim);
+	assert_false(stress_of(&c, "C1", SQ_VOLTAGE)->bounded);
+	checked_free(&c);
 	/* a comparator written as a behavioural source takes only the values
 	   written in it, 0 V or 5 V: the RC after it (a diode to ground on
 	   its capacitor) stays within them; one
