@@ -362,29 +362,31 @@ def simulate(text, subst, ideal, parts, period, tmax, periods, tmp, name, option
     block = [".options rshunt=1e12 " + (options or OPTIONS[0])]
     block.append(".tran %.6g %.12g 0 %.6g uic" % (tmax, t2, tmax))
     block += [".control", "run"]
+    # each measured quantity is a vector of its own, zzq<i>: a name no node of
+    # the families uses (a node named q1 would be overwritten by a vector q1)
     for i, (_, letter, a, b) in enumerate(parts):
         e = vexpr(b, a) if letter == "d" else vexpr(a, b)  # diode: cathode minus anode
         if e is None:
             continue
-        block.append("let q%d = %s" % (i, e))
+        block.append("let zzq%d = %s" % (i, e))
         tm = (periods // 2) * period
         tw = t2 - max(1, periods // 8) * period
         for tag, lo, hi in (("m", tm - period, tm), ("1", t0, t1), ("2", t1, t2), ("w", tw, t2),
                             ("p", 0, t2)):
-            block.append("meas tran q%d_hi%s max q%d from=%.12g to=%.12g" % (i, tag, i, lo, hi))
-            block.append("meas tran q%d_lo%s min q%d from=%.12g to=%.12g" % (i, tag, i, lo, hi))
+            block.append("meas tran zzq%d_hi%s max zzq%d from=%.12g to=%.12g" % (i, tag, i, lo, hi))
+            block.append("meas tran zzq%d_lo%s min zzq%d from=%.12g to=%.12g" % (i, tag, i, lo, hi))
     block += [".endc", ".end"]
     out = run_ngspice("\n".join(lines + block) + "\n", tmp, name)
     if re.search(r"(?i)timestep too small|simulation\(s\) aborted", out):
         return None, out
     got = {m.group(1): float(m.group(2))
-           for m in re.finditer(r"(?m)^(q\d+_(?:hi|lo)[m12wp])\s*=\s*(\S+)", out)}
+           for m in re.finditer(r"(?m)^(zzq\d+_(?:hi|lo)[m12wp])\s*=\s*(\S+)", out)}
     res = {}
     for i, (path, letter, a, b) in enumerate(parts):
         if vexpr(a, b) is None:
             res[path] = {k: 0.0 for k in WINDOWS}
             continue
-        keys = ["q%d_%s" % (i, k) for k in WINDOWS]
+        keys = ["zzq%d_%s" % (i, k) for k in WINDOWS]
         if not all(k in got for k in keys):
             return None, out
         res[path] = {k.split("_")[1]: got[k] for k in keys}
