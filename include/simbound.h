@@ -36,11 +36,16 @@
 #define SIMBOUND_FLOW_WORK 500000ul
 #define SIMBOUND_FLOW_TOTAL 3000000ul
 
+/* A file's simulation allowance, Newton iterations times unknowns over all
+ * its runs (docs/check.md, "Proven and simulated"): about ten seconds for a
+ * small circuit. */
+#define SIMBOUND_TOTAL_WORK 150000000ul
+
 struct simbound_limits {
 	unsigned max_periods;     /* per run; 0: 4000 */
 	unsigned long max_work;   /* Newton iterations per run; 0: 10,000,000 */
 	unsigned long total_work; /* per file, all runs, in Newton iterations
-				     times unknowns; 0: 60,000,000; a
+				     times unknowns; 0: SIMBOUND_TOTAL_WORK; a
 				     fifth more for each corner past five */
 };
 

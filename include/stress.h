@@ -79,7 +79,7 @@ enum stress_drain {
  * member, so the stack's voltage falls no slower than exp(-t / (R (Ceq +
  * Cpar))). */
 struct stress_stack {
-	int32_t structure;
+	int32_t structure;      /* -1: a pair outside any structure's stack */
 	uint32_t top, bottom;   /* nodes */
 	uint32_t nseg;          /* capacitor positions in series (parallel parts merged) */
 	uint32_t first;         /* a part on the top position: where findings point */

@@ -374,6 +374,97 @@ static void through_output(struct work *w)
 	}
 }
 
+/* Node m touches only capacitors and sources: once the sources are off,
+ * only capacitors hold it (a diode or a winding there could carry charge
+ * away or hold it back, so such a node is not taken). */
+static int floating(const struct work *w, uint32_t m)
+{
+	uint32_t k;
+	const uint32_t *adj = nl_adjacency(w->c, m, &k);
+	if (m == NL_GROUND)
+		return 0;
+	for (uint32_t i = 0; i < k; i++) {
+		uint8_t kind = nl_part_at(w->c, adj[i])->kind;
+		if (kind != NL_C && kind != NL_V && kind != NL_I)
+			return 0;
+	}
+	return 1;
+}
+
+/* Capacitor s (no path of its own, no structure's stack) in series with
+ * another through a node that only capacitors hold (a full-wave
+ * doubler's midpoint on a source that is gone): the pair drains as a
+ * two-capacitor stack through the resistance across it. Appended to
+ * stacks; 0 when there is no such pair. */
+static int pair_stack(struct work *w, struct stress *s, struct stress_stack *st,
+		      struct stress **partner)
+{
+	const struct nl_part *p = nl_part_at(w->c, s->part);
+	const uint32_t *q = nl_pins(w->c, p);
+	for (int e = 0; e < 2; e++) {
+		uint32_t mid = q[e], top = q[!e], k;
+		if (!floating(w, mid))
+			continue;
+		const uint32_t *adj = nl_adjacency(w->c, mid, &k);
+		for (uint32_t i = 0; i < k; i++) {
+			const struct nl_part *o = nl_part_at(w->c, adj[i]);
+			struct stress *so = cap_stress(w, adj[i]);
+			uint32_t bot = other_pin(w->c, o, mid);
+			if (o == p || o->kind != NL_C || bot == top || bot == mid || !so || !so->bounded)
+				continue;
+			double r = between(w, top, bot);
+			if (!isfinite(r))
+				continue;
+			double c1 = cap_f(p), c2 = cap_f(o);
+			memset(st, 0, sizeof *st);
+			st->structure = -1;
+			st->top = top;
+			st->bottom = bot;
+			st->nseg = 2;
+			st->first = s->part;
+			st->ceq_f = c1 * c2 / (c1 + c2);
+			st->v = s->worst + so->worst;
+			st->r = r;
+			st->t = st->v > w->hz ? r * st->ceq_f * log(st->v / w->hz) : 0;
+			*partner = so;
+			return 1;
+		}
+	}
+	return 0;
+}
+
+/* A member of stack idx that has no path of its own drains with it. */
+static void join_pair(struct work *w, struct stress *s, const struct stress_stack *st, int32_t idx)
+{
+	if (s->stack >= 0 || s->drain != SD_NONE)
+		return;
+	s->stack = idx;
+	if (!(s->worst > w->hz))
+		return;
+	double c = cap_f(nl_part_at(w->c, s->part)), tau = st->r * st->ceq_f;
+	s->drain = SD_STACK;
+	s->discharge_r = tau / c;
+	s->discharge_s = discharge_stack_time(c, s->worst, st->ceq_f, st->v, tau, w->hz);
+}
+
+/* Every capacitor left with no path: its pair stack, where it has one. */
+static void pair_stacks(struct work *w, struct stress_stack *stacks, size_t cap)
+{
+	for (size_t i = 0; i < w->sr->n && w->sr->nstacks < cap; i++) {
+		struct stress *s = &w->sr->s[i], *partner = NULL;
+		if (s->drain != SD_NONE || s->stack >= 0 || !(s->worst > w->hz) || !s->bounded ||
+		    nl_part_at(w->c, s->part)->kind != NL_C || !stress_qty_is_voltage(s->qty))
+			continue;
+		struct stress_stack *st = &stacks[w->sr->nstacks];
+		if (!pair_stack(w, s, st, &partner))
+			continue;
+		int32_t idx = (int32_t)w->sr->nstacks++;
+		join_pair(w, s, st, idx);
+		join_pair(w, partner, st, idx);
+		w->sr->max_voltage = fmax(w->sr->max_voltage, st->v);
+	}
+}
+
 int discharge_run(const struct audit *a, const struct profile *p, struct arena *ar,
 		  struct stress_result *sr)
 {
@@ -388,7 +479,8 @@ int discharge_run(const struct audit *a, const struct profile *p, struct arena *
 	w->index = arena_alloc(ar, nn * sizeof *w->index);
 	w->g = arena_alloc(ar, m * m * sizeof *w->g);
 	w->rhs = arena_alloc(ar, m * sizeof *w->rhs);
-	struct stress_stack *stacks = arena_zalloc(ar, (a->topo.n + 1) * sizeof *stacks);
+	size_t cap = a->topo.n + 1 + DISCHARGE_MAX_PAIRS;
+	struct stress_stack *stacks = arena_zalloc(ar, cap * sizeof *stacks);
 	if (!w->index || !w->g || !w->rhs || !stacks)
 		return 0;
 	memset(w->index, 0xff, nn * sizeof *w->index);
@@ -398,6 +490,7 @@ int discharge_run(const struct audit *a, const struct profile *p, struct arena *
 	for (size_t i = 0; i < a->topo.n; i++)
 		if (!stack_of(w, ar, i, stacks))
 			return 0;
+	pair_stacks(w, stacks, cap);
 	through_output(w);
 	return 1;
 }

@@ -15,8 +15,14 @@
  * whose network is bigger counts as having no path (the safe side). */
 #define DISCHARGE_MAX_NODES 200
 
+/* Most two-capacitor stacks found outside the structures' own (a pair
+ * through a node only capacitors hold), per file. */
+#define DISCHARGE_MAX_PAIRS 64
+
 /* Sets discharge_r, discharge_s and drain of every bounded capacitor
- * stress in sr, finds the structures' series stacks (sr->stacks) and
+ * stress in sr, finds the structures' series stacks (sr->stacks), then
+ * the pairs in series through a node that only capacitors hold (structure
+ * -1 in sr->stacks) for a capacitor still without a path, and
  * raises sr->max_voltage to the highest stack voltage. Run after the
  * stresses have their final worst values (after simbound). Allocates in
  * ar; returns 0 on out-of-memory. */

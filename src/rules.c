@@ -481,15 +481,20 @@ static void stack_charge(struct ctx *x, const struct stress_stack *st)
 	f->subject = top;
 	f->worst = st->v;
 	f->limit = hz;
-	const char *held = str(x, "the stack of %u capacitors in series from %s to %s (output of S%d) holds %s (%s, %s)",
-			       st->nseg, top, bot, st->structure + 1, v(x, st->v, "V"),
+	const char *where = st->structure >= 0 ? str(x, " (output of S%d)", st->structure + 1) : "";
+	const char *held = str(x, "the stack of %u capacitors in series from %s to %s%s holds %s (%s, %s)",
+			       st->nseg, top, bot, where, v(x, st->v, "V"),
 			       v(x, 0.5 * st->ceq_f * st->v * st->v, "J"), v(x, q, "C"));
 	f->message = isfinite(st->r) ? str(x, "%s and takes %s to fall below %s", held, v(x, st->t, "s"), v(x, hz, "V"))
 				     : str(x, "%s and has no discharge path", held);
-	f->computation = str(x, "S%d (%s): Ceq = 1 / sum(1 / C) = %s%s; Vstack = sum of the members' worst = %s; "
+	const char *whose = st->structure >= 0
+				    ? str(x, "S%d (%s)", st->structure + 1,
+					  topo_kind_name(x->a->topo.s[st->structure].kind))
+				    : "two capacitors joined by a node only capacitors hold";
+	f->computation = str(x, "%s: Ceq = 1 / sum(1 / C) = %s%s; Vstack = sum of the members' worst = %s; "
 				"R = %s from %s to %s (resistors only: sources disconnected, capacitors, diodes and "
 				"inductors open); t = R (Ceq + Cpar) ln(Vstack / %s) = %s",
-			     st->structure + 1, topo_kind_name(x->a->topo.s[st->structure].kind), v(x, st->ceq_f, "F"),
+			     whose, v(x, st->ceq_f, "F"),
 			     cpar(x, st), v(x, st->v, "V"), isfinite(st->r) ? v(x, st->r, "ohm") : "none", top, bot,
 			     v(x, hz, "V"), isfinite(st->r) ? v(x, st->t, "s") : "infinite");
 	f->limits = charge_limits(x, hz, tmax);

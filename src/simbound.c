@@ -882,7 +882,7 @@ int simbound_run(const struct audit *a, const struct profile *p,
 	double *imin = arena_alloc(ar, np * sizeof *imin), *imax = arena_alloc(ar, np * sizeof *imax);
 	if (!imin || !imax)
 		return 0;
-	b.total_work = lim && lim->total_work ? lim->total_work : 60000000;
+	b.total_work = lim && lim->total_work ? lim->total_work : SIMBOUND_TOTAL_WORK;
 	/* the allowance is sized for SB_BASE_CORNERS corners; each one more
 	   (the level corners of several toleranced rails) gets its share */
 	if (nc > SB_BASE_CORNERS)
