@@ -397,7 +397,7 @@ static int floating(const struct work *w, uint32_t m)
  * two-capacitor stack through the resistance across it. Appended to
  * stacks; 0 when there is no such pair. */
 static int pair_stack(struct work *w, struct stress *s, struct stress_stack *st,
-		      struct stress **partner)
+		      struct stress **partner, unsigned *tries)
 {
 	const struct nl_part *p = nl_part_at(w->c, s->part);
 	const uint32_t *q = nl_pins(w->c, p);
@@ -406,12 +406,13 @@ static int pair_stack(struct work *w, struct stress *s, struct stress_stack *st,
 		if (!floating(w, mid))
 			continue;
 		const uint32_t *adj = nl_adjacency(w->c, mid, &k);
-		for (uint32_t i = 0; i < k; i++) {
+		for (uint32_t i = 0; i < k && *tries < DISCHARGE_MAX_PAIR_TRIES; i++) {
 			const struct nl_part *o = nl_part_at(w->c, adj[i]);
 			struct stress *so = cap_stress(w, adj[i]);
 			uint32_t bot = other_pin(w->c, o, mid);
 			if (o == p || o->kind != NL_C || bot == top || bot == mid || !so || !so->bounded)
 				continue;
+			++*tries;
 			double r = between(w, top, bot);
 			if (!isfinite(r))
 				continue;
@@ -450,13 +451,14 @@ static void join_pair(struct work *w, struct stress *s, const struct stress_stac
 /* Every capacitor left with no path: its pair stack, where it has one. */
 static void pair_stacks(struct work *w, struct stress_stack *stacks, size_t cap)
 {
+	unsigned tries = 0;
 	for (size_t i = 0; i < w->sr->n && w->sr->nstacks < cap; i++) {
 		struct stress *s = &w->sr->s[i], *partner = NULL;
 		if (s->drain != SD_NONE || s->stack >= 0 || !(s->worst > w->hz) || !s->bounded ||
 		    nl_part_at(w->c, s->part)->kind != NL_C || !stress_qty_is_voltage(s->qty))
 			continue;
 		struct stress_stack *st = &stacks[w->sr->nstacks];
-		if (!pair_stack(w, s, st, &partner))
+		if (!pair_stack(w, s, st, &partner, &tries))
 			continue;
 		int32_t idx = (int32_t)w->sr->nstacks++;
 		join_pair(w, s, st, idx);

@@ -18,6 +18,10 @@
 /* Most two-capacitor stacks found outside the structures' own (a pair
  * through a node only capacitors hold), per file. */
 #define DISCHARGE_MAX_PAIRS 64
+/* ... and the most resistances solved looking for them (each up to
+ * DISCHARGE_MAX_NODES nodes), so that a file of many capacitors without a
+ * path stays linear in its size */
+#define DISCHARGE_MAX_PAIR_TRIES 256
 
 /* Sets discharge_r, discharge_s and drain of every bounded capacitor
  * stress in sr, finds the structures' series stacks (sr->stacks), then
