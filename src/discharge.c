@@ -278,7 +278,22 @@ static int sum_chain(struct work *w, const struct topo_struct *t, const struct c
 	return 1;
 }
 
-/* A member with no path of its own drains with its stack. */
+/* A member of stack st with no path of its own drains with the stack:
+ * through its resistance, the stack's capacitance and what hangs parallel
+ * to it (none for a pair). */
+static void stack_drain(struct work *w, struct stress *s, const struct stress_stack *st)
+{
+	if (!(s->worst > w->hz) || !isfinite(st->r))
+		return;
+	double c = cap_f(nl_part_at(w->c, s->part));
+	double tau = st->r * (st->ceq_f + st->cpar_f);
+	s->drain = SD_STACK;
+	s->discharge_r = tau / c;
+	s->discharge_s = discharge_stack_time(c, s->worst, st->ceq_f, st->v, tau, w->hz);
+}
+
+/* Each member of a structure's stack is marked; one with no path of its own
+ * drains with the stack. */
 static void join_stack(struct work *w, const struct topo_struct *t, const struct chain *ch,
 		       const struct stress_stack *st, int32_t idx)
 {
@@ -287,13 +302,8 @@ static void join_stack(struct work *w, const struct topo_struct *t, const struct
 		if (!s)
 			continue;
 		s->stack = idx;
-		if (s->drain != SD_NONE || !(s->worst > w->hz) || !isfinite(st->r))
-			continue;
-		double c = cap_f(nl_part_at(w->c, s->part));
-		s->drain = SD_STACK;
-		double tau = st->r * (st->ceq_f + st->cpar_f);
-		s->discharge_r = tau / c;
-		s->discharge_s = discharge_stack_time(c, s->worst, st->ceq_f, st->v, tau, w->hz);
+		if (s->drain == SD_NONE)
+			stack_drain(w, s, st);
 	}
 }
 
@@ -440,12 +450,7 @@ static void join_pair(struct work *w, struct stress *s, const struct stress_stac
 	if (s->stack >= 0 || s->drain != SD_NONE)
 		return;
 	s->stack = idx;
-	if (!(s->worst > w->hz))
-		return;
-	double c = cap_f(nl_part_at(w->c, s->part)), tau = st->r * st->ceq_f;
-	s->drain = SD_STACK;
-	s->discharge_r = tau / c;
-	s->discharge_s = discharge_stack_time(c, s->worst, st->ceq_f, st->v, tau, w->hz);
+	stack_drain(w, s, st);
 }
 
 /* Every capacitor left with no path: its pair stack, where it has one. */
