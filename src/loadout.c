@@ -70,6 +70,19 @@ static void corner_unknown(struct stress_output_corner *c, double unl)
 	c->periods = 0;
 }
 
+/* 1 when clamp i's load drains more from its capacitor in a period than
+ * the tolerance of a tight bound (3 % of the level it holds + 0.1 V): its
+ * level then sits that far below the unloaded proof. A lighter load leaves
+ * the proof tight and is not simulated. */
+static int clamp_sags(const struct lx *x, size_t i)
+{
+	const struct topo_struct *s = &x->a->topo.s[i];
+	double level = fabs(unloaded(x->ar, &x->sr->runs[STRESS_CORNER_HIGH], s->output, s->drive));
+	double droop = x->sr->st[i].droop_v;
+	return isfinite(level) && isfinite(droop) &&
+	       droop > level * LOADOUT_LOOSE_REL + LOADOUT_LOOSE_ABS;
+}
+
 /* Marks the loaded structures and gives each a probe. */
 static int mark(struct lx *x)
 {
@@ -83,11 +96,21 @@ static int mark(struct lx *x)
 		const struct topo_struct *s = &t->s[i];
 		struct stress_output *o = &x->sr->st[i].out;
 		x->probe_of[i] = SIZE_MAX;
-		if (!loadout_kind(s->kind) || s->output == NL_NONE || !isfinite(x->sr->st[i].load_r))
+		int clamp = s->kind == TK_CLAMP_FLOOR || s->kind == TK_CLAMP_CEILING;
+		if (!(loadout_kind(s->kind) || (clamp && s->drive != NL_NONE)) ||
+		    s->output == NL_NONE || !isfinite(x->sr->st[i].load_r))
+			continue;
+		if (clamp && !clamp_sags(x, i))
 			continue;
 		o->loaded = 1;
 		o->pos = s->output;
-		o->neg = s->output2 != NL_NONE ? s->output2 : NL_GROUND;
+		o->neg = clamp ? s->drive : s->output2 != NL_NONE ? s->output2 : NL_GROUND;
+		/* a clamp's output is the level it holds, the clamped node less
+		 * the drive, taken positive */
+		if (clamp && unloaded(x->ar, &x->sr->runs[STRESS_CORNER_HIGH], o->pos, o->neg) < 0) {
+			o->pos = s->drive;
+			o->neg = s->output;
+		}
 		corner_unknown(&o->lo, unloaded(x->ar, &x->sr->runs[STRESS_CORNER_LOW_IDEAL], o->pos, o->neg));
 		corner_unknown(&o->hi, unloaded(x->ar, &x->sr->runs[STRESS_CORNER_HIGH], o->pos, o->neg));
 		x->probe_of[i] = x->nprobe;
