@@ -31,6 +31,7 @@ struct lex_ctx {
 	int ended;                /* .end seen: the rest is ignored */
 	int start_token;          /* returned once before anything else */
 	int paren_depth;          /* of '(' in a card, to drop a stray ')' */
+	int comma_pending;        /* the separators before the next word held a comma */
 	int caret_xor;            /* '^' is exclusive or (dialect.h) */
 	struct expr *expr_result; /* parse_expr_text's result */
 	struct arena *scratch;
@@ -61,6 +62,7 @@ struct lex_text {
 	const char *s;
 	uint32_t n;
 	int kind; /* enum deck_card_kind, for card heads */
+	int comma; /* a word whose separators before it held a comma */
 };
 
 /* Fields of a card while it is being parsed: a linked list in scratch. */

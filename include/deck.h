@@ -49,6 +49,7 @@ struct deck_field {
 	struct deck_field *args;    /* FIELD_CALL: array of nargs */
 	uint32_t nargs;
 	struct deck_field *next;    /* list link while parsing */
+	uint8_t comma;              /* a comma stood before it ("max(a, -1)") */
 };
 
 struct deck_card {

@@ -72,6 +72,7 @@ waiver check
 check check
 simbound check
 dstring check
+cstring check
 hull check
 surge check
 loadout check

@@ -309,7 +309,9 @@ static int put_expr(struct text *t, const struct expr *e, unsigned depth)
 }
 
 /* The reader splits "min(5,v(a)*2)" into 5, v(a) and "*2": arguments are
- * joined by commas except where an operator already joins them. */
+ * joined by commas where one was written, and otherwise except where an
+ * operator already joins them ("max(a, -12)" is two arguments, "a -12"
+ * one). */
 static int render(struct text *t, const struct deck_field *f, unsigned depth)
 {
 	if (depth <= BEHAV_MAX_DEPTH && f->kind == FIELD_EXPR)
@@ -327,7 +329,8 @@ static int render(struct text *t, const struct deck_field *f, unsigned depth)
 		char first = a->kind == FIELD_ATOM || a->kind == FIELD_CALL ? a->text[0]
 			     : a->kind == FIELD_EXPR		       ? '('
 								       : 0;
-		if (i > 0 && !is_op_char(t->buf[t->n - 1]) && !is_op_char(first) && !put(t, ",", 1))
+		int sep = a->comma || (!is_op_char(t->buf[t->n - 1]) && !is_op_char(first));
+		if (i > 0 && sep && !put(t, ",", 1))
 			return 0;
 		if (!render(t, a, depth + 1))
 			return 0;

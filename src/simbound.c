@@ -18,6 +18,7 @@
 #include <stdio.h>
 #include <string.h>
 
+#include "cstring.h"
 #include "dstring.h"
 #include "simrun.h"
 
@@ -51,6 +52,7 @@ struct sb {
 				      scales, rail levels */
 	double *vmin, *vmax;
 	struct dstring ds;       /* ungraded diode strings */
+	struct cstring cs;       /* ungraded capacitor strings */
 	double *nmin, *nmax;     /* a run's node extremes, when there are any */
 	unsigned long work, total_work; /* Newton iterations times unknowns */
 	unsigned long run_work;  /* Newton iterations allowed in one run */
@@ -372,8 +374,10 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 				return 0;
 			continue;
 		}
-		if (b->nmin)
+		if (b->nmin) {
 			dstring_widen(c, &b->ds, b->nmin, b->nmax, b->vmin);
+			cstring_widen(c, &b->cs, b->nmin, b->nmax, b->vmin, b->vmax);
+		}
 		if (!real) {
 			ideal_ok = 1;
 			memcpy(imin, b->vmin, np * sizeof *imin);
@@ -628,9 +632,9 @@ static int alloc_all(struct sb *b)
 	b->flow = arena_alloc(b->ar, np * sizeof *b->flow);
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
-	if (!dstring_find(c, b->ar, &b->ds))
+	if (!dstring_find(c, b->ar, &b->ds) || !cstring_find(c, b->ar, &b->cs))
 		return 0;
-	if (b->ds.n) {
+	if (b->ds.n || b->cs.n) {
 		b->nmin = arena_alloc(b->ar, nn * sizeof *b->nmin);
 		b->nmax = arena_alloc(b->ar, nn * sizeof *b->nmax);
 		if (!b->nmin || !b->nmax)
@@ -708,9 +712,15 @@ static void tighten(struct sb *b, struct stress *s, int unseen)
 static const char *string_corner(struct sb *b, uint32_t k, const char *corner)
 {
 	uint32_t s = b->ds.n ? b->ds.of[k] : NL_NONE;
+	const char *cnote = cstring_note(b->a->er.circuit, &b->cs, k, b->ar);
+	char buf[1200];
+	if (cnote) {
+		snprintf(buf, sizeof buf, "%.700s; %s", corner, cnote);
+		const char *out = arena_strdup(b->ar, buf);
+		return out ? out : corner;
+	}
 	if (s == NL_NONE)
 		return corner;
-	char buf[1200];
 	snprintf(buf, sizeof buf,
 		 "%.900s; one of %u diodes in series with nothing at their joints: leakage and "
 		 "junction capacitance set their sharing, so each may take the string's whole "
@@ -749,7 +759,8 @@ static void fill(struct sb *b)
 		s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? x->best[k] : x->worst[k];
 		s->rev_min = x->rev_min[k];
 		s->corner = string_corner(b, k, x->corner[k]);
-		if (b->ds.n && b->ds.of[k] != NL_NONE) /* its share may be nothing */
+		if ((b->ds.n && b->ds.of[k] != NL_NONE) || /* its share may be nothing */
+		    (b->cs.n && b->cs.of[k] != NL_NONE))
 			s->best = NAN;
 		const struct nl_part *pt = nl_part_at(c, k);
 		if (pt->kind == NL_C)

@@ -10,6 +10,7 @@
  *  - stored energy E = C V^2 / 2 (the discharge is discharge.c's). */
 #include "stress.h"
 
+#include "cstring.h"
 #include "dmodel.h"
 #include "annot.h"
 #include "proof.h"
@@ -70,6 +71,7 @@ struct ctx {
 	uint32_t *struct_of;     /* part -> structure index or UINT32_MAX */
 	const struct topo_part **tpart_of; /* per part, NULL outside structures */
 	double *vworst;          /* per part: its worst |V|, NaN when unknown */
+	struct cstring cs;       /* ungraded capacitor strings (cstring.h) */
 	struct stress_struct *fig; /* the structure being figured */
 };
 
@@ -181,13 +183,12 @@ static int skip_islands(struct ctx *x)
 	return 1;
 }
 
-/* v(p0) - v(p1) extremes at corner k; 0 when a node is not settled. */
-static int across(const struct ctx *x, int k, const struct nl_part *p,
-		  double *lo, double *hi)
+/* v(n0) - v(n1) extremes at corner k; 0 when a node is not settled. */
+static int across_nodes(const struct ctx *x, int k, uint32_t n0, uint32_t n1,
+			double *lo, double *hi)
 {
-	const uint32_t *q = nl_pins(x->a->er.circuit, p);
 	const struct prop_result *r = &x->runs[k];
-	const struct prop_node *a = &r->nodes[q[0]], *b = &r->nodes[q[1]];
+	const struct prop_node *a = &r->nodes[n0], *b = &r->nodes[n1];
 	if (a->state != PS_RESOLVED || b->state != PS_RESOLVED || a->conflict || b->conflict)
 		return 0;
 	const struct form *d = form_lin(x->ar, 1, a->f, -1, b->f);
@@ -196,6 +197,43 @@ static int across(const struct ctx *x, int k, const struct nl_part *p,
 	int exact;
 	form_range(&r->fc, d, lo, hi, &exact);
 	return 1;
+}
+
+static int across(const struct ctx *x, int k, const struct nl_part *p,
+		  double *lo, double *hi)
+{
+	const uint32_t *q = nl_pins(x->a->er.circuit, p);
+	return across_nodes(x, k, q[0], q[1], lo, hi);
+}
+
+/* A member of an ungraded capacitor string (cstring.h) is bounded by the
+ * whole string: its worst is the string's, its best case not shown (its
+ * share of the DC may be nothing), and the corner says why. */
+static void string_member(struct ctx *x, uint32_t i, struct stress *s)
+{
+	uint32_t k = x->cs.n ? x->cs.of[i] : NL_NONE;
+	if (k == NL_NONE || !s->bounded)
+		return;
+	for (int j = 0; j < NCORNER; j++) {
+		double lo, hi;
+		if (!across_nodes(x, j, x->cs.end0[k], x->cs.end1[k], &lo, &hi)) {
+			s->bounded = 0;
+			s->best = s->worst = s->rev_min = NAN;
+			s->basis = SB_NONE;
+			return;
+		}
+		if (fmax(hi, -lo) > s->worst) {
+			s->worst = fmax(hi, -lo);
+			s->corner = corner_names[j];
+		}
+	}
+	const char *note = cstring_note(x->a->er.circuit, &x->cs, i, x->ar);
+	char buf[600];
+	snprintf(buf, sizeof buf, "%s; %s", s->corner ? s->corner : "?", note ? note : "");
+	const char *corner = arena_strdup(x->ar, buf);
+	s->corner = corner ? corner : s->corner;
+	s->best = NAN;
+	s->analytic = s->worst;
 }
 
 static void set_role(const struct ctx *x, uint32_t part, struct stress *s)
@@ -242,6 +280,8 @@ static void part_stress(struct ctx *x, uint32_t i, struct stress *s)
 	}
 	s->basis = s->bounded ? SB_ANALYSIS : SB_NONE;
 	s->analytic = s->worst;
+	if (p->kind == NL_C)
+		string_member(x, i, s);
 }
 
 static const char *const basis_names[SB_COUNT] = {"proven", "simulated", "none", "estimate"};
@@ -736,7 +776,7 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 	x.ar = ar;
 	x.r = r;
 	x.p = p;
-	if (!membership(&x) || !skip_islands(&x))
+	if (!membership(&x) || !skip_islands(&x) || !cstring_find(a->er.circuit, ar, &x.cs))
 		return 0;
 	/* the nominal corner is the audit's own run (the same sources, ideal
 	   diodes, nothing left unsettled) */

@@ -614,12 +614,11 @@ _LOOSE_FILES = {
         "overshoots to 17.4 V and its diode keeps it there (ngspice 12.6 V; 12.7 V with "
         "those steps cut where the diode turns off, tried and not kept)"),
     "f01_b26_bridge_series_electrolytics_unequal_no_balancing.cir": (
-        ("ca",),
-        "two reservoir electrolytics in series with nothing at their joint: from zero they "
-        "split inversely to capacitance (ngspice: 98 V on the 220 uF, 217 V on the 100 uF), "
-        "but leakage sets the split once they have sat charged, and the solver's run, which "
-        "settles by a different path, ends with 230 V on the larger one: sound against "
-        "ngspice's split, not a share a design fixes"),
+        ("ca", "cb"),
+        "two reservoir electrolytics in series with nothing at their joint (docs/check.md, "
+        "\"Ungraded capacitor strings\"): from zero they split inversely to capacitance "
+        "(ngspice: 98 V on the 220 uF, 217 V on the 100 uF), but leakage divides their DC "
+        "once they have sat charged, so each is bounded by the pair's whole 315.8 V"),
     "f03_b26_doubler_ungraded_series_pair_unequal_cjo.cir": (
         ("da", "db"),
         "two diodes in series with nothing at their joint (docs/check.md, \"Ungraded diode "
