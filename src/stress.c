@@ -429,6 +429,39 @@ static int push(struct ctx *x, struct stress_result *out, size_t *cap,
 /* Capacitors and diodes left out so far (not in a structure, not
  * bounded) that share an island with a diode: they are part of a
  * diode-capacitor network too and get a stress of their own. */
+/* Islands joined by coupled windings (K) share their diodes: a gate
+ * transformer's primary blocking capacitor sits in the same network as the
+ * diode on its secondary, though no wire joins them. Repeated until no
+ * island changes, at most once per coupling (a chain of windings). */
+static void coupled_islands(const struct nl_circuit *c, const uint32_t *island,
+			    unsigned char *has_d)
+{
+	size_t np = nl_part_count(c), nk = 0;
+	for (size_t i = 0; i < np; i++)
+		nk += nl_part_at(c, i)->kind == NL_K;
+	int again = nk > 0;
+	for (size_t pass = 0; again && pass <= nk; pass++) {
+		again = 0;
+		for (size_t i = 0; i < np; i++) {
+			const struct nl_part *k = nl_part_at(c, i);
+			if (k->kind != NL_K || !k->ext || !k->ext->coupled_part)
+				continue;
+			int any = 0;
+			for (uint32_t j = 0; j < k->ext->ncoupled; j++) {
+				uint32_t l = k->ext->coupled_part[j];
+				any |= l != NL_NONE && island[l] != NL_NONE && has_d[island[l]];
+			}
+			for (uint32_t j = 0; any && j < k->ext->ncoupled; j++) {
+				uint32_t l = k->ext->coupled_part[j];
+				if (l != NL_NONE && island[l] != NL_NONE && !has_d[island[l]]) {
+					has_d[island[l]] = 1;
+					again = 1;
+				}
+			}
+		}
+	}
+}
+
 static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *cap,
 			    const uint32_t *island, unsigned char *has_d)
 {
@@ -442,6 +475,7 @@ static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *ca
 	for (size_t i = 0; i < np; i++)
 		if (nl_part_at(c, i)->kind == NL_D && island[i] != NL_NONE)
 			has_d[island[i]] = 1;
+	coupled_islands(c, island, has_d);
 	for (uint32_t i = 0; i < np; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
 		if ((pt->kind != NL_C && pt->kind != NL_D) || listed[i] ||
