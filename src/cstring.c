@@ -51,6 +51,25 @@ static uint32_t reach(const struct nl_circuit *c, uint32_t k, uint32_t j, uint32
 	return j;
 }
 
+#define CSTRING_RING (NL_NONE - 1) /* a member of a ring, while finding */
+
+/* The members of string s reached from capacitor k through node j marked
+ * as a ring's (reach's walk again, over what it marked). */
+static void release(const struct nl_circuit *c, uint32_t k, uint32_t j, uint32_t s,
+		    struct cstring *out)
+{
+	while (joint(c, j)) {
+		uint32_t n;
+		const uint32_t *adj = nl_adjacency(c, j, &n);
+		uint32_t nx = adj[0] == k ? adj[1] : adj[0];
+		if (out->of[nx] != s)
+			return;
+		out->of[nx] = CSTRING_RING;
+		j = other(c, nx, j);
+		k = nx;
+	}
+}
+
 int cstring_find(const struct nl_circuit *c, struct arena *ar, struct cstring *out)
 {
 	size_t np = nl_part_count(c), n = 0;
@@ -76,16 +95,20 @@ int cstring_find(const struct nl_circuit *c, struct arena *ar, struct cstring *o
 		uint32_t e0 = reach(c, i, q[0], s, out, &count);
 		uint32_t e1 = e0 == NL_NONE ? NL_NONE : reach(c, i, q[1], s, out, &count);
 		if (e0 == NL_NONE || e1 == NL_NONE || e0 == e1) {
-			/* a ring, or a string closed on itself: no ends to bound it by */
-			for (size_t k = 0; k < np; k++)
-				if (out->of[k] == s)
-					out->of[k] = NL_NONE;
+			/* a ring, or a string closed on itself: no ends to bound it
+			   by; its members are let go in one pass at the end */
+			out->of[i] = CSTRING_RING;
+			for (uint32_t j = 0; j < 2; j++)
+				release(c, i, q[j], s, out);
 			continue;
 		}
 		out->end0[n] = e0;
 		out->end1[n] = e1;
 		out->count[n++] = count;
 	}
+	for (size_t i = 0; i < np; i++)
+		if (out->of[i] == CSTRING_RING)
+			out->of[i] = NL_NONE;
 	out->n = n;
 	return 1;
 }
