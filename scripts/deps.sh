@@ -50,8 +50,16 @@ sarif_tool() {
 	command -v npm >/dev/null 2>&1 || return 1
 	echo "deps: installing the SARIF validator (@microsoft/sarif-multitool) into .tools/"
 	mkdir -p "$root/.tools"
-	npm install --prefix "$root/.tools" --no-audit --no-fund --silent \
-		@microsoft/sarif-multitool@5.7.0 >/dev/null 2>&1 || return 1
+	# three tries, a registry's hiccup being the usual failure; the
+	# last try's messages are shown when all fail
+	local try
+	for try in 1 2 3; do
+		npm install --prefix "$root/.tools" --no-audit --no-fund --silent \
+			@microsoft/sarif-multitool@5.7.0 > "$root/.tools/npm.log" 2>&1 && break
+		[ $try -eq 3 ] && { tail -5 "$root/.tools/npm.log" >&2; return 1; }
+		echo "deps: npm failed (try $try of 3); trying again in $((try * 10)) s"
+		sleep $((try * 10))
+	done
 	chmod u+x "$bin" 2>/dev/null
 	[ -x "$bin" ]
 }

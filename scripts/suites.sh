@@ -25,7 +25,10 @@ finish() { # pid status
 	cat "$logs/$k.log"
 	printf '== %s: %s (%d s)\n' "${name_of[$p]}" "$([ "$rc" -eq 0 ] && echo passed || echo "FAILED, exit $rc")" \
 		"$(cat "$logs/$k.time" 2>/dev/null || echo 0)"
-	[ "$rc" -eq 0 ] || failed+=("${name_of[$p]}")
+	if [ "$rc" -ne 0 ]; then
+		failed+=("${name_of[$p]}")
+		cp "$logs/$k.log" "$logs/failed.${#failed[@]}.log"
+	fi
 	unset "pid_of[$p]" "name_of[$p]"
 }
 
@@ -47,7 +50,11 @@ while [ "${#pid_of[@]}" -gt 0 ]; do
 done
 
 echo "suites: ${#cmds[@]} run in $((SECONDS - start)) s, $lanes at a time; ${#failed[@]} failed"
-for f in "${failed[@]}"; do
-	echo "  FAILED: $f"
+# Each failed suite with the lines of its log that name a failure (at
+# most 20), so that the end of the output alone says what broke.
+for i in "${!failed[@]}"; do
+	echo "  FAILED: ${failed[$i]}"
+	grep -E 'FAIL|[Ee]rror|Assertion|Traceback|AddressSanitizer|runtime error' \
+		"$logs/failed.$((i + 1)).log" | head -20 | sed 's/^/    | /'
 done
 [ "${#failed[@]}" -eq 0 ]
