@@ -54,7 +54,7 @@ echo "suites: ${#cmds[@]} run in $((SECONDS - start)) s, $lanes at a time; ${#fa
 # most 20), so that the end of the output alone says what broke.
 for i in "${!failed[@]}"; do
 	echo "  FAILED: ${failed[$i]}"
-	grep -E 'FAIL|[Ee]rror|Assertion|Traceback|AddressSanitizer|runtime error' \
+	grep -E 'FAIL|Error:|Traceback|AddressSanitizer|runtime error:|LOOSE|UNSOUND|MISSING' \
 		"$logs/failed.$((i + 1)).log" | head -20 | sed 's/^/    | /'
 done
 [ "${#failed[@]}" -eq 0 ]
