@@ -124,6 +124,11 @@ const double *sim_voltages(const struct sim *s);
  * with no one current (K, controlled and current sources). Meant for a
  * sim_point_fn, at an accepted point. */
 void sim_currents(const struct sim *s, double *i);
+/* Each diode's dissipated power at the time reached into p (one entry
+ * per part): its junction's static current times the junction's voltage
+ * plus its RS loss, the charge it stores left out; NaN for every other
+ * part. For a sim_point_fn, as sim_currents. */
+void sim_dissipation(const struct sim *s, double *p);
 
 /* Periodic steady state: runs whole periods until the state (capacitor
  * voltages, inductor currents) at the start of successive periods agrees

@@ -111,6 +111,12 @@ struct stress {
 				   to matter: the solver is asked for a tighter
 				   number, and the proof stands where it gives none
 				   (loadout_tighten, simbound.c) */
+	int floor;              /* the proof stands as a floor only: the part's
+				   island hangs on a node pinned from a rail
+				   that moves between two values, which the
+				   proof takes at one end of its band; the
+				   solver's number replaces it where higher
+				   (stress.c banded_pins, simbound.c) */
 	/* capacitors: stored energy at the worst voltage and discharge
 	   (discharge.h; set only above the hazard voltage) */
 	double energy_j;

@@ -212,6 +212,56 @@ static void check_cap_across_series(struct pctx *x, const struct nl_part *p)
 		   "current", "");
 }
 
+/* A part from a held node (ground, a source) to a node held at its
+ * source's voltage through a series resistor or inductor, where something
+ * else also draws current from that node (a winding stacked on it, a
+ * capacitor to a moving node): the current's drop across the series part
+ * moves the node both ways, and the part sees it, which the analysis takes
+ * to carry none. A diode there is no such load: it conducts only while the
+ * node passes the diode's far end, and then pulls the node back between
+ * that and the source. (A part in the path of that current, a
+ * clamp's capacitor behind its source's resistance, keeps its bound: the
+ * drop only ever lowers what charges it.) Resistors and capacitors to
+ * ground or to a DC node only filter or divide the node, which the bound
+ * covers. */
+static int series_node_loaded(const struct pctx *x, uint32_t node)
+{
+	const struct prop_node *n = &x->nom->nodes[node];
+	if (node == NL_GROUND || n->state != PS_RESOLVED || n->how != PH_SERIES)
+		return 0;
+	uint32_t k;
+	const uint32_t *adj = nl_adjacency(x->c, node, &k);
+	for (uint32_t j = 0; j < k; j++) {
+		if (adj[j] == n->by)
+			continue;
+		const struct nl_part *o = nl_part_at(x->c, adj[j]);
+		if (o->kind == NL_D)
+			continue; /* it conducts only while the node passes its far
+				     end, and pulls it back toward that */
+		if (o->kind != NL_R && o->kind != NL_C)
+			return 1;
+		const uint32_t *q = nl_pins(x->c, o);
+		uint32_t far = q[0] == node ? q[1] : q[0];
+		const struct prop_node *fn = &x->nom->nodes[far];
+		if (o->kind == NL_C && far != NL_GROUND &&
+		    (fn->state != PS_RESOLVED || !fn->f || !form_is_dc(fn->f)))
+			return 1;
+	}
+	return 0;
+}
+
+static void check_series_node(struct pctx *x, const struct nl_part *p)
+{
+	const uint32_t *q = nl_pins(x->c, p);
+	for (int k = 0; k < 2; k++)
+		if (held(x, q[1 - k]) && series_node_loaded(x, q[k])) {
+			mark(x, p, "%s sits on node %s, held at its source's voltage through a series "
+				   "resistance that also carries other parts' current: the drop across it "
+				   "is neglected", nl_node_at(x->c, q[k])->name);
+			return;
+		}
+}
+
 static void check_part(struct pctx *x, size_t i, const unsigned char *breakdown)
 {
 	const struct nl_part *p = nl_part_at(x->c, i);
@@ -222,6 +272,7 @@ static void check_part(struct pctx *x, size_t i, const unsigned char *breakdown)
 		return;
 	case NL_C:
 		check_cap_across_series(x, p);
+		check_series_node(x, p);
 		return;
 	case NL_L:
 	case NL_K:
@@ -230,6 +281,7 @@ static void check_part(struct pctx *x, size_t i, const unsigned char *breakdown)
 	case NL_D:
 		if (breakdown && breakdown[i])
 			mark(x, p, "%s%s is driven past its breakdown voltage and conducts in reverse", "");
+		check_series_node(x, p);
 		return;
 	case NL_V:
 	case NL_E:

@@ -1105,6 +1105,18 @@ void sim_currents(const struct sim *s, double *i)
 		i[s->dev[k].part] = simdev_current(&s->dev[k], s->x);
 }
 
+void sim_dissipation(const struct sim *s, double *p)
+{
+	size_t np = nl_part_count(s->c);
+	for (size_t k = 0; k < np; k++)
+		p[k] = NAN;
+	for (size_t k = 0; k < s->ndev; k++) {
+		const struct simdev *d = &s->dev[k];
+		if (d->kind == SD_D && nl_part_at(s->c, d->part)->kind == NL_D)
+			p[d->part] = simdev_dissipation(d, s->x);
+	}
+}
+
 void sim_stats(const struct sim *s, struct sim_stats *out)
 {
 	*out = s->st;

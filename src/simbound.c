@@ -707,6 +707,31 @@ static void tighten(struct sb *b, struct stress *s, int unseen)
 	b->fb->given++;
 }
 
+/* A proof that stands as a floor only (stress.h, floor): the simulated
+ * number where it is above the proof, else the proof as it was (also
+ * where the solver gives none). */
+static void floor_take(struct sb *b, struct stress *s, int unseen)
+{
+	const struct acc *x = &b->acc;
+	uint32_t k = s->part;
+	double raw = unseen ? NAN : x->worst[k];
+	s->floor = 0;
+	if (!(raw > s->analytic * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS)) {
+		s->unproven = NULL;
+		s->worst = s->analytic;
+		return;
+	}
+	s->basis = SB_SIMULATED;
+	s->worst = raw * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
+	s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? fmin(x->best[k], s->best) : s->best;
+	s->rev_min = x->rev_min[k];
+	s->corner = x->corner[k];
+	const struct nl_part *pt = nl_part_at(b->a->er.circuit, k);
+	if (pt->kind == NL_C)
+		stress_set_energy(s, pt->value * (pt->ext ? pt->ext->mult : 1.0));
+	b->fb->given++;
+}
+
 /* The corner of a member of an ungraded string, with why its number is
  * the string's (dstring.h); the corner as it was on out-of-memory. */
 static const char *string_corner(struct sb *b, uint32_t k, const char *corner)
@@ -742,6 +767,10 @@ static void fill(struct sb *b)
 		int blocked = is != NL_NONE && x->blocked[is];
 		if (s->tighten) {
 			tighten(b, s, blocked || !x->seen[k]);
+			continue;
+		}
+		if (s->floor) {
+			floor_take(b, s, blocked || !x->seen[k]);
 			continue;
 		}
 		if (blocked || !x->seen[k]) {

@@ -126,13 +126,34 @@ static double source_at(const struct simdev *d, const struct simdev_step *st)
 
 /* ---- the diode ---- */
 
+/* The knee xbv of the breakdown current -is exp(-(xbv + v) / nvt),
+ * placed as ngspice places it: at bv itself when ibv is below is bv / vt
+ * (the reverse current there; the knee is not moved), otherwise moved so
+ * that the current at -bv, with the reverse region's linear term, is ibv
+ * (a fixed-point iteration from the first estimate, to 1e-3 of ibv). */
+static double breakdown_knee(const struct simdev_diode *m, double vt)
+{
+	if (m->ibv < m->is * m->bv / vt)
+		return m->bv;
+	double x = m->bv - m->nvt * log(1 + m->ibv / m->is);
+	for (int k = 0; k < 25; k++) {
+		double arg = m->ibv / m->is + 1 - x / vt;
+		if (!(arg > 0))
+			break;
+		x = m->bv - m->nvt * log(arg);
+		double got = m->is * (exp((m->bv - x) / m->nvt) - 1 + x / vt);
+		if (fabs(got - m->ibv) <= 1e-3 * m->ibv)
+			break;
+	}
+	return x;
+}
+
 void simdev_diode_init(struct simdev_diode *m)
 {
 	const double vt = 0.0258648; /* kT/q at 300.15 K (27 C, SPICE's TNOM) */
 	m->nvt = m->n * vt;
 	m->vcrit = m->nvt * log(m->nvt / (sqrt(2.0) * m->is));
-	/* breakdown voltage moved so the current at -bv is ibv (as SPICE) */
-	m->xbv = isfinite(m->bv) ? m->bv - m->nvt * log(1 + m->ibv / m->is) : INFINITY;
+	m->xbv = isfinite(m->bv) ? breakdown_knee(m, vt) : INFINITY;
 }
 
 /* SPICE's junction limiting: a step past vcrit is taken logarithmically. */
@@ -320,6 +341,25 @@ void simdev_stamp(struct simdev *d, const struct simdev_step *st,
 		stamp_controlled(d, m);
 	else
 		stamp_linear(d, st, m);
+}
+
+/* A diode's dissipated power at x: its junction's static current times
+ * the junction's voltage, plus the loss in RS. The charge terms are left
+ * out: they store and give back, and at a recovery or in breakdown the
+ * diffusion capacitance (TT times the slope) is so large that the
+ * companion current's step-to-step error swamps the loss. */
+double simdev_dissipation(const struct simdev *d, const double *x)
+{
+	if (d->kind != SD_D)
+		return NAN;
+	double v = at(x, d->p) - at(x, d->b), id, gd;
+	junction(d->dm, v, &id, &gd);
+	double p = id * v;
+	if (d->p != d->a) {
+		double vr = at(x, d->a) - at(x, d->p);
+		p += vr * vr / d->dm->rs;
+	}
+	return p;
 }
 
 double simdev_current(const struct simdev *d, const double *x)

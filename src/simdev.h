@@ -90,6 +90,10 @@ void simdev_update(struct simdev *d, const struct simdev_step *st,
  * no one current (K, controlled sources). */
 double simdev_current(const struct simdev *d, const double *x);
 
+/* A diode's dissipated power at x (junction's static current times its
+ * voltage, plus RS's loss); NaN for any other device. */
+double simdev_dissipation(const struct simdev *d, const double *x);
+
 /* Fills the derived diode parameters. */
 void simdev_diode_init(struct simdev_diode *m);
 

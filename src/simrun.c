@@ -176,6 +176,8 @@ struct flows {
 	struct simrun_flow *out;
 	double *i, *iprev, *vprev; /* per part: current now; current and
 				      voltage at the last point */
+	double *pw, *pwprev;       /* per part: a diode's dissipation now and
+				      at the last point (NaN: other parts) */
 	double tprev;
 	int started;
 };
@@ -280,6 +282,7 @@ static void flow_add(struct flows *w, const struct nl_circuit *c, double t, cons
 	size_t np = nl_part_count(c);
 	double h = t - w->tprev;
 	sim_currents(w->s, w->i);
+	sim_dissipation(w->s, w->pw);
 	for (size_t k = 0; k < np; k++) {
 		struct simrun_flow *f = &w->out[k];
 		double a = w->iprev[k], b = w->i[k], va = w->vprev[k];
@@ -287,8 +290,12 @@ static void flow_add(struct flows *w, const struct nl_circuit *c, double t, cons
 		if (w->started) {
 			f->avg += h * (a + b) / 2;
 			f->rms += h * (a * a + a * b + b * b) / 3;
-			f->power += h * (2 * va * a + va * b + vb * a + 2 * vb * b) / 6;
+			if (isfinite(w->pw[k]))
+				f->power += h * (w->pwprev[k] + w->pw[k]) / 2;
+			else
+				f->power += h * (2 * va * a + va * b + vb * a + 2 * vb * b) / 6;
 		}
+		w->pwprev[k] = w->pw[k];
 		f->peak = fmax(f->peak, b);
 		f->low = fmin(f->low, b);
 		w->iprev[k] = b;
@@ -462,8 +469,9 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 	if (cr)
 		cr->seen = 0;
 	double *vprev = o->ntrace ? hr_malloc(h, (nn + 1) * sizeof *vprev) : NULL;
-	double *scratch = o->flow ? hr_malloc(h, 3 * (np + 1) * sizeof *scratch) : NULL;
-	struct flows fw = {NULL, o->flow, scratch, scratch + np + 1, scratch + 2 * (np + 1), 0, 0};
+	double *scratch = o->flow ? hr_malloc(h, 5 * (np + 1) * sizeof *scratch) : NULL;
+	struct flows fw = {NULL, o->flow, scratch, scratch + np + 1, scratch + 2 * (np + 1),
+			   scratch + 3 * (np + 1), scratch + 4 * (np + 1), 0, 0};
 	if (o->flow && !scratch)
 		r->status = SIM_OOM;
 	double *pprev = o->nprobe ? hr_malloc(h, o->nprobe * sizeof *pprev) : NULL;

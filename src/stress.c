@@ -462,6 +462,29 @@ static void coupled_islands(const struct nl_circuit *c, const uint32_t *island,
 	}
 }
 
+/* An island that holds a source's other end where the source feeds a
+ * diode-capacitor network (a winding stacked on a bias rail behind a
+ * resistor): the network's current flows through that island, so it is
+ * part of the network though the held node cuts the islands apart. */
+static void stacked_islands(const struct ctx *x, const uint32_t *island, unsigned char *has_d)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	for (size_t i = 0; i < nl_part_count(c); i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		if ((p->kind != NL_V && p->kind != NL_E) || island[i] == NL_NONE || has_d[island[i]])
+			continue;
+		const uint32_t *q = nl_pins(c, p);
+		for (int k = 0; k < 2 && !has_d[island[i]]; k++) {
+			uint32_t n;
+			const uint32_t *adj = q[k] != NL_GROUND && held(x, q[k]) ? nl_adjacency(c, q[k], &n)
+										 : NULL;
+			for (uint32_t j = 0; adj && j < n; j++)
+				if (adj[j] != i && island[adj[j]] != NL_NONE && has_d[island[adj[j]]])
+					has_d[island[i]] = 1;
+		}
+	}
+}
+
 static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *cap,
 			    const uint32_t *island, unsigned char *has_d)
 {
@@ -476,6 +499,7 @@ static int add_island_parts(struct ctx *x, struct stress_result *out, size_t *ca
 		if (nl_part_at(c, i)->kind == NL_D && island[i] != NL_NONE)
 			has_d[island[i]] = 1;
 	coupled_islands(c, island, has_d);
+	stacked_islands(x, island, has_d);
 	for (uint32_t i = 0; i < np; i++) {
 		const struct nl_part *pt = nl_part_at(c, i);
 		if ((pt->kind != NL_C && pt->kind != NL_D) || listed[i] ||
@@ -538,6 +562,59 @@ static int judge_proofs(struct ctx *x, struct stress_result *out, size_t *cap)
 	for (size_t i = 0; i < out->n; i++)
 		if (out->s[i].bounded && out->s[i].qty != SQ_SURGE)
 			out->max_voltage = fmax(out->max_voltage, out->s[i].worst);
+	return 1;
+}
+
+/* 1 when diode `part` pins a node from a rail that moves between two
+ * values (*@source min= max=: a constant interval in the forms): the pin
+ * sets the node at the band's extreme in its own direction, but the node
+ * rides with the rail anywhere in its band. */
+static int banded_pin(const struct ctx *x, uint32_t part)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	const struct prop_result *r = &x->runs[C_NOM];
+	const uint32_t *q = nl_pins(c, nl_part_at(c, part));
+	for (int k = 0; k < 2; k++) {
+		const struct prop_node *n = &r->nodes[q[k]], *o = &r->nodes[q[1 - k]];
+		if (n->state == PS_RESOLVED && n->how == PH_PIN && n->by == part &&
+		    o->state == PS_RESOLVED && o->f &&
+		    o->f->hi - o->f->lo > 1e-9 * fmax(1, fabs(o->f->hi)))
+			return 1;
+	}
+	return 0;
+}
+
+/* Every proven voltage of an island that holds a banded pin keeps its
+ * proof as a floor only and asks the solver, whose number stands where it
+ * is higher (simbound.c): a negative output stacked on a bus that may sit
+ * anywhere from 36 to 60 V is pinned at the bus's bottom less the swing,
+ * yet its capacitor to ground holds the bus's top less the swing while
+ * the bus is high. The proof still stands where the solver's corners
+ * (the band's ends, fixed) give less: a capacitor charged at the band's
+ * top while the rail sits at its bottom is a state they do not run. */
+static int banded_pins(struct ctx *x, struct stress_result *out)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	const uint32_t *island = out->island;
+	unsigned char *flag = island ? arena_zalloc(x->ar, nl_node_count(c) + 1) : NULL;
+	if (!flag)
+		return island == NULL;
+	int any = 0;
+	for (size_t i = 0; i < nl_part_count(c); i++)
+		if (nl_part_at(c, i)->kind == NL_D && island[i] != NL_NONE &&
+		    banded_pin(x, (uint32_t)i))
+			any = flag[island[i]] = 1;
+	for (size_t i = 0; any && i < out->n; i++) {
+		struct stress *s = &out->s[i];
+		if (!stress_qty_is_voltage(s->qty) || s->unproven || s->basis != SB_ANALYSIS ||
+		    !isfinite(s->worst) || island[s->part] == NL_NONE || !flag[island[s->part]])
+			continue;
+		s->floor = 1;
+		s->analytic = s->worst;
+		s->unproven = "a diode pins its network to a rail that moves between two values "
+			      "(*@source min= max=): the proof takes the band's one end, the "
+			      "network rides with the rail over all of it";
+	}
 	return 1;
 }
 
@@ -870,7 +947,7 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 	for (size_t s = 0; s < a->topo.n; s++)
 		figures(&x, s, &out->st[s], coupling[s]);
 	x.fig = NULL;
-	if (!judge_proofs(&x, out, &cap))
+	if (!judge_proofs(&x, out, &cap) || !banded_pins(&x, out))
 		return 0;
 	for (int k = 0; k < NCORNER; k++)
 		out->corners[out->ncorners++] = corner_names[k];

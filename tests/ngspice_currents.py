@@ -20,6 +20,16 @@ points). Checked:
     rules: ratings just under the simulated values make diode-avg-current,
     diode-peak-current and cap-ripple-current fire, ratings just above keep
     them quiet.
+And on tests/data/currents/breakdown_square.cir, two slow diodes driven
+past their breakdown by square waves (20 V and 200 V knees): ngspice's run
+at the +10 % corner with a 1 ns step and reltol 1e-6, its last period's
+mean of v i at each diode (trapezoidal) and largest reverse voltage.
+Checked: each diode's power at least 99 % of ngspice's and at most 115 %
+(the charge the diode stores gives back what it takes over a period, so
+the power is the junction's static current times its voltage, which moves
+with the few millivolts of the knee the steps leave), and its
+reverse_voltage at least ngspice's and within 1 % of it (the 20 V knee
+sits at BV itself, as ngspice places it when IBV is below IS BV / Vt).
 Prints each current with its headroom/ngspice ratio. Fails, not skips,
 when CI is set and ngspice is missing."""
 import csv
@@ -92,6 +102,60 @@ def ngspice_currents(tmp):
     return ref
 
 
+BREAKDOWN = os.path.join(HERE, "data", "currents", "breakdown_square.cir")
+BD_PERIOD = 100e-6
+
+
+def ngspice_breakdown(tmp):
+    """ngspice's mean power and largest reverse voltage of D1 and D2 of
+    breakdown_square.cir at the +10 % corner (a 0 V source ahead of each)."""
+    out = []
+    for line in open(BREAKDOWN):
+        w = line.split()
+        if line.startswith("*@") or line.lower().startswith(".end"):
+            continue
+        if w and w[0] in ("D1", "D2"):
+            out.append("VS%s %s m%s 0\n" % (w[0], w[1], w[0]))
+            out.append("%s m%s %s\n" % (w[0], w[0], " ".join(w[2:])))
+            continue
+        out.append(line.replace("pulse(-30 30 ", "pulse(-33 33 ").replace("pulse(-300 300 ", "pulse(-330 330 "))
+    text = "".join(out)
+    assert "pulse(-33 33 " in text and "pulse(-330 330 " in text
+    data = os.path.join(tmp, "bd.txt")
+    text += (".options reltol=1e-6\n.tran 1n 1m 0.8m 1n\n.control\nrun\n"
+             "wrdata %s v(mD1) v(k) i(vsD1) v(mD2) v(k2) i(vsD2)\n.endc\n.end\n" % data)
+    path = os.path.join(tmp, "bd.cir")
+    open(path, "w").write(text)
+    subprocess.run(["ngspice", "-b", path], capture_output=True, text=True)
+    if not os.path.exists(data):
+        raise RuntimeError("ngspice wrote no output for " + path)
+    rows = [list(map(float, l.split())) for l in open(data)]
+    last = [r for r in rows if r[0] >= rows[-1][0] - BD_PERIOD - 1e-12]
+    ref = {}
+    for name, col in (("D1", 1), ("D2", 7)):
+        pw = [(r[0], (r[col] - r[col + 2]) * r[col + 4], r[col + 2] - r[col]) for r in last]
+        e = sum((b[0] - a[0]) * (a[1] + b[1]) / 2 for a, b in zip(pw, pw[1:]))
+        ref[name] = {"power": e / (pw[-1][0] - pw[0][0]), "reverse": max(x[2] for x in pw)}
+    return ref
+
+
+def check_breakdown(tmp, ok):
+    ref = ngspice_breakdown(tmp)
+    f = headroom([BREAKDOWN])
+    got = {(s["part"], s["quantity"]): s for s in f["stresses"]}
+    for d in ("D1", "D2"):
+        s, want = got.get((d, "power")), ref[d]["power"]
+        val = s["worst"] if s else None
+        ok(val is not None and 0.99 * want <= val <= 1.15 * want and s["basis"] == "simulated",
+           "%s power in breakdown: headroom %s W, ngspice %.5g W (ratio %s, allowed 0.99 to 1.15)"
+           % (d, val, want, "%.4f" % (val / want) if val else "-"))
+        s, want = got.get((d, "reverse_voltage")), ref[d]["reverse"]
+        val = s["worst"] if s else None
+        ok(val is not None and want <= val <= 1.01 * want,
+           "%s reverse_voltage at its knee: headroom %s V, ngspice %.5g V (allowed 1 to 1.01 times)"
+           % (d, val, want))
+
+
 def headroom(args):
     r = subprocess.run([BIN, "check", "--format", "json", "--fail-on", "never"] + args,
                        capture_output=True, text=True)
@@ -133,6 +197,7 @@ def main():
            (rl["worst"] if rl else None, ref["vout"], p_ref))
         ok(f["fallback"]["currents"]["simulated"] and abs(f["fallback"]["currents"]["period"] - PERIOD) < 1e-12,
            "fallback.currents: simulated over one 20 ms period")
+        check_breakdown(tmp, ok)
 
         # the parts table's current columns reach the rules
         def rated(scale, name):

@@ -641,6 +641,22 @@ _LOOSE_FILES = {
         "two diodes in series with nothing at their joint (docs/check.md, \"Ungraded diode "
         "strings\"): each member is bounded by the string's whole reverse voltage, 220.7 V; "
         "ngspice shares it 8 / 210 V as modelled and 73 / 146 V near-ideal"),
+    "f10_b2_three_phase_bridge_stiff.cir": (
+        ("d1", "d6", "cdc"),
+        "a six-pulse bridge of slow rectifiers (TT 4.3 us) on a stiff 0.1 ohm supply: where a "
+        "diode snaps off, its stored-charge capacitance (microfarads) against the reservoir "
+        "leaves the trapezoidal rule an undamped step-to-step mode, and a spike from it lands "
+        "on the bus at one corner: 639 V for ngspice's 618 V (the breakdown knee placed as "
+        "ngspice places it moved which corner); damping such a flip with a backward-Euler step "
+        "removed it but damped real rings elsewhere (a flyback diode fell below ngspice) and "
+        "was not kept (docs/solver.md, Limits)"),
+    "f09_b27_gate_drive_ac_coupled_restorer_to_neg3v_rail_100khz.cir": (
+        ("cb",),
+        "an AC-coupled gate drive's 1 uF blocking capacitor, whose far node also carries the "
+        "restorer's 100 nF onto a gate the propagation does not settle: that node's swing is "
+        "taken as its neighbours' capacitance-weighted mean, and the proof keeps the drive's "
+        "whole 13.2 V swing on the capacitor, sound; it holds the drive's mean, 5.3 V in "
+        "ngspice"),
 }
 for _f, (_parts, _why) in _LOOSE_FILES.items():
     for _p in _parts:
