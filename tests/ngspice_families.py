@@ -721,13 +721,6 @@ KNOWN_MISSING = {
         "with the real model the ring after each recovery reaches the diode's 400 V "
         "breakdown (114 V with near-ideal diodes) and the solver's run does not repeat "
         "within 4000 periods, so nothing can be taken as its worst",
-    "f02_b1_doubler_source_rl_bare.cir":
-        "every diode turn-off rings the 3 mH source inductance against the diodes' 10 pF at "
-        "0.9 MHz, barely damped, in a 60 Hz circuit: the steady state needs more solver work "
-        "than a file's allowance (with a 150 ohm + 100 nF snubber the same doubler is bounded "
-        "and tight: f02_b1_doubler_source_rl; four times the allowance settles it in 9 s, "
-        "the capacitors tight and the diodes at 78.5 V for ngspice's 72.0 V, but was not kept: "
-        "CHANGELOG)",
     "f01_b25_ideal_diode_controller_switch_halfwave.cir":
         "a half-wave rectifier whose Schottky a switch bypasses, closed by a steep tanh "
         "comparator (gain 125 V/V) on the winding's EMF less the output: where the switch "
