@@ -675,54 +675,30 @@ static int start_caps(struct sb *b)
 	return 1;
 }
 
-/* A proven number the load leaves loose (loadout_tighten): the simulated
- * one where it is lower, or where it is above the proof (the load raised
- * it: a doubler's pump capacitor whose drive rides on a moving rail,
- * recharged by the output diode each time the rail climbs), else the
- * proof as it was. */
-static void tighten(struct sb *b, struct stress *s, int unseen)
+/* A proven stress whose proof the solver is asked to check against
+ * (stress.h): the simulated number where it is above the proof (by more
+ * than the analysis's gap), or below it when lower_ok (a load the proof
+ * leaves out: loadout_tighten), else the proof as it was (also where the
+ * solver gives none). raised_why, when given, replaces the reason where
+ * the simulated number is above the proof. */
+static void against_proof(struct sb *b, struct stress *s, int unseen, int lower_ok,
+			  const char *raised_why)
 {
 	const struct acc *x = &b->acc;
 	uint32_t k = s->part;
 	double raw = unseen ? NAN : x->worst[k];
 	double sim = raw * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
 	int raised = raw > s->analytic * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS;
-	if (!raised && !(sim < s->analytic)) {
+	s->tighten = s->floor = 0;
+	if (!raised && !(lower_ok && sim < s->analytic)) {
 		s->unproven = NULL;
-		s->tighten = 0;
 		s->worst = s->analytic;
 		return;
 	}
-	if (raised) {
-		char why[200];
-		snprintf(why, sizeof why, "the structure's load takes it above the unloaded proof "
-			 "(%.4g V): its charge is moved, not drawn out", s->analytic);
-		s->unproven = arena_strdup(b->ar, why);
-	}
+	if (raised && raised_why)
+		s->unproven = raised_why;
 	s->basis = SB_SIMULATED;
 	s->worst = sim;
-	s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? fmin(x->best[k], s->best) : s->best;
-	s->rev_min = x->rev_min[k];
-	s->corner = x->corner[k];
-	b->fb->given++;
-}
-
-/* A proof that stands as a floor only (stress.h, floor): the simulated
- * number where it is above the proof, else the proof as it was (also
- * where the solver gives none). */
-static void floor_take(struct sb *b, struct stress *s, int unseen)
-{
-	const struct acc *x = &b->acc;
-	uint32_t k = s->part;
-	double raw = unseen ? NAN : x->worst[k];
-	s->floor = 0;
-	if (!(raw > s->analytic * (1 + STRESS_GAP_REL) + STRESS_GAP_ABS)) {
-		s->unproven = NULL;
-		s->worst = s->analytic;
-		return;
-	}
-	s->basis = SB_SIMULATED;
-	s->worst = raw * (1 + SIMBOUND_REL) + SIMBOUND_ABS;
 	s->best = b->ideal_only ? NAN : isfinite(x->best[k]) ? fmin(x->best[k], s->best) : s->best;
 	s->rev_min = x->rev_min[k];
 	s->corner = x->corner[k];
@@ -730,6 +706,18 @@ static void floor_take(struct sb *b, struct stress *s, int unseen)
 	if (pt->kind == NL_C)
 		stress_set_energy(s, pt->value * (pt->ext ? pt->ext->mult : 1.0));
 	b->fb->given++;
+}
+
+/* A proven number the load leaves loose (loadout_tighten): the simulated
+ * one where it is lower, or where it is above the proof (the load raised
+ * it: a doubler's pump capacitor whose drive rides on a moving rail,
+ * recharged by the output diode each time the rail climbs). */
+static void tighten(struct sb *b, struct stress *s, int unseen)
+{
+	char why[200];
+	snprintf(why, sizeof why, "the structure's load takes it above the unloaded proof "
+		 "(%.4g V): its charge is moved, not drawn out", s->analytic);
+	against_proof(b, s, unseen, 1, arena_strdup(b->ar, why));
 }
 
 /* The corner of a member of an ungraded string, with why its number is
@@ -769,8 +757,8 @@ static void fill(struct sb *b)
 			tighten(b, s, blocked || !x->seen[k]);
 			continue;
 		}
-		if (s->floor) {
-			floor_take(b, s, blocked || !x->seen[k]);
+		if (s->floor) { /* the proof as a floor only: stress.c banded_pins */
+			against_proof(b, s, blocked || !x->seen[k], 0, NULL);
 			continue;
 		}
 		if (blocked || !x->seen[k]) {
