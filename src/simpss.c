@@ -178,9 +178,20 @@ static int one_map(const struct sim *s, double period)
 
 /* ---- sensitivities ---- */
 
+/* A device whose charge or flux the sensitivities carry from step to
+ * step. A diode with a transit time is left out: its stored charge's
+ * capacitance (TT times the junction's slope, microfarads in conduction,
+ * picofarads a step later at snap-off) makes the trapezoidal recursion of
+ * the charge's derivative grow without bound across a period (Jacobian
+ * entries of 1e100 on a slow rectifier bridge), and Newton's step then
+ * goes nowhere. Its charge is then taken as fixed, as the state already
+ * takes every junction charge; the step's matrix still holds the
+ * junction's slope and capacitance. */
 static int has_history(const struct simdev *d)
 {
-	return (d->kind == SD_C && d->val != 0) || d->kind == SD_L || d->kind == SD_D;
+	if (d->kind == SD_D)
+		return !(d->dm && d->dm->tt > 0);
+	return (d->kind == SD_C && d->val != 0) || d->kind == SD_L;
 }
 
 /* The sensitivity store for s's state, or NULL when shooting does not
