@@ -120,6 +120,10 @@ static void summary(const struct sim_cli *c, const struct simrun_result *r)
 			r->settled ? "steady" : "NOT settled", r->periods, r->period);
 	else
 		fputs("; nothing repeats: use --until\n", stderr);
+	if (r->stats.relaxed)
+		fprintf(stderr, "sim: %lu steps of the output period could not meet its tighter "
+				"tolerance and were taken at the run's own (docs/solver.md, "
+				"\"The measured period\")\n", r->stats.relaxed);
 }
 
 static int run(const struct sim_cli *c, struct nl_circuit *circ)

@@ -27,6 +27,7 @@
 #define SIM_RING_CUTS 2 /* this many times, then damped (backward Euler) */
 #define SIM_RING_QUIET 8 /* steps without ringing that start the count again */
 #define SIM_TIE_G 1.0     /* S: a part with no path to ground, tied to it at one node */
+#define SIM_RELAX_STEP 1e-3 /* of the largest: a step retried at the run's own tolerance */
 #define SIM_SW_RESOLVE 1e-3 /* a switch's crossing found to this share of the largest step */
 #define SIM_RING_FLOOR 1e-6 /* no cut below this share of the largest step: damped instead */
 #define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
@@ -776,12 +777,41 @@ void sim_node_voltages(struct sim *s)
 		s->v[k] = s->x[k - 1];
 }
 
+static double across_x(const double *x, long a, long b)
+{
+	return (a >= 0 ? x[a] : 0) - (b >= 0 ? x[b] : 0);
+}
+
+/* Newton has converged when no unknown moved by more than reltol of its
+ * size plus the absolute tolerance. Following snaps (sim_follow_snaps),
+ * each capacitor's and junction's own voltage, and each junction's
+ * current, must also have settled to SIM_SNAP_RELTOL (as SPICE's own
+ * test on a diode's current): their charges feed the truncation error at
+ * that tolerance, while a node's level against ground can carry the noise of a
+ * floating network's common mode (1 Mohm against nanosecond steps). */
 static int converged(const struct sim *s, const double *xn)
 {
 	for (size_t k = 0; k < s->n; k++) {
 		double tol = s->o.reltol * fmax(fabs(xn[k]), fabs(s->x[k])) +
 			     (k + 1 < s->nnodes ? s->o.vntol : s->o.abstol);
 		if (fabs(xn[k] - s->x[k]) > tol)
+			return 0;
+	}
+	if (!s->o.snaps)
+		return 1;
+	double rel = fmin(s->o.reltol, SIM_SNAP_RELTOL);
+	for (size_t i = 0; i < s->ndev; i++) {
+		const struct simdev *d = &s->dev[i];
+		if (d->kind != SD_C && d->kind != SD_D)
+			continue;
+		long a = d->kind == SD_D ? d->p : d->a;
+		double vn = across_x(xn, a, d->b), vo = across_x(s->x, a, d->b);
+		if (fabs(vn - vo) > rel * fmax(fabs(vn), fabs(vo)) + s->o.vntol)
+			return 0;
+		if (d->kind != SD_D)
+			continue;
+		double in = simdev_junction_current(d, xn), io = simdev_junction_current(d, s->x);
+		if (fabs(in - io) > rel * fmax(fabs(in), fabs(io)) + s->o.abstol)
 			return 0;
 	}
 	return 1;
@@ -864,6 +894,7 @@ static double kink_step(const struct simdev *d, double h, double tol)
 static double lte_step(const struct sim *s, double h)
 {
 	double best = INFINITY;
+	double rel = s->o.snaps ? fmin(s->o.reltol, SIM_SNAP_RELTOL) : s->o.reltol;
 	for (size_t i = 0; i < s->ndev; i++) {
 		const struct simdev *d = &s->dev[i];
 		if (d->kind != SD_C && d->kind != SD_D && d->kind != SD_L)
@@ -873,10 +904,10 @@ static double lte_step(const struct sim *s, double h)
 		double d12 = (d->qh[0] - d->qh[1]) / (t1 - t2);
 		double d23 = (d->qh[1] - d->qh[2]) / (t2 - t3);
 		double dd3 = ((d01 - d12) / (t0 - t2) - (d12 - d23) / (t1 - t3)) / (t0 - t3);
-		double itol = s->o.abstol + s->o.reltol * fmax(fabs(d->f), fabs(d->f0));
-		double qtol = s->o.reltol * fmax(fmax(fabs(d->q), fabs(d->qh[0])), SIM_CHGTOL) / h;
+		double itol = s->o.abstol + rel * fmax(fabs(d->f), fabs(d->f0));
+		double qtol = rel * fmax(fmax(fabs(d->q), fabs(d->qh[0])), SIM_CHGTOL) / h;
 		if (d->kind == SD_L)
-			itol = s->o.reltol * fmax(fabs(d->f), fabs(d->f0)) + s->o.vntol;
+			itol = rel * fmax(fabs(d->f), fabs(d->f0)) + s->o.vntol;
 		double err = fmax(s->o.abstol, fabs(dd3) / 12);
 		best = fmin(best, sqrt(SIM_TRTOL * fmax(itol, qtol) / err));
 		if (d->kind == SD_C && s->o.ideal_diodes) /* their switching is abrupt */
@@ -993,10 +1024,51 @@ static double switch_step(const struct sim *s, double h)
 	return fmax(h * f * 1.001, s->o.max_step * SIM_SW_RESOLVE);
 }
 
-/* One accepted step towards t_end (shorter when rejected and retried). */
-static enum sim_status step(struct sim *s, double t_end)
+/* A diode whose stored charge runs out within the step while a reverse
+ * current drains it snaps off there: whatever carried that current (a
+ * winding's leakage) rings into the junction's capacitance from that
+ * instant. The step is held to the time the charge at its start lasts at
+ * the rate it was draining, so that the snap falls at a step's end and
+ * the steps after it start from the instant the ring does. */
+static double snap_step(const struct sim *s, double h)
 {
-	double hmin = s->o.max_step * 1e-9;
+	double hs = INFINITY;
+	for (size_t i = 0; i < s->ndev; i++) {
+		const struct simdev *d = &s->dev[i];
+		if (!s->o.snaps || d->kind != SD_D || d->dm->tt <= 0 || d->f0 >= 0)
+			continue;
+		double q0 = d->dm->tt * simdev_junction_current(d, s->xprev);
+		double q1 = d->dm->tt * simdev_junction_current(d, s->x);
+		if (q0 > SIM_CHGTOL && q1 <= 0)
+			hs = fmin(hs, q0 / -d->f0);
+	}
+	if (!(hs < 0.9 * h))
+		return 2 * h;
+	return fmax(hs * 1.001, s->o.max_step * SIM_SW_RESOLVE);
+}
+
+/* Following snaps, a step the tighter tolerance cannot take: Newton
+ * stalls at the steps it asks for (a floating network's level, a junction
+ * cycling between two iterates at picosecond steps), or the estimate asks
+ * for ever shorter steps (a switch that closed onto a capacitor within the
+ * step). It is taken as after a corner, by backward Euler at the run's own
+ * tolerance, from a step of SIM_RELAX_STEP of the largest at least. 0 when
+ * there is nothing to relax. */
+static int relax(struct sim *s, double h0)
+{
+	if (!s->o.snaps)
+		return 0;
+	s->o.snaps = 0;
+	s->after_corner = 1;
+	s->hstep = fmax(h0, s->o.max_step * SIM_RELAX_STEP);
+	s->st.relaxed++;
+	return 1;
+}
+
+/* One accepted step towards t_end (shorter when rejected and retried). */
+static enum sim_status take_step(struct sim *s, double t_end)
+{
+	double hmin = s->o.max_step * 1e-9, h0 = s->hstep;
 	for (;;) {
 		if (s->st.newton > s->o.max_work)
 			return SIM_BUDGET;
@@ -1015,7 +1087,7 @@ static enum sim_status step(struct sim *s, double t_end)
 		enum sim_status r = newton(s, &st);
 		double allowed = r == SIM_OK && s->nhist >= 3 && !be ? lte_step(s, h) : 2 * h;
 		if (r == SIM_OK)
-			allowed = fmin(allowed, switch_step(s, h));
+			allowed = fmin(fmin(allowed, switch_step(s, h)), snap_step(s, h));
 		if (r == SIM_OK && allowed >= 0.9 * h) {
 			if (s->on_step)
 				s->on_step(s, &st);
@@ -1024,14 +1096,17 @@ static enum sim_status step(struct sim *s, double t_end)
 			s->after_corner = hits;
 			if (hits)
 				s->nhist = 0;
-			s->hstep = fmin(2 * h, allowed);
+			/* following snaps, the steps the error estimate does
+			   not yet check (the first three after a corner) do
+			   not grow */
+			s->hstep = fmin(s->o.snaps && s->nhist < 3 && !hits ? h : 2 * h, allowed);
 			ringing(s, ring, h);
 			if (hits) {
 				/* as SPICE: a tenth of the way to the next corner
 				   (an edge's rise), so what the corner sets off is
 				   followed from its start */
 				double next = next_corner(s);
-				s->hstep = fmin(s->hstep, s->o.max_step / 10);
+				s->hstep = fmin(s->hstep, s->o.max_step / (s->o.snaps ? 100 : 10));
 				if (isfinite(next) && next > s->t)
 					s->hstep = fmin(s->hstep, fmax((next - s->t) / 10, hmin * 10));
 			}
@@ -1041,9 +1116,17 @@ static enum sim_status step(struct sim *s, double t_end)
 		if (r == SIM_SINGULAR || r == SIM_OOM)
 			return r;
 		s->hstep = r == SIM_OK ? fmax(allowed, h / 4) : h / 8;
-		if (s->hstep < hmin)
+		if (s->hstep < hmin && !relax(s, h0))
 			return SIM_NO_CONVERGENCE;
 	}
+}
+
+static enum sim_status step(struct sim *s, double t_end)
+{
+	int snaps = s->o.snaps;
+	enum sim_status r = take_step(s, t_end);
+	s->o.snaps = snaps;
+	return r;
 }
 
 enum sim_status sim_run(struct sim *s, double t_end, sim_point_fn fn, void *ud)

@@ -362,6 +362,13 @@ double simdev_dissipation(const struct simdev *d, const double *x)
 	return p;
 }
 
+double simdev_junction_current(const struct simdev *d, const double *x)
+{
+	double id, gd;
+	junction(d->dm, at(x, d->p) - at(x, d->b), &id, &gd);
+	return id;
+}
+
 double simdev_current(const struct simdev *d, const double *x)
 {
 	switch (d->kind) {

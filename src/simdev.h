@@ -90,6 +90,10 @@ void simdev_update(struct simdev *d, const struct simdev_step *st,
  * no one current (K, controlled sources). */
 double simdev_current(const struct simdev *d, const double *x);
 
+/* A diode's junction's static current at x (TT times it is its stored
+ * charge). */
+double simdev_junction_current(const struct simdev *d, const double *x);
+
 /* A diode's dissipated power at x (junction's static current times its
  * voltage, plus RS's loss); NaN for any other device. */
 double simdev_dissipation(const struct simdev *d, const double *x);

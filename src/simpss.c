@@ -160,6 +160,22 @@ void sim_set_max_step(struct sim *s, double h)
 		s->o.max_step = h;
 }
 
+void sim_follow_snaps(struct sim *s, int on)
+{
+	int any = 0;
+	for (size_t i = 0; i < s->ndev; i++)
+		any |= s->dev[i].kind == SD_D && s->dev[i].dm->tt > 0;
+	s->o.snaps = on && any;
+	if (s->o.snaps) {
+		/* the history restarts as after a corner: a backward-Euler step
+		   ends the trapezoidal rule's flip of a stored charge's current
+		   (harmless at the looser tolerance, it would hold the error
+		   estimate at the tighter one to ever shorter steps) */
+		s->after_corner = 1;
+		s->nhist = 0;
+	}
+}
+
 /* 1 when every repeating source's period divides period: only then is
  * one period of the transient the same map wherever it starts. */
 static int one_map(const struct sim *s, double period)
