@@ -46,9 +46,7 @@ struct sim_opts {
 			      SIM_SLOW_RATIO times the shortest period of the
 			      other sources is held at its second level after
 			      its first rise (sim_held) */
-	int snaps;         /* every diode with a transit time is followed
-			      through its snap-off (sim.c's snap_step); set
-			      for the measured period (sim_follow_snaps) */
+	int fine;          /* the measured period's finer steps (sim_fine_period) */
 };
 
 /* How much slower than the fastest source a PULSE must be to be held. */
@@ -155,19 +153,23 @@ int sim_has_oneshot(const struct sim *s);
 /* The largest time step from here on, s (> 0). */
 void sim_set_max_step(struct sim *s, double h);
 
-/* From here on (on non-zero), each diode with a transit time is followed
- * through its snap-off: the steps find the instant its stored charge runs
- * out under a reverse current, where a ring into its junction starts. */
-void sim_follow_snaps(struct sim *s, int on);
+/* From here on (on non-zero), in a circuit with diodes, the steps are
+ * those of the measured period: the error estimate and each junction's
+ * Newton test at SIM_FINE_RELTOL, each diode with a transit time followed
+ * through its snap-off (the instant its stored charge runs out under a
+ * reverse current, where a ring into its junction starts), and the steps
+ * after a corner kept short until the estimate checks them
+ * (docs/solver.md, "The measured period"). */
+void sim_fine_period(struct sim *s, int on);
 
 struct sim_stats {
 	unsigned long points, rejected, newton, fresh_lu, refactor_lu;
 	size_t unknowns;
 	unsigned long jumps; /* sim_settle: shooting-Newton periods that
 				started from a new trial state */
-	unsigned long relaxed; /* steps that following snap-offs could not
-				  take at its tighter tolerance
-				  (sim_follow_snaps), taken at the run's own */
+	unsigned long relaxed; /* steps the measured period could not take at
+				  its tighter tolerance (sim_fine_period),
+				  taken at the run's own */
 	double residual;   /* sim_settle: the last period's change of the state,
 			      relative to its largest value */
 	double settled_from; /* sim_settle: when the sources' non-repeating

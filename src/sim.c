@@ -783,9 +783,9 @@ static double across_x(const double *x, long a, long b)
 }
 
 /* Newton has converged when no unknown moved by more than reltol of its
- * size plus the absolute tolerance. Following snaps (sim_follow_snaps),
+ * size plus the absolute tolerance. In the measured period (sim_fine_period),
  * each capacitor's and junction's own voltage, and each junction's
- * current, must also have settled to SIM_SNAP_RELTOL (as SPICE's own
+ * current, must also have settled to SIM_FINE_RELTOL (as SPICE's own
  * test on a diode's current): their charges feed the truncation error at
  * that tolerance, while a node's level against ground can carry the noise of a
  * floating network's common mode (1 Mohm against nanosecond steps). */
@@ -797,9 +797,9 @@ static int converged(const struct sim *s, const double *xn)
 		if (fabs(xn[k] - s->x[k]) > tol)
 			return 0;
 	}
-	if (!s->o.snaps)
+	if (!s->o.fine)
 		return 1;
-	double rel = fmin(s->o.reltol, SIM_SNAP_RELTOL);
+	double rel = fmin(s->o.reltol, SIM_FINE_RELTOL);
 	for (size_t i = 0; i < s->ndev; i++) {
 		const struct simdev *d = &s->dev[i];
 		if (d->kind != SD_C && d->kind != SD_D)
@@ -894,7 +894,7 @@ static double kink_step(const struct simdev *d, double h, double tol)
 static double lte_step(const struct sim *s, double h)
 {
 	double best = INFINITY;
-	double rel = s->o.snaps ? fmin(s->o.reltol, SIM_SNAP_RELTOL) : s->o.reltol;
+	double rel = s->o.fine ? fmin(s->o.reltol, SIM_FINE_RELTOL) : s->o.reltol;
 	for (size_t i = 0; i < s->ndev; i++) {
 		const struct simdev *d = &s->dev[i];
 		if (d->kind != SD_C && d->kind != SD_D && d->kind != SD_L)
@@ -1035,7 +1035,7 @@ static double snap_step(const struct sim *s, double h)
 	double hs = INFINITY;
 	for (size_t i = 0; i < s->ndev; i++) {
 		const struct simdev *d = &s->dev[i];
-		if (!s->o.snaps || d->kind != SD_D || d->dm->tt <= 0 || d->f0 >= 0)
+		if (!s->o.fine || d->kind != SD_D || d->dm->tt <= 0 || d->f0 >= 0)
 			continue;
 		double q0 = d->dm->tt * simdev_junction_current(d, s->xprev);
 		double q1 = d->dm->tt * simdev_junction_current(d, s->x);
@@ -1047,7 +1047,7 @@ static double snap_step(const struct sim *s, double h)
 	return fmax(hs * 1.001, s->o.max_step * SIM_SW_RESOLVE);
 }
 
-/* Following snaps, a step the tighter tolerance cannot take: Newton
+/* In the measured period, a step its tighter tolerance cannot take: Newton
  * stalls at the steps it asks for (a floating network's level, a junction
  * cycling between two iterates at picosecond steps), or the estimate asks
  * for ever shorter steps (a switch that closed onto a capacitor within the
@@ -1056,9 +1056,9 @@ static double snap_step(const struct sim *s, double h)
  * there is nothing to relax. */
 static int relax(struct sim *s, double h0)
 {
-	if (!s->o.snaps)
+	if (!s->o.fine)
 		return 0;
-	s->o.snaps = 0;
+	s->o.fine = 0;
 	s->after_corner = 1;
 	s->hstep = fmax(h0, s->o.max_step * SIM_RELAX_STEP);
 	s->st.relaxed++;
@@ -1096,17 +1096,17 @@ static enum sim_status take_step(struct sim *s, double t_end)
 			s->after_corner = hits;
 			if (hits)
 				s->nhist = 0;
-			/* following snaps, the steps the error estimate does
-			   not yet check (the first three after a corner) do
-			   not grow */
-			s->hstep = fmin(s->o.snaps && s->nhist < 3 && !hits ? h : 2 * h, allowed);
+			/* in the measured period the steps the error estimate
+			   does not yet check (the first three after a corner)
+			   do not grow */
+			s->hstep = fmin(s->o.fine && s->nhist < 3 && !hits ? h : 2 * h, allowed);
 			ringing(s, ring, h);
 			if (hits) {
 				/* as SPICE: a tenth of the way to the next corner
 				   (an edge's rise), so what the corner sets off is
 				   followed from its start */
 				double next = next_corner(s);
-				s->hstep = fmin(s->hstep, s->o.max_step / (s->o.snaps ? 100 : 10));
+				s->hstep = fmin(s->hstep, s->o.max_step / (s->o.fine ? 100 : 10));
 				if (isfinite(next) && next > s->t)
 					s->hstep = fmin(s->hstep, fmax((next - s->t) / 10, hmin * 10));
 			}
@@ -1123,9 +1123,9 @@ static enum sim_status take_step(struct sim *s, double t_end)
 
 static enum sim_status step(struct sim *s, double t_end)
 {
-	int snaps = s->o.snaps;
+	int fine = s->o.fine;
 	enum sim_status r = take_step(s, t_end);
-	s->o.snaps = snaps;
+	s->o.fine = fine;
 	return r;
 }
 

@@ -20,12 +20,12 @@ struct sim_sens {
 	int broken;              /* a solve failed: the sensitivities are void */
 };
 
-/* The relative tolerance of the measured period (sim_follow_snaps): a
+/* The relative tolerance of the measured period (sim_fine_period): a
  * snap's ring is set within nanoseconds by the charge the recovery left,
  * and at 1e-3 or 1e-4 the rings that follow a 60 Hz rectifier's snap
  * re-trigger conduction at the wrong instants and run on for tens of
  * microseconds (docs/solver.md, "The measured period"). */
-#define SIM_SNAP_RELTOL 1e-5
+#define SIM_FINE_RELTOL 1e-5
 
 struct sim {
 	struct hr_alloc h;

@@ -160,13 +160,13 @@ void sim_set_max_step(struct sim *s, double h)
 		s->o.max_step = h;
 }
 
-void sim_follow_snaps(struct sim *s, int on)
+void sim_fine_period(struct sim *s, int on)
 {
 	int any = 0;
 	for (size_t i = 0; i < s->ndev; i++)
-		any |= s->dev[i].kind == SD_D && s->dev[i].dm->tt > 0;
-	s->o.snaps = on && any;
-	if (s->o.snaps) {
+		any |= s->dev[i].kind == SD_D;
+	s->o.fine = on && any;
+	if (s->o.fine) {
 		/* the history restarts as after a corner: a backward-Euler step
 		   ends the trapezoidal rule's flip of a stored charge's current
 		   (harmless at the looser tolerance, it would hold the error

@@ -164,7 +164,7 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 		struct writer w = {out, p, n, from};
 		write_row(&w, sim_time(s), sim_voltages(s));
 		if (o->until <= 0)
-			sim_follow_snaps(s, 1);
+			sim_fine_period(s, 1);
 		r->status = sim_run(s, end, write_row, &w);
 	}
 	finish(s, r);
@@ -491,7 +491,7 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 			flow_start(e.fw, s, np);
 		track(&e, sim_time(s), sim_voltages(s));
 		double t0 = sim_time(s);
-		sim_follow_snaps(s, 1);
+		sim_fine_period(s, 1);
 		r->status = sim_run(s, t0 + span, track, &e);
 		if (e.fw)
 			flow_end(e.fw, np, sim_time(s) - e.t0);

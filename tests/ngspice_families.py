@@ -543,28 +543,12 @@ def family(name):
 # clamp's level shares with its rail: docs/check.md, "Correlated offsets")
 KNOWN_LOOSE = {}
 _LOOSE_FILES = {
-    "f09_b13_dc_restorer_10pct_duty.cir": (
-        ("cl", "d1"),
-        "a DC restorer on a 10 % duty pulse: the crest between the solver's points (docs/"
-        "solver.md) takes the pulse's rising edge caught by the clamp diode for a crest, 0.27 V "
-        "over the highest point, and the load capacitor and the diode come out at 13.65 V "
-        "(13.31 V without that estimate; ngspice 12.99 V with near-ideal diodes, 12.27 V as "
-        "modelled): four points do not tell that kink from a sine's crest sampled seven times "
-        "a period"),
     "f09_b4_offset_sine_clamp_ref_range.cir": (
         ("d1",),
         "VREF is declared to wander over 4.5..5.5 V (*@source min= max=): the proof takes "
         "the capacitor charged at the band's top while the rail sits at its bottom "
         "(docs/check.md), one volt more than this reference, which holds the rail fixed "
         "at either end"),
-    "f09_b2_narrow_spike_zener.cir": (
-        ("c1", "dz"),
-        "a 200 ns spike every 1 ms: the solver's default steps overshoot the zener's "
-        "corner by 1 V (17.6 V with 2 ns steps)"),
-    "f10_b2_relay_flyback_zener.cir": (
-        ("d1",),
-        "after the flyback the diode's cathode floats, held by leakage and junction "
-        "capacitance; the bound is the flyback level"),
     "f10_b6_quadrupler_xfmr_leakage.cir": (
         ("c1", "c2", "d1"),
         "a ladder behind 0.59 mH of leakage inductance with a 50 Mohm load: the nearly-ideal "
@@ -581,18 +565,6 @@ _LOOSE_FILES = {
         "the proof leaves out the 22 ohm load's 0.6 A drop across the adapter's 0.5 ohm and "
         "its diode (out at 13.2 V, ngspice 12.6 V); a diode OR is no structure the "
         "loaded-output tightening takes"),
-    "f10_b7_relay_coil_zener_clamp.cir": (
-        ("d1",),
-        "the flyback clamp's diode after the coil's ring is caught by the body diode: the "
-        "solver gives 27.7 V before its 0.5 % margin, ngspice 26.8 V (the clamp node's "
-        "6 us decay crossed in longer steps)"),
-    "f04_b17_tripler_pulse_10pct_small_pump.cir": (
-        ("d2", "d3"),
-        "a tripler on 100 ns edges whose 4.7 nF pump hands its charge on within nanoseconds "
-        "of each edge's end: at reltol 1e-3 the solver's steps there (no error estimate "
-        "before four points past the edge) put 0.7 V too much on the output (48.43 V against "
-        "ngspice's 47.74 V; 47.74 V at reltol 1e-4) and 4 % on these two diodes (docs/"
-        "solver.md, \"Limits\")"),
     "f10_b2_hv_diode_string.cir": (
         ("d1", "d2", "d3"),
         "three series diodes with nothing at their joints: leakage and junction capacitance "
@@ -600,36 +572,11 @@ _LOOSE_FILES = {
         "692 V, its near-ideal one 824 / 547 / 818 V); each member is bounded by the string's "
         "whole reverse voltage up to its own BV, 1.01 kV (docs/check.md, \"Ungraded diode "
         "strings\")"),
-    "f10_b22_slow_diode_series_choke_50khz.cir": (
-        ("csn", "d1"),
-        "a slow rectifier (TT 300 ns) recovering into a 100 uH series choke with an RC "
-        "snubber: the spike's peak moves with the steps that cross it, in ngspice too "
-        "(55.0 V at a 5 ns step, the reference; 57.0 V at 50 ns, 55.6 V at 100 ns); the "
-        "solver's 56.6 V is 57.4 V with its 0.5 % margin"),
     "f02_b24_villard_floating_secondary_20khz.cir": (
         ("cy",),
         "the 470 pF from a floating secondary's low end to ground, whose DC level leaks "
         "through 10 Meg: ngspice's run did not settle in 4096 periods (4.7 V over its last "
         "eighth); the solver settles at 6.96 V"),
-    "f10_b24_flyback_square_primary_snubbed_diode.cir": (
-        ("do",),
-        "the output diode at the primary's edge, as the 0.97 coupling's leakage takes its "
-        "recovery: the trapezoidal rule zig-zags for two steps before the next is damped "
-        "(docs/solver.md, \"Ringing at the step\"), and a point of that zig-zag stands at "
-        "49.9 V where ngspice's ring peaks at 36.7 V; taking such points out was tried and "
-        "not kept"),
-    "f10_b25_nmos_solenoid_diode_zener_flyback.cir": (
-        ("d1",),
-        "after the flyback the diode's cathode floats on the zener's 1 Meg, held by leakage "
-        "and junction capacitance while the switch is on (as f10_b2's relay): 31.4 V for "
-        "ngspice's 29.5 V"),
-    "f07_b23_48v_pulse_diff_zener_then_detector.cir": (
-        ("ch", "d2"),
-        "a hold capacitor charged through a diode from a zener-clipped spike on a 1 us edge: "
-        "in the nearly-ideal run the steps just past the edge (no error estimate yet, docs/"
-        "solver.md, \"Limits\") carry the charging current on past the clip, the hold "
-        "overshoots to 17.4 V and its diode keeps it there (ngspice 12.6 V; 12.7 V with "
-        "those steps cut where the diode turns off, tried and not kept)"),
     "f01_b26_bridge_series_electrolytics_unequal_no_balancing.cir": (
         ("ca", "cb"),
         "two reservoir electrolytics in series with nothing at their joint (docs/check.md, "
@@ -641,14 +588,6 @@ _LOOSE_FILES = {
         "two diodes in series with nothing at their joint (docs/check.md, \"Ungraded diode "
         "strings\"): each member is bounded by the string's whole reverse voltage, 220.7 V; "
         "ngspice shares it 8 / 210 V as modelled and 73 / 146 V near-ideal"),
-    "f03_b8_cw_negative_totem_clock.cir": (
-        ("x1.d2", "x2.d2", "x3.d2"),
-        "each stage's second diode (TT 11.5 ns) as the totem pole's edge reverses it behind "
-        "22 ohm: where its stored charge runs out, the trapezoidal rule's charge current "
-        "flips sign for a step, and that step's point stands 1.2 V above the level the "
-        "diode then holds (17.7 V, ngspice 16.0 V as modelled, 16.5 V near-ideal); it shows "
-        "in the run with the diodes as modelled since the shooting's Newton steps take the "
-        "stored charge as fixed (docs/solver.md, \"Periodic steady state\", and Limits)"),
     "f09_b27_gate_drive_ac_coupled_restorer_to_neg3v_rail_100khz.cir": (
         ("cb",),
         "an AC-coupled gate drive's 1 uF blocking capacitor, whose far node also carries the "
@@ -690,38 +629,12 @@ for _f, (_parts, _why) in _LOOSE_FILES.items():
 # reason: a defect of the solver's, open and said so here and in
 # docs/solver.md ("Limits"); any other unsound part fails the test.
 KNOWN_UNSOUND = {
-    ("f01_b8_flyback_rcd_clamp.cir", "d1"):
-        "the flyback's output diode at the switch's turn-on: the spike depends on where "
-        "the primary's discontinuous-mode ring (0.73 MHz, with the snubber) stands at "
-        "turn-on, a phase the integration's error at reltol 1e-3 moves: 61.4 V for ngspice's "
-        "62.8 V (reltol 1e-5) at the high corner; 57.9 to 70.6 V with other step patterns, "
-        "ngspice 70.5 V at its own default reltol (docs/solver.md, Limits)",
-    ("f10_b22_floating_secondary_doubler_ycap.cir", "cps"):
-        "the 47 pF between the windings at the rectifiers' recovery inside the drive's 100 ns "
-        "edge: the solver's steps there (none shorter than a tenth of the edge after its "
-        "first) give 66.1 V before the 0.5 % margin, ngspice 66.7 V at a 10 ns step and "
-        "65.0 V to 65.6 V at its default steps (docs/solver.md, Limits)",
     ("f05_b24_aux_winding_bias_zener_65khz.cir", "da"):
         "a fast diode (TT 35 ns) recovering into a 0.95-coupled auxiliary winding's "
-        "leakage: the spike at its snap is sized by the steps that cross it (the solver "
-        "gives 63.6 V at its own steps, 85.3 V at 5 ns, 100.8 V at 1 ns; ngspice 95.6 V at "
-        "reltol 1e-5, 46.2 V near-ideal); a step limit of a tenth of the transit time while "
-        "a diode recovers was tried and not kept (docs/solver.md, Limits)",
-    ("f10_b24_flyback_diode_fed_primary_rcd_clamp.cir", "do"):
-        "the same recovery spike on a flyback's output diode (TT 35 ns): 223.5 V for "
-        "ngspice's 407.7 V as modelled (50.5 V near-ideal); 424.1 V with the recovery step "
-        "limit that was tried",
-    ("f05_b24_gate_xfmr_b2b_zener_30pct_200khz.cir", "dz1"):
-        "a back-to-back zener pair on a gate transformer's secondary: 13.05 V for ngspice's "
-        "13.08 V (16 mV, 0.1 %), the zener's slope at the pulse's crest current between the "
-        "solver's points",
-    ("f10_b25_boost_dcm_switch_node_ringing.cir", "d1"):
-        "a boost converter in discontinuous mode: when the inductor's current runs out, the "
-        "switch node rings (22 uH against 250 pF, Q near 1500) about the input for the rest "
-        "of the period; the ring's size is set in the one or two steps where the diode "
-        "stops conducting, which the solver takes at its 100 ns largest step, and it comes "
-        "out 7.2 V deep where ngspice (10 ns steps) has 8.1 V near-ideal and 8.7 V as "
-        "modelled: 15.45 V for 16.59 V (docs/solver.md, Limits)",
+        "leakage: the spike at its snap is sized by the steps that cross it; the measured "
+        "period follows the snap at reltol 1e-5 (docs/solver.md, \"The measured period\") "
+        "and gives 94.1 V for ngspice's 95.6 V at reltol 1e-5 (46.2 V near-ideal); at the "
+        "run's own tolerance the solver gave 63.6 V, 85.3 V at 5 ns steps, 100.8 V at 1 ns",
     ("f07_b25_opamp_peak_detector_diode_limited.cir", "dn"):
         "an op-amp's internal node overshoots when the hold diode turns on after slewing "
         "from the negative clamp; ngspice did not settle within its 4096 periods (its value "
@@ -736,10 +649,6 @@ KNOWN_UNSOUND.update({
         "over many periods (ngspice's real run gives 1.976 V after 20 periods, flat to "
         "4 mV, its near-ideal one 1.869 V); the solver's settled run at the same corner "
         "gives 1.849 V, 1.884 V with the margin, the near-ideal figure",
-    ("f05_b28_line_interface_tvs_ringer_cap_coupling_xfmr.cir", "dt2"):
-        "a TVS written as two back-to-back zeners whose joint floats: the 500 pF junctions "
-        "push the joint below the line's trough and only leakage pulls it back, over tens of "
-        "periods (ngspice's real run needed 40): 112.9 V for 113.1 V (0.2 %)",
 })
 
 # Parts known to get no number, each with its reason: the tool must still
