@@ -159,8 +159,11 @@ void sim_set_max_step(struct sim *s, double h);
  * through its snap-off (the instant its stored charge runs out under a
  * reverse current, where a ring into its junction starts), and the steps
  * after a corner kept short until the estimate checks them
- * (docs/solver.md, "The measured period"). */
-void sim_fine_period(struct sim *s, int on);
+ * (docs/solver.md, "The measured period"). They stop where the run has
+ * fewer than reserve Newton iterations of its allowance left, and the run
+ * goes on at its own tolerance (sim_stats' fine_cut). 1 when they were
+ * turned on. */
+int sim_fine_period(struct sim *s, int on, unsigned long reserve);
 
 struct sim_stats {
 	unsigned long points, rejected, newton, fresh_lu, refactor_lu;
@@ -170,6 +173,8 @@ struct sim_stats {
 	unsigned long relaxed; /* steps the measured period could not take at
 				  its tighter tolerance (sim_fine_period),
 				  taken at the run's own */
+	int fine_cut;        /* the measured period's finer steps ran out of
+				their share of the allowance */
 	double residual;   /* sim_settle: the last period's change of the state,
 			      relative to its largest value */
 	double settled_from; /* sim_settle: when the sources' non-repeating
@@ -179,6 +184,12 @@ struct sim_stats {
 			      to the next (0: it settled outright) */
 };
 void sim_stats(const struct sim *s, struct sim_stats *out);
+
+/* Where sim_settle stopped at the noise floor (sim_stats' noise): per node
+ * (as sim_voltages), the largest change of its level from one period's
+ * start to the next over the periods that showed it, in volts; NULL where
+ * the run settled outright. */
+const double *sim_node_noise(const struct sim *s);
 
 const char *sim_status_text(enum sim_status st);
 

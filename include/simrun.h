@@ -46,6 +46,9 @@ struct simrun_opts {
 				  to (docs/solver.md, "No repeating source") */
 	double *cap_end;       /* per part, or NULL: each capacitor's voltage
 				  where the run ends (simrun_peaks, _track) */
+	double *node_noise;    /* simrun_peaks: per node, or NULL: its noise
+				  floor (sim_node_noise), 0 where the run
+				  settled outright */
 	/* simrun_peaks: parts whose voltage (pin 0 minus pin 1) is sampled at
 	   trace_points even times over the recorded period (first and last
 	   included) into trace[k * trace_points + j] */
@@ -76,6 +79,9 @@ struct simrun_result {
 	uint32_t held;         /* first source held by hold_slow (NL_NONE:
 				  none), its period and width (s) */
 	double held_per, held_pw;
+	int coarse;            /* simrun_peaks: the measured period's finer
+				  steps failed, and the run was redone
+				  without them (sim_fine_period) */
 	struct sim_stats stats;
 };
 

@@ -1125,7 +1125,8 @@ static enum sim_status step(struct sim *s, double t_end)
 {
 	int fine = s->o.fine;
 	enum sim_status r = take_step(s, t_end);
-	s->o.fine = fine;
+	s->o.fine = fine && s->st.newton <= s->fine_end;
+	s->st.fine_cut |= fine && !s->o.fine;
 	return r;
 }
 

@@ -310,11 +310,20 @@ static int keep_flow(struct sb *b, const struct simrun_result *r, const char *na
 }
 
 /* A run settled at the solver's noise floor: its period's extremes may
- * be off by that much either way (sim_stats). */
-static void widen(double *vmin, double *vmax, size_t n, double noise)
+ * be off by that much either way (sim_stats), a two-pin part's by no more
+ * than its two nodes' levels moved between periods (sim_node_noise): the
+ * 1.2 V that a 700 V rail wanders is not a 39 V zener's beside it. */
+static void widen(const struct nl_circuit *c, double *vmin, double *vmax, size_t n,
+		  double noise, const double *node_noise)
 {
-	for (size_t i = 0; noise > 0 && i < n; i++)
-		vmin[i] -= noise, vmax[i] += noise;
+	for (size_t i = 0; noise > 0 && i < n; i++) {
+		const struct nl_part *p = nl_part_at(c, i);
+		const uint32_t *pin = nl_pins(c, p);
+		double w = noise;
+		if (node_noise && p->npins == 2)
+			w = fmin(noise, node_noise[pin[0]] + node_noise[pin[1]]);
+		vmin[i] -= w, vmax[i] += w;
+	}
 }
 
 /* One corner: with nearly ideal diodes (when asked) and as modelled;
@@ -389,17 +398,20 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 				 "; %.80s's PULSE (period %.3g s, width %.3g s) held at its second "
 				 "level after its rise, its fall not run",
 				 nl_part_at(c, r.held)->path, r.held_per, r.held_pw);
-		snprintf(buf, sizeof buf, "simulated, %.200s%s%s%s%s", name,
+		snprintf(buf, sizeof buf, "simulated, %.200s%s%s%s%s%s", name,
 			 b->ideal_only ? "; diodes nearly ideal (a device-level diode model)"
 				       : how[rising ? 2 : real],
 			 r.oneshot ? "; no source repeats: from switch-on through the sources' "
 				     "events to the settled state"
 				   : "",
-			 held, b->approx ? b->approx : "");
+			 held, b->approx ? b->approx : "",
+			 r.coarse ? "; its measured period at the run's own tolerance (the finer "
+				    "steps failed: docs/solver.md, \"The measured period\")"
+				  : "");
 		const char *corner = arena_strdup(b->ar, buf);
 		if (!corner)
 			return 0;
-		widen(b->vmin, b->vmax, np - 1, r.stats.noise);
+		widen(c, b->vmin, b->vmax, np - 1, r.stats.noise, b->o.node_noise);
 		take(b, corner, real);
 	}
 	return 1;
@@ -632,7 +644,8 @@ static int alloc_all(struct sb *b)
 	b->flow = arena_alloc(b->ar, np * sizeof *b->flow);
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
-	if (!dstring_find(c, b->ar, &b->ds) || !cstring_find(c, b->ar, &b->cs))
+	b->o.node_noise = arena_alloc(b->ar, nn * sizeof *b->o.node_noise);
+	if (!b->o.node_noise || !dstring_find(c, b->ar, &b->ds) || !cstring_find(c, b->ar, &b->cs))
 		return 0;
 	if (b->ds.n || b->cs.n) {
 		b->nmin = arena_alloc(b->ar, nn * sizeof *b->nmin);

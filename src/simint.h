@@ -55,6 +55,9 @@ struct sim {
 	uint32_t held;           /* first source held by hold_slow, or NL_NONE */
 	double held_per, held_pw;
 	struct sim_stats st;
+	double *node_noise;      /* sim_node_noise, or NULL */
+	unsigned long fine_end;  /* Newton iterations the finer steps may reach
+				    (sim_fine_period) */
 	struct sim_sens *sens;    /* shooting: sensitivities to track, or NULL */
 	/* called at every accepted step before its charges become the
 	   history (simpss.c sets it while shooting), or NULL */

@@ -160,7 +160,12 @@ void sim_set_max_step(struct sim *s, double h)
 		s->o.max_step = h;
 }
 
-void sim_fine_period(struct sim *s, int on)
+const double *sim_node_noise(const struct sim *s)
+{
+	return s->node_noise;
+}
+
+int sim_fine_period(struct sim *s, int on, unsigned long reserve)
 {
 	int any = 0;
 	for (size_t i = 0; i < s->ndev; i++)
@@ -173,7 +178,9 @@ void sim_fine_period(struct sim *s, int on)
 		   estimate at the tighter one to ever shorter steps) */
 		s->after_corner = 1;
 		s->nhist = 0;
+		s->fine_end = s->o.max_work > reserve ? s->o.max_work - reserve : 0;
 	}
+	return s->o.fine;
 }
 
 /* 1 when every repeating source's period divides period: only then is
@@ -523,6 +530,8 @@ static enum sim_status try_shooting(struct sim *s, double period, double tol,
  * (sim_stats), which the numbers taken from it must allow for. */
 struct noise {
 	double *anchor;  /* the state at the window's start */
+	double *vprev;   /* each node's level at the last period's start */
+	double *vlargest; /* each node's largest change in the window (V) */
 	double largest;  /* the largest change in the window (relative) */
 	double path;     /* the sum of the window's changes */
 	double last;     /* the change before this one */
@@ -542,12 +551,15 @@ static int noise_floor(struct sim *s, struct noise *w, const double *now, double
 	}
 	if (w->n == 0) {
 		memcpy(w->anchor, now, s->ndev * sizeof *now);
+		memset(w->vlargest, 0, s->nnodes * sizeof *w->vlargest);
 		w->largest = 0;
 		w->path = 0;
 		w->ups = 0;
 		w->last = change;
 	}
 	w->largest = fmax(w->largest, change);
+	for (size_t k = 0; k < s->nnodes; k++)
+		w->vlargest[k] = fmax(w->vlargest[k], fabs(s->v[k] - w->vprev[k]));
 	w->path += change;
 	w->ups += change > w->last;
 	w->last = change;
@@ -560,6 +572,7 @@ static int noise_floor(struct sim *s, struct noise *w, const double *now, double
 	if (w->ups < PSS_WINDOW / 3 || !(net <= 2 * w->largest) || !(net < PSS_DRIFT * w->path))
 		return 0;
 	s->st.noise = w->largest * scale[0];
+	s->node_noise = w->vlargest;
 	return 1;
 }
 
@@ -595,12 +608,15 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 	s->st.residual = NAN;
 	int may_shoot = !s->o.no_shooting && one_map(s, period);
 	unsigned since = 0, next_shot = 1, shots = 0, plain = 0;
-	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor), 0, 0, 0, 0, 0};
+	struct noise nf = {arena_alloc(s->ar, (s->ndev + 1) * sizeof *nf.anchor),
+			   arena_alloc(s->ar, (s->nnodes + 1) * sizeof *nf.vprev),
+			   arena_alloc(s->ar, (s->nnodes + 1) * sizeof *nf.vlargest), 0, 0, 0, 0, 0};
 	double *snap = arena_alloc(s->ar, (s->ndev + 1) * sizeof *snap);
 	unsigned snap_at = 0; /* since, when snap was taken (0: none) */
-	if (!nf.anchor || !snap)
+	if (!nf.anchor || !nf.vprev || !nf.vlargest || !snap)
 		return SIM_OOM;
 	s->st.noise = 0;
+	s->node_noise = NULL;
 	enum sim_status r = sim_run(s, s->t, NULL, NULL);
 	state_of(s, now);
 	while (r == SIM_OK && *periods < max_periods) {
@@ -617,6 +633,7 @@ enum sim_status sim_settle(struct sim *s, double period, unsigned max_periods,
 			continue;
 		}
 		memcpy(prev, now, s->ndev * sizeof *prev);
+		memcpy(nf.vprev, s->v, s->nnodes * sizeof *nf.vprev);
 		r = sim_run(s, s->t + period, fn, ud);
 		++*periods, ++since, ++plain;
 		state_of(s, now);

@@ -141,6 +141,15 @@ static void finish(struct sim *s, struct simrun_result *r)
 	sim_destroy(s);
 }
 
+/* What the measured period keeps back from its finer steps: twice what a
+ * period took on average so far, to finish it at the run's own tolerance. */
+static unsigned long fine_reserve(const struct sim *s, const struct simrun_result *r)
+{
+	struct sim_stats st;
+	sim_stats(s, &st);
+	return 2 * st.newton / (r->periods ? r->periods : 1);
+}
+
 int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 	       size_t n, const struct simrun_opts *o, const struct hr_alloc *h,
 	       struct simrun_result *r, const char **bad)
@@ -164,7 +173,7 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 		struct writer w = {out, p, n, from};
 		write_row(&w, sim_time(s), sim_voltages(s));
 		if (o->until <= 0)
-			sim_fine_period(s, 1);
+			sim_fine_period(s, 1, fine_reserve(s, r));
 		r->status = sim_run(s, end, write_row, &w);
 	}
 	finish(s, r);
@@ -452,10 +461,14 @@ static void oneshot(struct sim *s, const struct simrun_opts *o, struct simrun_re
 		cap_voltages(e->c, s, o->cap_end);
 }
 
-void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
-		  const struct hr_alloc *h, double *vmin, double *vmax,
-		  double *node_min, double *node_max, struct simrun_result *r)
+/* simrun_peaks once, the measured period's finer steps asked for or not;
+ * 1 when they were taken and the run failed (a retry without them may
+ * not). */
+static int peaks_once(const struct nl_circuit *c, const struct simrun_opts *o,
+		      const struct hr_alloc *h, double *vmin, double *vmax,
+		      double *node_min, double *node_max, struct simrun_result *r, int fine)
 {
+	int retry = 0;
 	size_t np = nl_part_count(c), nn = nl_node_count(c);
 	for (size_t i = 0; i < np; i++)
 		vmin[i] = INFINITY, vmax[i] = -INFINITY;
@@ -470,6 +483,9 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 	struct sim *s = start(c, o, h, r, &pre);
 	if (cr)
 		cr->seen = 0;
+	const double *noise = s ? sim_node_noise(s) : NULL;
+	for (size_t k = 0; o->node_noise && k < nn; k++)
+		o->node_noise[k] = noise ? noise[k] : 0;
 	double *vprev = o->ntrace ? hr_malloc(h, (nn + 1) * sizeof *vprev) : NULL;
 	double *scratch = o->flow ? hr_malloc(h, 5 * (np + 1) * sizeof *scratch) : NULL;
 	struct flows fw = {NULL, o->flow, scratch, scratch + np + 1, scratch + 2 * (np + 1),
@@ -491,8 +507,9 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 			flow_start(e.fw, s, np);
 		track(&e, sim_time(s), sim_voltages(s));
 		double t0 = sim_time(s);
-		sim_fine_period(s, 1);
+		fine = fine && sim_fine_period(s, 1, fine_reserve(s, r));
 		r->status = sim_run(s, t0 + span, track, &e);
+		retry = fine && r->status != SIM_OK && r->status != SIM_OOM;
 		if (e.fw)
 			flow_end(e.fw, np, sim_time(s) - e.t0);
 		for (size_t k = 0; k < o->nprobe; k++)
@@ -507,6 +524,21 @@ void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
 	hr_free(h, pprev);
 	crests_free(h, cr);
 	finish(s, r);
+	return retry;
+}
+
+void simrun_peaks(const struct nl_circuit *c, const struct simrun_opts *o,
+		  const struct hr_alloc *h, double *vmin, double *vmax,
+		  double *node_min, double *node_max, struct simrun_result *r)
+{
+	if (!peaks_once(c, o, h, vmin, vmax, node_min, node_max, r, 1))
+		return;
+	struct sim_stats first = r->stats;
+	peaks_once(c, o, h, vmin, vmax, node_min, node_max, r, 0);
+	r->coarse = 1;
+	r->stats.points += first.points;
+	r->stats.rejected += first.rejected;
+	r->stats.newton += first.newton;
 }
 
 void simrun_track(const struct nl_circuit *c, const struct simrun_opts *o,

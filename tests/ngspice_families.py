@@ -572,11 +572,6 @@ _LOOSE_FILES = {
         "692 V, its near-ideal one 824 / 547 / 818 V); each member is bounded by the string's "
         "whole reverse voltage up to its own BV, 1.01 kV (docs/check.md, \"Ungraded diode "
         "strings\")"),
-    "f02_b24_villard_floating_secondary_20khz.cir": (
-        ("cy",),
-        "the 470 pF from a floating secondary's low end to ground, whose DC level leaks "
-        "through 10 Meg: ngspice's run did not settle in 4096 periods (4.7 V over its last "
-        "eighth); the solver settles at 6.96 V"),
     "f01_b26_bridge_series_electrolytics_unequal_no_balancing.cir": (
         ("ca", "cb"),
         "two reservoir electrolytics in series with nothing at their joint (docs/check.md, "
@@ -608,13 +603,6 @@ _LOOSE_FILES = {
         "first diode takes the clock's 5.5 V swing plus the band's 2 V (7.5 V); ngspice runs "
         "the rail fixed at each end, 4.6 V; the second, 5.5 V unloaded, carries the load's "
         "0.35 V drop through its 47 ohm in ngspice (5.15 V near-ideal)"),
-    "f02_b29_tube_amp_delon_b_plus_screen_zeners_bias_60hz.cir": (
-        ("cb2", "dzb"),
-        "the grid-bias rail's 39 V zener and its capacitor in a tube amplifier's supply: the "
-        "run settles at its noise floor, 1.24 V from one period to the next on the 700 V "
-        "B+, and every part's extremes are widened by that whole amount (docs/solver.md, "
-        "\"Periodic steady state\"), 40.45 V where the run itself gives 38.93 V and ngspice "
-        "38.94 V"),
     "f05_b30_triangle_diode_string_and_zener_limiters_50khz.cir": (
         ("d1", "d2", "d3", "d4", "d5", "d6"),
         "two strings of three diodes clipping a triangle each way, nothing at their joints "
