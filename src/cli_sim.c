@@ -120,13 +120,6 @@ static void summary(const struct sim_cli *c, const struct simrun_result *r)
 			r->settled ? "steady" : "NOT settled", r->periods, r->period);
 	else
 		fputs("; nothing repeats: use --until\n", stderr);
-	if (r->stats.fine_cut)
-		fputs("sim: the output period's finer steps used their share of the allowance; "
-		      "it was finished at the run's own tolerance\n", stderr);
-	if (r->stats.relaxed)
-		fprintf(stderr, "sim: %lu steps of the output period could not meet its tighter "
-				"tolerance and were taken at the run's own (docs/solver.md, "
-				"\"The measured period\")\n", r->stats.relaxed);
 }
 
 static int run(const struct sim_cli *c, struct nl_circuit *circ)

@@ -172,8 +172,6 @@ int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 		double end = o->until > 0 ? o->until : sim_time(s) + r->period;
 		struct writer w = {out, p, n, from};
 		write_row(&w, sim_time(s), sim_voltages(s));
-		if (o->until <= 0)
-			sim_fine_period(s, 1, fine_reserve(s, r));
 		r->status = sim_run(s, end, write_row, &w);
 	}
 	finish(s, r);
