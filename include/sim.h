@@ -113,6 +113,8 @@ double sim_diode_current(const struct sim *s, long k);
 
 /* The longest repetition period among the sources (0 if none repeats). */
 double sim_period(const struct sim *s);
+/* The shortest repetition period among the sources (0 if none repeats). */
+double sim_cycle(const struct sim *s);
 /* The time reached. */
 double sim_time(const struct sim *s);
 /* Node voltages at the time reached, indexed by node id (v[0] = 0). */
@@ -170,9 +172,6 @@ struct sim_stats {
 	size_t unknowns;
 	unsigned long jumps; /* sim_settle: shooting-Newton periods that
 				started from a new trial state */
-	unsigned long relaxed; /* steps the measured period could not take at
-				  its tighter tolerance (sim_fine_period),
-				  taken at the run's own */
 	int fine_cut;        /* the measured period's finer steps ran out of
 				their share of the allowance */
 	double residual;   /* sim_settle: the last period's change of the state,

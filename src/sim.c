@@ -30,6 +30,8 @@
 #define SIM_RELAX_STEP 1e-3 /* of the largest: a step retried at the run's own tolerance */
 #define SIM_SW_RESOLVE 1e-3 /* a switch's crossing found to this share of the largest step */
 #define SIM_RING_FLOOR 1e-6 /* no cut below this share of the largest step: damped instead */
+#define SIM_SNAP_FIRST 1e-6 /* of the largest: the backward-Euler steps after a snap, */
+#define SIM_SNAP_BE 3        /* this many of them */
 #define SIM_LCM_MAX 16      /* the longest common period taken, in longest source periods */
 
 
@@ -1047,6 +1049,24 @@ static double snap_step(const struct sim *s, double h)
 	return fmax(hs * 1.001, s->o.max_step * SIM_SW_RESOLVE);
 }
 
+/* 1 when, in the measured period, a diode's stored charge ran out within
+ * the step just solved while a reverse current drained it: its current
+ * stops there, and a trapezoidal step across that corner flips the
+ * charge's current from one step to the next (a flyback diode's
+ * recovery through a closing switch, ringing 6 V below ground). */
+static int snapped(const struct sim *s)
+{
+	for (size_t i = 0; s->o.fine && i < s->ndev; i++) {
+		const struct simdev *d = &s->dev[i];
+		if (d->kind != SD_D || d->dm->tt <= 0 || d->f0 >= 0)
+			continue;
+		if (d->dm->tt * simdev_junction_current(d, s->xprev) > SIM_CHGTOL &&
+		    simdev_junction_current(d, s->x) <= 0)
+			return 1;
+	}
+	return 0;
+}
+
 /* In the measured period, a step its tighter tolerance cannot take: Newton
  * stalls at the steps it asks for (a floating network's level, a junction
  * cycling between two iterates at picosecond steps), or the estimate asks
@@ -1061,7 +1081,6 @@ static int relax(struct sim *s, double h0)
 	s->o.fine = 0;
 	s->after_corner = 1;
 	s->hstep = fmax(h0, s->o.max_step * SIM_RELAX_STEP);
-	s->st.relaxed++;
 	return 1;
 }
 
@@ -1091,15 +1110,26 @@ static enum sim_status take_step(struct sim *s, double t_end)
 		if (r == SIM_OK && allowed >= 0.9 * h) {
 			if (s->on_step)
 				s->on_step(s, &st);
-			int ring = !be && rang(s);
+			int ring = !be && rang(s), snap = snapped(s);
 			accept(s, h);
-			s->after_corner = hits;
-			if (hits)
+			/* a snap is a corner of the charge's waveform: the steps
+			   after it are backward Euler, as after a source's, and
+			   enough of them to damp the junction's capacitance
+			   against the series resistance the current took (a
+			   mode of picoseconds, which trapezoidal steps flip) */
+			s->snap_be = snap ? SIM_SNAP_BE : s->snap_be > 0 ? s->snap_be - 1 : 0;
+			s->after_corner = hits || s->snap_be > 0;
+			if (hits || snap)
 				s->nhist = 0;
 			/* in the measured period the steps the error estimate
 			   does not yet check (the first three after a corner)
 			   do not grow */
 			s->hstep = fmin(s->o.fine && s->nhist < 3 && !hits ? h : 2 * h, allowed);
+			/* short enough that its damping leaves the ring the
+			   snap starts whole (100 ns into a 60 Hz winding's
+			   leakage) */
+			if (s->snap_be > 0)
+				s->hstep = fmin(s->hstep, s->o.max_step * SIM_SNAP_FIRST);
 			ringing(s, ring, h);
 			if (hits) {
 				/* as SPICE: a tenth of the way to the next corner
@@ -1168,6 +1198,19 @@ double sim_diode_current(const struct sim *s, long k)
 double sim_period(const struct sim *s)
 {
 	return s->period;
+}
+
+double sim_cycle(const struct sim *s)
+{
+	double lo = 0;
+	for (size_t i = 0; i < s->ndev; i++) {
+		if (!s->dev[i].src || s->dev[i].ac_k == 0) /* held at a value */
+			continue;
+		double per = simsrc_period(s->dev[i].src, &s->span);
+		if (per > 0 && (lo == 0 || per < lo))
+			lo = per;
+	}
+	return lo;
 }
 
 double sim_time(const struct sim *s)

@@ -407,7 +407,11 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			 held, b->approx ? b->approx : "",
 			 r.coarse ? "; its measured period at the run's own tolerance (the finer "
 				    "steps failed: docs/solver.md, \"The measured period\")"
-				  : "");
+			 : r.stats.fine_cut ? "; the end of its measured period at the run's own "
+					      "tolerance (the finer steps used up their share of "
+					      "the run's allowance: docs/solver.md, \"The measured "
+					      "period\")"
+					    : "");
 		const char *corner = arena_strdup(b->ar, buf);
 		if (!corner)
 			return 0;

@@ -45,6 +45,7 @@ struct sim {
 	double t, hstep;
 	int behav_time;          /* a behavioural source reads the time */
 	int after_corner;        /* next step is backward Euler */
+	int snap_be;             /* steps after a snap still backward Euler */
 	unsigned nhist;          /* accepted points in the error history */
 	double hprev;            /* the last accepted step */
 	double period;

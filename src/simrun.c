@@ -150,6 +150,21 @@ static unsigned long fine_reserve(const struct sim *s, const struct simrun_resul
 	return 2 * st.newton / (r->periods ? r->periods : 1);
 }
 
+/* The measured period's finer steps turned on (1 when they were), and a
+ * cycle of the fastest source run with them first, not tracked: the
+ * measured period (any whole period of the steady state) starts from
+ * their own state, not the settling steps' (a fast diode's recovery ring
+ * into leakage: docs/solver.md, "The measured period"). */
+static int lead_in(struct sim *s, struct simrun_result *r)
+{
+	if (!sim_fine_period(s, 1, fine_reserve(s, r)))
+		return 0;
+	double lead = fmin(r->period, sim_cycle(s));
+	if (lead > 0)
+		r->status = sim_run(s, sim_time(s) + lead, NULL, NULL);
+	return 1;
+}
+
 int simrun_csv(FILE *out, const struct nl_circuit *c, const char *const *names,
 	       size_t n, const struct simrun_opts *o, const struct hr_alloc *h,
 	       struct simrun_result *r, const char **bad)
@@ -491,7 +506,10 @@ static int peaks_once(const struct nl_circuit *c, const struct simrun_opts *o,
 	if (o->flow && !scratch)
 		r->status = SIM_OOM;
 	double *pprev = o->nprobe ? hr_malloc(h, o->nprobe * sizeof *pprev) : NULL;
-	if (s && r->status == SIM_OK && r->period <= 0 && o->until <= 0 && o->oneshot) {
+	int once = r->period <= 0 && o->until <= 0 && o->oneshot;
+	fine = s && r->status == SIM_OK && !once && (pprev || !o->nprobe) && fine &&
+	       lead_in(s, r);
+	if (s && r->status == SIM_OK && once) {
 		oneshot(s, o, r, &pre);
 	} else if (s && r->status == SIM_OK && (pprev || !o->nprobe)) {
 		double span = r->period > 0 ? r->period : o->until;
@@ -505,9 +523,7 @@ static int peaks_once(const struct nl_circuit *c, const struct simrun_opts *o,
 			flow_start(e.fw, s, np);
 		track(&e, sim_time(s), sim_voltages(s));
 		double t0 = sim_time(s);
-		fine = fine && sim_fine_period(s, 1, fine_reserve(s, r));
 		r->status = sim_run(s, t0 + span, track, &e);
-		retry = fine && r->status != SIM_OK && r->status != SIM_OOM;
 		if (e.fw)
 			flow_end(e.fw, np, sim_time(s) - e.t0);
 		for (size_t k = 0; k < o->nprobe; k++)
@@ -517,6 +533,7 @@ static int peaks_once(const struct nl_circuit *c, const struct simrun_opts *o,
 	} else if (s && r->status == SIM_OK) {
 		r->status = SIM_OOM;
 	}
+	retry = fine && r->status != SIM_OK && r->status != SIM_OOM;
 	hr_free(h, scratch);
 	hr_free(h, vprev);
 	hr_free(h, pprev);

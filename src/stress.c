@@ -191,12 +191,13 @@ static int across_nodes(const struct ctx *x, int k, uint32_t n0, uint32_t n1,
 	const struct prop_node *a = &r->nodes[n0], *b = &r->nodes[n1];
 	if (a->state != PS_RESOLVED || b->state != PS_RESOLVED || a->conflict || b->conflict)
 		return 0;
+	struct arena_mark m = arena_mark(x->ar); /* the difference is scratch */
 	const struct form *d = form_lin(x->ar, 1, a->f, -1, b->f);
-	if (!d)
-		return 0;
 	int exact;
-	form_range(&r->fc, d, lo, hi, &exact);
-	return 1;
+	if (d)
+		form_range(&r->fc, d, lo, hi, &exact);
+	arena_reset(x->ar, m);
+	return d != NULL;
 }
 
 static int across(const struct ctx *x, int k, const struct nl_part *p,
@@ -644,12 +645,13 @@ static double node_extreme(struct arena *ar, const struct prop_result *r, uint32
 	const struct prop_node *na = &r->nodes[a], *nb = &r->nodes[b];
 	if (na->state != PS_RESOLVED || nb->state != PS_RESOLVED)
 		return NAN;
+	struct arena_mark m = arena_mark(ar); /* the difference is scratch */
 	const struct form *d = form_lin(ar, 1, na->f, -1, nb->f);
 	int exact;
-	if (!d)
-		return NAN;
-	form_range(&r->fc, d, lo, hi, &exact);
-	return fmax(fabs(*lo), fabs(*hi));
+	if (d)
+		form_range(&r->fc, d, lo, hi, &exact);
+	arena_reset(ar, m);
+	return d ? fmax(fabs(*lo), fabs(*hi)) : NAN;
 }
 
 /* Conductance from node to settled nodes through resistors, and the
@@ -860,6 +862,19 @@ static int first_stage_diode(const struct ctx *x, uint32_t part)
 	return t->kind != TK_NETWORK && x->tpart_of[part]->stage <= 1;
 }
 
+/* Room for every stress the parts can give (a capacitor one, a diode its
+ * voltage and a surge), so that push never copies the list. */
+static int reserve(struct ctx *x, struct stress_result *out, size_t *cap)
+{
+	const struct nl_circuit *c = x->a->er.circuit;
+	size_t n = 0;
+	for (uint32_t i = 0; i < nl_part_count(c); i++)
+		n += nl_part_at(c, i)->kind == NL_C ? 1 : nl_part_at(c, i)->kind == NL_D ? 2 : 0;
+	out->s = n ? arena_alloc(x->ar, n * sizeof *out->s) : NULL;
+	*cap = out->s ? n : 0;
+	return out->s || !n;
+}
+
 static int push(struct ctx *x, struct stress_result *out, size_t *cap,
 		const struct stress *s)
 {
@@ -897,6 +912,8 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
 			return 0;
 	const struct nl_circuit *c = a->er.circuit;
 	size_t cap = 0, np = nl_part_count(c);
+	if (!reserve(&x, out, &cap))
+		return 0;
 	const struct stress **coupling = arena_zalloc(ar, (a->topo.n + 1) * sizeof *coupling);
 	if (!coupling)
 		return 0;

@@ -624,12 +624,6 @@ for _f, (_parts, _why) in _LOOSE_FILES.items():
 # reason: a defect of the solver's, open and said so here and in
 # docs/solver.md ("Limits"); any other unsound part fails the test.
 KNOWN_UNSOUND = {
-    ("f05_b24_aux_winding_bias_zener_65khz.cir", "da"):
-        "a fast diode (TT 35 ns) recovering into a 0.95-coupled auxiliary winding's "
-        "leakage: the spike at its snap is sized by the steps that cross it; the measured "
-        "period follows the snap at reltol 1e-5 (docs/solver.md, \"The measured period\") "
-        "and gives 94.1 V for ngspice's 95.6 V at reltol 1e-5 (46.2 V near-ideal); at the "
-        "run's own tolerance the solver gave 63.6 V, 85.3 V at 5 ns steps, 100.8 V at 1 ns",
     ("f07_b25_opamp_peak_detector_diode_limited.cir", "dn"):
         "an op-amp's internal node overshoots when the hold diode turns on after slewing "
         "from the negative clamp; ngspice did not settle within its 4096 periods (its value "
