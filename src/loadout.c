@@ -433,15 +433,13 @@ static int by_resistors(const struct audit *a, uint32_t n, const struct stress_o
 	return 0;
 }
 
-/* 1 when s's part lies outside every structure with a pin on o's output
- * (a Y capacitor from a bridge's output to ground) or on a node resistors
- * join to it (a pi filter's second capacitor): its proof rests on the
- * same unloaded output. */
+/* 1 when s's part has a pin on o's output (a Y capacitor from a bridge's
+ * output to ground) or on a node resistors join to it (a pi filter's
+ * second capacitor, the clamps of a pin the output feeds through a
+ * resistor): its proof rests on the same unloaded output. */
 static int on_output(const struct audit *a, const struct stress *s,
 		     const struct stress_output *o)
 {
-	if (s->structure >= 0)
-		return 0;
 	const struct nl_part *pt = nl_part_at(a->er.circuit, s->part);
 	const uint32_t *pin = nl_pins(a->er.circuit, pt);
 	for (uint32_t j = 0; j < pt->npins; j++)
@@ -452,19 +450,21 @@ static int on_output(const struct audit *a, const struct stress *s,
 
 int loadout_tighten(const struct audit *a, struct arena *ar, struct stress_result *sr)
 {
-	if (any_band(a))
-		return 1;
+	int band = any_band(a);
 	for (size_t k = 0; sr->st && k < a->topo.n; k++) {
 		const struct stress_output *o = &sr->st[k].out;
 		double ul = o->hi.unloaded, got = o->hi.max;
 		if (!o->loaded || !o->simulated || !isfinite(ul) || !isfinite(got) ||
 		    !(fabs(got) < fabs(ul) * (1 - LOADOUT_LOOSE_REL) - LOADOUT_LOOSE_ABS))
 			continue;
-		char buf[300];
+		char buf[400];
 		snprintf(buf, sizeof buf,
 			 "the proof leaves out the load, under which the output reaches %.4g V where "
-			 "the unloaded proof gives %.4g V: simulated under the load, the proof its ceiling",
-			 fabs(got), fabs(ul));
+			 "the unloaded proof gives %.4g V: simulated under the load, the proof its %s",
+			 fabs(got), fabs(ul),
+			 band ? "floor (a rail declared to move keeps its band in the proof; "
+				"the simulation runs the band's ends)"
+			      : "ceiling");
 		const char *why = arena_strdup(ar, buf);
 		if (!why)
 			return 0;
@@ -474,7 +474,12 @@ int loadout_tighten(const struct audit *a, struct arena *ar, struct stress_resul
 			    !stress_qty_is_voltage(s->qty) || s->unproven ||
 			    s->basis != SB_ANALYSIS || !isfinite(s->worst))
 				continue;
-			s->tighten = 1;
+			/* with a band the simulation is no ceiling under the
+			   proof (any_band), but a part whose stress grows as the
+			   output sags (a capacitor to a rail above it, a pin
+			   clamp the output feeds) can rise above it */
+			s->tighten = !band;
+			s->floor = band;
 			s->analytic = s->worst;
 			s->unproven = why;
 		}

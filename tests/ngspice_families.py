@@ -640,6 +640,25 @@ _LOOSE_FILES = {
         "capacitors on the short side of the secondary, 8.62 V from the nearly-ideal run "
         "against ngspice's 8.27 V near-ideal (0.01 V past the margin) and 7.7 V as "
         "modelled"),
+    "f06_b32_tach_rectifier_hold_into_adc_pin_clamped_3v3.cir": (
+        ("ch", "cpin", "d1", "dl"),
+        "a half-wave tach rectifier whose 2.2 ms bleed empties its hold between pulses, on a "
+        "3.3 V rail given as min= max=: the proof takes the hold at the crest (6 V, the pin "
+        "at the rail's top) and a rail declared to move keeps its proofs as floors "
+        "(docs/check.md); the simulated numbers, 2.0 V on the hold, stand only above them"),
+    "f07_b32_fast_decay_detector_hold_cap_to_5v_rail_100khz.cir": (
+        ("d1",),
+        "an envelope follower decaying through one period's time constant on a banded rail: "
+        "the proof adds the crest hold to the sine's trough (6.6 V) where the node has "
+        "decayed by then (5.08 V near-ideal); a banded rail keeps the proof as a floor"),
+    "f09_b32_3pct_duty_detector_into_pin_clamped_5v_rail.cir": (
+        ("ch", "d1"),
+        "a 3 % strobe that charges its hold only part way (5.6 V of 13.2 V) on a banded rail: "
+        "the proof takes the full pulse height, and a banded rail keeps it as a floor"),
+    "f09_b32_pulse_peak_hold_cap_to_12v_rail_mixed_corner.cir": (
+        ("d1",),
+        "a 25 % pulse that charges its bled hold only part way, on a banded 12 V rail: the "
+        "proof takes the full pulse top (6 V against 5.51 V near-ideal), kept as a floor"),
 }
 for _f, (_parts, _why) in _LOOSE_FILES.items():
     for _p in _parts:
