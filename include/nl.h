@@ -97,6 +97,9 @@ struct nl_extra {
 				      R/C/L valued by the circuit's state; K over
 				      more than two inductors or with a core */
 	int off;                   /* D: "off" */
+	double temp, dtemp;        /* temp=, dtemp= (degC), NaN when absent */
+	double tc1, tc2;           /* R, C: tc1=, tc2= (per degC), NaN when
+				      absent */
 	double w, l;               /* M: channel width and length (m), NaN
 				      when absent */
 	const struct nl_behav *behav; /* B, and E/G by value=: the expression

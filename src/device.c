@@ -131,10 +131,32 @@ static void set_mult(struct build *b, double m)
 
 /* key=value pairs shared by most elements: m= and ic=. Returns 1 if
  * consumed. */
+/* A key the circuit's temperature reads (thermal.c): temp=, dtemp=,
+ * tc1=, tc2=; NULL for another key. */
+static double *temperature_key(struct build *b, const struct deck_field *f)
+{
+	if (num_ieq(f->text, f->len, "temp"))
+		return &b->ext.temp;
+	if (num_ieq(f->text, f->len, "dtemp"))
+		return &b->ext.dtemp;
+	if (num_ieq(f->text, f->len, "tc1"))
+		return &b->ext.tc1;
+	if (num_ieq(f->text, f->len, "tc2"))
+		return &b->ext.tc2;
+	return NULL;
+}
+
 static int common_assign(struct build *b, const struct deck_field *f,
 			 enum dev_status *st)
 {
-	double v;
+	double v, *t = temperature_key(b, f);
+	if (t) {
+		if ((*st = const_value(b, f->value, &v)) == DEV_OK) {
+			*t = v;
+			b->has_ext = 1;
+		}
+		return 1;
+	}
 	if (num_ieq(f->text, f->len, "m")) {
 		if ((*st = const_value(b, f->value, &v)) == DEV_OK)
 			set_mult(b, v);
@@ -887,6 +909,7 @@ enum dev_status dev_build(const struct dev_scope *s,
 	b.part.loc = nl_loc_pack(card->loc);
 	b.ext.mult = 1.0;
 	b.ext.ic = NAN;
+	b.ext.temp = b.ext.dtemp = b.ext.tc1 = b.ext.tc2 = NAN;
 	b.ext.w = b.ext.l = NAN;
 	b.ext.ctrl_part[0] = b.ext.ctrl_part[1] = NL_NONE;
 	char letter = card->head[0];

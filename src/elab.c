@@ -7,6 +7,7 @@
 #include "infile.h"
 
 #include <errno.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -497,11 +498,103 @@ static void on_global(struct elab *el, const struct deck_card *c)
 /* Xyce groups its options by package (.options TIMEINT reltol=...); no
  * other simulator writes these words there (from memory), so an undecided
  * file that does is read as Xyce's. */
+/* A dot card's word as a number: a number, a {expression} or 'expression'
+ * over global parameters, or a parameter's name; NaN otherwise. */
+static double word_value(struct elab *el, const struct deck_field *f, struct diag_loc at)
+{
+	double v = scope_number(el, f);
+	if (isfinite(v) || f->kind != FIELD_ATOM || f->len == 0)
+		return v;
+	const char *t = f->text;
+	size_t n = f->len;
+	if (n >= 2 && ((t[0] == '{' && t[n - 1] == '}') || (t[0] == '\'' && t[n - 1] == '\''))) {
+		t++;
+		n -= 2;
+	}
+	int bad = 0;
+	const struct expr *e = parse_expr_text(t, n, at, el->scratch, el->d, &bad);
+	if (bad)
+		oom(el);
+	if (!e || !scope_eval_global(el, e, at, &v))
+		return NAN;
+	return v;
+}
+
+static void set_temp(struct elab *el, const struct deck_field *f, struct diag_loc at)
+{
+	double v = word_value(el, f, at);
+	if (isfinite(v) && v > -273.15) {
+		el->temp.temp = v;
+		el->temp.at = at;
+	} else {
+		diag_add(el->d, DIAG_ERROR, "temperature", at,
+			 "a temperature is a number of degrees Celsius above -273.15");
+	}
+}
+
+/* .temp T: one temperature, evaluated at the end (its parameters may come
+ * later). A list (SPICE2's several runs) takes its first, with a warning. */
+static void on_temp(struct elab *el, const struct deck_card *c)
+{
+	if (c->nfields == 0) {
+		diag_add(el->d, DIAG_ERROR, "temperature", c->loc, ".temp needs a temperature");
+		return;
+	}
+	if (!(el->temp_card = deck_card_clone(el->ar, c)))
+		oom(el);
+	if (c->nfields > 1)
+		diag_add(el->d, DIAG_WARNING, "temperature", c->loc,
+			 ".temp lists %u temperatures: headroom takes the first; check each "
+			 "with its own .temp", c->nfields);
+}
+
+static void eval_temp(struct elab *el)
+{
+	const struct deck_card *c = el->temp_card;
+	if (c)
+		set_temp(el, &c->fields[0], (struct diag_loc){c->loc.file, c->fields[0].line,
+							       c->fields[0].col});
+}
+
+/* key=value in a dot card read as words: "temp=60", or "temp", "=", "60". */
+static int option_value(const struct deck_card *c, uint32_t *i, const char *key, double *v)
+{
+	const struct deck_field *f = &c->fields[*i];
+	size_t k = strlen(key);
+	if (f->kind != FIELD_ATOM || f->len < k || !num_ieq(f->text, k, key))
+		return 0;
+	const char *p = f->text + k;
+	size_t n = f->len - k;
+	if (n > 1 && *p == '=')
+		return num_parse(p + 1, n - 1, v, NULL) == NUM_OK;
+	if (n == 0 && *i + 2 < c->nfields && c->fields[*i + 1].kind == FIELD_ATOM &&
+	    c->fields[*i + 1].len == 1 && c->fields[*i + 1].text[0] == '=') {
+		*i += 2;
+		return num_parse(c->fields[*i].text, c->fields[*i].len, v, NULL) == NUM_OK;
+	}
+	return 0;
+}
+
+static void option_temp(struct elab *el, const struct deck_card *c)
+{
+	for (uint32_t i = 0; i < c->nfields; i++) {
+		struct diag_loc at = {c->loc.file, c->fields[i].line, c->fields[i].col};
+		double v;
+		if (option_value(c, &i, "temp", &v)) {
+			el->temp.temp = v;
+			el->temp.at = at;
+		} else if (option_value(c, &i, "tnom", &v)) {
+			el->temp.tnom = v;
+		}
+	}
+}
+
 static void on_option(struct elab *el, const struct deck_card *c)
 {
 	static const char *const xyce[] = {"device", "timeint", "nonlin", "nonlin-tran",
 					   "linsol", "output", "restart", "hbint", "measure",
 					   "parser", "sensitivity", NULL};
+	option_temp(el, c);
 	if (c->nfields == 0 || c->fields[0].kind != FIELD_ATOM)
 		return;
 	for (int i = 0; xyce[i]; i++)
@@ -554,6 +647,7 @@ static void top_card(struct elab *el, const struct deck_card *c)
 	case CARD_GLOBAL: on_global(el, c); break;
 	case CARD_INCLUDE: on_include(el, c); break;
 	case CARD_OPTION: on_option(el, c); break;
+	case CARD_TEMP: on_temp(el, c); break;
 	case CARD_ANNOT: add_annot(el, c->head, "", c->loc); break;
 	case CARD_TITLE:
 		if (!el->title && !(el->title = arena_strdup(el->ar, c->head)))
@@ -608,6 +702,9 @@ static void finish_top(struct elab *el)
 	scope_link_controls(el);
 	if (!el->oom && !nl_finish(el->c))
 		oom(el);
+	eval_temp(el);
+	if (!el->oom && !thermal_apply(el->c, &el->temp, el->d))
+		oom(el);
 }
 
 static int elab_init(struct elab *el, const struct elab_opts *opts,
@@ -630,6 +727,7 @@ static int elab_init(struct elab *el, const struct elab_opts *opts,
 		el->o.max_nodes = 10000000;
 	el->hook = *hook;
 	el->d = d;
+	el->temp.temp = el->temp.tnom = NAN;
 	el->c = nl_create(hook);
 	el->scratch = arena_create(hook);
 	if (!el->c || !el->scratch)

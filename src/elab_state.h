@@ -13,6 +13,7 @@
 #include "dialect.h"
 #include "elab.h"
 #include "smap.h"
+#include "thermal.h"
 
 struct file_read;
 
@@ -102,6 +103,8 @@ struct elab {
 	size_t ncond, capcond;
 	enum dialect dialect;        /* chosen, or from the file's ending */
 	enum dialect seen;           /* from what the file holds (.options) */
+	struct thermal_deck temp;    /* .temp, .options temp= tnom= */
+	const struct deck_card *temp_card; /* the last .temp, read at the end */
 	unsigned resolving;          /* nesting of pending parameters being
 					resolved on lookup */
 	int oom, stop;
@@ -180,6 +183,9 @@ void scope_link_controls(struct elab *el);
 
 /* Evaluates e with global parameters; reports a failure at `at` and
  * returns 0. */
+/* A field's number: a number, or an expression over global parameters;
+ * NaN otherwise. */
+double scope_number(struct elab *el, const struct deck_field *v);
 int scope_eval_global(struct elab *el, const struct expr *e,
 		      struct diag_loc at, double *v);
 

@@ -317,6 +317,11 @@ static double model_value(struct elab *el, const struct deck_field *v)
 	return x;
 }
 
+double scope_number(struct elab *el, const struct deck_field *v)
+{
+	return model_value(el, v);
+}
+
 /* A flag word of a model card (VDMOS's pchan and nchan): kept as a
  * parameter of value 1. */
 static int is_flag(const struct deck_field *f)

@@ -4,7 +4,8 @@ same netlists (tests/data/sim: one per structure kind, both polarities, a
 transformer-driven doubler, a three-winding transformer with one tight and
 two loose couplings, a loaded ladder, a 1 MHz pump, a boost switched by a
 level-3 MOSFET, resistor-capacitor loads, a zener in breakdown, a pump fed from
-a supply switched on for seconds).
+a supply switched on for seconds, a zener clamp and detector at `.temp 100`
+whose diode models ngspice and headroom both move to that temperature).
 
 For each deck, `headroom sim` runs to its periodic steady state from zero
 initial conditions (shooting-Newton, docs/solver.md) and prints the last

@@ -6,6 +6,9 @@
 #include "testutil.h"
 
 #include <math.h>
+#include <string.h>
+
+#include "dmodel.h"
 #include <unistd.h>
 
 static void assert_close(double a, double b)
@@ -543,6 +546,46 @@ static void test_adjacency(void **state)
 	run_free(&r);
 }
 
+/* .temp, .options temp= tnom=, temp= and dtemp= on a diode, tc1= and tc2=
+ * on a resistor. The equations are those of the ngspice manual's diode
+ * model (its temperature section: IS through EG and XTI, BV - TCV dT) and
+ * resistor (R (1 + TC1 dT + TC2 dT^2)). */
+static void test_temperature(void **state)
+{
+	(void)state;
+	struct run r;
+	run_text(&r, "t\n.temp 100\nD1 a 0 dz\nD2 a 0 dz temp=27\nD3 a 0 dz dtemp=-73\n"
+		     "R1 a 0 1k tc1=1e-3 tc2=1e-6\nQ1 a b 0 qn\n"
+		     ".model dz d bv=12 tcv=0.008 is=1e-14\n.model qn npn\n");
+	assert_non_null(strstr(r.diags, "note: 1 diode taken at 100 degC"));
+	assert_non_null(strstr(r.diags, "warning: the solver keeps transistor models"));
+	assert_non_null(strstr(r.diags, "Q1 is simulated at 27 degC, not at 100 degC"));
+	const struct nl_model *m1 = find_part(&r, "D1")->model;
+	assert_close(dmodel_value(m1, DM_BV), 12 - 0.008 * 73);
+	double t = 373.15, vt = 1.380649e-23 * t / 1.602176634e-19, ratio = t / 300.15;
+	assert_close(dmodel_value(m1, DM_IS), 1e-14 * exp((ratio - 1) * 1.11 / vt) * pow(ratio, 3));
+	assert_close(dmodel_value(m1, DM_N), t / 300.15);
+	assert_close(dmodel_value(find_part(&r, "D2")->model, DM_BV), 12);
+	assert_ptr_equal(find_part(&r, "D3")->model, find_part(&r, "D2")->model);
+	assert_close(find_part(&r, "R1")->value, 1e3 * (1 + 1e-3 * 73 + 1e-6 * 73 * 73));
+	run_free(&r);
+
+	run_text(&r, "t\n.options reltol=1e-4 temp=60 tnom = 25\nD1 a 0 dz\n"
+		     ".model dz d bv=12 tcv=0.01\n");
+	assert_non_null(strstr(r.diags, "taken at 60 degC, its model measured at 25 degC"));
+	assert_close(dmodel_value(find_part(&r, "D1")->model, DM_BV), 12 - 0.01 * 35);
+	run_free(&r);
+
+	run_text(&r, "t\n.temp 0 85\nD1 a 0 dz\n.model dz d bv=12 tnom=0\n");
+	assert_non_null(strstr(r.diags, "warning: .temp lists 2 temperatures"));
+	assert_null(strstr(r.diags, "note:"));
+	run_free(&r);
+
+	run_text(&r, "t\n.temp -300\nD1 a 0 dz\n.model dz d\n");
+	assert_non_null(strstr(r.diags, "2:7: error: a temperature is a number"));
+	run_free(&r);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -562,6 +605,7 @@ int main(void)
 		cmocka_unit_test(test_dialect_reading),
 		cmocka_unit_test(test_adjacency),
 		cmocka_unit_test(test_file_changed_while_read),
+		cmocka_unit_test(test_temperature),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
