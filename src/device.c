@@ -275,6 +275,20 @@ static enum dev_status model_or_code(struct build *b, const struct deck_field *f
 static enum dev_status keep_value(struct build *b, uint32_t at, const struct deck_field *f,
 				  int current, int resistance);
 
+/* ngspice's tc=a[,b]: tc1 and, after a comma, tc2. Returns the fields
+ * taken after f (0 or 1). */
+static uint32_t tc_pair(struct build *b, const struct deck_field *f, const struct deck_field *next,
+			enum dev_status *st)
+{
+	if ((*st = const_value(b, f->value, &b->ext.tc1)) != DEV_OK)
+		return 0;
+	b->has_ext = 1;
+	if (!next || !next->comma || next->kind == FIELD_ASSIGN)
+		return 0;
+	*st = const_value(b, next, &b->ext.tc2);
+	return 1;
+}
+
 static enum dev_status build_rcl(struct build *b, char letter)
 {
 	enum dev_status st = take_nodes(b, 2);
@@ -294,8 +308,10 @@ static enum dev_status build_rcl(struct build *b, char letter)
 			if (st == DEV_OK && letter == 'r' && b->ext.behavioural)
 				st = keep_value(b, i, f->value, 1, 1);
 			have = 1;
+		} else if (f->kind == FIELD_ASSIGN && num_ieq(f->text, f->len, "tc")) {
+			i += tc_pair(b, f, f + 1 < b->card->fields + b->card->nfields ? f + 1 : NULL, &st);
 		} else if (f->kind == FIELD_ASSIGN) {
-			common_assign(b, f, &st); /* other keys: temperature etc. */
+			common_assign(b, f, &st); /* other keys: ignored */
 		} else if (f->kind != FIELD_ATOM) {
 			st = err_at(b, f, "unexpected field in a %s card", nl_kind_name(b->part.kind));
 		}

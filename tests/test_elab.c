@@ -555,7 +555,8 @@ static void test_temperature(void **state)
 	(void)state;
 	struct run r;
 	run_text(&r, "t\n.temp 100\nD1 a 0 dz\nD2 a 0 dz temp=27\nD3 a 0 dz dtemp=-73\n"
-		     "R1 a 0 1k tc1=1e-3 tc2=1e-6\nQ1 a b 0 qn\n"
+		     "R1 a 0 1k tc1=1e-3 tc2=1e-6\nR2 a 0 1k tc=1e-3,1e-6\nC2 a 0 1u tc=-2e-3\n"
+		     "Q1 a b 0 qn\n"
 		     ".model dz d bv=12 tcv=0.008 is=1e-14\n.model qn npn\n");
 	assert_non_null(strstr(r.diags, "note: 1 diode taken at 100 degC"));
 	assert_non_null(strstr(r.diags, "warning: the solver keeps transistor models"));
@@ -568,6 +569,8 @@ static void test_temperature(void **state)
 	assert_close(dmodel_value(find_part(&r, "D2")->model, DM_BV), 12);
 	assert_ptr_equal(find_part(&r, "D3")->model, find_part(&r, "D2")->model);
 	assert_close(find_part(&r, "R1")->value, 1e3 * (1 + 1e-3 * 73 + 1e-6 * 73 * 73));
+	assert_close(find_part(&r, "R2")->value, 1e3 * (1 + 1e-3 * 73 + 1e-6 * 73 * 73));
+	assert_close(find_part(&r, "C2")->value, 1e-6 * (1 - 2e-3 * 73));
 	run_free(&r);
 
 	run_text(&r, "t\n.options reltol=1e-4 temp=60 tnom = 25\nD1 a 0 dz\n"
