@@ -836,7 +836,8 @@ static void mutual_flux(struct sim *s)
 	}
 }
 
-static enum sim_status newton(struct sim *s, const struct simdev_step *st)
+static enum sim_status newton_pass(struct sim *s, const struct simdev_step *st, int hold,
+				   unsigned *flips)
 {
 	for (int it = 0; it < SIM_MAX_NEWTON; it++) {
 		int limited = 0;
@@ -847,7 +848,7 @@ static enum sim_status newton(struct sim *s, const struct simdev_step *st)
 			else if (s->dev[i].kind == SD_M)
 				simmos_stamp(&s->dev[i], s->m, s->x, &limited);
 			else if (s->dev[i].kind == SD_S)
-				simsw_stamp(&s->dev[i], s->m, s->x, &limited);
+				simsw_stamp(&s->dev[i], s->m, s->x, hold, &limited, flips);
 			else
 				simdev_stamp(&s->dev[i], st, s->m, s->x, &limited);
 		for (size_t k = 0; s->o.gshunt > 0 && k + 1 < s->nnodes; k++)
@@ -869,6 +870,20 @@ static enum sim_status newton(struct sim *s, const struct simdev_step *st)
 		}
 	}
 	return SIM_NO_CONVERGENCE;
+}
+
+/* Newton's iteration at one time point. A switch that its own control
+ * turns back and forth from iterate to iterate (a steep comparator on a
+ * voltage the switch itself sets: no state is consistent, and the real
+ * circuit chatters) is then held in the state it last took, for this
+ * point only; the next point decides afresh. */
+static enum sim_status newton(struct sim *s, const struct simdev_step *st)
+{
+	unsigned flips = 0;
+	enum sim_status r = newton_pass(s, st, 0, &flips);
+	if (r == SIM_NO_CONVERGENCE && flips > 2)
+		r = newton_pass(s, st, 1, &flips);
+	return r;
 }
 
 /* The step the local truncation error allows after a trapezoidal step of

@@ -58,14 +58,16 @@ static double at(const double *x, long k)
 	return k < 0 ? 0 : x[k];
 }
 
-void simsw_stamp(struct simdev *d, struct simmat *m, const double *x, int *limited)
+void simsw_stamp(struct simdev *d, struct simmat *m, const double *x, int hold, int *limited,
+		 unsigned *flips)
 {
 	const struct simsw *w = d->sw;
 	double v = at(x, d->c) - at(x, d->d);
-	double on = v > w->vt + w->vh ? 1 : v < w->vt - w->vh ? 0
-							      : d->q0;
-	if (on != d->q)
+	double on = hold ? d->q : v > w->vt + w->vh ? 1 : v < w->vt - w->vh ? 0 : d->q0;
+	if (on != d->q) {
 		*limited = 1;
+		++*flips;
+	}
 	d->q = on;
 	double g = on != 0 ? w->gon : w->goff;
 	simmat_add(m, d->h[0], g);

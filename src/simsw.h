@@ -30,8 +30,10 @@ int simsw_need(struct simdev *d, struct simmat *m);
 /* Stamps the switch in the state its control voltage at iterate x sets:
  * on above VT + VH, off below VT - VH, else as at the last accepted time
  * point (its q0). A state other than the last stamp's sets *limited, so
- * that Newton does not stop on it. */
-void simsw_stamp(struct simdev *d, struct simmat *m, const double *x, int *limited);
+ * that Newton does not stop on it, and counts one in *flips. With hold,
+ * the last stamp's state is kept whatever the control says. */
+void simsw_stamp(struct simdev *d, struct simmat *m, const double *x, int hold, int *limited,
+		 unsigned *flips);
 
 /* Where in the step from the accepted point xprev to x the control
  * voltage crossed the threshold that changed the switch's state, as a

@@ -704,13 +704,6 @@ KNOWN_MISSING = {
         "with the real model the ring after each recovery reaches the diode's 400 V "
         "breakdown (114 V with near-ideal diodes) and the solver's run does not repeat "
         "within 4000 periods, so nothing can be taken as its worst",
-    "f01_b25_ideal_diode_controller_switch_halfwave.cir":
-        "a half-wave rectifier whose Schottky a switch bypasses, closed by a steep tanh "
-        "comparator (gain 125 V/V) on the winding's EMF less the output: where the switch "
-        "opens under the first charge's current (4.64 ms), Newton fails at every step down "
-        "to the smallest, so the solver gives nothing (with RON 0.5 ohm instead of 0.05, or "
-        "a gain of 12.5, it settles in 5 to 7 periods); each part gets a stress-unsettled "
-        "warning",
 }
 
 
