@@ -526,6 +526,10 @@ static void set_temp(struct elab *el, const struct deck_field *f, struct diag_lo
 	if (isfinite(v) && v > -273.15) {
 		el->temp.temp = v;
 		el->temp.at = at;
+		if (v < -100 || v > 400)
+			diag_add(el->d, DIAG_WARNING, "temperature", at,
+				 "%g degC is outside the range semiconductor models are made for "
+				 "(-100..400 degC): the moved models are extrapolated", v);
 	} else {
 		diag_add(el->d, DIAG_ERROR, "temperature", at,
 			 "a temperature is a number of degrees Celsius above -273.15");
@@ -556,7 +560,8 @@ static void eval_temp(struct elab *el)
 							       c->fields[0].col});
 }
 
-/* key=value in a dot card read as words: "temp=60", or "temp", "=", "60". */
+/* key=value in a dot card read as words: "temp=60", or "temp", "=", "60".
+ * 1 with *v set (NaN when the value is no number), 0 for another key. */
 static int option_value(const struct deck_card *c, uint32_t *i, const char *key, double *v)
 {
 	const struct deck_field *f = &c->fields[*i];
@@ -565,12 +570,21 @@ static int option_value(const struct deck_card *c, uint32_t *i, const char *key,
 		return 0;
 	const char *p = f->text + k;
 	size_t n = f->len - k;
-	if (n > 1 && *p == '=')
-		return num_parse(p + 1, n - 1, v, NULL) == NUM_OK;
-	if (n == 0 && *i + 2 < c->nfields && c->fields[*i + 1].kind == FIELD_ATOM &&
+	*v = NAN;
+	if (n > 0 && *p == '=') {
+		if (n > 1 && num_parse(p + 1, n - 1, v, NULL) != NUM_OK)
+			*v = NAN;
+		return 1;
+	}
+	if (n == 0 && *i + 1 < c->nfields && c->fields[*i + 1].kind == FIELD_ATOM &&
 	    c->fields[*i + 1].len == 1 && c->fields[*i + 1].text[0] == '=') {
-		*i += 2;
-		return num_parse(c->fields[*i].text, c->fields[*i].len, v, NULL) == NUM_OK;
+		*i += 1;
+		if (*i + 1 < c->nfields) {
+			*i += 1;
+			if (num_parse(c->fields[*i].text, c->fields[*i].len, v, NULL) != NUM_OK)
+				*v = NAN;
+		}
+		return 1;
 	}
 	return 0;
 }
@@ -580,10 +594,14 @@ static void option_temp(struct elab *el, const struct deck_card *c)
 	for (uint32_t i = 0; i < c->nfields; i++) {
 		struct diag_loc at = {c->loc.file, c->fields[i].line, c->fields[i].col};
 		double v;
-		if (option_value(c, &i, "temp", &v)) {
+		int temp = option_value(c, &i, "temp", &v), tnom = !temp && option_value(c, &i, "tnom", &v);
+		if ((temp || tnom) && !(isfinite(v) && v > -273.15)) {
+			diag_add(el->d, DIAG_ERROR, "temperature", at,
+				 "a temperature is a number of degrees Celsius above -273.15");
+		} else if (temp) {
 			el->temp.temp = v;
 			el->temp.at = at;
-		} else if (option_value(c, &i, "tnom", &v)) {
+		} else if (tnom) {
 			el->temp.tnom = v;
 		}
 	}

@@ -587,6 +587,14 @@ static void test_temperature(void **state)
 	run_text(&r, "t\n.temp -300\nD1 a 0 dz\n.model dz d\n");
 	assert_non_null(strstr(r.diags, "2:7: error: a temperature is a number"));
 	run_free(&r);
+
+	run_text(&r, "t\n.options temp=abc\nD1 a 0 dz\n.model dz d\n");
+	assert_non_null(strstr(r.diags, "2:10: error: a temperature is a number"));
+	run_free(&r);
+
+	run_text(&r, "t\n.temp 600\nD1 a 0 dz\n.model dz d\n");
+	assert_non_null(strstr(r.diags, "2:7: warning: 600 degC is outside the range"));
+	run_free(&r);
 }
 
 int main(void)
