@@ -203,6 +203,7 @@ struct stress_struct {
 	double load_r;          /* resistance from the output to settled nodes */
 	double droop_v;         /* clamp: droop per period under the load */
 	double droop_frac;      /* droop / swing */
+	double droop_c;         /* clamp: the coupling capacitance droop_v used */
 	double ladder_i;        /* ladder: load current at the ideal output */
 	double ladder_c;        /* smallest stage capacitance */
 	double ladder_drop;     /* published regulation formulas */
@@ -328,6 +329,13 @@ int stress_run(const struct audit *a, const struct rating *r, const struct profi
  * whole (a PULSE or PWL: its levels move together, so a level at 0 V
  * stays at 0 V); a SIN's offset and swing are toleranced apart. */
 int stress_scales_whole(const struct nl_part *p);
+
+/* A clamp's droop is figured from the analysis's voltage on its coupling
+ * capacitor; where that capacitor's number is the solver's instead (or
+ * none), the droop is figured again from that number (or dropped: a
+ * droop on an unsettled voltage says nothing). Call once the simulated
+ * numbers are in. */
+void stress_refigure_droop(struct stress_result *sr);
 
 /* Source tolerance used for part (annotation, --source-tol, profile). */
 double stress_tolerance(const struct audit *a, const struct profile *p,

@@ -779,6 +779,7 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 			if (!isnan(node_extreme(x->ar, &x->runs[k], t->output, t->drive, &lo, &hi)))
 				vcap = fmax(vcap, fmax(fabs(lo), fabs(hi)));
 		(void)coupling;
+		f->droop_c = c;
 		f->droop_v = vcap * f->period / (f->load_r * c);
 		f->droop_frac = f->swing > 0 ? f->droop_v / f->swing : 0;
 	}
@@ -790,6 +791,21 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 		f->ladder_drop = k * (2 * n * n * n / 3 + n * n / 2 - n / 6);
 		f->ladder_ripple = k * n * (n + 1) / 2;
 		f->ladder_nopt = f->ladder_i > 0 ? sqrt(f->swing / 2 * fq * f->ladder_c / f->ladder_i) : INFINITY;
+	}
+}
+
+void stress_refigure_droop(struct stress_result *sr)
+{
+	for (size_t i = 0; i < sr->n; i++) {
+		const struct stress *s = &sr->s[i];
+		if (s->structure < 0 || s->role_kind != TR_COUPLING_CAP || s->qty != SQ_VOLTAGE ||
+		    s->basis == SB_ANALYSIS)
+			continue;
+		struct stress_struct *f = &sr->st[s->structure];
+		if (!(f->droop_c > 0) || !(f->load_r > 0))
+			continue;
+		f->droop_v = s->bounded ? s->worst * f->period / (f->load_r * f->droop_c) : 0;
+		f->droop_frac = f->swing > 0 ? f->droop_v / f->swing : 0;
 	}
 }
 

@@ -296,6 +296,27 @@ static enum dev_status step(struct wave_rd *r)
 	return err(r, f, "unexpected word in a source card");
 }
 
+/* PULSE with a width of 0: SPICE3 takes a zero width as TSTOP (ngspice's
+ * manual gives TSTOP as the default, and ngspice-39 replaces a zero by it:
+ * checked by simulation), so the pulse stays at V2 from the end of its rise
+ * to the end of its period and falls at once when the next period starts.
+ * LTspice reads the zero as it is. Read as the deck's simulator reads it,
+ * with a warning: a designer who wrote it meant a sawtooth or a triangle. */
+static void pulse_zero_width(struct wave_rd *r)
+{
+	struct nl_source *src = r->src;
+	if (src->wave != NL_WAVE_PULSE || src->nargs < 7 || src->args[5] != 0 ||
+	    !(src->args[6] > 0) || r->s->dialect == DIALECT_LTSPICE)
+		return;
+	double tr = src->args[3] > 0 ? src->args[3] : 0;
+	src->args[5] = src->args[6] > tr ? src->args[6] - tr : 0;
+	diag_add(r->d, DIAG_WARNING, "source", r->card->loc,
+		 "PULSE with a width of 0: SPICE3 and ngspice read it as TSTOP, so the pulse "
+		 "holds its second level from the end of its rise to the end of its period and "
+		 "drops at once, its fall time unused; headroom reads it so (LTspice reads 0 as "
+		 "0). For a sawtooth or a triangle, give the width a small value");
+}
+
 enum dev_status wave_parse(const struct dev_scope *s,
 			   const struct deck_card *card, uint32_t start,
 			   struct arena *ar, struct diag_sink *d,
@@ -311,6 +332,7 @@ enum dev_status wave_parse(const struct dev_scope *s,
 		if (st != DEV_OK)
 			return st;
 	}
+	pulse_zero_width(&r);
 	*out = r.src;
 	return DEV_OK;
 }

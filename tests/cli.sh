@@ -950,12 +950,32 @@ assert all(abs(v - 1 / 3) < 1e-6 for v in late), late[:3]
 
 # Class-2 ceramics under DC bias: droop uses the capacitance the c_bias curve
 # leaves at the part's worst voltage (11 V on a 0 V=100 %, 16 V=10 % line:
-# 38.1 %). Droop = Vcap T / (R C), docs/design.md §6.
+# 38.1 %). Droop = Vcap T / (R C), docs/design.md §6, with Vcap the coupling
+# capacitor's own number: the solver's 11.02 V here (the analysis's 11 V
+# does not hold: the load feeds AC into the clamp node, which it neglects).
 run check --fail-on never "$data/bias_clamp.cir"
-check "c_bias: the clamp droops 11 V x 1 ms / (20 k x 0.381 uF) = 1.443 V, past the 5 % limit" bash -c "grep -q 'droops 1.443 V per period under its 20 kohm load, 6.6% of its 22 V swing (limit 5%) \[clamp-droop\]' '$tmp/out' && grep -q 'C at 38% of nominal under its worst DC bias (c_bias)' '$tmp/out'"
+check "c_bias: the clamp droops 11.02 V x 1 ms / (20 k x 0.381 uF) = 1.446 V, past the 5 % limit" bash -c "grep -q 'droops 1.446 V per period under its 20 kohm load, 6.6% of its 22 V swing (limit 5%) \[clamp-droop\]' '$tmp/out' && grep -q 'C at 38% of nominal under its worst DC bias (c_bias)' '$tmp/out'"
+# A clamp whose coupling capacitor's number is the solver's (the analysis
+# cannot settle a 200 mV Schottky restorer): the droop is figured from that
+# number, 218.8 mV x 1 ms / (47 k x 470 nF), not from the analysis's unsettled
+# range (which gave 54.6 mV, a false clamp-droop past 5 %). ngspice's run of
+# the same deck (blind set b35's tester) shows 9.4 mV a period near-ideal.
+run check --fail-on never "$here/families/f07_b35_schottky_restorer_200mv_hold_peak_1khz.cir"
+check "droop of a clamp with a simulated coupling capacitor: from its simulated voltage, no false clamp-droop" python3 -c "
+import re, sys
+t = open(sys.argv[1]).read()
+assert 'clamp-droop' not in t, 'false clamp-droop'
+cb = re.search(r'(?m)^  Cb +S2 +voltage .*? ([0-9.]+) mV +[0-9.]+ mV', t)
+d = re.search(r'clamp droop under its load: ([0-9.]+) mV per period', t)
+assert cb and d, t[-2000:]
+want = float(cb.group(1)) * 1e-3 / (47e3 * 470e-9)
+assert abs(float(d.group(1)) - want) <= 0.01 * want, (d.group(1), want)
+assert abs(float(d.group(1)) - 9.4) <= 0.1 * 9.4, d.group(1)
+" "$tmp/out"
+
 sed 's/ c_bias="0V=100% 16V=10%"//' "$data/bias_clamp.cir" > "$tmp/nobias.cir"
 run check --fail-on never "$tmp/nobias.cir"
-check "c_bias: without the curve the same clamp droops 550 mV, within the limit" bash -c "! grep -q 'clamp-droop' '$tmp/out' && grep -q 'clamp droop under its load: 550 mV per period' '$tmp/out'"
+check "c_bias: without the curve the same clamp droops 551.2 mV, within the limit" bash -c "! grep -q 'clamp-droop' '$tmp/out' && grep -q 'clamp droop under its load: 551.2 mV per period' '$tmp/out'"
 sed 's/c_bias="0V=100% 16V=10%"/c_bias="16V=10% 8V=50%"/' "$data/bias_clamp.cir" > "$tmp/badbias.cir"
 run check --fail-on never "$tmp/badbias.cir"
 check "c_bias: a curve that does not rise in voltage is a located error" bash -c "test $rc -eq 2 && grep -q \"badbias.cir:10:1: error: c_bias '16V=10% 8V=50%': bias points must rise in voltage (at character 9)\" '$tmp/out'"

@@ -184,6 +184,19 @@ static void test_sources(void **state)
 	assert_int_equal(find_part(&r, "V4")->ext->src->nargs, 3);
 	assert_int_equal(find_part(&r, "V5")->ext->src->nargs, 4);
 	run_free(&r);
+
+	/* a zero PULSE width is TSTOP in SPICE3 and ngspice (ngspice-39,
+	   checked by simulation: PULSE(-10 10 0 45u 5u 0 50u) is 10 V at
+	   47 us and at 49.5 us): held at V2 from the rise's end to the
+	   period's; LTspice's zero is zero */
+	run_text(&r, "t\nV1 a 0 PULSE(-10 10 0 45u 5u 0 50u)\n");
+	assert_non_null(strstr(r.diags, "2:1: warning: PULSE with a width of 0"));
+	assert_close(find_part(&r, "V1")->ext->src->args[5], 5e-6);
+	run_free(&r);
+	run_dialect(&r, DIALECT_LTSPICE, "t\nV1 a 0 PULSE(-10 10 0 45u 5u 0 50u)\n");
+	assert_string_equal(r.diags, "");
+	assert_close(find_part(&r, "V1")->ext->src->args[5], 0);
+	run_free(&r);
 }
 
 static void test_elements(void **state)
