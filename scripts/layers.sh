@@ -39,6 +39,7 @@ subsize front
 nl front
 annot front
 dmodel front
+thermal front
 sig analysis
 form analysis
 prop analysis
