@@ -74,6 +74,7 @@ check check
 simbound check
 dstring check
 cstring check
+floatnet check
 hull check
 surge check
 loadout check

@@ -19,6 +19,7 @@
 #include <string.h>
 
 #include "cstring.h"
+#include "floatnet.h"
 #include "dstring.h"
 #include "simrun.h"
 
@@ -53,6 +54,7 @@ struct sb {
 	double *vmin, *vmax;
 	struct dstring ds;       /* ungraded diode strings */
 	struct cstring cs;       /* ungraded capacitor strings */
+	struct floatnet fn;      /* networks held by capacitors alone */
 	double *nmin, *nmax;     /* a run's node extremes, when there are any */
 	unsigned long work, total_work; /* Newton iterations times unknowns */
 	unsigned long run_work;  /* Newton iterations allowed in one run */
@@ -387,6 +389,8 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			dstring_widen(c, &b->ds, b->nmin, b->nmax, b->vmin);
 			cstring_widen(c, &b->cs, b->nmin, b->nmax, b->vmin, b->vmax);
 		}
+		if (!r.oneshot) /* from the zero state, history fixes the level */
+			floatnet_widen(c, &b->fn, b->vmin, b->vmax, b->nmin, b->nmax);
 		if (!real) {
 			ideal_ok = 1;
 			memcpy(imin, b->vmin, np * sizeof *imin);
@@ -649,8 +653,15 @@ static int alloc_all(struct sb *b)
 	for (size_t i = 0; x->best && x->rev_min && i < np; i++)
 		x->best[i] = x->rev_min[i] = INFINITY;
 	b->o.node_noise = arena_alloc(b->ar, nn * sizeof *b->o.node_noise);
-	if (!b->o.node_noise || !dstring_find(c, b->ar, &b->ds) || !cstring_find(c, b->ar, &b->cs))
+	if (!b->o.node_noise || !dstring_find(c, b->ar, &b->ds) || !cstring_find(c, b->ar, &b->cs) ||
+	    !floatnet_find(c, b->ar, &b->fn))
 		return 0;
+	b->o.nprobe = b->fn.npair; /* the floating networks' leakage paths */
+	b->o.probe_pos = b->fn.pos;
+	b->o.probe_neg = b->fn.neg;
+	b->o.probe_min = b->fn.pmin;
+	b->o.probe_max = b->fn.pmax;
+	b->o.probe_mean = b->fn.mean;
 	if (b->ds.n || b->cs.n) {
 		b->nmin = arena_alloc(b->ar, nn * sizeof *b->nmin);
 		b->nmax = arena_alloc(b->ar, nn * sizeof *b->nmax);
@@ -743,6 +754,8 @@ static const char *string_corner(struct sb *b, uint32_t k, const char *corner)
 {
 	uint32_t s = b->ds.n ? b->ds.of[k] : NL_NONE;
 	const char *cnote = cstring_note(b->a->er.circuit, &b->cs, k, b->ar);
+	if (!cnote)
+		cnote = floatnet_note(b->a->er.circuit, &b->fn, k, b->ar);
 	char buf[1200];
 	if (cnote) {
 		snprintf(buf, sizeof buf, "%.700s; %s", corner, cnote);
@@ -794,7 +807,7 @@ static void fill(struct sb *b)
 		s->rev_min = x->rev_min[k];
 		s->corner = string_corner(b, k, x->corner[k]);
 		if ((b->ds.n && b->ds.of[k] != NL_NONE) || /* its share may be nothing */
-		    (b->cs.n && b->cs.of[k] != NL_NONE))
+		    (b->cs.n && b->cs.of[k] != NL_NONE) || (b->fn.ngroup && b->fn.cap[k] != NL_NONE))
 			s->best = NAN;
 		const struct nl_part *pt = nl_part_at(c, k);
 		if (pt->kind == NL_C)

@@ -980,6 +980,24 @@ sed 's/c_bias="0V=100% 16V=10%"/c_bias="16V=10% 8V=50%"/' "$data/bias_clamp.cir"
 run check --fail-on never "$tmp/badbias.cir"
 check "c_bias: a curve that does not rise in voltage is a located error" bash -c "test $rc -eq 2 && grep -q \"badbias.cir:10:1: error: c_bias '16V=10% 8V=50%': bias points must rise in voltage (at character 9)\" '$tmp/out'"
 
+# A doubler held to ground by capacitors alone: leakage alone splits its
+# output between CU and CL, so each must be bounded by the whole output.
+# ngspice's run of the same deck (rshunt=1e12, from zero, 400 ms) ends at
+# V(top) - V(bot) = 9.598 + 7.598 = 17.196 V; its split, 9.6 / 7.6 V, is one
+# of many (docs/check.md, "Floating networks").
+run check --format json --source-tol 0 --fail-on never "$data/floating_doubler.cir"
+check "floating doubler: each capacitor bounded by the whole output, with why" python3 -c "
+import json, sys
+r = json.load(open(sys.argv[1]))
+st = {(s['part'], s['quantity']): s for f in r['files'] for s in f['stresses']}
+for p in ('CU', 'CL'):
+    s = st[(p, 'voltage')]
+    assert 17.196 <= s['worst'] <= 17.196 * 1.1, (p, s['worst'])
+    assert 'leakage, not the circuit, sets' in s['corner'], s['corner']
+    assert s.get('best') is None, s
+assert st[('DU', 'reverse_voltage')]['worst'] <= 17.196 * 1.1
+" "$tmp/out"
+
 run rules --format json
 check "every rule has its page in docs/rules/" python3 -c "
 import json,os,sys

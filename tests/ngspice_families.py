@@ -672,16 +672,18 @@ _LOOSE_FILES = {
         "(3.3 V across the diode; ngspice's power-up run 3.3 V), while in steady state the "
         "pin rests at 1.5-2.2 V (1.85 V across it)"),
     "f02_b34_bjt_totem_blocking_cap_doubler_grounded_mid_load_across_20khz.cir": (
-        ("cb", "cl"),
+        ("cb", "cl", "cu"),
         "a full-wave doubler fed through a blocking capacitor with its load across both "
-        "rails: how the output splits between its two capacitors, and so the blocking "
-        "capacitor's DC, is fixed by no charge balance (only leakage sets it), so the "
-        "solver's settled split (5.3 / 5.3 V) differs from ngspice's run from zero "
-        "(6.6 / 2.6 V); see KNOWN_UNSOUND"),
+        "rails: the doubler is held to the rest of the circuit by capacitors alone, so how "
+        "its output splits between its two capacitors, and the blocking capacitor's DC, is "
+        "set by leakage only (docs/check.md, \"Floating networks\"); each capacitor is taken "
+        "over every split leakage allows (11.3 V for CU), where ngspice's run from zero, with "
+        "its own leakage to ground, ends at one split (6.6 / 2.6 V)"),
     "f02_b34_cmos_bridge_tox_u0_models_floating_doubler_200khz.cir": (
-        ("cb", "cl"),
-        "the same undetermined split as the totem-driven doubler: the solver settles at "
-        "2.2 / 7.4 V where ngspice's run from zero ends at 4.7 / 4.7 V; see KNOWN_UNSOUND"),
+        ("cb", "cl", "cu"),
+        "the same floating doubler behind a blocking capacitor, driven by two CMOS "
+        "inverters in antiphase: every split leakage allows (9.5 V for CU, 12.1 V for CL) "
+        "where ngspice's run from zero ends at 4.7 / 4.7 V"),
     "f02_b34_npn_slow_storage_forward_flyback_xfmr_fw_doubler_50khz.cir": (
         ("cl", "csn"),
         "an NPN with a long storage time switching a 1:4 transformer: the flyback-charged "
@@ -710,19 +712,6 @@ KNOWN_UNSOUND.update({
         "over many periods (ngspice's real run gives 1.976 V after 20 periods, flat to "
         "4 mV, its near-ideal one 1.869 V); the solver's settled run at the same corner "
         "gives 1.849 V, 1.884 V with the margin, the near-ideal figure",
-})
-
-KNOWN_UNSOUND.update({
-    ("f02_b34_bjt_totem_blocking_cap_doubler_grounded_mid_load_across_20khz.cir", "cu"):
-        "a full-wave doubler fed through a blocking capacitor with its load across both "
-        "rails has a whole family of periodic steady states: the split of the output "
-        "between its two capacitors is fixed by no charge balance, only by leakage and "
-        "history, and each capacitor is sound only if bounded by the pair's whole output "
-        "(as an ungraded series string is, docs/check.md); the solver takes the split it "
-        "settles at, 5.3 V, where ngspice's run from zero ends at 6.6 V",
-    ("f02_b34_cmos_bridge_tox_u0_models_floating_doubler_200khz.cir", "cu"):
-        "the same undetermined split (two CMOS inverters in antiphase into a doubler "
-        "through a blocking capacitor): the solver settles at 2.2 V, ngspice at 4.7 V",
 })
 
 # Parts known to get no number, each with its reason: the tool must still
