@@ -334,8 +334,8 @@ int stress_scales_whole(const struct nl_part *p);
  * capacitor; where that capacitor's number is the solver's instead (or
  * none), the droop is figured again from that number (or dropped: a
  * droop on an unsettled voltage says nothing). Call once the simulated
- * numbers are in. */
-void stress_refigure_droop(struct stress_result *sr);
+ * numbers are in. Returns 1 (a step of check.c's pipeline). */
+int stress_refigure_droop(struct stress_result *sr);
 
 /* Source tolerance used for part (annotation, --source-tol, profile). */
 double stress_tolerance(const struct audit *a, const struct profile *p,

@@ -140,7 +140,7 @@ static int judge(const struct check_opts *o, struct check_run *r)
 				nl_part_count(a->er.circuit) <= o->verify_max_parts);
 	return rt && stress_run(a, rt, r->profile, a->ar, &r->sr) &&
 	       simulate_unproven(o, r) && hull_run(a, r->profile, a->ar, &r->sr) &&
-	       (stress_refigure_droop(&r->sr), 1) &&
+	       stress_refigure_droop(&r->sr) &&
 	       current_run(a, rt, profile_ambient(r->profile, NAN), a->ar, &r->sr) &&
 	       discharge_run(a, r->profile, a->ar, &r->sr) &&
 	       (!sim || verify_run(a, r->profile, &o->verify_lim, a->ar, &r->sr)) &&

@@ -407,8 +407,10 @@ static int fill_device(struct sim *s, struct simdev *d, size_t i, long *next)
 			d->dm->rs /= mult;
 			simdev_diode_init(d->dm);
 		}
-		if (d->dm->rs > 0)
+		if (d->dm->rs > 0) {
 			d->p = (*next)++;
+			s->rs_of[d->p] = d->a;
+		}
 	}
 	if (d->kind == SD_V || d->kind == SD_I) {
 		d->src = p->ext ? p->ext->src : NULL;
@@ -688,12 +690,15 @@ static enum sim_status build(struct sim *s, struct sim_refusal *ref)
 	s->shunt = arena_alloc(s->ar, s->nnodes * sizeof *s->shunt);
 	size_t bytes = (s->n + 1) * sizeof(double);
 	s->x = arena_zalloc(s->ar, bytes);
+	s->rs_of = arena_alloc(s->ar, (s->n + 1) * sizeof *s->rs_of);
+	for (size_t k = 0; s->rs_of && k <= s->n; k++)
+		s->rs_of[k] = -2;
 	s->xprev = arena_zalloc(s->ar, bytes);
 	s->d1 = arena_zalloc(s->ar, bytes);
 	s->d2 = arena_zalloc(s->ar, bytes);
 	s->v = arena_zalloc(s->ar, (s->nnodes + 1) * sizeof(double));
 	s->m = simmat_create(s->n, &s->h);
-	if (!s->dev || !s->shunt || !s->x || !s->xprev || !s->d1 || !s->d2 || !s->v || !s->m)
+	if (!s->dev || !s->shunt || !s->x || !s->rs_of || !s->xprev || !s->d1 || !s->d2 || !s->v || !s->m)
 		return SIM_OOM;
 	long next = (long)s->nnodes - 1;
 	s->held = NL_NONE;
@@ -795,7 +800,9 @@ static int converged(const struct sim *s, const double *xn)
 {
 	for (size_t k = 0; k < s->n; k++) {
 		double tol = s->o.reltol * fmax(fabs(xn[k]), fabs(s->x[k])) +
-			     (k + 1 < s->nnodes ? s->o.vntol : s->o.abstol);
+			     (k + 1 < s->nnodes ? s->o.vntol
+			      : s->rs_of[k] >= -1 ? fmax(s->o.abstol, SIM_RS_NODE_TOL)
+						 : s->o.abstol);
 		if (fabs(xn[k] - s->x[k]) > tol)
 			return 0;
 	}

@@ -26,6 +26,12 @@ struct sim_sens {
  * re-trigger conduction at the wrong instants and run on for tens of
  * microseconds (docs/solver.md, "The measured period"). */
 #define SIM_FINE_RELTOL 1e-5
+/* Newton's absolute test on a diode's internal node behind its RS: a
+ * voltage, but its drop across RS carries the diode's current (1 uV over
+ * 0.1 ohm is 10 uA), so it is held far tighter than vntol; not to a
+ * current's abstol, which the nanovolt of rounding noise on a floating
+ * network's common mode never meets (docs/solver.md, "Diode"). */
+#define SIM_RS_NODE_TOL 1e-8
 
 struct sim {
 	struct hr_alloc h;
@@ -38,6 +44,9 @@ struct sim {
 	size_t ndev;
 	struct simmat *m;
 	double *x, *xprev, *v;   /* iterate, last accepted, node voltages */
+	long *rs_of;             /* per unknown: a diode's internal node behind
+				    its RS: the unknown of its anode pin (-1:
+				    ground); else -2 */
 	double *d1, *d2;         /* each node unknown's last two accepted changes */
 	unsigned ring_cuts, ring_quiet; /* sim.c's ringing() */
 	long *shunt;             /* matrix handle of each node's diagonal */

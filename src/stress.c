@@ -794,7 +794,7 @@ static void figures(struct ctx *x, size_t si, struct stress_struct *f,
 	}
 }
 
-void stress_refigure_droop(struct stress_result *sr)
+int stress_refigure_droop(struct stress_result *sr)
 {
 	for (size_t i = 0; i < sr->n; i++) {
 		const struct stress *s = &sr->s[i];
@@ -807,6 +807,7 @@ void stress_refigure_droop(struct stress_result *sr)
 		f->droop_v = s->bounded ? s->worst * f->period / (f->load_r * f->droop_c) : 0;
 		f->droop_frac = f->swing > 0 ? f->droop_v / f->swing : 0;
 	}
+	return 1;
 }
 
 /* At power-up every capacitor is discharged: a pinned node still sits at

@@ -158,6 +158,7 @@ struct tally {
 	size_t diodes, others;
 	const struct nl_part *diode, *other;
 	double other_t;
+	double tmin, tmax; /* the moved diodes' temperatures */
 };
 
 static int move_part(struct nl_circuit *c, struct nl_part *p, double temp, double tnom,
@@ -173,6 +174,8 @@ static int move_part(struct nl_circuit *c, struct nl_part *p, double temp, doubl
 		if (!m)
 			return 0;
 		p->model = m;
+		n->tmin = n->diodes ? fmin(n->tmin, t) : t;
+		n->tmax = n->diodes ? fmax(n->tmax, t) : t;
 		n->diode = n->diodes++ ? n->diode : p;
 	} else if ((p->kind == NL_R || p->kind == NL_C) && x && (isfinite(x->tc1) || isfinite(x->tc2))) {
 		double a = isfinite(x->tc1) ? x->tc1 : 0, b = isfinite(x->tc2) ? x->tc2 : 0;
@@ -199,11 +202,16 @@ int thermal_apply(struct nl_circuit *c, const struct thermal_deck *t, struct dia
 		const struct nl_extra *x = n.diode->ext;
 		struct diag_loc at = isfinite(t->temp) && !(x && isfinite(x->temp))
 					     ? t->at : nl_part_loc(n.diode);
+		char when[80];
+		if (n.tmax - n.tmin > 1e-9)
+			snprintf(when, sizeof when, "%g to %g degC", n.tmin, n.tmax);
+		else
+			snprintf(when, sizeof when, "%g degC", n.tmin);
 		diag_add(d, DIAG_NOTE, "temperature", at,
-			 "%zu diode%s taken at %g degC, %s at %g degC: saturation current, "
+			 "%zu diode%s taken at %s, %s at %g degC: saturation current, "
 			 "emission voltage, breakdown (TCV), RS, TT and junction capacitance moved "
 			 "by SPICE's temperature equations",
-			 n.diodes, n.diodes == 1 ? "" : "s", part_temp(n.diode, temp),
+			 n.diodes, n.diodes == 1 ? "" : "s", when,
 			 n.diodes == 1 ? "its model measured" : "their models measured",
 			 param(n.diode->model, "tnom", "tref", tnom));
 	}

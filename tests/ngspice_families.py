@@ -717,18 +717,6 @@ KNOWN_UNSOUND.update({
 # Parts known to get no number, each with its reason: the tool must still
 # name them in a stress-unsettled warning (docs/rules/stress-unsettled.md).
 KNOWN_MISSING = {
-    "f01_b33_floating_current_tank_bridge_200k.cir":
-        "a bridge on a floating current-fed tank, returned to ground through 100 k only: the "
-        "network's common mode carries a nanovolt of rounding noise from step to step, and "
-        "the Newton test holds each diode's internal node (behind its RS) to the 1e-12 "
-        "tolerance of a current, which that noise never meets; judging those nodes as "
-        "voltages gives the bridge its numbers (99.7 V for ngspice's 99.25 V) but let a "
-        "slow rectifier's plain settling end 0.2 % low, so it is not done yet; each part "
-        "gets a stress-unsettled warning",
-    "f01_b33_floating_thevenin_winding_lm_bridge_200k.cir":
-        "the same floating bridge, fed from a source behind 100 ohm with 47 uH across it: "
-        "the same Newton test on the diodes' internal nodes; each part gets a "
-        "stress-unsettled warning",
     "f02_b1_doubler_source_rl_bare.cir":
         "a doubler fed through a bare 3 mH and 0.6 ohm: the inductance rings with the "
         "diodes' 10 pF at 920 kHz with a Q near 28000, all period long, and following it "

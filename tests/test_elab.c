@@ -586,6 +586,10 @@ static void test_temperature(void **state)
 	assert_close(find_part(&r, "C2")->value, 1e-6 * (1 - 2e-3 * 73));
 	run_free(&r);
 
+	run_text(&r, "t\n.temp 100\nD1 a 0 dz\nD2 a 0 dz temp=125\n.model dz d\n");
+	assert_non_null(strstr(r.diags, "note: 2 diodes taken at 100 to 125 degC"));
+	run_free(&r);
+
 	run_text(&r, "t\n.options reltol=1e-4 temp=60 tnom = 25\nD1 a 0 dz\n"
 		     ".model dz d bv=12 tcv=0.01\n");
 	assert_non_null(strstr(r.diags, "taken at 60 degC, its model measured at 25 degC"));
