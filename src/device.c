@@ -516,6 +516,36 @@ static int next_tuple(uint32_t *t, uint32_t d, uint32_t n)
 	return 0;
 }
 
+/* The fields after a POLY(n) as plain words, the groups in parentheses
+ * that PSpice writes ("(3,0)" for a node pair, "(0,2.4e-5,3.8e-5)" for the
+ * coefficients, read as a call when a name comes before them) unpacked into out; their count, 0 when a field is of
+ * another form or there are more than POLY_MAX_FIELDS. */
+#define POLY_MAX_FIELDS 160
+static uint32_t poly_fields(const struct deck_card *c, struct deck_field *out)
+{
+	uint32_t n = 0;
+	for (uint32_t i = 3; i < c->nfields; i++) {
+		const struct deck_field *f = &c->fields[i];
+		int group = f->kind == FIELD_CALL;
+		uint32_t m = group ? f->nargs : 1;
+		if (group && f->len > 0) { /* "VS2 (0,2,3)" reads as a call of VS2 */
+			if (n == POLY_MAX_FIELDS)
+				return 0;
+			out[n] = *f;
+			out[n].kind = FIELD_ATOM;
+			out[n].nargs = 0;
+			out[n++].args = NULL;
+		}
+		for (uint32_t j = 0; j < m; j++) {
+			const struct deck_field *a = group ? &f->args[j] : f;
+			if (a->kind != FIELD_ATOM || n == POLY_MAX_FIELDS)
+				return 0;
+			out[n++] = *a;
+		}
+	}
+	return n;
+}
+
 /* POLY(n) (E, G: n control node pairs; F, H: n control sources) and its
  * coefficients: SPICE's polynomial, the constant first, then the terms
  * of each degree in turn, each a product of controls with non-decreasing
@@ -524,26 +554,22 @@ static int next_tuple(uint32_t *t, uint32_t d, uint32_t n)
  * behavioural without one. */
 static enum dev_status keep_poly(struct build *b, uint32_t n, int by_current, int current)
 {
-	const struct deck_card *c = b->card;
 	struct arena *ar = nl_arena(b->c);
-	uint32_t first = 3 + (by_current ? n : 2 * n), deg = 0, t[16] = {0};
+	struct deck_field f[POLY_MAX_FIELDS];
+	uint32_t nf = poly_fields(b->card, f), nctl = by_current ? n : 2 * n, deg = 0, t[16] = {0};
 	struct expr *sum = NULL;
-	for (uint32_t i = 3; i < first && i < c->nfields; i++)
-		if (c->fields[i].kind != FIELD_ATOM)
-			return behavioural(b);
-	for (uint32_t k = first; k < c->nfields; k++) {
+	if (nf == 0 || nf <= nctl)
+		return behavioural(b);
+	for (uint32_t k = nctl; k < nf; k++) {
 		double coef;
-		enum dev_status cs = c->fields[k].kind == FIELD_ATOM
-					     ? const_value(b, &c->fields[k], &coef)
-					     : DEV_STATE;
+		enum dev_status cs = const_value(b, &f[k], &coef);
 		if (cs == DEV_DEFER || cs == DEV_OOM)
 			return cs;
 		if (cs != DEV_OK)
 			return behavioural(b);
-		struct expr *term = expr_num(ar, coef, c->fields[k].line, c->fields[k].col);
+		struct expr *term = expr_num(ar, coef, f[k].line, f[k].col);
 		for (uint32_t j = 0; j < deg; j++)
-			term = expr_op(ar, EXPR_MUL, term,
-				       poly_control(b, c->fields + 3, t[j], by_current), NULL);
+			term = expr_op(ar, EXPR_MUL, term, poly_control(b, f, t[j], by_current), NULL);
 		if (coef != 0 || !sum)
 			sum = sum ? expr_op(ar, EXPR_ADD, sum, term, NULL) : term;
 		if (!sum)
@@ -554,7 +580,7 @@ static enum dev_status keep_poly(struct build *b, uint32_t n, int by_current, in
 			memset(t, 0, sizeof t);
 		}
 	}
-	if (first > c->nfields || !sum)
+	if (!sum)
 		return behavioural(b);
 	struct nl_behav *bh = NULL;
 	const char *why = NULL;
