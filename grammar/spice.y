@@ -283,7 +283,8 @@ field
 		}
 	  }
 	| exprfield { $$ = $1; }
-	| exprfield '=' value { $$ = $1; /* table pairs of behavioural sources: kept as the expression */ }
+	| exprfield '=' value
+	  { $$ = $1; if ($$) $$->value = $3; /* TABLE {x} = (x1,y1) ...: the first pair hangs on the expression */ }
 	;
 
 value

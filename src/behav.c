@@ -56,6 +56,7 @@ static const struct {
 	{"if", 3},
 	{"ternary_fcn", 3},
 	{"limit", 3},
+	{"table", 0}, /* table(x, x1, y1, x2, y2, ...): PSpice's TABLE */
 };
 
 int behav_function_known(const char *name, uint32_t nargs)
@@ -211,10 +212,12 @@ static struct expr *walk(struct rs *x, const struct expr *e, unsigned depth)
 			return probe(x, e);
 		return fold(x, e);
 	case EXPR_CALL:
+		if (strcasecmp(e->name, "table") == 0 && (e->nargs < 3 || e->nargs % 2 == 0))
+			return refuse(x, "table() needs its input and pairs of x and y");
 		if (behav_function_known(e->name, e->nargs))
 			return walk_args(x, e, depth);
-		if (strcasecmp(e->name, "poly") == 0 || strcasecmp(e->name, "table") == 0)
-			return refuse(x, "poly() and table() forms are not simulated");
+		if (strcasecmp(e->name, "poly") == 0)
+			return refuse(x, "poly() inside an expression is not simulated");
 		return fold(x, e);
 	default:
 		return walk_args(x, e, depth);

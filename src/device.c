@@ -516,34 +516,51 @@ static int next_tuple(uint32_t *t, uint32_t d, uint32_t n)
 	return 0;
 }
 
-/* The fields after a POLY(n) as plain words, the groups in parentheses
- * that PSpice writes ("(3,0)" for a node pair, "(0,2.4e-5,3.8e-5)" for the
- * coefficients, read as a call when a name comes before them) unpacked into out; their count, 0 when a field is of
- * another form or there are more than POLY_MAX_FIELDS. */
-#define POLY_MAX_FIELDS 160
-static uint32_t poly_fields(const struct deck_card *c, struct deck_field *out)
+/* Fields list[0..n) as plain words appended to out (at *m), the groups in
+ * parentheses that PSpice writes ("(3,0)" for a node pair,
+ * "(0,2.4e-5,3.8e-5)" for coefficients, "(7.1,6.8e-4)" for a table's
+ * point; read as a call when a name comes before them) unpacked; 0 when a
+ * field is of another form or there are more than FLAT_MAX. */
+#define FLAT_MAX 160
+static int flat_fields(const struct deck_field *list, uint32_t n, struct deck_field *out,
+		       uint32_t *m)
 {
-	uint32_t n = 0;
-	for (uint32_t i = 3; i < c->nfields; i++) {
-		const struct deck_field *f = &c->fields[i];
+	for (uint32_t i = 0; i < n; i++) {
+		const struct deck_field *f = &list[i];
 		int group = f->kind == FIELD_CALL;
-		uint32_t m = group ? f->nargs : 1;
+		uint32_t k = group ? f->nargs : 1;
 		if (group && f->len > 0) { /* "VS2 (0,2,3)" reads as a call of VS2 */
-			if (n == POLY_MAX_FIELDS)
+			if (*m == FLAT_MAX)
 				return 0;
-			out[n] = *f;
-			out[n].kind = FIELD_ATOM;
-			out[n].nargs = 0;
-			out[n++].args = NULL;
+			out[*m] = *f;
+			out[*m].kind = FIELD_ATOM;
+			out[*m].nargs = 0;
+			out[(*m)++].args = NULL;
 		}
-		for (uint32_t j = 0; j < m; j++) {
+		for (uint32_t j = 0; j < k; j++) {
 			const struct deck_field *a = group ? &f->args[j] : f;
-			if (a->kind != FIELD_ATOM || n == POLY_MAX_FIELDS)
+			if (a->kind != FIELD_ATOM || *m == FLAT_MAX)
 				return 0;
-			out[n++] = *a;
+			out[(*m)++] = *a;
 		}
 	}
-	return n;
+	return 1;
+}
+
+/* Keeps expression e, built here, as the part's behaviour (behav.h). */
+static enum dev_status keep_built(struct build *b, struct expr *e, int current)
+{
+	struct nl_behav *bh = NULL;
+	const char *why = NULL;
+	enum dev_status st = behav_build(b->s, e, current, nl_arena(b->c), &bh, &why);
+	b->has_ext = 1;
+	if (st != DEV_OK)
+		return st;
+	if (!bh)
+		b->ext.behav_why = why;
+	b->ext.behav = bh;
+	st = bh ? probe_pins(b, bh) : DEV_OK;
+	return st == DEV_OK ? behavioural(b) : st;
 }
 
 /* POLY(n) (E, G: n control node pairs; F, H: n control sources) and its
@@ -555,10 +572,11 @@ static uint32_t poly_fields(const struct deck_card *c, struct deck_field *out)
 static enum dev_status keep_poly(struct build *b, uint32_t n, int by_current, int current)
 {
 	struct arena *ar = nl_arena(b->c);
-	struct deck_field f[POLY_MAX_FIELDS];
-	uint32_t nf = poly_fields(b->card, f), nctl = by_current ? n : 2 * n, deg = 0, t[16] = {0};
+	const struct deck_card *c = b->card;
+	struct deck_field f[FLAT_MAX];
+	uint32_t nf = 0, nctl = by_current ? n : 2 * n, deg = 0, t[16] = {0};
 	struct expr *sum = NULL;
-	if (nf == 0 || nf <= nctl)
+	if (c->nfields < 3 || !flat_fields(c->fields + 3, c->nfields - 3, f, &nf) || nf <= nctl)
 		return behavioural(b);
 	for (uint32_t k = nctl; k < nf; k++) {
 		double coef;
@@ -580,19 +598,35 @@ static enum dev_status keep_poly(struct build *b, uint32_t n, int by_current, in
 			memset(t, 0, sizeof t);
 		}
 	}
-	if (!sum)
+	return sum ? keep_built(b, sum, current) : behavioural(b);
+}
+
+/* E, G TABLE {x} = (x1,y1) (x2,y2) ...: PSpice's table, linear between its
+ * points and held past its ends, kept as the expression table(x, x1, y1,
+ * ...) that the solver evaluates (simbehav.c). */
+static enum dev_status keep_table(struct build *b, int current)
+{
+	const struct deck_card *c = b->card;
+	struct deck_field f[FLAT_MAX];
+	struct expr *args[FLAT_MAX + 1];
+	uint32_t n = 0;
+	if (c->nfields < 4 || c->fields[3].kind != FIELD_EXPR ||
+	    (c->fields[3].value && !flat_fields(c->fields[3].value, 1, f, &n)) ||
+	    !flat_fields(c->fields + 4, c->nfields - 4, f, &n) || n < 2 || n % 2)
 		return behavioural(b);
-	struct nl_behav *bh = NULL;
-	const char *why = NULL;
-	enum dev_status st = behav_build(b->s, sum, current, ar, &bh, &why);
-	b->has_ext = 1;
-	if (st != DEV_OK)
-		return st;
-	if (!bh)
-		b->ext.behav_why = why;
-	b->ext.behav = bh;
-	st = bh ? probe_pins(b, bh) : DEV_OK;
-	return st == DEV_OK ? behavioural(b) : st;
+	args[0] = c->fields[3].expr;
+	for (uint32_t k = 0; k < n; k++) {
+		double v;
+		enum dev_status cs = const_value(b, &f[k], &v);
+		if (cs == DEV_DEFER || cs == DEV_OOM)
+			return cs;
+		if (cs != DEV_OK)
+			return behavioural(b);
+		args[k + 1] = expr_num(nl_arena(b->c), v, f[k].line, f[k].col);
+	}
+	struct expr *e = expr_call(nl_arena(b->c), "table", args, n + 1, c->fields[2].line,
+				   c->fields[2].col);
+	return e ? keep_built(b, e, current) : DEV_OOM;
 }
 
 /* E, G: linear with two control nodes and a gain, or behavioural. */
@@ -617,6 +651,8 @@ static enum dev_status build_ctrl_v(struct build *b)
 	uint32_t vf = value_field(c), dims = poly_dims(b, &c->fields[2]);
 	if (dims)
 		return keep_poly(b, dims, 0, b->part.kind == NL_G);
+	if (deck_atom_is(&c->fields[2], "table"))
+		return keep_table(b, b->part.kind == NL_G);
 	if (vf && (st = keep_expression(b, vf, b->part.kind == NL_G)) != DEV_OK)
 		return st;
 	return behavioural(b);

@@ -132,6 +132,26 @@ static double slope(const double *g, size_t n)
 	return s;
 }
 
+/* table(x, x1, y1, x2, y2, ...), PSpice's TABLE: linear between the
+ * points (x rising), held at the first and last y past the ends. */
+static double table(const struct bev *b, const struct expr *e, unsigned d, double *g)
+{
+	double *tb = b->scratch + (size_t)d * 2 * b->np + b->np;
+	double x = ev(b, e->args[0], d + 1, g);
+	double xa = ev(b, e->args[1], d + 1, tb), ya = ev(b, e->args[2], d + 1, tb);
+	for (uint32_t k = 3; x > xa && k + 1 < e->nargs; k += 2) {
+		double xb = ev(b, e->args[k], d + 1, tb), yb = ev(b, e->args[k + 1], d + 1, tb);
+		if (x < xb && xb > xa) {
+			double s = (yb - ya) / (xb - xa);
+			scale(g, b->np, s);
+			return ya + s * (x - xa);
+		}
+		xa = xb, ya = yb;
+	}
+	scale(g, b->np, 0);
+	return ya;
+}
+
 static double call(const struct bev *b, const struct expr *e, unsigned d, double *g)
 {
 	double *ta = b->scratch + (size_t)d * 2 * b->np, *tb = ta + b->np;
@@ -149,6 +169,8 @@ static double call(const struct bev *b, const struct expr *e, unsigned d, double
 			memcpy(g, ta, b->np * sizeof *g);
 		return x > hi ? hi : x;
 	}
+	if (strcasecmp(n, "table") == 0)
+		return table(b, e, d, g);
 	if (strcasecmp(n, "min") == 0 || strcasecmp(n, "max") == 0) {
 		int mx = (n[1] | 32) == 'a';
 		double v = ev(b, e->args[0], d + 1, g);

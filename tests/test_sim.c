@@ -42,7 +42,7 @@
  *   (3 - v)/1k = v^2/1k, v = (sqrt(13) - 1)/2 (the quadratic's positive
  *   root); a ternary comparator is 5 V exactly where its input is above
  *   0.5 V; a high-gain clamp closing a resistive loop settles at its
- *   linear solution; poly() and expressions of temper stay refused by
+ *   linear solution; a table() without whole x, y pairs and expressions of temper stay refused by
  *   name;
  * - the periodic steady state of a slow rectifier (5.7 us transit time)
  *   by shooting-Newton agrees with plain period-after-period settling
@@ -771,7 +771,7 @@ static void test_behav_refusals(void **state)
 {
 	(void)state;
 	const char *decks[] = {
-		"table\nV1 a 0 1\nR1 a 0 1k\nE1 b 0 value={table(V(a),0,0,1,2)}\nR2 b 0 1k\n",
+		"table\nV1 a 0 1\nR1 a 0 1k\nE1 b 0 value={table(V(a),0,0,1)}\nR2 b 0 1k\n",
 		"temper\nV1 a 0 1\nR1 a 0 1k\nB1 b 0 V={temper*V(a)}\nR2 b 0 1k\n",
 		NULL, /* -(-(...V(a)...)) 250 deep, filled in below */
 	};
