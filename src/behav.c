@@ -172,13 +172,16 @@ static struct expr *walk(struct rs *x, const struct expr *e, unsigned depth);
 
 static struct expr *walk_args(struct rs *x, const struct expr *e, unsigned depth)
 {
-	struct expr *a[16] = {0};
+	struct expr *few[16] = {0};
 	uint32_t n = e->op == EXPR_CALL                       ? e->nargs
 		     : e->op == EXPR_NEG || e->op == EXPR_NOT ? 1
 		     : e->op == EXPR_COND                     ? 3
 							      : 2;
-	if (n > 16)
-		return refuse(x, "a call with more than 16 arguments");
+	if (n > 256)
+		return refuse(x, "a call with more than 256 arguments");
+	struct expr **a = n <= 16 ? few : arena_zalloc(x->ar, n * sizeof *a); /* a long table() */
+	if (!a)
+		return oom(x);
 	for (uint32_t i = 0; i < n; i++)
 		if (!(a[i] = walk(x, e->args[i], depth + 1)))
 			return NULL;
