@@ -93,4 +93,9 @@ int rules_run(const struct audit *a, const struct rating *r, const struct profil
  * steps); NaN above the largest. */
 double rules_standard_rating(double v, int diode);
 
+/* Decimals for a percentage of a rating shown beside its limit: 1 where
+ * whole percent would read as the limit itself ("50% ... (limit 50%)"
+ * for 50.4%), else 0. */
+int rules_pct_digits(double pct, double limit);
+
 #endif

@@ -380,8 +380,9 @@ static void judge_one(struct judge *j, const struct stress *s)
 	f->message = s->worst > rf->value
 			     ? fmt(j, "%s's %s is %s (simulated), above its %s rating itself (%.0f%% of it)", f->subject,
 				   judged[s->qty].what, eng(j, s->worst, u), eng(j, rf->value, u), 100 * s->worst / rf->value)
-			     : fmt(j, "%s's %s is %s (simulated), %.0f%% of its %s rating (limit %.0f%%)", f->subject,
-				   judged[s->qty].what, eng(j, s->worst, u), 100 * s->worst / rf->value,
+			     : fmt(j, "%s's %s is %s (simulated), %.*f%% of its %s rating (limit %.0f%%)", f->subject,
+				   judged[s->qty].what, eng(j, s->worst, u),
+				   rules_pct_digits(100 * s->worst / rf->value, 100 * k), 100 * s->worst / rf->value,
 				   eng(j, rf->value, u), 100 * k);
 	f->computation = how(j, s);
 	f->limits = fmt(j, "%s %s (%s); limit %s = %.0f%% of it (profile %s, %s%s%s)%s", judged[s->qty].column,

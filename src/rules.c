@@ -63,6 +63,11 @@ static const double diode_steps[] = {20, 30, 40, 50, 60, 100, 150, 200, 300,
 	400, 500, 600, 800, 1000, 1200, 1500, 1600, 1800, 2000, 2500, 3000, 4000,
 	5000, 6000, 8000, 10000, 12000, 15000, 20000, 30000, 40000, 50000};
 
+int rules_pct_digits(double pct, double limit)
+{
+	return floor(pct + 0.5) <= floor(limit + 0.5) ? 1 : 0;
+}
+
 double rules_standard_rating(double v, int diode)
 {
 	const double *s = diode ? diode_steps : cap_steps;
@@ -298,8 +303,9 @@ static void overvoltage(struct ctx *x, const struct stress *s, const char *cls)
 	} else if (worst > r->v_rated.value * factor) {
 		f = add(x, diode ? RULE_DIODE_DERATING : RULE_CAP_DERATING, s->part, s->structure);
 		if (f)
-			f->message = str(x, "%s sees %s %s worst case%s, %.0f%% of its %s rating (limit %.0f%%)",
+			f->message = str(x, "%s sees %s %s worst case%s, %.*f%% of its %s rating (limit %.0f%%)",
 					 f->subject, v(x, worst, "V"), what, when,
+					 rules_pct_digits(100 * worst / r->v_rated.value, factor * 100),
 					 100 * worst / r->v_rated.value, v(x, r->v_rated.value, "V"), factor * 100);
 	}
 	if (!f)
