@@ -34,8 +34,10 @@ struct floatnet {
 	uint32_t *pos, *neg, *grp;
 	double *pmin, *pmax, *mean;
 	double *lo, *hi;   /* per group: the shift range of the last widen */
-	size_t ncoupled;   /* boundary capacitors between two floating groups
-			      (not bounded here: their groups shift apart) */
+	size_t ncoupled;   /* capacitors between two floating groups */
+	unsigned char *coupled; /* per part: such a capacitor (its groups shift
+				   apart by what leakage sets; not bounded) */
+	unsigned char *tangled; /* per group: scratch, joined to another group */
 };
 
 /* Finds the floating groups that have boundary capacitors. Returns 0 on
@@ -49,6 +51,13 @@ int floatnet_find(const struct nl_circuit *c, struct arena *ar, struct floatnet 
  * infinity. */
 void floatnet_widen(const struct nl_circuit *c, struct floatnet *f, double *vmin, double *vmax,
 		    double *nmin, double *nmax);
+
+/* Why a capacitor between two floating groups, or at the boundary of a
+ * group joined to another by a capacitor, gets no number. */
+#define FLOATNET_COUPLED_WHY                                                            \
+	"it sits on networks that only capacitors hold to the rest of the circuit, "     \
+	"joined to one another by capacitors: leakage, not the circuit, sets their "     \
+	"levels, and the solver's run is one of many"
 
 /* "on a network held by capacitors alone ...": why capacitor k's number
  * covers its group's shifts, allocated in ar; NULL when k is no boundary

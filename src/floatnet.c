@@ -45,6 +45,7 @@ static void boundaries(const struct nl_circuit *c, uint32_t *up, uint32_t *gid, 
 		uint32_t a = root(up, q[0]), b = root(up, q[1]);
 		if (a == b || (a != 0 && b != 0)) {
 			f->ncoupled += a != b;
+			f->coupled[i] = a != b;
 			continue;
 		}
 		uint32_t in = a != 0 ? a : b;
@@ -65,8 +66,10 @@ static int alloc_pairs(struct arena *ar, struct floatnet *f, size_t n)
 	f->pmax = arena_alloc(ar, m * sizeof *f->pmax);
 	f->mean = arena_alloc(ar, m * sizeof *f->mean);
 	f->lo = arena_alloc(ar, (f->ngroup + 1) * sizeof *f->lo);
+	f->tangled = arena_zalloc(ar, f->ngroup + 1);
 	f->hi = arena_alloc(ar, (f->ngroup + 1) * sizeof *f->hi);
-	return f->pos && f->neg && f->grp && f->pmin && f->pmax && f->mean && f->lo && f->hi;
+	return f->pos && f->neg && f->grp && f->pmin && f->pmax && f->mean && f->lo && f->hi &&
+	       f->tangled;
 }
 
 static void add_pair(struct floatnet *f, uint32_t pos, uint32_t neg, uint32_t g)
@@ -107,7 +110,8 @@ int floatnet_find(const struct nl_circuit *c, struct arena *ar, struct floatnet 
 	out->group = arena_alloc(ar, (nn + 1) * sizeof *out->group);
 	out->cap = arena_alloc(ar, (np + 1) * sizeof *out->cap);
 	out->side = arena_zalloc(ar, np + 1);
-	if (!up || !gid || !out->group || !out->cap || !out->side)
+	out->coupled = arena_zalloc(ar, np + 1);
+	if (!up || !gid || !out->group || !out->cap || !out->side || !out->coupled)
 		return 0;
 	for (uint32_t j = 0; j < nn; j++)
 		up[j] = j, gid[j] = NL_NONE;

@@ -328,6 +328,38 @@ static void widen(const struct nl_circuit *c, double *vmin, double *vmax, size_t
 	}
 }
 
+/* A capacitor between two floating groups, or at the boundary of a group
+ * that such a capacitor joins to another: its groups' levels are a joint
+ * problem floatnet does not solve (members of ungraded strings aside,
+ * which their string bounds). */
+static int float_tangled(const struct sb *b, uint32_t k)
+{
+	const struct floatnet *f = &b->fn;
+	if (!f->ncoupled || (b->cs.n && b->cs.of[k] != NL_NONE))
+		return 0;
+	return f->coupled[k] || (f->cap[k] != NL_NONE && f->tangled[f->cap[k]]);
+}
+
+/* Floating networks (floatnet.h): boundary capacitors widened over the
+ * levels leakage allows; tangled ones (float_tangled) left without a
+ * number. */
+static void float_widen(struct sb *b)
+{
+	const struct nl_circuit *c = b->a->er.circuit;
+	floatnet_widen(c, &b->fn, b->vmin, b->vmax, b->nmin, b->nmax);
+	for (size_t k = 0; b->fn.ncoupled && k < nl_part_count(c); k++) {
+		const uint32_t *q = nl_pins(c, nl_part_at(c, k));
+		if (!b->fn.coupled[k] || (b->cs.n && b->cs.of[k] != NL_NONE))
+			continue;
+		for (int j = 0; j < 2; j++)
+			if (b->fn.group[q[j]] != NL_NONE)
+				b->fn.tangled[b->fn.group[q[j]]] = 1;
+	}
+	for (uint32_t k = 0; b->fn.ncoupled && k < nl_part_count(c); k++)
+		if (float_tangled(b, k))
+			b->vmin[k] = -INFINITY, b->vmax[k] = INFINITY;
+}
+
 /* One corner: with nearly ideal diodes (when asked) and as modelled;
  * with flows the real run's currents are kept. */
 static int run_corner(struct sb *b, const char *name, double *imin, double *imax, int ideal,
@@ -390,7 +422,7 @@ static int run_corner(struct sb *b, const char *name, double *imin, double *imax
 			cstring_widen(c, &b->cs, b->nmin, b->nmax, b->vmin, b->vmax);
 		}
 		if (!r.oneshot) /* from the zero state, history fixes the level */
-			floatnet_widen(c, &b->fn, b->vmin, b->vmax, b->nmin, b->nmax);
+			float_widen(b);
 		if (!real) {
 			ideal_ok = 1;
 			memcpy(imin, b->vmin, np * sizeof *imin);
@@ -797,6 +829,8 @@ static void fill(struct sb *b)
 			s->best = s->worst = s->rev_min = NAN;
 			if (blocked)
 				s->unproven = x->island_why[is] ? x->island_why[is] : x->blocked_why;
+			else if (float_tangled(b, k))
+				s->unproven = FLOATNET_COUPLED_WHY;
 			b->fb->left++;
 			continue;
 		}
