@@ -563,6 +563,21 @@ static enum dev_status keep_built(struct build *b, struct expr *e, int current)
 	return st == DEV_OK ? behavioural(b) : st;
 }
 
+/* Field f, a constant, as a number expression in *out (its value in
+ * *v): DEV_OK; DEV_DEFER or DEV_OOM as const_value gives them; DEV_STATE
+ * for anything else (the part stays behavioural, without a model). */
+static enum dev_status number_expr(struct build *b, const struct deck_field *f,
+				   struct expr **out, double *v)
+{
+	enum dev_status cs = const_value(b, f, v);
+	if (cs == DEV_DEFER || cs == DEV_OOM)
+		return cs;
+	if (cs != DEV_OK)
+		return DEV_STATE;
+	*out = expr_num(nl_arena(b->c), *v, f->line, f->col);
+	return *out ? DEV_OK : DEV_OOM;
+}
+
 /* POLY(n) (E, G: n control node pairs; F, H: n control sources) and its
  * coefficients: SPICE's polynomial, the constant first, then the terms
  * of each degree in turn, each a product of controls with non-decreasing
@@ -580,12 +595,10 @@ static enum dev_status keep_poly(struct build *b, uint32_t n, int by_current, in
 		return behavioural(b);
 	for (uint32_t k = nctl; k < nf; k++) {
 		double coef;
-		enum dev_status cs = const_value(b, &f[k], &coef);
-		if (cs == DEV_DEFER || cs == DEV_OOM)
-			return cs;
+		struct expr *term = NULL;
+		enum dev_status cs = number_expr(b, &f[k], &term, &coef);
 		if (cs != DEV_OK)
-			return behavioural(b);
-		struct expr *term = expr_num(ar, coef, f[k].line, f[k].col);
+			return cs == DEV_STATE ? behavioural(b) : cs;
 		for (uint32_t j = 0; j < deg; j++)
 			term = expr_op(ar, EXPR_MUL, term, poly_control(b, f, t[j], by_current), NULL);
 		if (coef != 0 || !sum)
@@ -617,12 +630,9 @@ static enum dev_status keep_table(struct build *b, int current)
 	args[0] = c->fields[3].expr;
 	for (uint32_t k = 0; k < n; k++) {
 		double v;
-		enum dev_status cs = const_value(b, &f[k], &v);
-		if (cs == DEV_DEFER || cs == DEV_OOM)
-			return cs;
+		enum dev_status cs = number_expr(b, &f[k], &args[k + 1], &v);
 		if (cs != DEV_OK)
-			return behavioural(b);
-		args[k + 1] = expr_num(nl_arena(b->c), v, f[k].line, f[k].col);
+			return cs == DEV_STATE ? behavioural(b) : cs;
 	}
 	struct expr *e = expr_call(nl_arena(b->c), "table", args, n + 1, c->fields[2].line,
 				   c->fields[2].col);
